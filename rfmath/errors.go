@@ -17,7 +17,8 @@ var (
 
 // Panic messages for programmer errors.
 const (
-	badOrder    = "rfmath: matrix order must be at least 1"
-	badMatrix   = "rfmath: matrix length is not n×n"
-	badRefCount = "rfmath: number of reference resistances is not n"
+	badOrder       = "rfmath: matrix order must be at least 1"
+	badMatrix      = "rfmath: matrix length is not n×n"
+	badRefCount    = "rfmath: number of reference resistances is not n"
+	badSweepLength = "rfmath: data length differs from the number of frequencies"
 )

@@ -1,0 +1,358 @@
+package rfmath
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+)
+
+// ErrNoEdge reports that a half-power edge of a resonance lies outside the
+// sweep, so its bandwidth and Q cannot be measured.
+var ErrNoEdge = errors.New("rfmath: half-power edge outside the sweep")
+
+// rlCapDB bounds the return loss used for interpolation, so that a point
+// with Γ = 0 exactly (RL = +Inf) still interpolates to finite numbers.
+const rlCapDB = 400
+
+// Dip is a band of a reflection sweep in which the return loss stays at or
+// above a threshold: the load takes most of the power there.
+type Dip struct {
+	// Index is the measured point of highest return loss in the band.
+	Index int
+	// FreqHz and ReturnLossDB are the deepest point, refined between the
+	// measured points (see [Dips]).
+	FreqHz, ReturnLossDB float64
+	// LoHz and HiHz are the band edges, where the return loss crosses the
+	// threshold.
+	LoHz, HiHz float64
+	// LoOpen and HiOpen report that the band runs off the start or the
+	// end of the sweep: the edge is then the first or last frequency and
+	// the true edge lies beyond it.
+	LoOpen, HiOpen bool
+}
+
+// BandwidthHz returns HiHz − LoHz.
+func (d Dip) BandwidthHz() float64 { return d.HiHz - d.LoHz }
+
+// Dips returns every contiguous band of the sweep in which the return loss
+// −20·log10|Γ| is at or above thresholdDB, in order of frequency. gamma[k]
+// is the reflection coefficient at freqHz[k], and freqHz increases. A
+// point whose Γ is NaN counts as outside any band.
+//
+// The deepest point of a band is refined by fitting a parabola to the
+// return loss in dB at the best measured point and its two neighbours
+// (which may be unevenly spaced) and taking its vertex; at the ends of the
+// sweep, or where the three points are not concave, the measured point is
+// kept. The vertex is an estimate: it is exact for a trace that is
+// quadratic in dB near its peak and good to a small part of the point
+// spacing for a smooth resonance.
+//
+// Each edge is interpolated linearly in dB between the last point below and
+// the first point at or above the threshold. Return loss beyond 400 dB
+// (including +Inf at Γ = 0) is taken as 400 dB for this interpolation.
+//
+// A gamma whose length differs from freqHz panics. The result is nil if no
+// point reaches the threshold.
+func Dips(freqHz []float64, gamma []complex128, thresholdDB float64) []Dip {
+	if len(gamma) != len(freqHz) {
+		panic(badSweepLength)
+	}
+	var dips []Dip
+	n := len(freqHz)
+	for k := 0; k < n; {
+		if !(returnLoss(gamma[k]) >= thresholdDB) {
+			k++
+			continue
+		}
+		s := k
+		for k < n && returnLoss(gamma[k]) >= thresholdDB {
+			k++
+		}
+		dips = append(dips, bandDip(freqHz, gamma, s, k-1, thresholdDB))
+	}
+	return dips
+}
+
+// DeepestDip returns the point of highest return loss over the whole sweep,
+// refined as in [Dips], with the band edges where the power the load takes,
+// 1 − |Γ|², has fallen to half its value at the deepest measured point:
+//
+//	threshold = −10·log10((1 + |Γmin|²)/2) dB
+//
+// For a single resonator at the end of a short lossless line matched to the
+// reference, these are the points where its reactance equals ±(R + Z0), so
+// FreqHz/BandwidthHz() is its loaded Q (REFERENCE-CHECKS §9 R-2).
+//
+// For an empty sweep, or one whose Γ are all NaN, Index is −1 and the other
+// fields are zero. A gamma whose length differs from freqHz panics.
+func DeepestDip(freqHz []float64, gamma []complex128) Dip {
+	if len(gamma) != len(freqHz) {
+		panic(badSweepLength)
+	}
+	best, bestRL := -1, math.Inf(-1)
+	for k, g := range gamma {
+		if rl := returnLoss(g); rl > bestRL {
+			best, bestRL = k, rl
+		}
+	}
+	if best < 0 {
+		return Dip{Index: -1}
+	}
+	g := cmplx.Abs(gamma[best])
+	thr := -10 * math.Log10((1+g*g)/2)
+	s, e := best, best
+	for s > 0 && returnLoss(gamma[s-1]) >= thr {
+		s--
+	}
+	for e < len(gamma)-1 && returnLoss(gamma[e+1]) >= thr {
+		e++
+	}
+	return bandDip(freqHz, gamma, s, e, thr)
+}
+
+// returnLoss returns −20·log10|g|.
+func returnLoss(g complex128) float64 { return ReturnLossDB(cmplx.Abs(g)) }
+
+// cappedRL returns the return loss of g, at most rlCapDB.
+func cappedRL(g complex128) float64 { return math.Min(returnLoss(g), rlCapDB) }
+
+// bandDip returns the dip of the band of points s…e (inclusive), all at or
+// above thr.
+func bandDip(freqHz []float64, gamma []complex128, s, e int, thr float64) Dip {
+	k := s
+	for i := s + 1; i <= e; i++ {
+		if returnLoss(gamma[i]) > returnLoss(gamma[k]) {
+			k = i
+		}
+	}
+	d := Dip{Index: k, FreqHz: freqHz[k], ReturnLossDB: returnLoss(gamma[k])}
+	if k > 0 && k < len(freqHz)-1 && !math.IsInf(d.ReturnLossDB, 1) {
+		x, y, ok := parabolaVertex(
+			freqHz[k-1], freqHz[k], freqHz[k+1],
+			returnLoss(gamma[k-1]), d.ReturnLossDB, returnLoss(gamma[k+1]))
+		if ok {
+			d.FreqHz, d.ReturnLossDB = x, y
+		}
+	}
+	if s == 0 {
+		d.LoHz, d.LoOpen = freqHz[0], true
+	} else {
+		d.LoHz = crossAt(freqHz[s-1], freqHz[s], cappedRL(gamma[s-1]), cappedRL(gamma[s]), thr)
+	}
+	if e == len(freqHz)-1 {
+		d.HiHz, d.HiOpen = freqHz[e], true
+	} else {
+		d.HiHz = crossAt(freqHz[e], freqHz[e+1], cappedRL(gamma[e]), cappedRL(gamma[e+1]), thr)
+	}
+	return d
+}
+
+// crossAt returns the x at which the straight line through (x0, y0) and
+// (x1, y1) takes the value y. If y0 = y1 it returns the midpoint.
+func crossAt(x0, x1, y0, y1, y float64) float64 {
+	if y0 == y1 {
+		return (x0 + x1) / 2
+	}
+	return x0 + (y-y0)/(y1-y0)*(x1-x0)
+}
+
+// parabolaVertex returns the vertex of the parabola through (x0, y0),
+// (x1, y1), (x2, y2), with x0 < x1 < x2, if it opens downward, all values
+// are finite and the vertex lies within [x0, x2].
+func parabolaVertex(x0, x1, x2, y0, y1, y2 float64) (x, y float64, ok bool) {
+	h0, h2 := x0-x1, x2-x1
+	d0, d2 := y0-y1, y2-y1
+	// y − y1 = a·h² + b·h with h = x − x1.
+	a := (d0/h0 - d2/h2) / (h0 - h2)
+	b := d0/h0 - a*h0
+	if !(a < 0) || math.IsInf(a, 0) || math.IsNaN(b) || math.IsInf(b, 0) {
+		return 0, 0, false
+	}
+	x = x1 - b/(2*a)
+	if !(x >= x0 && x <= x2) {
+		return 0, 0, false
+	}
+	return x, y1 - b*b/(4*a), true
+}
+
+// Crossing is a frequency at which the reactance of an impedance sweep
+// passes through zero.
+type Crossing struct {
+	// Index is the last measured point before the crossing (or at it, if
+	// the reactance is zero there): the crossing lies in
+	// [freqHz[Index], freqHz[Index+1]).
+	Index int
+	// FreqHz is the crossing, interpolated linearly in X.
+	FreqHz float64
+	// Rising is true when X goes from − to + with frequency, a series-type
+	// resonance (as of a series LC), and false when it goes from + to −, a
+	// parallel-type resonance (as of a lossy parallel LC).
+	Rising bool
+}
+
+// ReactanceZeroCrossings returns the frequencies at which the reactance
+// X = Im z of the impedance sweep z (ohms at freqHz, increasing) changes
+// sign by passing through zero, in order of frequency.
+//
+// Between two points X can also change sign by passing through infinity: a
+// pole, as at the resonance of a lossless parallel LC seen between
+// samples. The rule that tells them apart: a sign change between points k
+// and k+1 is a pole, and is skipped, when |X| grows toward it from both
+// sides, that is |X[k]| > |X[k−1]| and |X[k+1]| > |X[k+2]| (a side with no
+// further point does not vote; with neither, the change counts as a
+// crossing). At a true zero |X| shrinks toward the crossing. A lossy
+// parallel resonance sampled so coarsely that both neighbours lie outside
+// its half-power band looks like a pole and is skipped too.
+//
+// Points where X is exactly zero are joined to the run of zeros they belong
+// to; the crossing is the middle of the run if X changes sign across it.
+// Points with NaN reactance break the sweep: no crossing is reported across
+// them. A z whose length differs from freqHz panics.
+func ReactanceZeroCrossings(freqHz []float64, z []complex128) []Crossing {
+	if len(z) != len(freqHz) {
+		panic(badSweepLength)
+	}
+	n := len(z)
+	var out []Crossing
+	prev := -1 // last point with a finite, non-zero X
+	for k := range n {
+		x := imag(z[k])
+		if math.IsNaN(x) {
+			prev = -1
+			continue
+		}
+		if x == 0 {
+			continue
+		}
+		if prev >= 0 && (imag(z[prev]) < 0) != (x < 0) {
+			xp := imag(z[prev])
+			if k == prev+1 {
+				if !isPole(z, prev, k) {
+					out = append(out, Crossing{
+						Index:  prev,
+						FreqHz: crossAt(freqHz[prev], freqHz[k], xp, x, 0),
+						Rising: x > 0,
+					})
+				}
+			} else {
+				// A run of exact zeros between prev and k.
+				out = append(out, Crossing{
+					Index:  (prev + k) / 2,
+					FreqHz: (freqHz[prev+1] + freqHz[k-1]) / 2,
+					Rising: x > 0,
+				})
+			}
+		}
+		prev = k
+	}
+	return out
+}
+
+// isPole reports whether |X| grows toward the sign change between points k
+// and k+1 = j from both sides.
+func isPole(z []complex128, k, j int) bool {
+	votes, pole := 0, 0
+	if k > 0 && !math.IsNaN(imag(z[k-1])) {
+		votes++
+		if math.Abs(imag(z[k])) > math.Abs(imag(z[k-1])) {
+			pole++
+		}
+	}
+	if j < len(z)-1 && !math.IsNaN(imag(z[j+1])) {
+		votes++
+		if math.Abs(imag(z[j])) > math.Abs(imag(z[j+1])) {
+			pole++
+		}
+	}
+	return votes > 0 && pole == votes
+}
+
+// Resonance describes a resonance of an impedance sweep found from a
+// reactance zero crossing.
+type Resonance struct {
+	// FreqHz is the resonant frequency, where X = 0.
+	FreqHz float64
+	// Series is true for a series-type resonance (X rising through zero)
+	// and false for a parallel-type one.
+	Series bool
+	// ROhm is the resistance at resonance: R of Z for a series-type
+	// resonance, 1/G of Y = 1/Z for a parallel-type one.
+	ROhm float64
+	// LoHz and HiHz are the half-power edges: where |X| = R for a series
+	// type, or |B| = G of Y = 1/Z for a parallel type.
+	LoHz, HiHz float64
+	// Q is FreqHz/(HiHz − LoHz).
+	Q float64
+}
+
+// ResonanceQ measures the half-power bandwidth and Q of the resonance at
+// the crossing c of the impedance sweep z (ohms at freqHz), as found by
+// [ReactanceZeroCrossings].
+//
+// For a series-type resonance the edges are where |X| = R, for a
+// parallel-type one where |B| = G of Y = 1/Z; there the magnitude of the
+// impedance (or admittance) is √2 times its resonant value, and
+// Q = f0/(f+ − f−) (Pozar, Microwave Engineering, Section 6.1, from
+// memory; REFERENCE-CHECKS §9 ). R, X (or G, B) are interpolated
+// linearly between points. The Q is that of the impedance at the sweep's
+// reference plane: the unloaded Q of a resonator measured right at its
+// terminals.
+//
+// It returns an error wrapping [ErrNoEdge] if an edge lies beyond the
+// sweep. A c.Index outside the sweep, or a z whose length differs from
+// freqHz, panics.
+func ResonanceQ(freqHz []float64, z []complex128, c Crossing) (Resonance, error) {
+	if len(z) != len(freqHz) {
+		panic(badSweepLength)
+	}
+	if c.Index < 0 || c.Index >= len(z)-1 {
+		panic("rfmath: crossing index outside the sweep")
+	}
+	// p is the resistive part and q the reactive part that rises through
+	// zero: (R, X) for a series type, (G, B) for a parallel type.
+	pq := func(k int) (p, q float64) {
+		v := z[k]
+		if !c.Rising {
+			v = 1 / v
+		}
+		return real(v), imag(v)
+	}
+	f0 := c.FreqHz
+	k := c.Index
+	p1, _ := pq(k)
+	p2, _ := pq(k + 1)
+	p0 := p1 + (p2-p1)*(f0-freqHz[k])/(freqHz[k+1]-freqHz[k])
+	r := Resonance{FreqHz: f0, Series: c.Rising, ROhm: p0}
+	if !c.Rising {
+		r.ROhm = 1 / p0
+	}
+	// Below f0 the edge is where q + p falls through zero; above, where
+	// q − p rises through zero. Both equal ±p0 at f0.
+	lo, okLo := edge(freqHz, f0, p0, k, -1, pq)
+	hi, okHi := edge(freqHz, f0, -p0, k+1, +1, pq)
+	if !okLo {
+		return r, fmt.Errorf("%w: below %g Hz", ErrNoEdge, f0)
+	}
+	if !okHi {
+		return r, fmt.Errorf("%w: above %g Hz", ErrNoEdge, f0)
+	}
+	r.LoHz, r.HiHz = lo, hi
+	r.Q = f0 / (hi - lo)
+	return r, nil
+}
+
+// edge walks from point k in direction dir (−1 or +1) away from f0, where
+// h = q − dir·p is h0, and returns the frequency at which h changes sign.
+func edge(freqHz []float64, f0, h0 float64, k, dir int, pq func(int) (float64, float64)) (float64, bool) {
+	fPrev, hPrev := f0, h0
+	for ; k >= 0 && k < len(freqHz); k += dir {
+		p, q := pq(k)
+		h := q - float64(dir)*p
+		if (h <= 0) != (hPrev <= 0) || h == 0 {
+			return crossAt(fPrev, freqHz[k], hPrev, h, 0), true
+		}
+		fPrev, hPrev = freqHz[k], h
+	}
+	return 0, false
+}
