@@ -1,0 +1,8 @@
+! Written by hand for the matchbench touchstone tests.
+! Exercises TS-19: [Number of Frequencies] missing.
+[Version] 2.0
+# GHz S RI R 50
+[Number of Ports] 1
+[Network Data]
+1 0.5 0
+[End]
