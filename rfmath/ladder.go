@@ -118,8 +118,11 @@ type Ladder []Element
 //
 // It does not allocate.
 func (l Ladder) ABCD(fHz float64) ABCD {
-	m := Thru
-	for i := len(l) - 1; i >= 0; i-- {
+	if len(l) == 0 {
+		return Thru
+	}
+	m := l[len(l)-1].ABCD(fHz)
+	for i := len(l) - 2; i >= 0; i-- {
 		m = m.Mul(l[i].ABCD(fHz))
 	}
 	return m

@@ -27,8 +27,8 @@ type Dip struct {
 	// threshold.
 	LoHz, HiHz float64
 	// LoOpen and HiOpen report that the band runs off the start or the
-	// end of the sweep: the edge is then the first or last frequency and
-	// the true edge lies beyond it.
+	// end of the sweep, or up to a point whose Γ is NaN: the edge is then
+	// the band's first or last frequency and the true edge lies beyond it.
 	LoOpen, HiOpen bool
 }
 
@@ -135,12 +135,12 @@ func bandDip(freqHz []float64, gamma []complex128, s, e int, thr float64) Dip {
 			d.FreqHz, d.ReturnLossDB = x, y
 		}
 	}
-	if s == 0 {
-		d.LoHz, d.LoOpen = freqHz[0], true
+	if s == 0 || math.IsNaN(returnLoss(gamma[s-1])) {
+		d.LoHz, d.LoOpen = freqHz[s], true
 	} else {
 		d.LoHz = crossAt(freqHz[s-1], freqHz[s], cappedRL(gamma[s-1]), cappedRL(gamma[s]), thr)
 	}
-	if e == len(freqHz)-1 {
+	if e == len(freqHz)-1 || math.IsNaN(returnLoss(gamma[e+1])) {
 		d.HiHz, d.HiOpen = freqHz[e], true
 	} else {
 		d.HiHz = crossAt(freqHz[e], freqHz[e+1], cappedRL(gamma[e]), cappedRL(gamma[e+1]), thr)
