@@ -1,0 +1,197 @@
+package sessions
+
+import "matchbench/rfmath"
+
+// Op names. The doc comment of [Change] lists each op's payload.
+const (
+	OpSessionRename = "session.rename"
+	OpSweepAdd      = "sweep.add"
+	OpSweepRename   = "sweep.rename"
+	OpSweepColor    = "sweep.color"
+	OpSweepVisible  = "sweep.visible"
+	OpSweepRemove   = "sweep.remove"
+	OpMarkerAdd     = "marker.add"
+	OpMarkerMove    = "marker.move"
+	OpMarkerStep    = "marker.step"
+	OpMarkerLabel   = "marker.label"
+	OpMarkerRemove  = "marker.remove"
+	OpMarkerToDip   = "marker.to_dip"
+	OpBandSet       = "band.set"
+	OpBandRemove    = "band.remove"
+	OpChartSet      = "chart.set"
+	OpUndo          = "undo"
+	OpRedo          = "redo"
+)
+
+// Ops lists every op [Store.Apply] accepts, in a stable order.
+var Ops = []string{
+	OpSessionRename,
+	OpSweepAdd, OpSweepRename, OpSweepColor, OpSweepVisible, OpSweepRemove,
+	OpMarkerAdd, OpMarkerMove, OpMarkerStep, OpMarkerLabel, OpMarkerRemove, OpMarkerToDip,
+	OpBandSet, OpBandRemove,
+	OpChartSet,
+	OpUndo, OpRedo,
+}
+
+// Change is one operation on a session, passed to [Store.Apply]. Op selects
+// the operation and the other fields are its payload; fields an op does not
+// use are ignored. A Change decodes from JSON as written below, so a
+// websocket message's payload can be passed straight through (sweep.add is
+// the exception: its numbers come from an upload, not from JSON).
+//
+// Every op may carry:
+//
+//	ifVersion  refuse with ErrConflict unless the session is at this version (0: don't check)
+//
+// The ops and their payloads (JSON names):
+//
+//	session.rename  name                        rename the session
+//	sweep.add       name, fileName, color,      add a sweep (Go fields Raw and Sweep, not JSON);
+//	                visible is set true         name defaults to the file name, color to the
+//	                                            first palette colour not in use
+//	sweep.rename    sweepId, name
+//	sweep.color     sweepId, color              "#rrggbb"
+//	sweep.visible   sweepId, visible
+//	sweep.remove    sweepId                     also removes its markers; undo brings both back
+//	marker.add      sweepId, port, freqHz,      add a marker on the trace S(port,port) (port 0
+//	                or gamma; label             means 1); by frequency, pinned into the sweep's
+//	                                            range, or by a Γ-plane point, snapped to the
+//	                                            nearest point of the whole trace
+//	marker.move     markerId, freqHz or gamma,  move by frequency (pinned into the range) or by
+//	                window, gesture             Γ point snapped near the marker's current index
+//	                                            (see Window); moves with the same gesture on the
+//	                                            same marker are one undo step
+//	marker.step     markerId, steps             move ±steps measured points (from between two
+//	                                            points, +1 goes to the next point above)
+//	marker.label    markerId, label             "" clears
+//	marker.remove   markerId
+//	marker.to_dip   markerId, loHz, hiHz        move to the measured point of least |Γ| (deepest
+//	                                            return loss) of the marker's trace within
+//	                                            loHz…hiHz (both 0: the whole sweep)
+//	band.set        bandId, name, loHz, hiHz,   edit band bandId, or add one when bandId is ""
+//	                minReturnLossDB
+//	band.remove     bandId
+//	chart.set       chart                       set the chart fields present in chart (a
+//	                                            [ChartPatch]); absent fields keep their value
+//	undo                                        undo the latest step still applied
+//	redo                                        redo the step undone last
+//
+// Frequencies are in hertz, return losses in dB (positive), Γ as
+// {"re": …, "im": …}.
+type Change struct {
+	Op        string `json:"op"`
+	IfVersion int64  `json:"ifVersion,omitempty"`
+
+	SweepID  string `json:"sweepId,omitempty"`
+	MarkerID string `json:"markerId,omitempty"`
+	BandID   string `json:"bandId,omitempty"`
+
+	Name     string `json:"name,omitempty"`
+	FileName string `json:"fileName,omitempty"`
+	Color    string `json:"color,omitempty"`
+	Visible  bool   `json:"visible,omitempty"`
+	Label    string `json:"label,omitempty"`
+
+	Port   int     `json:"port,omitempty"`
+	FreqHz float64 `json:"freqHz,omitempty"`
+	Gamma  *Point  `json:"gamma,omitempty"`
+	// Window is how many measured points either side of the marker's
+	// current point a marker.move by Γ searches; 0 means the default
+	// max(MinSnapWindow, points/SnapWindowDivisor). See [rfmath.SnapToTrace].
+	Window int `json:"window,omitempty"`
+	// Gesture identifies one drag. Consecutive marker.move changes with the
+	// same non-empty Gesture on the same marker form one undo step (each is
+	// still committed and versioned).
+	Gesture string `json:"gesture,omitempty"`
+	Steps   int    `json:"steps,omitempty"`
+
+	LoHz            float64 `json:"loHz,omitempty"`
+	HiHz            float64 `json:"hiHz,omitempty"`
+	MinReturnLossDB float64 `json:"minReturnLossDB,omitempty"`
+
+	Chart *ChartPatch `json:"chart,omitempty"`
+
+	// Raw is the uploaded file as received and Sweep its parsed form, for
+	// sweep.add. The store keeps a copy of both; the caller keeps ownership.
+	Raw   []byte        `json:"-"`
+	Sweep *rfmath.Sweep `json:"-"`
+}
+
+// Point is a point of the Γ plane.
+type Point struct {
+	Re float64 `json:"re"`
+	Im float64 `json:"im"`
+}
+
+// ChartPatch changes some chart settings: nil fields are left as they are.
+type ChartPatch struct {
+	ImpedanceGrid       *bool      `json:"impedanceGrid,omitempty"`
+	AdmittanceGrid      *bool      `json:"admittanceGrid,omitempty"`
+	Zoom                *float64   `json:"zoom,omitempty"`
+	VSWRCircle          *float64   `json:"vswrCircle,omitempty"`
+	ReturnLossCircleDB  *float64   `json:"returnLossCircleDB,omitempty"`
+	QArcs               *[]float64 `json:"qArcs,omitempty"`
+	ShowAngleScale      *bool      `json:"showAngleScale,omitempty"`
+	ShowWavelengthScale *bool      `json:"showWavelengthScale,omitempty"`
+}
+
+// Snap window defaults for marker.move by Γ (see Change.Window).
+const (
+	MinSnapWindow     = 16
+	SnapWindowDivisor = 50
+)
+
+// MaxZoom is the largest chart zoom accepted.
+const MaxZoom = 1000
+
+// Limits bound what one session may hold. Zero fields take the defaults in
+// [DefaultLimits].
+type Limits struct {
+	SweepsPerSession int // sweeps listed at once
+	MarkersPerTrace  int // markers on one (sweep, port)
+	Bands            int
+	QArcs            int
+	TextRunes        int // names, file names and labels
+	HistorySteps     int // undo steps kept per session
+	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
+}
+
+// DefaultLimits are the limits used where [Options.Limits] leaves a zero.
+var DefaultLimits = Limits{
+	SweepsPerSession: 64,
+	MarkersPerTrace:  16,
+	Bands:            32,
+	QArcs:            8,
+	TextRunes:        200,
+	HistorySteps:     1000,
+	ReplayEvents:     256,
+}
+
+func (l Limits) withDefaults() Limits {
+	d := DefaultLimits
+	pick := func(v *int, def int) {
+		if *v <= 0 {
+			*v = def
+		}
+	}
+	pick(&l.SweepsPerSession, d.SweepsPerSession)
+	pick(&l.MarkersPerTrace, d.MarkersPerTrace)
+	pick(&l.Bands, d.Bands)
+	pick(&l.QArcs, d.QArcs)
+	pick(&l.TextRunes, d.TextRunes)
+	pick(&l.HistorySteps, d.HistorySteps)
+	pick(&l.ReplayEvents, d.ReplayEvents)
+	return l
+}
+
+// Palette holds the colours given to sweeps added without one, in order.
+var Palette = []string{
+	"#1f5fa8", // blue
+	"#c8501e", // burnt orange
+	"#2a8a4a", // green
+	"#8e3b8f", // plum
+	"#b8860b", // dark gold
+	"#178a8a", // teal
+	"#a8324a", // crimson
+	"#555555", // grey
+}

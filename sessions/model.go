@@ -1,0 +1,178 @@
+package sessions
+
+import (
+	"maps"
+	"slices"
+	"time"
+)
+
+// Session describes a session as listed. The tokens are filled only by
+// [Store.Create] and [Store.ReissueTokens], the two calls that make them;
+// the store keeps only their SHA-256 hashes.
+type Session struct {
+	ID        string    `json:"id"`
+	Name      string    `json:"name"`
+	CreatedAt time.Time `json:"createdAt"`
+	// Version counts committed changes: it bumps on every Apply, undo and
+	// redo included, and never goes back.
+	Version   int64  `json:"version"`
+	EditToken string `json:"editToken,omitempty"`
+	ViewToken string `json:"viewToken,omitempty"`
+}
+
+// State is everything a session shows and edits, apart from the sweeps'
+// numbers, which are immutable and stored once (see [Store.Sweep]).
+//
+// A State obtained from the store (from [Store.State], [Event] or
+// [Catchup]) is a snapshot shared with other readers: treat it as read-only.
+// The store never modifies a state it has handed out; each change builds a
+// new one.
+type State struct {
+	Name    string        `json:"name"`
+	Sweeps  []SweepRef    `json:"sweeps"`
+	Markers []Marker      `json:"markers"`
+	Bands   []Band        `json:"bands"`
+	Chart   ChartSettings `json:"chart"`
+
+	// Networks and ActiveNetwork hold matching networks; no op changes them
+	// yet (a later issue adds their ops).
+	Networks      []Network `json:"networks,omitempty"`
+	ActiveNetwork string    `json:"activeNetwork,omitempty"`
+}
+
+// SweepRef is a sweep as the session lists it. The numbers are read with
+// [Store.Sweep] and the file as uploaded with [Store.Raw].
+type SweepRef struct {
+	ID       string  `json:"id"`
+	Name     string  `json:"name"`
+	FileName string  `json:"fileName"`
+	Color    string  `json:"color"` // "#rrggbb"
+	Visible  bool    `json:"visible"`
+	Ports    int     `json:"ports"`
+	Points   int     `json:"points"`
+	FminHz   float64 `json:"fminHz"`
+	FmaxHz   float64 `json:"fmaxHz"`
+
+	// RefPlane moves the sweep's reference plane; nil means as measured.
+	// No op sets it yet (a later issue does).
+	RefPlane *RefPlane `json:"refPlane,omitempty"`
+}
+
+// Marker is a point on one trace of a sweep, held by frequency. The trace is
+// the reflection at port Port: 1 → S11, 2 → S22. FreqHz may lie between
+// measured points; the value there is interpolated as
+// [rfmath.Sweep.InterpAt] does.
+type Marker struct {
+	ID      string  `json:"id"`
+	SweepID string  `json:"sweepId"`
+	Port    int     `json:"port"`
+	FreqHz  float64 `json:"freqHz"`
+	Label   string  `json:"label,omitempty"`
+}
+
+// Band is a frequency range of interest with a return-loss requirement.
+// MinReturnLossDB = 0 means no requirement.
+type Band struct {
+	ID              string  `json:"id"`
+	Name            string  `json:"name"`
+	LoHz            float64 `json:"loHz"`
+	HiHz            float64 `json:"hiHz"`
+	MinReturnLossDB float64 `json:"minReturnLossDB"`
+}
+
+// ChartSettings are the chart's grids, overlays and zoom.
+type ChartSettings struct {
+	ImpedanceGrid  bool    `json:"impedanceGrid"`
+	AdmittanceGrid bool    `json:"admittanceGrid"`
+	Zoom           float64 `json:"zoom"`       // 1 = whole chart, 1…MaxZoom
+	VSWRCircle     float64 `json:"vswrCircle"` // 0 = off, else > 1
+	// ReturnLossCircleDB draws the circle |Γ| = 10^(−RL/20); 0 = off.
+	ReturnLossCircleDB  float64   `json:"returnLossCircleDB"`
+	QArcs               []float64 `json:"qArcs,omitempty"` // loaded-Q arcs, each > 0
+	ShowAngleScale      bool      `json:"showAngleScale"`
+	ShowWavelengthScale bool      `json:"showWavelengthScale"`
+}
+
+// DefaultChart is the chart of a new session: the impedance grid, whole
+// chart, no overlays.
+var DefaultChart = ChartSettings{ImpedanceGrid: true, Zoom: 1}
+
+// RefPlane describes how a sweep's reference plane is moved (port extension
+// and fixture removal). It is stored and returned but not yet interpreted.
+type RefPlane struct {
+	DelayS     float64 `json:"delayS,omitempty"`     // one-way electrical delay
+	LossDB     float64 `json:"lossDB,omitempty"`     // loss at LossRefHz, scaling as √f
+	LossRefHz  float64 `json:"lossRefHz,omitempty"`  //
+	FlatLossDB float64 `json:"flatLossDB,omitempty"` // frequency-independent loss
+	// FixtureSweepID names a 2-port sweep of the fixture to de-embed;
+	// FixturePortFacingAnalyser is its port (1 or 2) on the analyser side.
+	FixtureSweepID            string `json:"fixtureSweepId,omitempty"`
+	FixturePortFacingAnalyser int    `json:"fixturePortFacingAnalyser,omitempty"`
+}
+
+// Network is a named matching network: parts in order from the load
+// towards the source. It is stored and returned but not yet interpreted.
+type Network struct {
+	ID      string `json:"id"`
+	Name    string `json:"name"`
+	SweepID string `json:"sweepId,omitempty"`
+	Port    int    `json:"port,omitempty"`
+	Parts   []Part `json:"parts"`
+}
+
+// Part is one part of a [Network]. Kind names the part and how it is placed
+// (the ops that add parts define the kinds); Value is in SI units (H, F, Ω,
+// or metres/wavelengths for lines as Kind says); Q is the part's quality
+// factor at QRefHz, 0 for ideal. Params leaves room for kinds that need more
+// numbers.
+type Part struct {
+	ID     string             `json:"id"`
+	Kind   string             `json:"kind"`
+	Value  float64            `json:"value"`
+	Q      float64            `json:"q,omitempty"`
+	QRefHz float64            `json:"qRefHz,omitempty"`
+	Series string             `json:"series,omitempty"` // E-series name of a buyable value
+	Params map[string]float64 `json:"params,omitempty"`
+}
+
+// clone returns a deep copy of s, so that a new state can be built without
+// touching a published one.
+func (s *State) clone() *State {
+	c := *s
+	c.Sweeps = slices.Clone(s.Sweeps)
+	for i := range c.Sweeps {
+		if rp := c.Sweeps[i].RefPlane; rp != nil {
+			cp := *rp
+			c.Sweeps[i].RefPlane = &cp
+		}
+	}
+	c.Markers = slices.Clone(s.Markers)
+	c.Bands = slices.Clone(s.Bands)
+	c.Chart.QArcs = slices.Clone(s.Chart.QArcs)
+	if s.Networks != nil {
+		c.Networks = make([]Network, len(s.Networks))
+		for i, n := range s.Networks {
+			n.Parts = slices.Clone(n.Parts)
+			for j := range n.Parts {
+				n.Parts[j].Params = maps.Clone(n.Parts[j].Params)
+			}
+			c.Networks[i] = n
+		}
+	}
+	return &c
+}
+
+// SweepIndex returns the index of sweep id in s.Sweeps, or −1.
+func (s *State) SweepIndex(id string) int {
+	return slices.IndexFunc(s.Sweeps, func(r SweepRef) bool { return r.ID == id })
+}
+
+// MarkerIndex returns the index of marker id in s.Markers, or −1.
+func (s *State) MarkerIndex(id string) int {
+	return slices.IndexFunc(s.Markers, func(m Marker) bool { return m.ID == id })
+}
+
+// BandIndex returns the index of band id in s.Bands, or −1.
+func (s *State) BandIndex(id string) int {
+	return slices.IndexFunc(s.Bands, func(b Band) bool { return b.ID == id })
+}

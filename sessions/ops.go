@@ -1,0 +1,517 @@
+package sessions
+
+import (
+	"math"
+	"path"
+	"slices"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"matchbench/rfmath"
+)
+
+// result is what computing a change produces before it is stored.
+type result struct {
+	next     *State
+	ev       Event // ids filled; version and state set by the caller
+	newSweep *newSweep
+}
+
+// newSweep is a sweep.add's row, stored in the same transaction as the state.
+type newSweep struct {
+	id       string
+	fileName string
+	raw      []byte
+	parsed   []byte
+	sweep    *rfmath.Sweep // a private copy, cached after the commit
+}
+
+// compute validates ch against the state cur of session sid and returns the
+// new state. It never modifies cur. All validation happens here, so the
+// error names the op and the field at fault.
+func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
+	op := ch.Op
+	lim := st.lim
+	next := cur.clone()
+	r := result{next: next, ev: Event{Op: op}}
+
+	sweepOf := func(id string) (int, error) {
+		if id == "" {
+			return -1, invalid(op, "sweepId", "missing")
+		}
+		i := cur.SweepIndex(id)
+		if i < 0 {
+			return -1, notFound(op, "sweepId", "sweep", id)
+		}
+		r.ev.SweepID = id
+		return i, nil
+	}
+	markerOf := func(id string) (int, error) {
+		if id == "" {
+			return -1, invalid(op, "markerId", "missing")
+		}
+		i := cur.MarkerIndex(id)
+		if i < 0 {
+			return -1, notFound(op, "markerId", "marker", id)
+		}
+		r.ev.MarkerID = id
+		r.ev.SweepID = cur.Markers[i].SweepID
+		return i, nil
+	}
+
+	switch op {
+	case OpSessionRename:
+		name, err := text(op, "name", ch.Name, true, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		next.Name = name
+
+	case OpSweepAdd:
+		if len(cur.Sweeps) >= lim.SweepsPerSession {
+			return r, invalid(op, "", "the session already has %d sweeps, the limit", len(cur.Sweeps))
+		}
+		if ch.Sweep == nil {
+			return r, invalid(op, "sweep", "missing")
+		}
+		if err := ch.Sweep.Validate(); err != nil {
+			return r, invalid(op, "sweep", "%v", err)
+		}
+		fileName, err := text(op, "fileName", ch.FileName, false, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		name, err := text(op, "name", ch.Name, false, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		if name == "" {
+			name = strings.TrimSuffix(fileName, path.Ext(fileName))
+		}
+		if name == "" {
+			name = "Sweep " + strconv.Itoa(len(cur.Sweeps)+1)
+		}
+		color := ch.Color
+		if color == "" {
+			color = pickColor(cur.Sweeps)
+		} else if color, err = checkColor(op, color); err != nil {
+			return r, err
+		}
+		id, err := uniqueID(func(id string) bool { return cur.SweepIndex(id) >= 0 })
+		if err != nil {
+			return r, err
+		}
+		sw := ch.Sweep.Clone()
+		next.Sweeps = append(next.Sweeps, SweepRef{
+			ID: id, Name: name, FileName: fileName, Color: color, Visible: true,
+			Ports: sw.Ports, Points: sw.Len(), FminHz: sw.FreqHz[0], FmaxHz: sw.FreqHz[sw.Len()-1],
+		})
+		r.ev.SweepID = id
+		r.newSweep = &newSweep{
+			id: id, fileName: fileName, raw: slices.Clone(ch.Raw), parsed: encodeSweep(sw), sweep: sw,
+		}
+		if r.newSweep.raw == nil {
+			r.newSweep.raw = []byte{}
+		}
+
+	case OpSweepRename:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		name, err := text(op, "name", ch.Name, true, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		next.Sweeps[i].Name = name
+
+	case OpSweepColor:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		c, err := checkColor(op, ch.Color)
+		if err != nil {
+			return r, err
+		}
+		next.Sweeps[i].Color = c
+
+	case OpSweepVisible:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		next.Sweeps[i].Visible = ch.Visible
+
+	case OpSweepRemove:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		next.Sweeps = slices.Delete(next.Sweeps, i, i+1)
+		next.Markers = slices.DeleteFunc(next.Markers, func(m Marker) bool { return m.SweepID == ch.SweepID })
+
+	case OpMarkerAdd:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		ref := cur.Sweeps[i]
+		port := ch.Port
+		if port == 0 {
+			port = 1
+		}
+		if port < 1 || port > ref.Ports {
+			return r, invalid(op, "port", "port %d of sweep %q, which has %d port(s)", ch.Port, ref.ID, ref.Ports)
+		}
+		n := 0
+		for _, m := range cur.Markers {
+			if m.SweepID == ref.ID && m.Port == port {
+				n++
+			}
+		}
+		if n >= lim.MarkersPerTrace {
+			return r, invalid(op, "", "trace S%d%d of sweep %q already has %d markers, the limit", port, port, ref.ID, n)
+		}
+		label, err := text(op, "label", ch.Label, false, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		var f float64
+		if ch.Gamma != nil {
+			if f, err = st.snapFreq(op, sid, ref, port, *ch.Gamma, 0, -1); err != nil {
+				return r, err
+			}
+		} else if f, err = pinFreq(op, ref, ch.FreqHz); err != nil {
+			return r, err
+		}
+		id, err := uniqueID(func(id string) bool { return cur.MarkerIndex(id) >= 0 })
+		if err != nil {
+			return r, err
+		}
+		next.Markers = append(next.Markers, Marker{ID: id, SweepID: ref.ID, Port: port, FreqHz: f, Label: label})
+		r.ev.MarkerID = id
+
+	case OpMarkerMove:
+		i, err := markerOf(ch.MarkerID)
+		if err != nil {
+			return r, err
+		}
+		m := cur.Markers[i]
+		ref := cur.Sweeps[cur.SweepIndex(m.SweepID)]
+		var f float64
+		if ch.Gamma != nil {
+			if ch.Window < 0 {
+				return r, invalid(op, "window", "%d is negative", ch.Window)
+			}
+			f, err = st.snapFreq(op, sid, ref, m.Port, *ch.Gamma, m.FreqHz, ch.Window)
+		} else {
+			f, err = pinFreq(op, ref, ch.FreqHz)
+		}
+		if err != nil {
+			return r, err
+		}
+		next.Markers[i].FreqHz = f
+		r.ev.Gesture = ch.Gesture
+
+	case OpMarkerStep:
+		i, err := markerOf(ch.MarkerID)
+		if err != nil {
+			return r, err
+		}
+		if ch.Steps == 0 {
+			return r, invalid(op, "steps", "must not be 0")
+		}
+		m := cur.Markers[i]
+		sw, err := st.sweep(sid, m.SweepID)
+		if err != nil {
+			return r, err
+		}
+		next.Markers[i].FreqHz = sw.sw.FreqHz[stepIndex(sw.sw, m.FreqHz, ch.Steps)]
+
+	case OpMarkerLabel:
+		i, err := markerOf(ch.MarkerID)
+		if err != nil {
+			return r, err
+		}
+		label, err := text(op, "label", ch.Label, false, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		next.Markers[i].Label = label
+
+	case OpMarkerRemove:
+		i, err := markerOf(ch.MarkerID)
+		if err != nil {
+			return r, err
+		}
+		next.Markers = slices.Delete(next.Markers, i, i+1)
+
+	case OpMarkerToDip:
+		i, err := markerOf(ch.MarkerID)
+		if err != nil {
+			return r, err
+		}
+		m := cur.Markers[i]
+		ref := cur.Sweeps[cur.SweepIndex(m.SweepID)]
+		lo, hi := ref.FminHz, ref.FmaxHz
+		if ch.LoHz != 0 || ch.HiHz != 0 {
+			if err := checkRange(op, ch.LoHz, ch.HiHz); err != nil {
+				return r, err
+			}
+			lo, hi = max(lo, ch.LoHz), min(hi, ch.HiHz)
+		}
+		e, err := st.sweep(sid, m.SweepID)
+		if err != nil {
+			return r, err
+		}
+		k := deepestDip(e.sw.FreqHz, e.trace(m.Port), lo, hi)
+		if k < 0 {
+			return r, invalid(op, "loHz", "no measured point of sweep %q (%g–%g Hz) lies within %g–%g Hz",
+				ref.ID, ref.FminHz, ref.FmaxHz, ch.LoHz, ch.HiHz)
+		}
+		next.Markers[i].FreqHz = e.sw.FreqHz[k]
+
+	case OpBandSet:
+		i := -1
+		if ch.BandID != "" {
+			if i = cur.BandIndex(ch.BandID); i < 0 {
+				return r, notFound(op, "bandId", "band", ch.BandID)
+			}
+		} else if len(cur.Bands) >= lim.Bands {
+			return r, invalid(op, "", "the session already has %d bands, the limit", len(cur.Bands))
+		}
+		if err := checkRange(op, ch.LoHz, ch.HiHz); err != nil {
+			return r, err
+		}
+		if rl := ch.MinReturnLossDB; !finite(rl) || rl < 0 || rl > 200 {
+			return r, invalid(op, "minReturnLossDB", "%g dB is not within 0–200 dB", rl)
+		}
+		name, err := text(op, "name", ch.Name, false, lim.TextRunes)
+		if err != nil {
+			return r, err
+		}
+		b := Band{Name: name, LoHz: ch.LoHz, HiHz: ch.HiHz, MinReturnLossDB: ch.MinReturnLossDB}
+		if i >= 0 {
+			b.ID = ch.BandID
+			if b.Name == "" {
+				b.Name = cur.Bands[i].Name
+			}
+			next.Bands[i] = b
+		} else {
+			if b.ID, err = uniqueID(func(id string) bool { return cur.BandIndex(id) >= 0 }); err != nil {
+				return r, err
+			}
+			if b.Name == "" {
+				b.Name = "Band " + strconv.Itoa(len(cur.Bands)+1)
+			}
+			next.Bands = append(next.Bands, b)
+		}
+		r.ev.BandID = b.ID
+
+	case OpBandRemove:
+		if ch.BandID == "" {
+			return r, invalid(op, "bandId", "missing")
+		}
+		i := cur.BandIndex(ch.BandID)
+		if i < 0 {
+			return r, notFound(op, "bandId", "band", ch.BandID)
+		}
+		next.Bands = slices.Delete(next.Bands, i, i+1)
+		r.ev.BandID = ch.BandID
+
+	case OpChartSet:
+		if ch.Chart == nil {
+			return r, invalid(op, "chart", "missing")
+		}
+		if err := applyChart(op, &next.Chart, ch.Chart, lim); err != nil {
+			return r, err
+		}
+
+	case "":
+		return r, invalid("(no op)", "op", "missing")
+	default:
+		return r, invalid(op, "op", "unknown op %q", op)
+	}
+	return r, nil
+}
+
+func applyChart(op string, c *ChartSettings, p *ChartPatch, lim Limits) error {
+	setBool := func(dst *bool, v *bool) {
+		if v != nil {
+			*dst = *v
+		}
+	}
+	setBool(&c.ImpedanceGrid, p.ImpedanceGrid)
+	setBool(&c.AdmittanceGrid, p.AdmittanceGrid)
+	setBool(&c.ShowAngleScale, p.ShowAngleScale)
+	setBool(&c.ShowWavelengthScale, p.ShowWavelengthScale)
+	if v := p.Zoom; v != nil {
+		if !finite(*v) || *v < 1 || *v > MaxZoom {
+			return invalid(op, "chart.zoom", "%g is not within 1–%d", *v, MaxZoom)
+		}
+		c.Zoom = *v
+	}
+	if v := p.VSWRCircle; v != nil {
+		if !finite(*v) || (*v != 0 && *v <= 1) || *v > 1e6 {
+			return invalid(op, "chart.vswrCircle", "%g: give 0 (off) or a VSWR above 1", *v)
+		}
+		c.VSWRCircle = *v
+	}
+	if v := p.ReturnLossCircleDB; v != nil {
+		if !finite(*v) || *v < 0 || *v > 200 {
+			return invalid(op, "chart.returnLossCircleDB", "%g dB: give 0 (off) or a return loss up to 200 dB", *v)
+		}
+		c.ReturnLossCircleDB = *v
+	}
+	if v := p.QArcs; v != nil {
+		if len(*v) > lim.QArcs {
+			return invalid(op, "chart.qArcs", "%d arcs, the limit is %d", len(*v), lim.QArcs)
+		}
+		for i, q := range *v {
+			if !finite(q) || q <= 0 || q > 1e6 {
+				return invalid(op, "chart.qArcs", "arc %d: Q = %g must be positive and finite", i+1, q)
+			}
+		}
+		c.QArcs = slices.Clone(*v)
+	}
+	return nil
+}
+
+// snapFreq returns the frequency of the point of a trace nearest to the Γ
+// point g: searched whole (window < 0) or near the point of fromHz.
+func (st *Store) snapFreq(op, sid string, ref SweepRef, port int, g Point, fromHz float64, window int) (float64, error) {
+	if !finite(g.Re) || !finite(g.Im) {
+		return 0, invalid(op, "gamma", "(%g, %g) is not a finite point", g.Re, g.Im)
+	}
+	e, err := st.sweep(sid, ref.ID)
+	if err != nil {
+		return 0, err
+	}
+	freq := e.sw.FreqHz
+	n := len(freq)
+	near := 0
+	if window >= 0 {
+		k, t, err := e.sw.Locate(min(max(fromHz, freq[0]), freq[n-1]))
+		if err != nil {
+			return 0, invalid(op, "gamma", "%v", err)
+		}
+		near = k
+		if t >= 0.5 {
+			near = k + 1
+		}
+		if window == 0 {
+			window = max(MinSnapWindow, n/SnapWindowDivisor)
+		}
+	}
+	k, t := rfmath.SnapToTrace(e.trace(port), complex(g.Re, g.Im), near, window)
+	if n == 1 {
+		return freq[0], nil
+	}
+	return freq[k] + t*(freq[k+1]-freq[k]), nil
+}
+
+// pinFreq checks that f is a finite frequency and pins it into the sweep.
+func pinFreq(op string, ref SweepRef, f float64) (float64, error) {
+	if !finite(f) {
+		return 0, invalid(op, "freqHz", "%g is not a finite frequency", f)
+	}
+	return min(max(f, ref.FminHz), ref.FmaxHz), nil
+}
+
+// stepIndex returns the index of the measured point n points from fHz
+// (n > 0 upwards), pinned into the sweep. From between two points, the first
+// step goes to the neighbour in that direction.
+func stepIndex(sw *rfmath.Sweep, fHz float64, n int) int {
+	last := sw.Len() - 1
+	fHz = min(max(fHz, sw.FreqHz[0]), sw.FreqHz[last])
+	k, t, err := sw.Locate(fHz)
+	if err != nil || last == 0 {
+		return 0
+	}
+	var j int
+	switch {
+	case t == 0:
+		j = k + n
+	case t == 1:
+		j = k + 1 + n
+	case n > 0:
+		j = k + n
+	default:
+		j = k + 1 + n
+	}
+	return min(max(j, 0), last)
+}
+
+// deepestDip returns the index of the point of least |Γ| with lo ≤ f ≤ hi,
+// the first of equals, or −1 when no point lies in the range.
+func deepestDip(freq []float64, gamma []complex128, lo, hi float64) int {
+	best, bestMag := -1, math.Inf(1)
+	for k, f := range freq {
+		if f < lo || f > hi {
+			continue
+		}
+		g := gamma[k]
+		if m := real(g)*real(g) + imag(g)*imag(g); m < bestMag {
+			best, bestMag = k, m
+		}
+	}
+	return best
+}
+
+func checkRange(op string, lo, hi float64) error {
+	if !finite(lo) || lo < 0 {
+		return invalid(op, "loHz", "%g is not a finite frequency ≥ 0", lo)
+	}
+	if !finite(hi) {
+		return invalid(op, "hiHz", "%g is not a finite frequency", hi)
+	}
+	if lo >= hi {
+		return invalid(op, "hiHz", "the range %g–%g Hz is empty: lo must be below hi", lo, hi)
+	}
+	return nil
+}
+
+// text checks a name or label: valid UTF-8 without control characters, at
+// most maxRunes runes after trimming spaces; required means not empty.
+func text(op, field, s string, required bool, maxRunes int) (string, error) {
+	if !utf8.ValidString(s) {
+		return "", invalid(op, field, "not valid UTF-8")
+	}
+	s = strings.TrimSpace(s)
+	if required && s == "" {
+		return "", invalid(op, field, "must not be empty")
+	}
+	if n := utf8.RuneCountInString(s); n > maxRunes {
+		return "", invalid(op, field, "%d characters, the limit is %d", n, maxRunes)
+	}
+	if i := strings.IndexFunc(s, unicode.IsControl); i >= 0 {
+		return "", invalid(op, field, "control character %U at byte %d", []rune(s[i:])[0], i)
+	}
+	return s, nil
+}
+
+// checkColor accepts "#rrggbb" (any case) and returns it in lower case.
+func checkColor(op, c string) (string, error) {
+	if len(c) != 7 || c[0] != '#' {
+		return "", invalid(op, "color", "%q is not a colour of the form #rrggbb", c)
+	}
+	if _, err := strconv.ParseUint(c[1:], 16, 32); err != nil {
+		return "", invalid(op, "color", "%q is not a colour of the form #rrggbb", c)
+	}
+	return strings.ToLower(c), nil
+}
+
+// pickColor returns the first palette colour no sweep uses, or cycles.
+func pickColor(sweeps []SweepRef) string {
+	for _, c := range Palette {
+		if !slices.ContainsFunc(sweeps, func(s SweepRef) bool { return s.Color == c }) {
+			return c
+		}
+	}
+	return Palette[len(sweeps)%len(Palette)]
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

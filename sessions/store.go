@@ -1,0 +1,407 @@
+package sessions
+
+import (
+	"context"
+	"database/sql"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"net/url"
+	"os"
+	"path/filepath"
+	"sync"
+	"time"
+
+	_ "modernc.org/sqlite" // registers the "sqlite" driver
+
+	"matchbench/rfmath"
+)
+
+// File names inside the data folder.
+const (
+	DBFile   = "matchbench.db"
+	LockFile = "matchbench.lock"
+)
+
+// Options tune a store. The zero value gives the defaults.
+type Options struct {
+	Limits Limits
+	// Synchronous is SQLite's synchronous setting for the write connection:
+	// "FULL" (the default) makes every acknowledged change survive a power
+	// cut; "NORMAL" survives a crash of the program but may lose the last
+	// changes on power loss, for fewer fsyncs (see BenchmarkApplySync).
+	Synchronous string
+}
+
+// Store holds every session in one SQLite database in a data folder. Its
+// methods are safe for concurrent use. Changes to one session are applied
+// one at a time; changes to different sessions proceed independently
+// (their commits share SQLite's single writer, each taking one short
+// transaction).
+type Store struct {
+	dir  string
+	lim  Limits
+	lock *os.File
+	wdb  *sql.DB // one connection: every write
+	rdb  *sql.DB // reads
+
+	mu     sync.Mutex // guards closed and hubs
+	closed bool
+	hubs   map[string]*hub
+
+	sweepMu sync.Mutex
+	sweeps  map[sweepKey]*sweepEntry
+}
+
+// Open opens the store in dataDir with default options; see [OpenWith].
+func Open(dataDir string) (*Store, error) { return OpenWith(dataDir, Options{}) }
+
+// OpenWith opens the store in dataDir, creating the folder (mode 0700) and
+// the database file DBFile as needed and bringing its schema up to date.
+//
+// The data folder is locked for the life of the store: a second store on
+// the same folder, from this or another process, is refused with an error
+// wrapping ErrLocked that names the folder and the process holding it. The
+// lock is an advisory flock(2) on LockFile (on Unix; see lock_other.go for
+// other systems), released by Close or when the process ends, even by a
+// crash, so a stale lock file never blocks a restart.
+func OpenWith(dataDir string, opt Options) (*Store, error) {
+	syncMode := "FULL"
+	switch opt.Synchronous {
+	case "", "FULL", "full":
+	case "NORMAL", "normal":
+		syncMode = "NORMAL"
+	default:
+		return nil, fmt.Errorf("%w: synchronous %q: use FULL or NORMAL", ErrInvalid, opt.Synchronous)
+	}
+	dir, err := filepath.Abs(dataDir)
+	if err != nil {
+		return nil, fmt.Errorf("sessions: data folder %q: %w", dataDir, err)
+	}
+	if err := os.MkdirAll(dir, 0o700); err != nil {
+		return nil, fmt.Errorf("sessions: creating data folder: %w", err)
+	}
+	lock, err := lockDir(dir)
+	if err != nil {
+		return nil, err
+	}
+	st := &Store{
+		dir:    dir,
+		lim:    opt.Limits.withDefaults(),
+		lock:   lock,
+		hubs:   make(map[string]*hub),
+		sweeps: make(map[sweepKey]*sweepEntry),
+	}
+	fail := func(err error) (*Store, error) {
+		st.closeDB()
+		unlockDir(lock)
+		return nil, err
+	}
+	path := filepath.Join(dir, DBFile)
+	if st.wdb, err = sql.Open("sqlite", dsn(path, syncMode, true)); err != nil {
+		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
+	}
+	st.wdb.SetMaxOpenConns(1)
+	st.wdb.SetConnMaxIdleTime(0)
+	if err := migrate(context.Background(), st.wdb); err != nil {
+		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
+	}
+	if st.rdb, err = sql.Open("sqlite", dsn(path, syncMode, false)); err != nil {
+		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
+	}
+	st.rdb.SetMaxOpenConns(4)
+	if err := st.rdb.Ping(); err != nil {
+		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
+	}
+	return st, nil
+}
+
+// dsn returns the modernc.org/sqlite data source name for path. The write
+// connection begins its transactions IMMEDIATE so that a transaction never
+// has to upgrade a read lock; the read connections are query-only.
+func dsn(path, sync string, write bool) string {
+	q := url.Values{}
+	q.Add("_pragma", "journal_mode(WAL)")
+	q.Add("_pragma", "busy_timeout(5000)")
+	q.Add("_pragma", "foreign_keys(1)")
+	q.Add("_pragma", "synchronous("+sync+")")
+	if write {
+		q.Set("_txlock", "immediate")
+	} else {
+		q.Add("_pragma", "query_only(1)")
+	}
+	return "file:" + (&url.URL{Path: path}).EscapedPath() + "?" + q.Encode()
+}
+
+// Dir returns the absolute path of the data folder.
+func (st *Store) Dir() string { return st.dir }
+
+// Close waits for changes in progress to commit, ends every subscription
+// (its channel closes and Reason returns ErrClosed), closes the database
+// and releases the data folder. Later calls return ErrClosed.
+func (st *Store) Close() error {
+	st.mu.Lock()
+	if st.closed {
+		st.mu.Unlock()
+		return ErrClosed
+	}
+	st.closed = true
+	hubs := make([]*hub, 0, len(st.hubs))
+	for _, h := range st.hubs {
+		hubs = append(hubs, h)
+	}
+	st.mu.Unlock()
+	for _, h := range hubs {
+		h.mu.Lock()
+		h.closed = true
+		h.closeSubs(ErrClosed)
+		h.mu.Unlock()
+	}
+	err := st.closeDB()
+	if uerr := unlockDir(st.lock); err == nil {
+		err = uerr
+	}
+	return err
+}
+
+func (st *Store) closeDB() error {
+	var errs []error
+	if st.rdb != nil {
+		errs = append(errs, st.rdb.Close())
+	}
+	if st.wdb != nil {
+		errs = append(errs, st.wdb.Close())
+	}
+	return errors.Join(errs...)
+}
+
+// dbErr wraps a database error with what was being done.
+func (st *Store) dbErr(doing string, err error) error {
+	return fmt.Errorf("sessions: %s: %w", doing, err)
+}
+
+// Create makes a new session with a fresh id and fresh tokens, and returns
+// it with its tokens, the only time they are available in clear (the store
+// keeps their SHA-256 hashes). An empty name becomes "Untitled session".
+func (st *Store) Create(ctx context.Context, name string) (*Session, error) {
+	name, err := text("create", "name", name, false, st.lim.TextRunes)
+	if err != nil {
+		return nil, err
+	}
+	if name == "" {
+		name = "Untitled session"
+	}
+	if err := st.open(); err != nil {
+		return nil, err
+	}
+	state := &State{Name: name, Sweeps: []SweepRef{}, Markers: []Marker{}, Bands: []Band{}, Chart: DefaultChart}
+	js, err := json.Marshal(state)
+	if err != nil {
+		return nil, err
+	}
+	edit, view, err := newTokenPair()
+	if err != nil {
+		return nil, err
+	}
+	s := &Session{Name: name, CreatedAt: time.Now().UTC().Truncate(time.Millisecond), EditToken: edit, ViewToken: view}
+	for range 8 { // an id collision is astronomically rare; retry a few times
+		if s.ID, err = newID(6); err != nil {
+			return nil, err
+		}
+		_, err = st.wdb.ExecContext(ctx,
+			`INSERT INTO sessions (id, name, created_at, version, state, edit_hash, view_hash) VALUES (?, ?, ?, 0, ?, ?, ?)`,
+			s.ID, name, s.CreatedAt.UnixMilli(), string(js), tokenHash(edit), tokenHash(view))
+		if err == nil {
+			return s, nil
+		}
+		if _, gerr := st.Get(ctx, s.ID); gerr != nil {
+			break // not a collision
+		}
+	}
+	return nil, st.dbErr("creating a session", err)
+}
+
+// open returns ErrClosed once the store is closed.
+func (st *Store) open() error {
+	st.mu.Lock()
+	defer st.mu.Unlock()
+	if st.closed {
+		return ErrClosed
+	}
+	return nil
+}
+
+// List returns every session, newest first, without tokens.
+func (st *Store) List(ctx context.Context) ([]Session, error) {
+	if err := st.open(); err != nil {
+		return nil, err
+	}
+	rows, err := st.rdb.QueryContext(ctx, `SELECT id, name, created_at, version FROM sessions ORDER BY created_at DESC, id`)
+	if err != nil {
+		return nil, st.dbErr("listing sessions", err)
+	}
+	defer rows.Close()
+	var out []Session
+	for rows.Next() {
+		var s Session
+		var ms int64
+		if err := rows.Scan(&s.ID, &s.Name, &ms, &s.Version); err != nil {
+			return nil, st.dbErr("listing sessions", err)
+		}
+		s.CreatedAt = time.UnixMilli(ms).UTC()
+		out = append(out, s)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, st.dbErr("listing sessions", err)
+	}
+	return out, nil
+}
+
+// Get returns session id without tokens, or ErrNotFound.
+func (st *Store) Get(ctx context.Context, id string) (*Session, error) {
+	if err := st.open(); err != nil {
+		return nil, err
+	}
+	s := &Session{ID: id}
+	var ms int64
+	err := st.rdb.QueryRowContext(ctx, `SELECT name, created_at, version FROM sessions WHERE id = ?`, id).
+		Scan(&s.Name, &ms, &s.Version)
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, fmt.Errorf("%w: no session %q", ErrNotFound, id)
+	}
+	if err != nil {
+		return nil, st.dbErr("reading a session", err)
+	}
+	s.CreatedAt = time.UnixMilli(ms).UTC()
+	return s, nil
+}
+
+// State returns the current state of session id and its version. The
+// state is a shared snapshot: read it, do not modify it.
+func (st *Store) State(ctx context.Context, id string) (*State, int64, error) {
+	h, err := st.hub(ctx, id)
+	if err != nil {
+		return nil, 0, err
+	}
+	defer h.mu.Unlock()
+	return h.state, h.version, nil
+}
+
+// Delete removes session id with its sweeps and history. Its subscriptions
+// end with ErrDeleted.
+func (st *Store) Delete(ctx context.Context, id string) error {
+	h, err := st.hub(ctx, id)
+	if err != nil {
+		return err
+	}
+	defer h.mu.Unlock()
+	if _, err := st.wdb.ExecContext(ctx, `DELETE FROM sessions WHERE id = ?`, id); err != nil {
+		return st.dbErr("deleting a session", err)
+	}
+	h.gone = true
+	h.closeSubs(ErrDeleted)
+	st.mu.Lock()
+	if st.hubs[id] == h {
+		delete(st.hubs, id)
+	}
+	st.mu.Unlock()
+	st.sweepMu.Lock()
+	for k := range st.sweeps {
+		if k.session == id {
+			delete(st.sweeps, k)
+		}
+	}
+	st.sweepMu.Unlock()
+	return nil
+}
+
+// sweepKey names a stored sweep.
+type sweepKey struct{ session, sweep string }
+
+// sweepEntry is a decoded sweep kept in memory, with its reflection traces
+// extracted on first use.
+type sweepEntry struct {
+	sw     *rfmath.Sweep
+	mu     sync.Mutex
+	traces [][]complex128 // [port-1], nil until used
+}
+
+// trace returns S(port, port) at every point, extracted once and shared.
+func (e *sweepEntry) trace(port int) []complex128 {
+	e.mu.Lock()
+	defer e.mu.Unlock()
+	if e.traces == nil {
+		e.traces = make([][]complex128, e.sw.Ports)
+	}
+	if e.traces[port-1] == nil {
+		e.traces[port-1] = e.sw.Param(nil, port-1, port-1)
+	}
+	return e.traces[port-1]
+}
+
+// Sweep returns the parsed numbers of a sweep of a session, also one that
+// has been removed but can still come back by undo. It is decoded once and
+// then shared from memory: read it, do not modify it (Clone it to work on
+// it).
+func (st *Store) Sweep(sessionID, sweepID string) (*rfmath.Sweep, error) {
+	e, err := st.sweep(sessionID, sweepID)
+	if err != nil {
+		return nil, err
+	}
+	return e.sw, nil
+}
+
+func (st *Store) sweep(sessionID, sweepID string) (*sweepEntry, error) {
+	k := sweepKey{sessionID, sweepID}
+	st.sweepMu.Lock()
+	e := st.sweeps[k]
+	st.sweepMu.Unlock()
+	if e != nil {
+		return e, nil
+	}
+	if err := st.open(); err != nil {
+		return nil, err
+	}
+	var b []byte
+	err := st.rdb.QueryRow(`SELECT parsed FROM sweeps WHERE session_id = ? AND id = ?`, sessionID, sweepID).Scan(&b)
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, fmt.Errorf("%w: no sweep %q in session %q", ErrNotFound, sweepID, sessionID)
+	}
+	if err != nil {
+		return nil, st.dbErr("reading a sweep", err)
+	}
+	sw, err := decodeSweep(b)
+	if err != nil {
+		return nil, fmt.Errorf("sweep %q of session %q: %w", sweepID, sessionID, err)
+	}
+	return st.cacheSweep(k, sw), nil
+}
+
+// cacheSweep keeps sw in memory unless another caller got there first, and
+// returns the entry kept.
+func (st *Store) cacheSweep(k sweepKey, sw *rfmath.Sweep) *sweepEntry {
+	st.sweepMu.Lock()
+	defer st.sweepMu.Unlock()
+	if e := st.sweeps[k]; e != nil {
+		return e
+	}
+	e := &sweepEntry{sw: sw}
+	st.sweeps[k] = e
+	return e
+}
+
+// Raw returns a sweep's file as it was uploaded, and its file name.
+func (st *Store) Raw(ctx context.Context, sessionID, sweepID string) (raw []byte, fileName string, err error) {
+	if err := st.open(); err != nil {
+		return nil, "", err
+	}
+	err = st.rdb.QueryRowContext(ctx, `SELECT raw, file_name FROM sweeps WHERE session_id = ? AND id = ?`, sessionID, sweepID).
+		Scan(&raw, &fileName)
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil, "", fmt.Errorf("%w: no sweep %q in session %q", ErrNotFound, sweepID, sessionID)
+	}
+	if err != nil {
+		return nil, "", st.dbErr("reading a sweep file", err)
+	}
+	return raw, fileName, nil
+}
