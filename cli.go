@@ -1,0 +1,103 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"matchbench/rfmath"
+	"matchbench/rfmath/touchstone"
+	"matchbench/rfmath/units"
+)
+
+// newFlagSet returns a flag set that reports errors instead of exiting.
+func newFlagSet(name, usage string, stderr io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.Usage = func() {
+		fmt.Fprintf(stderr, "usage: matchbench %s %s\n\nflags:\n", name, usage)
+		fs.PrintDefaults()
+	}
+	return fs
+}
+
+// parseArgs parses flags that may stand before, between or after the
+// positional arguments (matchbench inspect FILE --at 2.4G) and returns the
+// positional ones. A lone "--" ends flag parsing.
+func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			if errors.Is(err, flag.ErrHelp) {
+				return nil, errHelp
+			}
+			return nil, usageError{err.Error()}
+		}
+		rest := fs.Args()
+		if len(rest) == 0 {
+			return pos, nil
+		}
+		if len(args) > 0 && len(rest) < len(args) && args[len(args)-len(rest)-1] == "--" {
+			return append(pos, rest...), nil
+		}
+		pos = append(pos, rest[0])
+		args = rest[1:]
+	}
+}
+
+// listFlag collects the values of a repeatable string flag.
+type listFlag []string
+
+func (l *listFlag) String() string     { return strings.Join(*l, ",") }
+func (l *listFlag) Set(s string) error { *l = append(*l, s); return nil }
+
+// freqFlag is a frequency flag that accepts SI prefixes ("2.45GHz").
+type freqFlag struct{ hz float64 }
+
+func (f *freqFlag) String() string {
+	if f == nil || f.hz == 0 {
+		return ""
+	}
+	return units.FormatFrequency(f.hz, 6)
+}
+
+func (f *freqFlag) Set(s string) error {
+	v, err := units.ParseFrequency(s)
+	if err != nil {
+		return err
+	}
+	f.hz = v
+	return nil
+}
+
+// loadedSweep is a sweep read from disk with what the file said about it.
+type loadedSweep struct {
+	Path     string
+	Sweep    *rfmath.Sweep
+	Comments []string
+}
+
+// loadSweep reads a Touchstone or CSV file, chosen by its ending.
+func loadSweep(path string) (*loadedSweep, error) {
+	if strings.EqualFold(filepath.Ext(path), ".csv") {
+		f, err := os.Open(path)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		s, err := touchstone.ReadCSV(f, path, touchstone.DefaultLimits)
+		if err != nil {
+			return nil, err
+		}
+		return &loadedSweep{Path: path, Sweep: s}, nil
+	}
+	tf, err := touchstone.ReadFile(path, touchstone.DefaultLimits)
+	if err != nil {
+		return nil, err
+	}
+	return &loadedSweep{Path: path, Sweep: tf.Sweep, Comments: tf.Comments}, nil
+}
