@@ -300,8 +300,10 @@ func (o *writeOpts) matrix(m []complex128, s *rfmath.Sweep, k int) error {
 	return nil
 }
 
+// appendFreq writes a frequency in plain decimal, with the fewest digits
+// that read back as the same float64.
 func appendFreq(b []byte, v float64) []byte {
-	return strconv.AppendFloat(b, v, 'g', -1, 64)
+	return strconv.AppendFloat(b, v, 'f', -1, 64)
 }
 
 func (o *writeOpts) appendPair(b []byte, v complex128) []byte {
