@@ -200,7 +200,7 @@ func csvNumber(s string, sep rune) (float64, bool) {
 }
 
 type csvCols struct {
-	freq, a, b int     // column indices
+	freq, a, b int // column indices
 	names      [3]string
 	kind       string  // "ri", "db" or "ma"
 	mul        float64 // frequency unit
@@ -212,7 +212,7 @@ var csvWords = map[string]string{
 	"hz": "unit", "khz": "unit", "mhz": "unit", "ghz": "unit",
 	"re": "re", "real": "re",
 	"im": "im", "imag": "im", "imaginary": "im",
-	"db": "db",
+	"db":  "db",
 	"deg": "ang", "degree": "ang", "degrees": "ang", "ang": "ang", "angle": "ang", "phase": "ang", "arg": "ang",
 	"rad": "rad", "radian": "rad", "radians": "rad",
 	"mag": "mag", "magnitude": "mag", "abs": "mag", "lin": "mag", "linear": "mag",
