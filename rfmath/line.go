@@ -18,8 +18,7 @@ const nepersPerDB = math.Ln10 / 20
 // conductor (skin-effect) loss of a cable does; a LossRefHz of zero or less
 // makes it independent of frequency. The characteristic impedance stays the
 // real Z0Ohm at every frequency (the low-loss approximation). A
-// VelocityFactor of zero is taken as 1, so the zero Line is a lossless
-// line of no length in air of Z0 = 0 Ω and must be given Z0Ohm to be of use.
+// VelocityFactor of zero is taken as 1 (air). Z0Ohm must be positive.
 type Line struct {
 	Z0Ohm          float64 // characteristic impedance in ohms
 	LengthM        float64 // physical length in metres

@@ -334,3 +334,30 @@ func BenchmarkZToS(b *testing.B) {
 		})
 	}
 }
+
+// TestZToSPivoting uses a Z whose normalised z + I has a zero in its first
+// diagonal entry, so the solver must swap rows; the oracle is gonum's LU on
+// the real embedding.
+func TestZToSPivoting(t *testing.T) {
+	t.Parallel()
+	refs := []float64{50, 50, 50}
+	// z = [[−1, 1, 0.5], [1, 0, 0.2], [0.5, 0.2, 2]] (normalised).
+	zn := []complex128{-1, 1, 0.5, 1, 0, 0.2, 0.5, 0.2, 2}
+	z := make([]complex128, 9)
+	a := make([]complex128, 9)
+	b := make([]complex128, 9)
+	for k, v := range zn {
+		z[k] = 50 * v
+		a[k], b[k] = v, v
+	}
+	for i := range 3 {
+		a[i*3+i]++
+		b[i*3+i]--
+	}
+	want := realSolve(t, a, b, 3, 3)
+	got, err := ZToS(nil, z, 3, refs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkMatrix(t, "S", got, want, 1e-12)
+}

@@ -348,3 +348,33 @@ func TestResonancePanics(t *testing.T) {
 		})
 	}
 }
+
+func TestInterpolationHelpers(t *testing.T) {
+	t.Parallel()
+	if x := crossAt(1, 3, 5, 5, 5); x != 2 {
+		t.Errorf("crossAt flat = %v, want the midpoint 2", x)
+	}
+	if x := crossAt(1, 3, 0, 10, 5); x != 2 {
+		t.Errorf("crossAt = %v, want 2", x)
+	}
+	tests := []struct {
+		name       string
+		y0, y1, y2 float64
+		ok         bool
+	}{
+		{"concave", 1, 2, 1, true},
+		{"convex", 2, 1, 2, false},
+		{"straight", 1, 2, 3, false},
+		{"vertex beyond x2", 0, 1, 1.9, false},
+		{"NaN", math.NaN(), 1, 0, false},
+	}
+	for _, tc := range tests {
+		x, y, ok := parabolaVertex(0, 1, 2, tc.y0, tc.y1, tc.y2)
+		if ok != tc.ok {
+			t.Errorf("%s: ok = %v (x %v, y %v), want %v", tc.name, ok, x, y, tc.ok)
+		}
+	}
+	if x, y, _ := parabolaVertex(0, 1, 2, 1, 2, 1); x != 1 || y != 2 {
+		t.Errorf("symmetric vertex = %v, %v; want 1, 2", x, y)
+	}
+}
