@@ -49,26 +49,8 @@ var (
 // ZToS returns an error wrapping [ErrSingular] if Z + R has no inverse,
 // which cannot happen for a passive Z.
 func ZToS(dst, z []complex128, n int, z0 []float64) ([]complex128, error) {
-	dst = checkNPort(dst, z, n, z0)
-	if err := checkRefs(z0); err != nil {
-		return dst, err
-	}
-	var stack [2 * smallOrder * smallOrder]complex128
-	a, b := scratch(stack[:], n)
-	// a = z + I, b = z − I, with z = √G·Z·√G.
-	for i := range n {
-		for j := range n {
-			v := z[i*n+j] / complex(math.Sqrt(z0[i]*z0[j]), 0)
-			a[i*n+j], b[i*n+j] = v, v
-		}
-		a[i*n+i]++
-		b[i*n+i]--
-	}
-	if !solveInPlace(a, b, n, n, pivotTol(n, a)) {
-		return dst, errZToS
-	}
-	copy(dst, b)
-	return dst, nil
+	// S = (I + z)⁻¹(z − I) = −(I + z)⁻¹(I − z).
+	return cayley(dst, z, n, z0, scaleDiv, 1, scaleNone, -1, errZToS)
 }
 
 // YToS converts the n×n admittance matrix y, in siemens, to the S-matrix
@@ -80,26 +62,7 @@ func ZToS(dst, z []complex128, n int, z0 []float64) ([]complex128, error) {
 // The conventions are those of [ZToS]. YToS returns an error wrapping
 // [ErrSingular] if I + y has no inverse, which cannot happen for a passive Y.
 func YToS(dst, y []complex128, n int, z0 []float64) ([]complex128, error) {
-	dst = checkNPort(dst, y, n, z0)
-	if err := checkRefs(z0); err != nil {
-		return dst, err
-	}
-	var stack [2 * smallOrder * smallOrder]complex128
-	a, b := scratch(stack[:], n)
-	// a = I + y, b = I − y.
-	for i := range n {
-		for j := range n {
-			v := y[i*n+j] * complex(math.Sqrt(z0[i]*z0[j]), 0)
-			a[i*n+j], b[i*n+j] = v, -v
-		}
-		a[i*n+i]++
-		b[i*n+i]++
-	}
-	if !solveInPlace(a, b, n, n, pivotTol(n, a)) {
-		return dst, errYToS
-	}
-	copy(dst, b)
-	return dst, nil
+	return cayley(dst, y, n, z0, scaleMul, 1, scaleNone, 1, errYToS)
 }
 
 // SToZ converts the n×n S-matrix s, against the real port references z0
@@ -111,29 +74,8 @@ func YToS(dst, y []complex128, n int, z0 []float64) ([]complex128, error) {
 // [ErrSingular] if I − S has no inverse, as for a network with an open
 // circuit at a port (S11 = 1 of a 1-port).
 func SToZ(dst, s []complex128, n int, z0 []float64) ([]complex128, error) {
-	dst = checkNPort(dst, s, n, z0)
-	if err := checkRefs(z0); err != nil {
-		return dst, err
-	}
-	var stack [2 * smallOrder * smallOrder]complex128
-	a, b := scratch(stack[:], n)
-	// a = I − S, b = I + S.
-	for k, v := range s {
-		a[k], b[k] = -v, v
-	}
-	for i := range n {
-		a[i*n+i]++
-		b[i*n+i]++
-	}
-	if !solveInPlace(a, b, n, n, identityTol(n, s)) {
-		return dst, errSToZ
-	}
-	for i := range n {
-		for j := range n {
-			dst[i*n+j] = b[i*n+j] * complex(math.Sqrt(z0[i]*z0[j]), 0)
-		}
-	}
-	return dst, nil
+	// (I − S)⁻¹(I + S) is the form below with M = −S.
+	return cayley(dst, s, n, z0, scaleNone, -1, scaleMul, 1, errSToZ)
 }
 
 // SToY converts the n×n S-matrix s, against the real port references z0
@@ -146,26 +88,58 @@ func SToZ(dst, s []complex128, n int, z0 []float64) ([]complex128, error) {
 // [ErrSingular] if I + S has no inverse, as for a network with a short
 // circuit at a port (S11 = −1 of a 1-port).
 func SToY(dst, s []complex128, n int, z0 []float64) ([]complex128, error) {
-	dst = checkNPort(dst, s, n, z0)
+	return cayley(dst, s, n, z0, scaleNone, 1, scaleDiv, 1, errSToY)
+}
+
+// refScale selects a per-entry factor of the port references.
+type refScale int
+
+const (
+	scaleNone refScale = iota // 1
+	scaleMul                  // √(Rᵢ·Rⱼ)
+	scaleDiv                  // 1/√(Rᵢ·Rⱼ)
+)
+
+// factor returns the factor of entry (i, j) for the references ri, rj.
+func (sc refScale) factor(ri, rj float64) complex128 {
+	switch sc {
+	case scaleMul:
+		return complex(math.Sqrt(ri*rj), 0)
+	case scaleDiv:
+		return complex(1/math.Sqrt(ri*rj), 0)
+	}
+	return 1
+}
+
+// cayley is the common form of the four conversions: it fills dst with
+//
+//	σ·(I + M)⁻¹·(I − M),  Mᵢⱼ = μ·in(Rᵢ, Rⱼ)·mᵢⱼ
+//
+// and then multiplies entry (i, j) by out(Rᵢ, Rⱼ). It checks the shapes and
+// references, and returns errSingular if I + M has no inverse.
+func cayley(dst, m []complex128, n int, z0 []float64, in refScale, mu complex128, out refScale, sigma complex128, errSingular error) ([]complex128, error) {
+	dst = checkNPort(dst, m, n, z0)
 	if err := checkRefs(z0); err != nil {
 		return dst, err
 	}
 	var stack [2 * smallOrder * smallOrder]complex128
 	a, b := scratch(stack[:], n)
-	// a = I + S, b = I − S.
-	for k, v := range s {
-		a[k], b[k] = v, -v
-	}
+	var big float64
 	for i := range n {
+		for j := range n {
+			v := mu * in.factor(z0[i], z0[j]) * m[i*n+j]
+			a[i*n+j], b[i*n+j] = v, -v
+			big = math.Max(big, abs1(v))
+		}
 		a[i*n+i]++
 		b[i*n+i]++
 	}
-	if !solveInPlace(a, b, n, n, identityTol(n, s)) {
-		return dst, errSToY
+	if !solveInPlace(a, b, n, n, pivotTol(n, big)) {
+		return dst, errSingular
 	}
 	for i := range n {
 		for j := range n {
-			dst[i*n+j] = b[i*n+j] / complex(math.Sqrt(z0[i]*z0[j]), 0)
+			dst[i*n+j] = sigma * out.factor(z0[i], z0[j]) * b[i*n+j]
 		}
 	}
 	return dst, nil
@@ -184,8 +158,9 @@ func SToY(dst, s []complex128, n int, z0 []float64) ([]complex128, error) {
 //
 // which for one port is Γ' = (Γ − ρ)/(1 − ρΓ) (REFERENCE-CHECKS §11). The
 // result equals the route through Z given at [ZToS] (Kurokawa 1965), and the
-// conventions on dst and panics are the same. Renormalize returns an error wrapping [ErrSingular] if I − ρ·S has
-// no inverse, which cannot happen for a passive S.
+// conventions on dst and panics are the same. Renormalize returns an error
+// wrapping [ErrSingular] if I − ρ·S has no inverse, which cannot happen for
+// a passive S.
 func Renormalize(dst, s []complex128, n int, z0From, z0To []float64) ([]complex128, error) {
 	dst = checkNPort(dst, s, n, z0From)
 	if len(z0To) != n {
@@ -210,7 +185,11 @@ func Renormalize(dst, s []complex128, n int, z0From, z0To []float64) ([]complex1
 		a[i*n+i]++
 		b[i*n+i] -= complex(rho(z0From[i], z0To[i]), 0)
 	}
-	if !solveInPlace(a, b, n, n, pivotTol(n, a)) {
+	var big float64
+	for _, v := range s {
+		big = math.Max(big, abs1(v))
+	}
+	if !solveInPlace(a, b, n, n, pivotTol(n, big)) {
 		return dst, errRenorm
 	}
 	for i := range n {
@@ -276,25 +255,12 @@ func scratch(stack []complex128, n int) (a, b []complex128) {
 // abs1 returns |Re v| + |Im v|, a cheap magnitude for pivoting.
 func abs1(v complex128) float64 { return math.Abs(real(v)) + math.Abs(imag(v)) }
 
-// pivotTol returns the pivot below which the n×n matrix a counts as
-// singular: a few n·ε relative to its largest entry.
-func pivotTol(n int, a []complex128) float64 {
-	var m float64
-	for _, v := range a {
-		m = math.Max(m, abs1(v))
-	}
-	return 4 * float64(n) * epsilon * m
-}
-
-// identityTol returns the pivot tolerance for I ± s: a few n·ε relative to
-// 1 + max|sᵢⱼ|, so that the cancellation in 1 − S11 of an open counts as a
-// zero pivot even when rounding leaves a tiny remainder.
-func identityTol(n int, s []complex128) float64 {
-	var m float64
-	for _, v := range s {
-		m = math.Max(m, abs1(v))
-	}
-	return 4 * float64(n) * epsilon * (1 + m)
+// pivotTol returns the pivot magnitude at or below which I ± M counts as
+// singular, for an n×n M whose largest entry (|Re| + |Im|) is big: a few n·ε
+// relative to 1 + big, so that the cancellation in 1 − S11 of an open counts
+// as a zero pivot even when rounding leaves a tiny remainder.
+func pivotTol(n int, big float64) float64 {
+	return 4 * float64(n) * epsilon * (1 + big)
 }
 
 // epsilon is the spacing of float64 values at 1.
