@@ -350,10 +350,14 @@ func TestValidation(t *testing.T) {
 			return Change{Op: OpMarkerMove, MarkerID: f.marker, Gamma: &Point{0, 0}, Window: -1}
 		}, nil, ErrInvalid, "window"},
 		{"too many markers on a trace", func(f fixture) Change { return Change{Op: OpMarkerAdd, SweepID: f.sweep, FreqHz: 1e9} },
-			func(t *testing.T, f fixture) { apply(t, st, f.sid, Change{Op: OpMarkerAdd, SweepID: f.sweep, FreqHz: 1e9}) }, ErrInvalid, ""},
+			func(t *testing.T, f fixture) {
+				apply(t, st, f.sid, Change{Op: OpMarkerAdd, SweepID: f.sweep, FreqHz: 1e9})
+			}, ErrInvalid, ""},
 		{"unknown marker", func(f fixture) Change { return Change{Op: OpMarkerMove, MarkerID: "nope", FreqHz: 1e9} }, nil, ErrNotFound, "markerId"},
 		{"step zero", func(f fixture) Change { return Change{Op: OpMarkerStep, MarkerID: f.marker} }, nil, ErrInvalid, "steps"},
-		{"label too long", func(f fixture) Change { return Change{Op: OpMarkerLabel, MarkerID: f.marker, Label: strings.Repeat("é", 11)} }, nil, ErrInvalid, "label"},
+		{"label too long", func(f fixture) Change {
+			return Change{Op: OpMarkerLabel, MarkerID: f.marker, Label: strings.Repeat("é", 11)}
+		}, nil, ErrInvalid, "label"},
 		{"dip range outside sweep", func(f fixture) Change {
 			return Change{Op: OpMarkerToDip, MarkerID: f.marker, LoHz: 3e9, HiHz: 4e9}
 		}, nil, ErrInvalid, "loHz"},
