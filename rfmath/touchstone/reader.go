@@ -133,9 +133,24 @@ func Read(r io.Reader, name string, lim Limits) (*File, error) {
 	return p.run()
 }
 
-// readAll reads at most max bytes from r and refuses more.
+// readAll reads at most max bytes from r and refuses more. When r can tell
+// its size (bytes.Reader, strings.Reader, bytes.Buffer, os.File) the buffer
+// is allocated once at that size.
 func readAll(r io.Reader, name string, max int64) ([]byte, error) {
-	buf, err := io.ReadAll(io.LimitReader(r, max+1))
+	size := int64(-1)
+	switch v := r.(type) {
+	case interface{ Len() int }:
+		size = int64(v.Len())
+	case interface{ Stat() (os.FileInfo, error) }:
+		if st, err := v.Stat(); err == nil && st.Mode().IsRegular() {
+			size = st.Size()
+		}
+	}
+	var buf []byte
+	if size >= 0 {
+		buf = make([]byte, 0, min(size, max)+1) // +1 to see EOF (or excess) without growing
+	}
+	buf, err := readFull(io.LimitReader(r, max+1), buf)
 	if err != nil {
 		return nil, fmt.Errorf("touchstone: reading %s: %w", name, err)
 	}
@@ -143,6 +158,26 @@ func readAll(r io.Reader, name string, max int64) ([]byte, error) {
 		return nil, &ParseError{File: name, Err: limitf("input is larger than the MaxBytes limit of %d bytes", max)}
 	}
 	return buf, nil
+}
+
+// readFull appends all of r to buf, as io.ReadAll does.
+func readFull(r io.Reader, buf []byte) ([]byte, error) {
+	if cap(buf) == 0 {
+		buf = make([]byte, 0, 512)
+	}
+	for {
+		n, err := r.Read(buf[len(buf):cap(buf)])
+		buf = buf[:len(buf)+n]
+		if err == io.EOF {
+			return buf, nil
+		}
+		if err != nil {
+			return nil, err
+		}
+		if len(buf) == cap(buf) {
+			buf = append(buf, 0)[:len(buf)]
+		}
+	}
 }
 
 // Byte classes for the scanner.
@@ -642,8 +677,8 @@ func (p *parser) prealloc(ceiling int) {
 		}
 		rest = rest[i+j+1:]
 	}
-	per := 0
-	for row := 0; row < p.ports; row++ {
+	per := 0 // lines per point: 1 for 1- and 2-ports, else rows of ≤ 4 pairs
+	for row := 0; row < p.ports && p.ports > 2; row++ {
 		rowPairs := p.ports
 		if p.pairs != p.pp { // triangle
 			rowPairs = row + 1
