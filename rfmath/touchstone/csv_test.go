@@ -137,6 +137,7 @@ func TestReadCSVHeaders(t *testing.T) {
 		{"freq,|S11|,arg(S11) rad", "1,0.5,3.141592653589793", 1, -0.5},
 		{"freq,re,im,mag,phase", "1,0.3,0.4,9,9", 1, 0.3 + 0.4i}, // re/im preferred
 		{"FREQ\tLIN MAG\tPHASE", "1\t0.25\t0", 1, 0.25},
+		{"\xEF\xBB\xBFfreq;re;im", "1;0,5;0", 1, 0.5}, // UTF-8 byte-order mark, decimal comma
 	}
 	for _, tc := range tests {
 		t.Run(tc.header, func(t *testing.T) {

@@ -429,7 +429,7 @@ scan:
 					return p.badByte(i, line[i])
 				}
 			}
-			v, err := parseNumber(line[start:i])
+			v, err := parseScanned(line[start:i])
 			if err != nil {
 				return p.errAt(start+1, err)
 			}
@@ -485,9 +485,20 @@ func (p *parser) notNumber(line []byte, start int) error {
 }
 
 // parseNumber parses a decimal floating-point number (digits, sign, point,
-// exponent; no hexadecimal, no Inf or NaN, no underscores: the scanner's
-// byte classes already exclude them) without copying the bytes.
+// exponent; no hexadecimal, no Inf or NaN, no underscores) without copying
+// the bytes.
 func parseNumber(tok []byte) (float64, error) {
+	for _, c := range tok {
+		if charClass[c] != clsNum {
+			return 0, syntaxf("expected a number, found %q", string(tok))
+		}
+	}
+	return parseScanned(tok)
+}
+
+// parseScanned is parseNumber for a token whose bytes the scanner has
+// already found to be number characters.
+func parseScanned(tok []byte) (float64, error) {
 	// The string shares tok's memory; ParseFloat does not keep it, and the
 	// buffer is not changed while the parser runs.
 	s := unsafeString(tok)
@@ -557,7 +568,7 @@ func (p *parser) optionLine(line []byte, i int) error {
 			}
 			haveR = true
 			for k+1 < len(fields) {
-				v, err := strconv.ParseFloat(fields[k+1].text, 64)
+				v, err := parseNumber([]byte(fields[k+1].text))
 				if err != nil {
 					break
 				}

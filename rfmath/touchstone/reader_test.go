@@ -436,6 +436,8 @@ func TestReadInline(t *testing.T) {
 		{"a.txt", "# GHz S RI R 50\n1 0.5 0\n", ErrSyntax, "expected a name ending in .s1p"},
 		{"a.s1p", "# GHz S RI R 50 75\n1 0.5 0\n", ErrSyntax, "needs 1 or 1"},
 		{"a.s1p", "# GHz S RI R\n1 0.5 0\n", ErrSyntax, "R must be followed"},
+		{"a.s1p", "# GHz S RI R 0x32\n1 0.5 0\n", ErrSyntax, "R must be followed"},
+		{"a.ts", "[Version] 2.0\n# GHz S RI\n[Number of Ports] 1\n[Reference] inf\n", ErrSyntax, `expected a number, found "inf"`},
 		{"a.s1p", "# GHz MHz\n1 0.5 0\n", ErrSyntax, "frequency unit twice"},
 		{"a.s1p", "# GHz S RI\n1 0.5\n", ErrSyntax, "odd count"},
 		{"a.s1p", "# GHz S RI\n1 0.5 0 2 0.5 0\n", ErrSyntax, "this line has 6"},
