@@ -106,15 +106,11 @@ func PortsFromName(name string) (int, bool) {
 // ReadFile opens path and reads it with [Read], using the path as the name.
 // A file larger than lim.MaxBytes is refused before it is read.
 func ReadFile(path string, lim Limits) (*File, error) {
-	lim = lim.withDefaults()
 	fh, err := os.Open(path)
 	if err != nil {
 		return nil, err
 	}
 	defer fh.Close()
-	if st, err := fh.Stat(); err == nil && st.Mode().IsRegular() && st.Size() > lim.MaxBytes {
-		return nil, &ParseError{File: path, Err: limitf("input is larger than the MaxBytes limit of %d bytes", lim.MaxBytes)}
-	}
 	return Read(fh, path, lim)
 }
 
@@ -135,7 +131,7 @@ func Read(r io.Reader, name string, lim Limits) (*File, error) {
 
 // readAll reads at most max bytes from r and refuses more. When r can tell
 // its size (bytes.Reader, strings.Reader, bytes.Buffer, os.File) the buffer
-// is allocated once at that size.
+// is allocated once at that size, and a larger size is refused unread.
 func readAll(r io.Reader, name string, max int64) ([]byte, error) {
 	size := int64(-1)
 	switch v := r.(type) {
@@ -146,6 +142,12 @@ func readAll(r io.Reader, name string, max int64) ([]byte, error) {
 			size = st.Size()
 		}
 	}
+	tooBig := func() error {
+		return &ParseError{File: name, Err: limitf("input is larger than the MaxBytes limit of %d bytes", max)}
+	}
+	if size > max {
+		return nil, tooBig() // refused before reading
+	}
 	var buf []byte
 	if size >= 0 {
 		buf = make([]byte, 0, min(size, max)+1) // +1 to see EOF (or excess) without growing
@@ -155,7 +157,7 @@ func readAll(r io.Reader, name string, max int64) ([]byte, error) {
 		return nil, fmt.Errorf("touchstone: reading %s: %w", name, err)
 	}
 	if int64(len(buf)) > max {
-		return nil, &ParseError{File: name, Err: limitf("input is larger than the MaxBytes limit of %d bytes", max)}
+		return nil, tooBig()
 	}
 	return buf, nil
 }

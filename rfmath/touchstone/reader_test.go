@@ -2,14 +2,13 @@ package touchstone
 
 import (
 	"errors"
+	"io"
 	"math"
 	"math/cmplx"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"matchbench/rfmath"
 )
 
 // fixtureDir holds the hand-written fixtures; each states in its header
@@ -538,4 +537,23 @@ func TestReadNoSweepOnError(t *testing.T) {
 	}
 }
 
-var _ = rfmath.NewSweep
+// TestReadMaxBytes checks the byte limit on a reader that cannot tell its
+// size, where it is found by reading one byte past the limit.
+func TestReadMaxBytes(t *testing.T) {
+	t.Parallel()
+	const text = "# GHz S RI\n1 0.5 0\n" // 19 bytes
+	for _, tc := range []struct {
+		max int64
+		ok  bool
+	}{{19, true}, {18, false}} {
+		for _, r := range []io.Reader{strings.NewReader(text), struct{ io.Reader }{strings.NewReader(text)}} {
+			f, err := Read(r, "a.s1p", Limits{MaxBytes: tc.max})
+			if tc.ok != (err == nil) || tc.ok != (f != nil) {
+				t.Errorf("max %d, %T: %v", tc.max, r, err)
+			}
+			if !tc.ok && (!errors.Is(err, ErrLimit) || !strings.Contains(err.Error(), "MaxBytes limit of 18 bytes")) {
+				t.Errorf("max %d: %v", tc.max, err)
+			}
+		}
+	}
+}
