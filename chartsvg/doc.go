@@ -67,8 +67,8 @@
 // Long sweeps are thinned before they are written: each trace keeps its
 // extremes, its point nearest the centre (the dip) and the points of
 // Trace.KeepHz, and otherwise only the points needed for every point to lie
-// within Chart.TolerancePx (a quarter of a unit by default) of the drawn
-// curve (Ramer–Douglas–Peucker). Plot series first keep the first, lowest,
+// within Chart.TolerancePx (half a unit by default, inside the painted
+// stroke) of the drawn curve (Ramer–Douglas–Peucker). Plot series first keep the first, lowest,
 // highest and last point of each pixel column. Coordinates are written to a
 // tenth of a unit, relative to the previous point. A chart with both grids
 // and four 10,001-point sweeps is a few tens of kilobytes.

@@ -134,8 +134,11 @@ func (c *Chart) marker(sw *writer, l layout, m *Marker) {
 	}
 	sw.s(`<g`)
 	c.id2(sw, "mk-", m.ID)
+	// A transform's numbers need a separator even before a minus sign.
 	sw.s(` transform="translate(`)
-	sw.xy(tenths(p.x), tenths(p.y))
+	sw.num(p.x)
+	sw.b(' ')
+	sw.num(p.y)
 	sw.s(`)"`)
 	if m.FreqHz > 0 {
 		sw.s(` data-f="`)

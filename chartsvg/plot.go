@@ -485,7 +485,7 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 // series writes the series layer, each series thinned to what the pixels
 // show: within each pixel column the first, lowest, highest and last points
 // stay (so every extreme is drawn), and the rest are reduced to within
-// DefaultTolerancePx of the curve.
+// DefaultTolerancePx of the curve (the series stroke is 1.8 units wide).
 func (p *Plot) series(sw *writer, l *plotLayout, series []Series) {
 	sw.s(`<g`)
 	p.id(sw, "series", "")
@@ -633,7 +633,9 @@ func (p *Plot) marker(sw *writer, l *plotLayout, m *PlotMarker, series []Series)
 			continue
 		}
 		sw.s(`<path fill="#fff" fill-opacity=".8" transform="translate(`)
-		sw.xy(tenths(x), tenths(y))
+		sw.num(x)
+		sw.b(' ')
+		sw.num(y)
 		sw.s(`)" d="`)
 		sw.s(shape)
 		sw.s(centreDot)

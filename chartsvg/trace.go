@@ -40,8 +40,10 @@ type Trace struct {
 const badTraceLength = "chartsvg: trace FreqHz and Gamma lengths differ"
 
 // DefaultTolerancePx is the thinning tolerance used when Chart.TolerancePx is
-// zero: every point of a trace lies within it of the drawn curve.
-const DefaultTolerancePx = 0.25
+// zero: every point of a trace lies within it of the drawn curve. Half a unit
+// keeps every dropped point inside the painted stroke (1.9 units wide), so
+// nothing the eye would see is lost, while a noisy sweep stays small.
+const DefaultTolerancePx = 0.5
 
 // traces writes the trace layer.
 func (c *Chart) traces(sw *writer, l layout, traces []Trace) {
