@@ -312,10 +312,10 @@ func (o *writeOpts) appendPair(b []byte, v complex128) []byte {
 	case "RI":
 		x, y = real(v), imag(v)
 	case "MA":
-		x, y = cmplx.Abs(v), angleDeg(v)
+		x, y = cmplx.Abs(v), rfmath.AngleDeg(v)
 	default:
 		a := cmplx.Abs(v)
-		x, y = zeroDB, angleDeg(v)
+		x, y = zeroDB, rfmath.AngleDeg(v)
 		if a > 0 {
 			x = 20 * math.Log10(a)
 		}
@@ -324,8 +324,4 @@ func (o *writeOpts) appendPair(b []byte, v complex128) []byte {
 	b = strconv.AppendFloat(b, x, 'g', o.digits, 64)
 	b = append(b, ' ')
 	return strconv.AppendFloat(b, y, 'g', o.digits, 64)
-}
-
-func angleDeg(v complex128) float64 {
-	return math.Atan2(imag(v), real(v)) * (180 / math.Pi)
 }
