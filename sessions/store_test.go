@@ -45,6 +45,30 @@ func TestOpenLock(t *testing.T) {
 	st2.Close()
 }
 
+// TestOpenOddPath: a data folder whose name holds URI specials still puts
+// the database file exactly there.
+func TestOpenOddPath(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Join(t.TempDir(), "bench data #1 %41?x=y&z")
+	st, err := Open(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sid := create(t, st, "odd").ID
+	st.Close()
+	if _, err := os.Stat(filepath.Join(dir, DBFile)); err != nil {
+		t.Fatalf("database not at %s: %v", dir, err)
+	}
+	st, err = Open(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	if _, err := st.Get(context.Background(), sid); err != nil {
+		t.Fatalf("session lost on reopening: %v", err)
+	}
+}
+
 func TestSchemaVersion(t *testing.T) {
 	t.Parallel()
 	st := openStore(t, Options{})
@@ -178,5 +202,26 @@ func TestAccessContext(t *testing.T) {
 	}
 	if View.String() != "view" || Edit.String() != "edit" || Capability(9).String() != "Capability(9)" {
 		t.Fatal("Capability.String")
+	}
+}
+
+// TestCancelledApply: a change whose context is already cancelled is not
+// committed, and the session goes on from what the database holds.
+func TestCancelledApply(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{})
+	sid := create(t, st, "c").ID
+	apply(t, st, sid, Change{Op: OpSessionRename, Name: "one"})
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := st.Apply(ctx, sid, Change{Op: OpSessionRename, Name: "two"}); !errors.Is(err, context.Canceled) {
+		t.Fatalf("Apply with a cancelled context = %v", err)
+	}
+	s, v := state(t, st, sid)
+	if s.Name != "one" || v != 1 {
+		t.Fatalf("after the cancelled change: %q at version %d, want \"one\" at 1", s.Name, v)
+	}
+	if ev := apply(t, st, sid, Change{Op: OpUndo}); ev.Version != 2 || ev.State.Name != "c" {
+		t.Fatalf("undo after the cancelled change: %+v", ev)
 	}
 }
