@@ -20,8 +20,10 @@ CREATE TABLE sessions (
 	version    INTEGER NOT NULL,          -- bumps on every committed change
 	state      TEXT NOT NULL,             -- State as JSON
 	undo_pos   INTEGER NOT NULL DEFAULT 0, -- history step of the latest applied change, 0 = none
-	edit_hash  BLOB NOT NULL UNIQUE,      -- SHA-256 of the edit token
-	view_hash  BLOB NOT NULL UNIQUE       -- SHA-256 of the view token
+	edit_hash  BLOB NOT NULL UNIQUE,      -- SHA-256 of the edit token (looked up)
+	view_hash  BLOB NOT NULL UNIQUE,      -- SHA-256 of the view token
+	edit_token TEXT NOT NULL,             -- the tokens themselves, shown to the bench
+	view_token TEXT NOT NULL              -- computer's own user (see Store.Tokens)
 ) STRICT;
 
 -- Sweeps are immutable. A sweep no longer listed in the state is kept with

@@ -209,8 +209,8 @@ func (st *Store) Create(ctx context.Context, name string) (*Session, error) {
 			return nil, err
 		}
 		_, err = st.wdb.ExecContext(ctx,
-			`INSERT INTO sessions (id, name, created_at, version, state, edit_hash, view_hash) VALUES (?, ?, ?, 0, ?, ?, ?)`,
-			s.ID, name, s.CreatedAt.UnixMilli(), string(js), tokenHash(edit), tokenHash(view))
+			`INSERT INTO sessions (id, name, created_at, version, state, edit_hash, view_hash, edit_token, view_token) VALUES (?, ?, ?, 0, ?, ?, ?, ?, ?)`,
+			s.ID, name, s.CreatedAt.UnixMilli(), string(js), tokenHash(edit), tokenHash(view), edit, view)
 		if err == nil {
 			return s, nil
 		}

@@ -124,8 +124,8 @@ func (st *Store) ReissueTokens(ctx context.Context, id string) (*Session, error)
 	if err != nil {
 		return nil, err
 	}
-	if _, err := st.wdb.ExecContext(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ? WHERE id = ?`,
-		tokenHash(edit), tokenHash(view), id); err != nil {
+	if _, err := st.wdb.ExecContext(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ?, edit_token = ?, view_token = ? WHERE id = ?`,
+		tokenHash(edit), tokenHash(view), edit, view, id); err != nil {
 		return nil, st.dbErr("re-issuing tokens", err)
 	}
 	h.closeSubs(ErrTokensReissued)
@@ -159,4 +159,20 @@ func NewContext(ctx context.Context, a Access) context.Context {
 func FromContext(ctx context.Context) (Access, bool) {
 	a, ok := ctx.Value(accessKey{}).(Access)
 	return a, ok
+}
+
+// Tokens returns the current edit and view tokens of session id, for the
+// bench computer's own user to open the session and show its share links.
+// The tokens are kept in the database file beside their hashes: whoever
+// can read that file can read every session anyway. Tokens are never
+// written to a log. An unknown id gives ErrNotFound.
+func (st *Store) Tokens(ctx context.Context, id string) (edit, view string, err error) {
+	err = st.rdb.QueryRowContext(ctx, `SELECT edit_token, view_token FROM sessions WHERE id = ?`, id).Scan(&edit, &view)
+	if errors.Is(err, sql.ErrNoRows) {
+		return "", "", ErrNotFound
+	}
+	if err != nil {
+		return "", "", st.dbErr("reading tokens", err)
+	}
+	return edit, view, nil
 }
