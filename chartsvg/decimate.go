@@ -33,21 +33,25 @@ func simplify(pts []pt, keep []bool, tol float64, stack []int) []int {
 		pa, pb := pts[a], pts[b]
 		dx, dy := pb.x-pa.x, pb.y-pa.y
 		l2 := dx*dx + dy*dy
+		inv := 0.0
+		if l2 > 0 {
+			inv = 1 / l2
+		}
 		worst, at := -1.0, -1
 		for i := a + 1; i < b; i++ {
-			p := pts[i]
-			ex, ey := p.x-pa.x, p.y-pa.y
-			if l2 > 0 {
-				t := (ex*dx + ey*dy) / l2
-				if t > 1 {
-					t = 1
-				} else if t < 0 {
-					t = 0
-				}
-				ex -= t * dx
-				ey -= t * dy
+			ex, ey := pts[i].x-pa.x, pts[i].y-pa.y
+			var d float64
+			switch dot := ex*dx + ey*dy; {
+			case dot <= 0 || inv == 0: // beyond a: distance to a
+				d = ex*ex + ey*ey
+			case dot >= l2: // beyond b: distance to b
+				fx, fy := ex-dx, ey-dy
+				d = fx*fx + fy*fy
+			default: // beside the segment: distance to its line
+				cr := ex*dy - ey*dx
+				d = cr * cr * inv
 			}
-			if d := ex*ex + ey*ey; d > worst {
+			if d > worst {
 				worst, at = d, i
 			}
 		}
@@ -71,18 +75,17 @@ func markExtremes(pts []pt, keep []bool) {
 		return
 	}
 	var ix0, ix1, iy0, iy1 int
+	x0, x1, y0, y1 := pts[0].x, pts[0].x, pts[0].y, pts[0].y
 	for i, p := range pts {
-		if p.x < pts[ix0].x {
-			ix0 = i
+		if p.x < x0 {
+			x0, ix0 = p.x, i
+		} else if p.x > x1 {
+			x1, ix1 = p.x, i
 		}
-		if p.x > pts[ix1].x {
-			ix1 = i
-		}
-		if p.y < pts[iy0].y {
-			iy0 = i
-		}
-		if p.y > pts[iy1].y {
-			iy1 = i
+		if p.y < y0 {
+			y0, iy0 = p.y, i
+		} else if p.y > y1 {
+			y1, iy1 = p.y, i
 		}
 	}
 	keep[ix0], keep[ix1], keep[iy0], keep[iy1] = true, true, true, true

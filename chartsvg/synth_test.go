@@ -53,3 +53,5 @@ func demoTraces(n int) []Trace {
 	out[3].Dashed = true
 	return out
 }
+
+func pow10(x float64) float64 { return math.Pow(10, x) }

@@ -368,8 +368,8 @@ func (c *Chart) ends(sw *writer, pts []pt, col string) {
 	sw.s(`z"/>`)
 }
 
-// legendSpan returns the legend text of a trace: its name and, when it has
-// frequencies, its span.
+// legendSpan returns the frequency span of a trace for its legend entry,
+// "2.2–2.7 GHz", or "" when it has no frequencies.
 func legendSpan(t *Trace) string {
 	n := len(t.FreqHz)
 	if n == 0 {
@@ -377,11 +377,11 @@ func legendSpan(t *Trace) string {
 	}
 	f0, f1 := t.FreqHz[0], t.FreqHz[n-1]
 	div, unit := siHz(math.Max(math.Abs(f0), math.Abs(f1)))
-	step := niceStep(f1-f0, 100)
-	if step == 0 {
-		return FormatHz(f0)
+	short := func(f float64) string { return strconv.FormatFloat(f/div, 'g', 6, 64) }
+	if f1 == f0 {
+		return short(f0) + " " + unit
 	}
-	return strconv.FormatFloat(f0/div, 'f', decimals(step/div), 64) + "–" + formatHzStep(f1, step, div, unit)
+	return short(f0) + "–" + short(f1) + " " + unit
 }
 
 func legendName(t *Trace) string {
