@@ -378,3 +378,64 @@ func TestInterpolationHelpers(t *testing.T) {
 		t.Errorf("symmetric vertex = %v, %v; want 1, 2", x, y)
 	}
 }
+
+// TestDipsChatter checks the hysteresis of Dips on a smooth dip with a
+// deterministic wiggle that makes the return loss cross the threshold
+// several times near each edge: RL = 12 − 2·(f − 5)² + 0.12·sin(2π·f/0.03)
+// dB (arithmetic; the wiggle stands in for measurement noise of about
+// 0.1 dB). The edges must be the outermost crossings of the threshold,
+// interpolated linearly in dB as in TestDipRefinement.
+func TestDipsChatter(t *testing.T) {
+	t.Parallel()
+	freq := grid(3, 7, 801)
+	rl := make([]float64, len(freq))
+	g := make([]complex128, len(freq))
+	for k, f := range freq {
+		rl[k] = 12 - 2*(f-5)*(f-5) + 0.12*math.Sin(2*math.Pi*f/0.03)
+		g[k] = complex(math.Pow(10, -rl[k]/20), 0)
+	}
+	const thr = 10.0
+	// Without hysteresis the band falls apart: the trace is made so.
+	if ds := DipsHysteresis(freq, g, thr, 0); len(ds) < 3 {
+		t.Fatalf("no hysteresis: %d bands, want the chatter to split the band", len(ds))
+	}
+	first, last := -1, -1
+	for k := range rl {
+		if rl[k] >= thr {
+			if first < 0 {
+				first = k
+			}
+			last = k
+		}
+	}
+	wantLo := freq[first-1] + (thr-rl[first-1])/(rl[first]-rl[first-1])*(freq[first]-freq[first-1])
+	wantHi := freq[last] + (thr-rl[last])/(rl[last+1]-rl[last])*(freq[last+1]-freq[last])
+	ds := Dips(freq, g, thr)
+	if len(ds) != 1 {
+		t.Fatalf("Dips = %+v, want one band", ds)
+	}
+	d := ds[0]
+	if math.Abs(d.LoHz-wantLo) > 1e-12 || math.Abs(d.HiHz-wantHi) > 1e-12 || d.LoOpen || d.HiOpen {
+		t.Errorf("edges %v, %v; want %v, %v", d.LoHz, d.HiHz, wantLo, wantHi)
+	}
+	// The smooth part crosses 10 dB at 5 ± 1; the wiggle moves the
+	// outermost crossings out by at most 0.12/|slope| = 0.12/4 = 0.03.
+	if d.LoHz < 4-0.035 || d.LoHz > 4 || d.HiHz < 6 || d.HiHz > 6+0.035 {
+		t.Errorf("edges %v, %v not near 4 and 6", d.LoHz, d.HiHz)
+	}
+	if math.Abs(d.FreqHz-5) > 0.05 {
+		t.Errorf("deepest point at %v, want near 5", d.FreqHz)
+	}
+
+	// Two dips whose gap falls 1 dB below the threshold stay two bands.
+	for k, f := range freq {
+		rl := 11 - 8*(f-4.5)*(f-4.5) // 9 dB at f = 5
+		if f > 5 {
+			rl = 11 - 8*(f-5.5)*(f-5.5)
+		}
+		g[k] = complex(math.Pow(10, -rl/20), 0)
+	}
+	if ds := Dips(freq, g, thr); len(ds) != 2 {
+		t.Errorf("two dips with a 1 dB gap: %+v, want two bands", ds)
+	}
+}
