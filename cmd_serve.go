@@ -1,15 +1,31 @@
 package main
 
 import (
+	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"io"
+	"log/slog"
+	"net"
+	"net/http"
+	"strings"
+	"syscall"
+	"time"
+
+	"matchbench/internal/demo"
+	"matchbench/rfmath/touchstone"
+	"matchbench/server"
+	"matchbench/sessions"
 )
 
-func runServe(_ context.Context, args []string, stdout, stderr io.Writer) error {
+func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("serve", "[--listen ADDR] [--data DIR]", stderr)
-	listen := fs.String("listen", "127.0.0.1:8080", "`address` to listen on; 0.0.0.0:8080 serves the lab LAN")
+	listen := fs.String("listen", "127.0.0.1:8080", "`address` to listen on; 0.0.0.0:8080 serves the lab LAN as well")
 	data := fs.String("data", defaultDataDir(), "`folder` that holds the session database")
+	maxMB := fs.Int("max-upload-mb", 20, "largest sweep file accepted, in `MB`")
+	noDemo := fs.Bool("no-demo", false, "do not create the demo sessions on first start")
+	verbose := fs.Bool("v", false, "log every request (routes only; never the links' tokens)")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -17,6 +33,180 @@ func runServe(_ context.Context, args []string, stdout, stderr io.Writer) error 
 	if len(pos) > 0 {
 		return usagef("serve takes no arguments, got %q", pos)
 	}
-	_ = data
-	return fmt.Errorf("the web app is not built yet (it would listen on %s); use 'matchbench inspect' meanwhile", *listen)
+	if *maxMB < 1 || *maxMB > 4096 {
+		return usagef("--max-upload-mb %d: use 1 to 4096", *maxMB)
+	}
+	level := slog.LevelInfo
+	if *verbose {
+		level = slog.LevelDebug
+	}
+	log := slog.New(slog.NewTextHandler(stderr, &slog.HandlerOptions{Level: level}))
+
+	store, err := sessions.Open(*data)
+	if err != nil {
+		if errors.Is(err, sessions.ErrLocked) {
+			return fmt.Errorf("another matchbench server is using the data folder %s; stop it, or start this one with --data pointing elsewhere", *data)
+		}
+		return fmt.Errorf("opening the data folder %s: %w", *data, err)
+	}
+	defer store.Close()
+
+	var demoLink string
+	if !*noDemo {
+		if demoLink, err = seedDemo(ctx, store); err != nil {
+			return fmt.Errorf("creating the demo sessions: %w", err)
+		}
+	}
+
+	ln, err := net.Listen("tcp", *listen)
+	if err != nil {
+		if errors.Is(err, syscall.EADDRINUSE) {
+			return fmt.Errorf("%s is already in use (is matchbench already running?); choose another port, e.g. --listen %s", *listen, nextPort(*listen))
+		}
+		return fmt.Errorf("cannot listen on %s: %w", *listen, err)
+	}
+	addr := ln.Addr().(*net.TCPAddr)
+	lan := !addr.IP.IsLoopback()
+	hosts := shareHosts(addr)
+	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, LAN: lan})
+	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
+
+	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
+	if !addr.IP.IsUnspecified() {
+		local = fmt.Sprintf("http://%s/", addr.String())
+	}
+	fmt.Fprintf(stdout, "matchbench is serving at %s (data in %s)\n", local, store.Dir())
+	if demoLink != "" {
+		fmt.Fprintf(stdout, "demo session (invented data): %ss/%s/\n", local, demoLink)
+	}
+	if lan {
+		fmt.Fprintln(stdout, "LAN: this server also answers colleagues on the lab network at:")
+		for _, h := range hosts {
+			fmt.Fprintf(stdout, "  http://%s/\n", h)
+		}
+		fmt.Fprintln(stdout, "Anyone with a session's edit link can change it; share view links where watching is enough.")
+	}
+
+	errc := make(chan error, 1)
+	go func() { errc <- hs.Serve(ln) }()
+	select {
+	case err := <-errc:
+		return err
+	case <-ctx.Done():
+	}
+	fmt.Fprintln(stdout, "shutting down…")
+	sctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	err = hs.Shutdown(sctx) // waits for in-flight requests (uploads) to finish
+	srv.Shutdown()          // closes websockets cleanly
+	if err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return err
+	}
+	return nil
+}
+
+// nextPort suggests the same address with the port one higher.
+func nextPort(addr string) string {
+	host, port, err := net.SplitHostPort(addr)
+	if err != nil {
+		return "127.0.0.1:8081"
+	}
+	var p int
+	fmt.Sscan(port, &p)
+	return net.JoinHostPort(host, fmt.Sprint(p+1))
+}
+
+// shareHosts lists host:port pairs at which colleagues can reach addr: the
+// address itself, or every non-loopback interface address when it listens
+// on all of them. A loopback listener gives its own address only.
+func shareHosts(addr *net.TCPAddr) []string {
+	port := fmt.Sprint(addr.Port)
+	if !addr.IP.IsUnspecified() {
+		return []string{net.JoinHostPort(addr.IP.String(), port)}
+	}
+	var out []string
+	ifs, _ := net.InterfaceAddrs()
+	for _, a := range ifs {
+		ipn, ok := a.(*net.IPNet)
+		if !ok || ipn.IP.IsLoopback() || ipn.IP.IsLinkLocalUnicast() || ipn.IP.To4() == nil {
+			continue
+		}
+		out = append(out, net.JoinHostPort(ipn.IP.String(), port))
+	}
+	if len(out) == 0 {
+		out = []string{net.JoinHostPort("127.0.0.1", port)}
+	}
+	return out
+}
+
+// seedDemo creates the demo sessions when the store has none, and returns
+// the edit token of the first demo session ("" when none was made).
+func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
+	list, err := st.List(ctx)
+	if err != nil || len(list) > 0 {
+		return "", err
+	}
+	files := map[string]demo.File{}
+	for _, f := range demo.Generate() {
+		files[f.Name] = f
+	}
+	type plan struct {
+		name    string
+		visible []string
+		hidden  []string
+		bands   []demo.Band
+		markers []float64
+	}
+	plans := []plan{
+		{"Demo · Fieldnode trace antenna (invented data)",
+			[]string{"fieldnode-antenna.s1p"}, []string{"fieldnode-via-cable.s1p", "cable-open-end.s1p", "cable-fixture.s2p"},
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}},
+		{"Demo · Wristtag chip antenna (invented data)",
+			[]string{"wristtag-antenna.s1p"}, nil, demo.WristtagBands, []float64{2.44e9}},
+	}
+	first := ""
+	for _, p := range plans {
+		se, err := st.Create(ctx, p.name)
+		if err != nil {
+			return "", err
+		}
+		if first == "" {
+			first = se.EditToken
+		}
+		var firstSweep string
+		for i, name := range append(append([]string{}, p.visible...), p.hidden...) {
+			f := files[name]
+			var b bytes.Buffer
+			comments := make([]string, len(f.Note))
+			for j, n := range f.Note {
+				comments[j] = " " + n
+			}
+			if err := touchstone.Write(&b, f.Sweep, touchstone.WriteOptions{FreqUnit: "MHz", Digits: 10, Comments: comments}); err != nil {
+				return "", err
+			}
+			ev, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSweepAdd, Name: strings.TrimSuffix(name, name[strings.LastIndex(name, "."):]), FileName: name, Raw: b.Bytes(), Sweep: f.Sweep})
+			if err != nil {
+				return "", err
+			}
+			if i == 0 {
+				firstSweep = ev.SweepID
+			}
+			if i >= len(p.visible) {
+				if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSweepVisible, SweepID: ev.SweepID, Visible: false}); err != nil {
+					return "", err
+				}
+			}
+		}
+		for _, b := range p.bands {
+			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB}); err != nil {
+				return "", err
+			}
+		}
+		for _, f := range p.markers {
+			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpMarkerAdd, SweepID: firstSweep, Port: 1, FreqHz: f}); err != nil {
+				return "", err
+			}
+		}
+	}
+	return first, nil
 }

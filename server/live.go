@@ -1,0 +1,255 @@
+package server
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"net/http"
+	"sync"
+
+	"github.com/a-h/templ"
+
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// frag is one fragment of the page to replace: the element with id ID
+// gets HTML (parsed as SVG when SVG is set; its children only when Inner).
+type frag struct {
+	ID    string `json:"id"`
+	HTML  string `json:"html"`
+	SVG   bool   `json:"svg,omitempty"`
+	Inner bool   `json:"inner,omitempty"`
+}
+
+// outMsg is a message from the server to a page.
+type outMsg struct {
+	Type  string `json:"type"`            // "update", "ack", "error", "reload"
+	ID    int64  `json:"id,omitempty"`    // the client message answered
+	V     int64  `json:"v,omitempty"`     // the session version after it
+	Op    string `json:"op,omitempty"`    // the op that made an update
+	Frags []frag `json:"frags,omitempty"` // fragments to swap
+	Msg   string `json:"msg,omitempty"`   // error text
+}
+
+// room fans the events of one session out to its websocket connections.
+// It renders each event once per capability and shares the bytes.
+type room struct {
+	s   *Server
+	sid string
+	sub *sessions.Subscription
+
+	mu    sync.Mutex
+	conns map[*conn]struct{}
+	last  *scene // the scene of the latest state, reused while the structure is unchanged
+	key   string
+	done  chan struct{}
+}
+
+// join adds c to the room of its session, creating the room on first use.
+func (s *Server) join(c *conn) (*room, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.closed {
+		return nil, errors.New("server shutting down")
+	}
+	rm := s.rooms[c.sid]
+	if rm == nil {
+		sub, err := s.store.Subscribe(c.sid, 256)
+		if err != nil {
+			return nil, err
+		}
+		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{})}
+		s.rooms[c.sid] = rm
+		go rm.run()
+	}
+	rm.mu.Lock()
+	rm.conns[c] = struct{}{}
+	rm.mu.Unlock()
+	return rm, nil
+}
+
+// leave removes c; the last one out closes the room.
+func (s *Server) leave(rm *room, c *conn) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	rm.mu.Lock()
+	delete(rm.conns, c)
+	empty := len(rm.conns) == 0
+	rm.mu.Unlock()
+	if empty && s.rooms[rm.sid] == rm {
+		delete(s.rooms, rm.sid)
+		rm.sub.Close()
+	}
+}
+
+func (rm *room) run() {
+	defer close(rm.done)
+	for ev := range rm.sub.C {
+		rm.broadcast(ev)
+	}
+	if rm.sub.Overflowed() {
+		// This room fell behind the session: every page reloads its state.
+		rm.closeAll("fell behind; reloading")
+		rm.s.mu.Lock()
+		if rm.s.rooms[rm.sid] == rm {
+			delete(rm.s.rooms, rm.sid)
+		}
+		rm.s.mu.Unlock()
+	}
+}
+
+func (rm *room) snapshot() []*conn {
+	rm.mu.Lock()
+	defer rm.mu.Unlock()
+	out := make([]*conn, 0, len(rm.conns))
+	for c := range rm.conns {
+		out = append(out, c)
+	}
+	return out
+}
+
+func (rm *room) closeAll(reason string) {
+	for _, c := range rm.snapshot() {
+		c.close(reason)
+	}
+}
+
+// broadcast renders ev once for editors and once for viewers (only when
+// the room has them) and queues it on every connection.
+func (rm *room) broadcast(ev sessions.Event) {
+	conns := rm.snapshot()
+	var msgs [3][]byte // by capability
+	for _, c := range conns {
+		if msgs[c.cap] == nil {
+			m := rm.render(ev, c.cap, c.token)
+			b, err := json.Marshal(m)
+			if err != nil {
+				rm.s.log.Error("encode update", "err", err)
+				return
+			}
+			msgs[c.cap] = b
+		}
+		c.queue(msgs[c.cap])
+	}
+}
+
+// markerOps only move or relabel one marker: the page swaps that marker's
+// groups and the readout rows, nothing else.
+var markerOps = map[string]bool{
+	sessions.OpMarkerMove: true, sessions.OpMarkerStep: true, sessions.OpMarkerToDip: true, sessions.OpMarkerLabel: true,
+}
+
+// render builds the update for one event as seen with capability cap.
+func (rm *room) render(ev sessions.Event, cap sessions.Capability, token string) outMsg {
+	sc := rm.sceneFor(ev.State)
+	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
+	if markerOps[ev.Op] && ev.MarkerID != "" {
+		msg.Frags = rm.s.markerFrags(sc, ev.MarkerID, cap == sessions.Edit)
+		return msg
+	}
+	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version)
+	return msg
+}
+
+// sceneFor returns the scene of st, reusing the previous one's traces and
+// resolved plots when only markers changed.
+func (rm *room) sceneFor(st *sessions.State) *scene {
+	rm.mu.Lock()
+	defer rm.mu.Unlock()
+	key := structureKey(st)
+	if rm.last != nil && rm.key == key {
+		sc := *rm.last
+		sc.st = st
+		rm.last = &sc
+		return &sc
+	}
+	sc := rm.s.scene(rm.sid, st)
+	rm.last, rm.key = sc, key
+	return sc
+}
+
+// structureKey identifies everything of a state except its markers: when
+// it is unchanged the traces and plot ranges are too.
+func structureKey(st *sessions.State) string {
+	c := *st
+	c.Markers = nil
+	b, _ := json.Marshal(&c)
+	return string(b)
+}
+
+// markerFrags draws the groups of one marker (chart and plots) and the
+// readout table.
+func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool) []frag {
+	var out []frag
+	i := sc.st.MarkerIndex(markerID)
+	if i >= 0 {
+		if cm, ok := sc.chartMarker(i); ok {
+			var b bytes.Buffer
+			sc.chart.RenderMarker(&b, cm)
+			out = append(out, frag{ID: "mk-" + markerID, HTML: b.String(), SVG: true})
+		}
+		for _, p := range sc.plots() {
+			for _, pm := range sc.plotMarkers() {
+				if pm.ID != markerID {
+					continue
+				}
+				var b bytes.Buffer
+				p.p.RenderMarker(&b, pm, p.series)
+				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + markerID, HTML: b.String(), SVG: true})
+			}
+		}
+	}
+	out = append(out, frag{ID: "readout-body", HTML: renderString(web.ReadoutBody(sc.readoutRows(), canEdit))})
+	return out
+}
+
+// fullFrags redraws the chart, the plots and every panel.
+func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
+	v := s.panelsView(a, sc, ver)
+	var b bytes.Buffer
+	sc.renderChart(&b)
+	out := []frag{{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true}}
+	for _, p := range sc.plots() {
+		var pb bytes.Buffer
+		p.render(&pb, sc.plotMarkers())
+		out = append(out, frag{ID: "plot-" + p.id, HTML: renderString(web.PlotFigure(web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()}))})
+	}
+	out = append(out,
+		frag{ID: "markers-panel", HTML: renderString(web.MarkersPanel(v))},
+		frag{ID: "sweeps-panel", HTML: renderString(web.SweepsPanel(v))},
+		frag{ID: "bands-panel", HTML: renderString(web.BandsPanel(v))},
+		frag{ID: "chart-panel", HTML: renderString(web.ChartPanel(v))},
+		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
+	)
+	return out
+}
+
+func renderString(c templ.Component) string {
+	var b bytes.Buffer
+	if err := c.Render(context.Background(), &b); err != nil {
+		return ""
+	}
+	return b.String()
+}
+
+// shareLinks returns the edit and view links of a session for the hosts a
+// colleague can reach.
+func (s *Server) shareLinks(r *http.Request, sid string) web.ShareView {
+	v := web.ShareView{LAN: s.cfg.LAN}
+	edit, view, err := s.store.Tokens(r.Context(), sid)
+	if err != nil {
+		s.log.Error("tokens", "err", err)
+		return v
+	}
+	hosts := s.cfg.ShareHosts
+	if len(hosts) == 0 {
+		hosts = []string{r.Host}
+	}
+	for _, h := range hosts {
+		v.EditLinks = append(v.EditLinks, "http://"+h+"/s/"+edit+"/")
+		v.ViewLinks = append(v.ViewLinks, "http://"+h+"/s/"+view+"/")
+	}
+	return v
+}

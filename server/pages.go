@@ -1,0 +1,344 @@
+package server
+
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"mime"
+	"net/http"
+	"path"
+	"strings"
+
+	"github.com/a-h/templ"
+	"github.com/go-chi/chi/v5"
+
+	"matchbench/rfmath"
+	"matchbench/rfmath/touchstone"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// ctxKey is the type of the server's context keys.
+type ctxKey int
+
+const sessionKey ctxKey = iota
+
+// access is what a request's token grants.
+type access struct {
+	Token     string
+	SessionID string
+	Cap       sessions.Capability
+}
+
+// accessFrom returns the session access of a request that went through
+// withSession.
+func accessFrom(ctx context.Context) access {
+	a, _ := ctx.Value(sessionKey).(access)
+	return a
+}
+
+// withSession resolves the token in the path. An unknown token gets a 404
+// that does not say whether such a session ever existed.
+func (s *Server) withSession(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		tok := chi.URLParam(r, "token")
+		sid, c, err := s.store.ByToken(r.Context(), tok)
+		if err != nil {
+			if !errors.Is(err, sessions.ErrNotFound) {
+				s.log.Error("token lookup", "err", err)
+			}
+			http.Error(w, "No session answers to this link. It may have been re-issued; ask for a new one.", http.StatusNotFound)
+			return
+		}
+		ctx := context.WithValue(r.Context(), sessionKey, access{Token: tok, SessionID: sid, Cap: c})
+		next.ServeHTTP(w, r.WithContext(ctx))
+	})
+}
+
+func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c templ.Component) {
+	w.Header().Set("Content-Type", "text/html; charset=utf-8")
+	w.WriteHeader(status)
+	if err := c.Render(r.Context(), w); err != nil {
+		s.log.Error("render", "err", err)
+	}
+}
+
+func (s *Server) start(w http.ResponseWriter, r *http.Request) {
+	v := web.StartView{Local: isLoopback(r)}
+	if s.cfg.LAN {
+		v.LAN = s.cfg.ShareHosts
+	}
+	if v.Local {
+		list, err := s.store.List(r.Context())
+		if err != nil {
+			s.log.Error("list sessions", "err", err)
+			v.Error = "The session list could not be read; see the server log."
+		}
+		for _, se := range list {
+			st, _, err := s.store.State(r.Context(), se.ID)
+			n := 0
+			if err == nil {
+				n = len(st.Sweeps)
+			}
+			v.Sessions = append(v.Sessions, web.SessionRow{
+				Name: se.Name, Version: se.Version, Sweeps: n,
+				Created:  se.CreatedAt.Local().Format("2006-01-02 15:04"),
+				EditHref: "/open/" + se.ID, ViewHref: "/open/" + se.ID + "?view=1",
+			})
+		}
+	}
+	s.render(w, r, http.StatusOK, web.StartPage(v))
+}
+
+// openLocal sends the bench computer's own user to a session by its id
+// (the start page lists sessions by id, not by token).
+func (s *Server) openLocal(w http.ResponseWriter, r *http.Request) {
+	if !isLoopback(r) {
+		http.Error(w, "Sessions are opened by id only on the bench computer itself; ask for a link.", http.StatusForbidden)
+		return
+	}
+	edit, view, err := s.store.Tokens(r.Context(), chi.URLParam(r, "id"))
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	tok := edit
+	if r.URL.Query().Get("view") != "" {
+		tok = view
+	}
+	http.Redirect(w, r, "/s/"+tok+"/", http.StatusSeeOther)
+}
+
+func (s *Server) createSession(w http.ResponseWriter, r *http.Request) {
+	if !isLoopback(r) {
+		http.Error(w, "New sessions can be started only on the bench computer itself.", http.StatusForbidden)
+		return
+	}
+	r.Body = http.MaxBytesReader(w, r.Body, 4096)
+	name := strings.TrimSpace(r.PostFormValue("name"))
+	if name == "" {
+		name = "Bench session"
+	}
+	se, err := s.store.Create(r.Context(), name)
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	http.Redirect(w, r, "/s/"+se.EditToken+"/", http.StatusSeeOther)
+}
+
+func (s *Server) page(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	st, ver, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	sc := s.scene(a.SessionID, st)
+	v := s.sessionView(r, a, sc, ver)
+	s.render(w, r, http.StatusOK, web.SessionPage(v))
+}
+
+// uploadReply is the JSON answer to an upload.
+type uploadReply struct {
+	SweepID string `json:"sweepId,omitempty"`
+	Version int64  `json:"version,omitempty"`
+	Error   string `json:"error,omitempty"`
+}
+
+func writeJSON(w http.ResponseWriter, status int, v any) {
+	w.Header().Set("Content-Type", "application/json")
+	w.WriteHeader(status)
+	json.NewEncoder(w).Encode(v)
+}
+
+// upload takes one file (multipart field "file"), reads it as Touchstone or
+// CSV by its name and adds it as a sweep. Nothing is kept of a file that
+// does not read whole.
+func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	if a.Cap != sessions.Edit {
+		writeJSON(w, http.StatusForbidden, uploadReply{Error: "this is a view-only link: uploads are refused"})
+		return
+	}
+	limit := s.cfg.MaxUploadBytes
+	r.Body = http.MaxBytesReader(w, r.Body, limit+64<<10)
+	f, hdr, err := r.FormFile("file")
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			writeJSON(w, http.StatusRequestEntityTooLarge, uploadReply{Error: fmt.Sprintf("the file is larger than the upload limit of %d MB", limit>>20)})
+			return
+		}
+		writeJSON(w, http.StatusBadRequest, uploadReply{Error: "send the sweep as a multipart form field named \"file\""})
+		return
+	}
+	defer f.Close()
+	raw, err := io.ReadAll(io.LimitReader(f, limit+1))
+	if err != nil {
+		writeJSON(w, http.StatusBadRequest, uploadReply{Error: "the upload was cut off: " + err.Error()})
+		return
+	}
+	if int64(len(raw)) > limit {
+		writeJSON(w, http.StatusRequestEntityTooLarge, uploadReply{Error: fmt.Sprintf("the file is larger than the upload limit of %d MB", limit>>20)})
+		return
+	}
+	name := path.Base(strings.ReplaceAll(hdr.Filename, "\\", "/"))
+	sw, err := parseSweep(name, raw)
+	if err != nil {
+		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: err.Error()})
+		return
+	}
+	ev, err := s.store.ApplyAs(r.Context(), a.Cap, a.SessionID, sessions.Change{
+		Op: sessions.OpSweepAdd, Name: strings.TrimSuffix(name, path.Ext(name)), FileName: name, Raw: raw, Sweep: sw,
+	})
+	if err != nil {
+		status, msg := errorStatus(err)
+		if status == http.StatusInternalServerError {
+			s.log.Error("upload", "err", err)
+		}
+		writeJSON(w, status, uploadReply{Error: msg})
+		return
+	}
+	writeJSON(w, http.StatusOK, uploadReply{SweepID: ev.SweepID, Version: ev.Version})
+}
+
+// parseSweep reads an uploaded file by the ending of its name.
+func parseSweep(name string, raw []byte) (*rfmath.Sweep, error) {
+	lim := touchstone.DefaultLimits
+	if strings.EqualFold(path.Ext(name), ".csv") {
+		return touchstone.ReadCSV(strings.NewReader(string(raw)), name, lim)
+	}
+	if _, ok := touchstone.PortsFromName(name); !ok && !strings.EqualFold(path.Ext(name), ".ts") {
+		return nil, fmt.Errorf("%s: the name must end in .sNp (e.g. .s1p, .s2p), .ts or .csv so the reader knows the format", name)
+	}
+	tf, err := touchstone.Read(strings.NewReader(string(raw)), name, lim)
+	if err != nil {
+		return nil, err
+	}
+	return tf.Sweep, nil
+}
+
+// errorStatus maps a store error to a status and a message for the client.
+func errorStatus(err error) (int, string) {
+	var oe *sessions.OpError
+	switch {
+	case errors.Is(err, sessions.ErrForbidden):
+		return http.StatusForbidden, "this is a view-only link: changes are refused"
+	case errors.Is(err, sessions.ErrNotFound):
+		if errors.As(err, &oe) {
+			return http.StatusNotFound, oe.Error()
+		}
+		return http.StatusNotFound, "not found"
+	case errors.Is(err, sessions.ErrInvalid), errors.Is(err, sessions.ErrConflict):
+		return http.StatusUnprocessableEntity, err.Error()
+	}
+	return http.StatusInternalServerError, "the server could not store the change; see its log"
+}
+
+func (s *Server) fail(w http.ResponseWriter, r *http.Request, err error) {
+	status, msg := errorStatus(err)
+	if status == http.StatusInternalServerError {
+		s.log.Error("request failed", "route", chi.RouteContext(r.Context()).RoutePattern(), "err", err)
+	}
+	http.Error(w, msg, status)
+}
+
+func attachment(w http.ResponseWriter, name, ctype string) {
+	w.Header().Set("Content-Type", ctype)
+	w.Header().Set("Content-Disposition", mime.FormatMediaType("attachment", map[string]string{"filename": name}))
+}
+
+func (s *Server) exportChart(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	st, _, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	sc := s.scene(a.SessionID, st)
+	attachment(w, safeName(st.Name)+"-chart.svg", "image/svg+xml")
+	if err := sc.renderChart(w); err != nil {
+		s.log.Error("export chart", "err", err)
+	}
+}
+
+func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	st, _, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	sc := s.scene(a.SessionID, st)
+	id := chi.URLParam(r, "plot")
+	for _, p := range sc.plots() {
+		if p.id == id {
+			attachment(w, safeName(st.Name)+"-"+id+".svg", "image/svg+xml")
+			if err := p.render(w, sc.plotMarkers()); err != nil {
+				s.log.Error("export plot", "err", err)
+			}
+			return
+		}
+	}
+	http.Error(w, "no such plot", http.StatusNotFound)
+}
+
+func (s *Server) exportMarkers(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	st, _, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	sc := s.scene(a.SessionID, st)
+	attachment(w, safeName(st.Name)+"-markers.csv", "text/csv; charset=utf-8")
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
+		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"})
+	for _, m := range sc.readouts() {
+		ro := m.ro
+		cw.Write([]string{
+			fmt.Sprint(m.num), m.label, m.sweepName, fmt.Sprintf("S%d%d", m.port, m.port),
+			g(ro.FreqHz), g(real(ro.Z)), g(imag(ro.Z)), g(ro.GammaMag), g(ro.GammaDeg),
+			g(ro.ReturnLossDB), g(ro.VSWR), g(ro.MismatchLossDB), g(ro.Q), ro.Equiv.Kind, g(ro.Equiv.Value),
+		})
+	}
+	cw.Flush()
+}
+
+func g(v float64) string { return fmt.Sprintf("%.10g", v) }
+
+func (s *Server) rawFile(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	raw, name, err := s.store.Raw(r.Context(), a.SessionID, chi.URLParam(r, "sweep"))
+	if err != nil {
+		s.fail(w, r, err)
+		return
+	}
+	attachment(w, name, "text/plain; charset=utf-8")
+	w.Write(raw)
+}
+
+// safeName keeps letters, digits, '-' and '_' for a download's file name.
+func safeName(s string) string {
+	var b strings.Builder
+	for _, c := range s {
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9', c == '-', c == '_':
+			b.WriteRune(c)
+		case c == ' ' || c == '.':
+			b.WriteByte('-')
+		}
+		if b.Len() >= 60 {
+			break
+		}
+	}
+	if b.Len() == 0 {
+		return "session"
+	}
+	return b.String()
+}

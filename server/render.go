@@ -1,0 +1,429 @@
+package server
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"net/http"
+	"strconv"
+	"strings"
+
+	"matchbench/chartsvg"
+	"matchbench/rfmath"
+	"matchbench/rfmath/units"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// Sizes of the drawings in the page, in SVG user units (= CSS pixels at
+// 100 %; the page scales them to its columns).
+const (
+	chartSizePx = 640
+	plotWidth   = 640
+	plotHeight  = 260
+)
+
+// trace is one reflection trace of a visible sweep: S(port,port).
+type trace struct {
+	id    string // "<sweepID>-p<port>"; app.js parses it
+	ref   sessions.SweepRef
+	port  int
+	sweep *rfmath.Sweep
+	z0    float64
+	gamma []complex128
+}
+
+// scene is what one state of a session draws: its visible traces and the
+// derived data the chart, the plots and the panels need.
+type scene struct {
+	sid    string
+	st     *sessions.State
+	traces []*trace
+	all    map[string]*rfmath.Sweep // every listed sweep, visible or not
+	chart  chartsvg.Chart
+	fmin   float64
+	fmax   float64
+	plotsC []plot
+}
+
+// scene builds the scene of state st. Sweeps that cannot be read are left
+// out and logged.
+func (s *Server) scene(sid string, st *sessions.State) *scene {
+	sc := &scene{sid: sid, st: st, all: map[string]*rfmath.Sweep{}, fmin: math.Inf(1), fmax: math.Inf(-1)}
+	for _, ref := range st.Sweeps {
+		sw, err := s.store.Sweep(sid, ref.ID)
+		if err != nil {
+			s.log.Error("read sweep", "sweep", ref.ID, "err", err)
+			continue
+		}
+		sc.all[ref.ID] = sw
+		if !ref.Visible {
+			continue
+		}
+		ports := 1
+		if sw.Ports >= 2 {
+			ports = 2
+		}
+		for p := 1; p <= ports; p++ {
+			sc.traces = append(sc.traces, &trace{
+				id: fmt.Sprintf("%s-p%d", ref.ID, p), ref: ref, port: p, sweep: sw,
+				z0: sw.Z0[p-1], gamma: sw.Param(nil, p-1, p-1),
+			})
+		}
+		sc.fmin = math.Min(sc.fmin, sw.FreqHz[0])
+		sc.fmax = math.Max(sc.fmax, sw.FreqHz[sw.Len()-1])
+	}
+	cs := st.Chart
+	sc.chart = chartsvg.Chart{
+		SizePx:          chartSizePx,
+		ImpedanceGrid:   cs.ImpedanceGrid,
+		AdmittanceGrid:  cs.AdmittanceGrid,
+		AngleScale:      cs.ShowAngleScale,
+		WavelengthScale: cs.ShowWavelengthScale,
+		QArcs:           cs.QArcs,
+		Z0Ohm:           50,
+	}
+	if len(sc.traces) > 0 {
+		sc.chart.Z0Ohm = sc.traces[0].z0
+	}
+	if cs.Zoom > 1 {
+		sc.chart.Zoom = 1 / cs.Zoom
+	}
+	if cs.VSWRCircle > 1 {
+		sc.chart.VSWRCircles = []float64{cs.VSWRCircle}
+	}
+	if cs.ReturnLossCircleDB > 0 {
+		sc.chart.ReturnLossCircleDB = []float64{cs.ReturnLossCircleDB}
+	}
+	return sc
+}
+
+func (sc *scene) traceByMarker(m sessions.Marker) *trace {
+	for _, t := range sc.traces {
+		if t.ref.ID == m.SweepID && t.port == max(m.Port, 1) {
+			return t
+		}
+	}
+	return nil
+}
+
+func (sc *scene) chartTraces() []chartsvg.Trace {
+	out := make([]chartsvg.Trace, 0, len(sc.traces))
+	for _, t := range sc.traces {
+		name := t.ref.Name
+		if t.sweep.Ports > 1 {
+			name += fmt.Sprintf(" S%d%d", t.port, t.port)
+		}
+		var keep []float64
+		for _, m := range sc.st.Markers {
+			if m.SweepID == t.ref.ID && max(m.Port, 1) == t.port {
+				keep = append(keep, m.FreqHz)
+			}
+		}
+		out = append(out, chartsvg.Trace{
+			ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Gamma: t.gamma,
+			Dashed: t.port == 2, KeepHz: keep,
+		})
+	}
+	return out
+}
+
+// markerNum is a marker's number: its place in the session's list, from 1.
+func (sc *scene) markerNum(id string) int { return sc.st.MarkerIndex(id) + 1 }
+
+func (sc *scene) chartMarker(i int) (chartsvg.Marker, bool) {
+	m := sc.st.Markers[i]
+	t := sc.traceByMarker(m)
+	if t == nil {
+		return chartsvg.Marker{}, false
+	}
+	g, ok := t.at(m.FreqHz)
+	if !ok {
+		return chartsvg.Marker{}, false
+	}
+	return chartsvg.Marker{ID: m.ID, Num: i + 1, Label: m.Label, Gamma: g, FreqHz: m.FreqHz, Trace: t.id, Color: t.ref.Color}, true
+}
+
+func (sc *scene) chartMarkers() []chartsvg.Marker {
+	var out []chartsvg.Marker
+	for i := range sc.st.Markers {
+		if cm, ok := sc.chartMarker(i); ok {
+			out = append(out, cm)
+		}
+	}
+	return out
+}
+
+// at interpolates the trace's Γ at fHz.
+func (t *trace) at(fHz float64) (complex128, bool) {
+	k, u, err := t.sweep.Locate(fHz)
+	if err != nil {
+		return 0, false
+	}
+	if k+1 >= len(t.gamma) {
+		return t.gamma[k], true
+	}
+	return t.gamma[k] + complex(u, 0)*(t.gamma[k+1]-t.gamma[k]), true
+}
+
+func (sc *scene) renderChart(w io.Writer) error {
+	return sc.chart.Render(w, sc.chartTraces(), sc.chartMarkers(), nil)
+}
+
+// plot is one rectangular plot of the page.
+type plot struct {
+	id, title string
+	p         chartsvg.Plot // resolved
+	series    []chartsvg.Series
+	bands     []chartsvg.Band
+}
+
+func (p *plot) render(w io.Writer, markers []chartsvg.PlotMarker) error {
+	return p.p.Render(w, p.series, p.bands, markers)
+}
+
+// plots returns the page's plots: reflection in dB with the bands and
+// their requirements, and R and X.
+func (sc *scene) plots() []plot {
+	if sc.plotsC != nil {
+		return sc.plotsC
+	}
+	var rl, zx []chartsvg.Series
+	for _, t := range sc.traces {
+		n := len(t.gamma)
+		db := make([]float64, n)
+		r := make([]float64, n)
+		x := make([]float64, n)
+		for k, g := range t.gamma {
+			db[k] = 20 * math.Log10(cmplx.Abs(g))
+			z := rfmath.ZFromGamma(g, complex(t.z0, 0))
+			r[k], x[k] = real(z), imag(z)
+		}
+		name := t.ref.Name
+		if t.sweep.Ports > 1 {
+			name += fmt.Sprintf(" S%d%d", t.port, t.port)
+		}
+		rl = append(rl, chartsvg.Series{ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: db, Dashed: t.port == 2})
+		zx = append(zx,
+			chartsvg.Series{ID: t.id + "-r", Name: name + " R", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: r},
+			chartsvg.Series{ID: t.id + "-x", Name: name + " X", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: x, Dashed: true})
+	}
+	var bands []chartsvg.Band
+	for _, b := range sc.st.Bands {
+		bands = append(bands, chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, Limit: -b.MinReturnLossDB, HasLimit: b.MinReturnLossDB > 0})
+	}
+	mk := func(id, title, ylabel, yunit string, series []chartsvg.Series, bands []chartsvg.Band) plot {
+		p := chartsvg.Plot{Width: plotWidth, Height: plotHeight, Title: title, YLabel: ylabel, YUnit: yunit, IDPrefix: id + "-"}
+		if len(sc.traces) > 0 {
+			p.XMin, p.XMax = sc.fmin, sc.fmax
+		}
+		rp := p.Resolve(series, bands)
+		return plot{id: id, title: title, p: rp, series: series, bands: bands}
+	}
+	sc.plotsC = []plot{
+		mk("refl", "Reflection |S11|", "|S11|", "dB", rl, bands),
+		mk("zx", "Impedance: R solid, X dashed", "R, X", "Ω", zx, nil),
+	}
+	return sc.plotsC
+}
+
+func (sc *scene) plotMarkers() []chartsvg.PlotMarker {
+	var out []chartsvg.PlotMarker
+	for i, m := range sc.st.Markers {
+		if t := sc.traceByMarker(m); t != nil {
+			out = append(out, chartsvg.PlotMarker{ID: m.ID, Num: i + 1, Label: m.Label, FreqHz: m.FreqHz, Color: t.ref.Color})
+		}
+	}
+	return out
+}
+
+// readout is one marker's figures.
+type readout struct {
+	id, label, sweepName, color string
+	num, port                   int
+	ro                          rfmath.Readout
+}
+
+func (sc *scene) readouts() []readout {
+	var out []readout
+	for i, m := range sc.st.Markers {
+		t := sc.traceByMarker(m)
+		if t == nil {
+			continue
+		}
+		g, ok := t.at(m.FreqHz)
+		if !ok {
+			continue
+		}
+		out = append(out, readout{
+			id: m.ID, label: m.Label, sweepName: t.ref.Name, color: t.ref.Color, num: i + 1, port: t.port,
+			ro: rfmath.NewReadout(m.FreqHz, g, t.z0),
+		})
+	}
+	return out
+}
+
+func fmtF(f float64) string { return units.FormatFrequency(f, 7) }
+
+func fmtDB(v float64) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "∞ dB"
+	case math.IsNaN(v):
+		return "—"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64) + " dB"
+}
+
+func fmtNum(v float64, prec int) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "∞"
+	case math.IsNaN(v):
+		return "—"
+	}
+	return strconv.FormatFloat(v, 'f', prec, 64)
+}
+
+func (sc *scene) readoutRows() []web.ReadoutRow {
+	var rows []web.ReadoutRow
+	for _, r := range sc.readouts() {
+		ro := r.ro
+		sign := "+"
+		if imag(ro.Z) < 0 {
+			sign = "−"
+		}
+		z := "open"
+		if !cmplx.IsInf(ro.Z) {
+			z = fmt.Sprintf("%.2f %s j%.2f Ω", real(ro.Z), sign, math.Abs(imag(ro.Z)))
+		}
+		eq := "—"
+		switch ro.Equiv.Kind {
+		case rfmath.KindL:
+			eq = units.Format(ro.Equiv.Value, "H", 4)
+		case rfmath.KindC:
+			eq = units.Format(ro.Equiv.Value, "F", 4)
+		}
+		row := web.ReadoutRow{
+			MarkerID: r.id, Num: r.num, Label: r.label, Color: r.color,
+			Trace: fmt.Sprintf("%s · S%d%d", r.sweepName, r.port, r.port),
+			Freq:  fmtF(ro.FreqHz), FreqHz: ro.FreqHz, Z: z,
+			Gamma: fmt.Sprintf("%.4f ∠ %.1f°", ro.GammaMag, ro.GammaDeg),
+			RL:    fmtDB(ro.ReturnLossDB), VSWR: fmtNum(ro.VSWR, 3), ML: fmtDB(ro.MismatchLossDB),
+			Q: fmtNum(ro.Q, 2), Equiv: eq,
+		}
+		if len(ro.Warnings) > 0 {
+			row.Warning = strings.Join(ro.Warnings, "; ")
+		}
+		rows = append(rows, row)
+	}
+	return rows
+}
+
+// worstInBand returns the worst (least) return loss of trace t over
+// [lo, hi], using the measured points inside and the interpolated edges.
+func worstInBand(t *trace, lo, hi float64) (float64, bool) {
+	f := t.sweep.FreqHz
+	if lo < f[0] || hi > f[len(f)-1] {
+		return 0, false
+	}
+	worst := math.Inf(1)
+	for _, e := range []float64{lo, hi} {
+		if g, ok := t.at(e); ok {
+			worst = math.Min(worst, rfmath.ReturnLossDB(cmplx.Abs(g)))
+		}
+	}
+	for k, fk := range f {
+		if fk > lo && fk < hi {
+			worst = math.Min(worst, rfmath.ReturnLossDB(cmplx.Abs(t.gamma[k])))
+		}
+	}
+	return worst, true
+}
+
+func (sc *scene) bandRows() []web.BandRow {
+	var rows []web.BandRow
+	for _, b := range sc.st.Bands {
+		row := web.BandRow{ID: b.ID, Name: b.Name, Lo: fmtF(b.LoHz), Hi: fmtF(b.HiHz), LoHz: b.LoHz, HiHz: b.HiHz, MinRL: "—"}
+		if b.MinReturnLossDB > 0 {
+			row.MinRL = fmtNum(b.MinReturnLossDB, 1) + " dB"
+		}
+		for _, t := range sc.traces {
+			w, ok := worstInBand(t, b.LoHz, b.HiHz)
+			if !ok {
+				continue
+			}
+			row.Worst = append(row.Worst, web.BandResult{
+				Sweep: t.ref.Name, Color: t.ref.Color, Worst: fmtDB(w),
+				Has: b.MinReturnLossDB > 0, Pass: w >= b.MinReturnLossDB,
+			})
+		}
+		rows = append(rows, row)
+	}
+	return rows
+}
+
+func (sc *scene) sweepRows(token string) []web.SweepRow {
+	var rows []web.SweepRow
+	for _, ref := range sc.st.Sweeps {
+		rows = append(rows, web.SweepRow{
+			ID: ref.ID, Name: ref.Name, FileName: ref.FileName, Color: ref.Color, Visible: ref.Visible,
+			Summary: fmt.Sprintf("%d-port, %d points, %s – %s", ref.Ports, ref.Points, fmtF(ref.FminHz), fmtF(ref.FmaxHz)),
+			RawHref: "/s/" + token + "/sweeps/" + ref.ID + "/file",
+		})
+	}
+	return rows
+}
+
+func chartOptions(cs sessions.ChartSettings) web.ChartOptions {
+	o := web.ChartOptions{
+		ImpedanceGrid: cs.ImpedanceGrid, AdmittanceGrid: cs.AdmittanceGrid,
+		AngleScale: cs.ShowAngleScale, WavelengthScale: cs.ShowWavelengthScale,
+		Zoom: fmtNum(math.Max(cs.Zoom, 1), 2),
+	}
+	o.Zoom = strings.TrimSuffix(strings.TrimRight(o.Zoom, "0"), ".")
+	if cs.VSWRCircle > 1 {
+		o.VSWRCircle = strconv.FormatFloat(cs.VSWRCircle, 'g', 4, 64)
+	}
+	if cs.ReturnLossCircleDB > 0 {
+		o.ReturnLossCircleDB = strconv.FormatFloat(cs.ReturnLossCircleDB, 'g', 4, 64)
+	}
+	q := make([]string, len(cs.QArcs))
+	for i, v := range cs.QArcs {
+		q[i] = strconv.FormatFloat(v, 'g', 4, 64)
+	}
+	o.QArcs = strings.Join(q, ", ")
+	return o
+}
+
+// sessionView builds the whole page's view model.
+func (s *Server) sessionView(r *http.Request, a access, sc *scene, ver int64) web.SessionView {
+	v := s.panelsView(a, sc, ver)
+	var b bytes.Buffer
+	if err := sc.renderChart(&b); err != nil {
+		s.log.Error("render chart", "err", err)
+	}
+	v.Chart.SVG = b.String()
+	for _, p := range sc.plots() {
+		var pb bytes.Buffer
+		if err := p.render(&pb, sc.plotMarkers()); err != nil {
+			s.log.Error("render plot", "err", err)
+		}
+		v.Plots = append(v.Plots, web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()})
+	}
+	if a.Cap == sessions.Edit {
+		v.Share = s.shareLinks(r, a.SessionID)
+	}
+	return v
+}
+
+// panelsView fills the parts of the page that do not need drawing.
+func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
+	return web.SessionView{
+		ID: a.SessionID, Name: sc.st.Name, Version: ver, CanEdit: a.Cap == sessions.Edit, Token: a.Token,
+		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
+		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
+	}
+}

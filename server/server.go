@@ -1,0 +1,178 @@
+// Package server is matchbench's HTTP side: the chi router, thin handlers,
+// the websocket endpoint and its message protocol, uploads, limits and
+// middleware. It renders with web (templ) and chartsvg and changes sessions
+// only through the store's one change path.
+package server
+
+import (
+	"context"
+	"log/slog"
+	"net"
+	"net/http"
+	"sync"
+	"time"
+
+	"github.com/go-chi/chi/v5"
+	"github.com/go-chi/chi/v5/middleware"
+
+	"matchbench/rfmath"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// Store is what the server needs of the session store.
+type Store interface {
+	Create(ctx context.Context, name string) (*sessions.Session, error)
+	List(ctx context.Context) ([]sessions.Session, error)
+	Get(ctx context.Context, id string) (*sessions.Session, error)
+	ByToken(ctx context.Context, token string) (string, sessions.Capability, error)
+	State(ctx context.Context, id string) (*sessions.State, int64, error)
+	ApplyAs(ctx context.Context, c sessions.Capability, sessionID string, ch sessions.Change) (sessions.Event, error)
+	Subscribe(sessionID string, buf int) (*sessions.Subscription, error)
+	Since(ctx context.Context, sessionID string, v int64) (sessions.Catchup, error)
+	Sweep(sessionID, sweepID string) (*rfmath.Sweep, error)
+	Raw(ctx context.Context, sessionID, sweepID string) ([]byte, string, error)
+	Tokens(ctx context.Context, id string) (edit, view string, err error)
+	ReissueTokens(ctx context.Context, id string) (*sessions.Session, error)
+}
+
+var _ Store = (*sessions.Store)(nil)
+
+// Config holds the server's dependencies and limits.
+type Config struct {
+	Store Store
+	Log   *slog.Logger
+	// MaxUploadBytes bounds one uploaded file; zero means 20 MiB.
+	MaxUploadBytes int64
+	// ShareHosts are the host:port pairs a colleague can reach the server
+	// at; the page builds its share links from them. Empty means the
+	// request's own host.
+	ShareHosts []string
+	// LAN reports that the server listens beyond the loopback address.
+	LAN bool
+	// MsgPerSecond and MsgBurst bound websocket messages per connection;
+	// zero means 120 and 240.
+	MsgPerSecond, MsgBurst float64
+}
+
+// Server serves the app. Create it with New.
+type Server struct {
+	cfg    Config
+	store  Store
+	log    *slog.Logger
+	router http.Handler
+
+	mu     sync.Mutex
+	rooms  map[string]*room
+	closed bool
+}
+
+// DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.
+const DefaultMaxUploadBytes = 20 << 20
+
+// New builds the server and its router.
+func New(cfg Config) *Server {
+	if cfg.Log == nil {
+		cfg.Log = slog.Default()
+	}
+	if cfg.MaxUploadBytes <= 0 {
+		cfg.MaxUploadBytes = DefaultMaxUploadBytes
+	}
+	if cfg.MsgPerSecond <= 0 {
+		cfg.MsgPerSecond = 120
+	}
+	if cfg.MsgBurst <= 0 {
+		cfg.MsgBurst = 240
+	}
+	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}}
+	s.router = s.routes()
+	return s
+}
+
+// ServeHTTP implements http.Handler.
+func (s *Server) ServeHTTP(w http.ResponseWriter, r *http.Request) { s.router.ServeHTTP(w, r) }
+
+func (s *Server) routes() http.Handler {
+	r := chi.NewRouter()
+	r.Use(middleware.Recoverer)
+	r.Use(s.logRequests)
+	r.Use(securityHeaders)
+	r.Handle("/static/*", http.StripPrefix("/static/", staticFiles()))
+	r.Get("/", s.start)
+	r.Post("/sessions", s.createSession)
+	r.Get("/open/{id}", s.openLocal)
+	r.Route("/s/{token}", func(r chi.Router) {
+		r.Use(s.withSession)
+		r.Get("/", s.page)
+		r.Get("/ws", s.websocket)
+		r.Post("/upload", s.upload)
+		r.Get("/export/chart.svg", s.exportChart)
+		r.Get("/export/plot-{plot}.svg", s.exportPlot)
+		r.Get("/export/markers.csv", s.exportMarkers)
+		r.Get("/sweeps/{sweep}/file", s.rawFile)
+	})
+	// State-changing requests from other sites are refused (Go's
+	// CrossOriginProtection checks Sec-Fetch-Site and Origin).
+	return http.NewCrossOriginProtection().Handler(r)
+}
+
+func staticFiles() http.Handler {
+	fs := http.FileServerFS(web.Static())
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		w.Header().Set("Cache-Control", "no-cache")
+		fs.ServeHTTP(w, r)
+	})
+}
+
+// contentSecurityPolicy allows only the app's own script and styles; the
+// SVG drawn inline uses presentation attributes, not style attributes.
+const contentSecurityPolicy = "default-src 'self'; script-src 'self'; style-src 'self'; img-src 'self' data:; " +
+	"connect-src 'self'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'"
+
+func securityHeaders(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		h := w.Header()
+		h.Set("Content-Security-Policy", contentSecurityPolicy)
+		h.Set("X-Content-Type-Options", "nosniff")
+		h.Set("Referrer-Policy", "no-referrer")
+		h.Set("X-Frame-Options", "DENY")
+		next.ServeHTTP(w, r)
+	})
+}
+
+// logRequests logs method, route pattern, status and duration, never the
+// path itself, which carries a session token.
+func (s *Server) logRequests(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		ww := middleware.NewWrapResponseWriter(w, r.ProtoMajor)
+		t0 := time.Now()
+		next.ServeHTTP(ww, r)
+		route := chi.RouteContext(r.Context()).RoutePattern()
+		s.log.Debug("request", "method", r.Method, "route", route, "status", ww.Status(), "dur", time.Since(t0))
+	})
+}
+
+// isLoopback reports whether the request comes from this computer.
+func isLoopback(r *http.Request) bool {
+	host, _, err := net.SplitHostPort(r.RemoteAddr)
+	if err != nil {
+		host = r.RemoteAddr
+	}
+	ip := net.ParseIP(host)
+	return ip != nil && ip.IsLoopback()
+}
+
+// Shutdown closes every websocket with a going-away message. Call it after
+// http.Server.Shutdown, which does not touch hijacked connections.
+func (s *Server) Shutdown() {
+	s.mu.Lock()
+	s.closed = true
+	rooms := make([]*room, 0, len(s.rooms))
+	for _, rm := range s.rooms {
+		rooms = append(rooms, rm)
+	}
+	s.mu.Unlock()
+	for _, rm := range rooms {
+		rm.closeAll("server shutting down")
+	}
+}

@@ -1,0 +1,334 @@
+package server
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"net/http"
+	"net/url"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/gorilla/websocket"
+
+	"matchbench/sessions"
+)
+
+// Websocket timings and sizes.
+const (
+	writeWait      = 10 * time.Second
+	pongWait       = 60 * time.Second
+	pingPeriod     = pongWait * 9 / 10
+	maxMessageSize = 64 << 10
+	sendQueue      = 64  // messages waiting for a slow page before it is dropped
+	opQueue        = 128 // changes waiting to be applied per connection
+)
+
+// inMsg is a message from a page.
+//
+//	hello   {v}                     the page's version; the server answers with a
+//	                                full update when the session has moved on
+//	change  {id, v, change}         one sessions.Change (see its doc for ops)
+//	form    {id, v, form, fields}   a panel's form, fields as typed (SI prefixes)
+//	ping    {}                      keep-alive; ignored
+type inMsg struct {
+	Type   string            `json:"type"`
+	ID     int64             `json:"id"`
+	V      int64             `json:"v"`
+	Change *sessions.Change  `json:"change,omitempty"`
+	Form   string            `json:"form,omitempty"`
+	Fields map[string]string `json:"fields,omitempty"`
+}
+
+// conn is one page's websocket. One goroutine reads, one writes, one
+// applies changes; the room's broadcaster only queues.
+type conn struct {
+	s     *Server
+	ws    *websocket.Conn
+	sid   string
+	token string
+	cap   sessions.Capability
+	send  chan []byte
+
+	mu      sync.Mutex
+	ops     []inMsg // pending changes; a drag replaces the pending drag of its marker
+	wake    chan struct{}
+	closed  bool
+	closeMu sync.Once
+	done    chan struct{}
+	reason  string
+}
+
+func (s *Server) upgrader() *websocket.Upgrader {
+	return &websocket.Upgrader{
+		ReadBufferSize:  4096,
+		WriteBufferSize: 16384,
+		// The page must come from the host it talks to.
+		CheckOrigin: func(r *http.Request) bool {
+			o := r.Header.Get("Origin")
+			if o == "" {
+				return true // not a browser
+			}
+			u, err := url.Parse(o)
+			return err == nil && strings.EqualFold(u.Host, r.Host)
+		},
+	}
+}
+
+func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
+	a := accessFrom(r.Context())
+	ws, err := s.upgrader().Upgrade(w, r, nil)
+	if err != nil {
+		return // the upgrader has answered
+	}
+	c := &conn{s: s, ws: ws, sid: a.SessionID, token: a.Token, cap: a.Cap, send: make(chan []byte, sendQueue), wake: make(chan struct{}, 1), done: make(chan struct{})}
+	rm, err := s.join(c)
+	if err != nil {
+		ws.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(websocket.CloseGoingAway, "server shutting down"), time.Now().Add(time.Second))
+		ws.Close()
+		return
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	go c.writer()
+	go c.applier(ctx)
+	c.reader()
+	cancel()
+	s.leave(rm, c)
+	c.close("")
+}
+
+// queue hands an encoded message to the writer. A page that does not keep
+// up is closed; it reconnects and catches up from its version.
+func (c *conn) queue(b []byte) {
+	select {
+	case c.send <- b:
+	default:
+		c.close("too slow; reload")
+	}
+}
+
+func (c *conn) reply(m outMsg) {
+	b, _ := json.Marshal(m)
+	c.queue(b)
+}
+
+func (c *conn) close(reason string) {
+	c.closeMu.Do(func() {
+		c.mu.Lock()
+		c.closed = true
+		c.reason = reason
+		c.mu.Unlock()
+		close(c.done)
+	})
+}
+
+func (c *conn) writer() {
+	t := time.NewTicker(pingPeriod)
+	defer func() {
+		t.Stop()
+		c.ws.Close()
+	}()
+	for {
+		select {
+		case b := <-c.send:
+			c.ws.SetWriteDeadline(time.Now().Add(writeWait))
+			if err := c.ws.WriteMessage(websocket.TextMessage, b); err != nil {
+				c.close("")
+				return
+			}
+		case <-t.C:
+			c.ws.SetWriteDeadline(time.Now().Add(writeWait))
+			if err := c.ws.WriteMessage(websocket.PingMessage, nil); err != nil {
+				c.close("")
+				return
+			}
+		case <-c.done:
+			c.mu.Lock()
+			reason := c.reason
+			c.mu.Unlock()
+			code := websocket.CloseNormalClosure
+			if reason != "" {
+				code = websocket.CloseGoingAway
+			}
+			c.ws.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, reason), time.Now().Add(time.Second))
+			return
+		}
+	}
+}
+
+// reader decodes messages, refuses what the link does not allow, answers
+// hellos and queues changes for the applier, at most MsgPerSecond on
+// average.
+func (c *conn) reader() {
+	c.ws.SetReadLimit(maxMessageSize)
+	c.ws.SetReadDeadline(time.Now().Add(pongWait))
+	c.ws.SetPongHandler(func(string) error { c.ws.SetReadDeadline(time.Now().Add(pongWait)); return nil })
+	bucket := newBucket(c.s.cfg.MsgPerSecond, c.s.cfg.MsgBurst)
+	for {
+		_, data, err := c.ws.ReadMessage()
+		if err != nil {
+			return
+		}
+		c.ws.SetReadDeadline(time.Now().Add(pongWait))
+		var m inMsg
+		if err := json.Unmarshal(data, &m); err != nil {
+			c.reply(outMsg{Type: "error", Msg: "the message is not JSON of the expected shape: " + err.Error()})
+			continue
+		}
+		if !bucket.take(time.Now()) {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
+			continue
+		}
+		switch m.Type {
+		case "ping":
+		case "hello":
+			c.catchUp(m.V)
+		case "change", "form":
+			if c.cap != sessions.Edit {
+				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "this is a view-only link: changes are refused"})
+				continue
+			}
+			if m.Type == "change" && m.Change == nil {
+				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "a change message needs a \"change\" object"})
+				continue
+			}
+			if !c.push(m) {
+				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many changes waiting: slow down"})
+			}
+		default:
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + strconvQuote(m.Type)})
+		}
+	}
+}
+
+func strconvQuote(s string) string {
+	b, _ := json.Marshal(s)
+	return string(b)
+}
+
+// push queues m. A marker drag replaces the drag of the same marker still
+// waiting, so the server never holds more than the latest drag per marker.
+func (c *conn) push(m inMsg) bool {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if isDrag(m) {
+		for i := range c.ops {
+			if isDrag(c.ops[i]) && c.ops[i].Change.MarkerID == m.Change.MarkerID {
+				c.ops[i] = m
+				return true
+			}
+		}
+	}
+	if len(c.ops) >= opQueue {
+		return false
+	}
+	c.ops = append(c.ops, m)
+	select {
+	case c.wake <- struct{}{}:
+	default:
+	}
+	return true
+}
+
+func isDrag(m inMsg) bool {
+	return m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove
+}
+
+func (c *conn) pop() (inMsg, bool) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if len(c.ops) == 0 {
+		return inMsg{}, false
+	}
+	m := c.ops[0]
+	c.ops = c.ops[1:]
+	return m, true
+}
+
+// applier applies queued changes in order; the acknowledgement carries the
+// committed version, the update reaches every page through the room.
+func (c *conn) applier(ctx context.Context) {
+	for {
+		select {
+		case <-c.wake:
+		case <-c.done:
+			return
+		case <-ctx.Done():
+			return
+		}
+		for {
+			m, ok := c.pop()
+			if !ok {
+				break
+			}
+			c.apply(ctx, m)
+		}
+	}
+}
+
+func (c *conn) apply(ctx context.Context, m inMsg) {
+	var ch sessions.Change
+	if m.Type == "form" {
+		var err error
+		ch, err = formChange(m.Form, m.Fields)
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	} else {
+		ch = *m.Change
+		ch.Raw, ch.Sweep = nil, nil
+		if ch.Op == sessions.OpSweepAdd {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "sweeps are added by uploading a file"})
+			return
+		}
+	}
+	ev, err := c.s.store.ApplyAs(ctx, c.cap, c.sid, ch)
+	if err != nil {
+		status, msg := errorStatus(err)
+		if status == http.StatusInternalServerError {
+			c.s.log.Error("apply", "op", ch.Op, "err", err)
+		}
+		c.reply(outMsg{Type: "error", ID: m.ID, Msg: msg})
+		return
+	}
+	c.reply(outMsg{Type: "ack", ID: m.ID, V: ev.Version})
+}
+
+// catchUp sends a full update when the page's version is not the session's.
+func (c *conn) catchUp(v int64) {
+	cu, err := c.s.store.Since(context.Background(), c.sid, v)
+	if err != nil {
+		if !errors.Is(err, sessions.ErrNotFound) {
+			c.s.log.Error("catch up", "err", err)
+		}
+		c.reply(outMsg{Type: "reload"})
+		return
+	}
+	if cu.Version == v {
+		return
+	}
+	sc := c.s.scene(c.sid, cu.State)
+	c.reply(outMsg{Type: "update", V: cu.Version, Op: "catchup", Frags: c.s.fullFrags(sc, access{SessionID: c.sid, Cap: c.cap, Token: c.token}, cu.Version)})
+}
+
+// bucket is a token bucket: rate tokens per second up to burst.
+type bucket struct {
+	rate, burst, tokens float64
+	last                time.Time
+}
+
+func newBucket(rate, burst float64) *bucket { return &bucket{rate: rate, burst: burst, tokens: burst} }
+
+func (b *bucket) take(now time.Time) bool {
+	if !b.last.IsZero() {
+		b.tokens = min(b.burst, b.tokens+now.Sub(b.last).Seconds()*b.rate)
+	}
+	b.last = now
+	if b.tokens < 1 {
+		return false
+	}
+	b.tokens--
+	return true
+}

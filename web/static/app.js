@@ -1,0 +1,359 @@
+// matchbench page module: pointer and keyboard input become websocket
+// messages; the server answers with drawn fragments that replace nodes in
+// place. No framework, no build step; all drawing and maths are on the
+// server.
+
+const body = document.body;
+const token = body.dataset.token;
+const canEdit = body.dataset.canEdit === "true";
+let version = Number(body.dataset.version || 0);
+let ws = null;
+let nextID = 1;
+let retryMs = 500;
+let selectedMarker = null;
+
+const SVGNS = "http://www.w3.org/2000/svg";
+
+function $(sel, root = document) { return root.querySelector(sel); }
+
+function setStatus(text, cls) {
+	const el = $("#live-status");
+	if (!el) return;
+	el.textContent = text;
+	el.className = "live " + (cls || "");
+}
+
+function notice(text) {
+	const el = $("#notice");
+	if (!el) return;
+	el.textContent = text;
+	el.hidden = !text;
+	if (text) {
+		clearTimeout(notice.timer);
+		notice.timer = setTimeout(() => { el.hidden = true; }, 8000);
+	}
+}
+
+// ---- websocket ----
+
+function connect() {
+	if (!token) return;
+	const proto = location.protocol === "https:" ? "wss:" : "ws:";
+	ws = new WebSocket(`${proto}//${location.host}/s/${token}/ws`);
+	ws.addEventListener("open", () => {
+		retryMs = 500;
+		setStatus(canEdit ? "live · editing" : "live · watching", "on");
+		send({ type: "hello", v: version });
+	});
+	ws.addEventListener("message", (ev) => {
+		let msg;
+		try { msg = JSON.parse(ev.data); } catch { return; }
+		handle(msg);
+	});
+	ws.addEventListener("close", () => {
+		setStatus("reconnecting…", "off");
+		setTimeout(connect, retryMs);
+		retryMs = Math.min(retryMs * 2, 8000);
+	});
+}
+
+function send(msg) {
+	if (!ws || ws.readyState !== WebSocket.OPEN) return false;
+	if (msg.id === undefined) msg.id = nextID++;
+	if (msg.v === undefined) msg.v = version;
+	ws.send(JSON.stringify(msg));
+	return true;
+}
+
+function change(ch) { return send({ type: "change", change: ch }); }
+
+function handle(msg) {
+	switch (msg.type) {
+	case "update":
+		if (msg.frags) msg.frags.forEach(applyFrag);
+		if (typeof msg.v === "number") { version = msg.v; body.dataset.version = String(version); }
+		if (msg.anim) playAnimation(msg.anim);
+		restoreSelection();
+		break;
+	case "ack":
+		if (typeof msg.v === "number" && msg.v > version) { version = msg.v; body.dataset.version = String(version); }
+		break;
+	case "error":
+		notice(msg.msg || "the server refused the change");
+		break;
+	case "reload":
+		location.reload();
+		break;
+	}
+}
+
+// applyFrag replaces the element whose id is frag.id with frag.html. SVG
+// fragments are parsed as SVG so that they land in the SVG namespace.
+function applyFrag(frag) {
+	const old = document.getElementById(frag.id);
+	if (!old) return;
+	let node;
+	if (frag.svg) {
+		const doc = new DOMParser().parseFromString(`<svg xmlns="${SVGNS}">${frag.html}</svg>`, "image/svg+xml");
+		const el = doc.documentElement.firstElementChild;
+		if (!el) return;
+		node = document.importNode(el, true);
+	} else {
+		const t = document.createElement("template");
+		t.innerHTML = frag.html;
+		node = t.content.firstElementChild;
+		if (!node) return;
+	}
+	if (frag.inner) {
+		old.replaceChildren(...node.childNodes);
+	} else {
+		old.replaceWith(node);
+	}
+}
+
+// ---- animation of matching steps: frames of SVG for one layer ----
+
+function playAnimation(anim) {
+	if (!anim.frames || !anim.frames.length) return;
+	const ms = anim.ms || 600;
+	const t0 = performance.now();
+	const step = (now) => {
+		const i = Math.min(anim.frames.length - 1, Math.floor((now - t0) / ms * anim.frames.length));
+		applyFrag({ id: anim.id, html: anim.frames[i], svg: true });
+		if (i < anim.frames.length - 1) requestAnimationFrame(step);
+		else if (anim.final) applyFrag({ id: anim.id, html: anim.final, svg: true });
+	};
+	requestAnimationFrame(step);
+}
+
+// ---- chart interaction ----
+
+function chartSVG() { return $("#chart svg"); }
+
+function toGamma(svg, clientX, clientY) {
+	const pt = svg.createSVGPoint();
+	pt.x = clientX; pt.y = clientY;
+	const p = pt.matrixTransform(svg.getScreenCTM().inverse());
+	const k = Number(svg.dataset.gammaScale || svg.getAttribute("data-gamma-scale"));
+	return { re: p.x / k, im: -p.y / k };
+}
+
+function markerIDOf(el, prefix) {
+	const g = el.closest(`[id^="${prefix}"]`);
+	return g ? g.id.slice(prefix.length) : null;
+}
+
+function select(id) {
+	selectedMarker = id;
+	restoreSelection();
+}
+
+function restoreSelection() {
+	document.querySelectorAll("#readout-body tr[data-marker]").forEach((tr) => {
+		tr.classList.toggle("selected", tr.dataset.marker === selectedMarker);
+	});
+}
+
+// drag holds the state of one pointer drag of a marker.
+let drag = null;
+
+function startDrag(kind, id, ev, svg) {
+	drag = { kind, id, svg, gesture: `g${Date.now().toString(36)}${Math.random().toString(36).slice(2, 6)}`, pending: null, raf: 0 };
+	svg.setPointerCapture(ev.pointerId);
+	$("#chart")?.classList.toggle("dragging", kind === "chart");
+	ev.preventDefault();
+}
+
+function queueMove(ch) {
+	drag.pending = ch;
+	if (drag.raf) return;
+	drag.raf = requestAnimationFrame(() => {
+		if (!drag) return;
+		drag.raf = 0;
+		if (drag.pending) change(drag.pending);
+		drag.pending = null;
+	});
+}
+
+function endDrag() {
+	if (!drag) return;
+	if (drag.pending) change(drag.pending);
+	$("#chart")?.classList.remove("dragging");
+	drag = null;
+}
+
+document.addEventListener("pointerdown", (ev) => {
+	const svg = ev.target.closest("#chart svg");
+	if (svg) {
+		const mk = markerIDOf(ev.target, "mk-");
+		if (mk) {
+			select(mk);
+			if (canEdit) startDrag("chart", mk, ev, svg);
+			return;
+		}
+		const tr = ev.target.closest('[id^="trace-"]');
+		if (tr && canEdit) {
+			const [sweepId, port] = parseTraceID(tr.id.slice("trace-".length));
+			if (sweepId) change({ op: "marker.add", sweepId, port, gamma: toGamma(svg, ev.clientX, ev.clientY) });
+		}
+		return;
+	}
+	const psvg = ev.target.closest(".plot svg");
+	if (psvg && canEdit) {
+		const mk = markerIDOf(ev.target, psvg.dataset.idPrefix ? psvg.dataset.idPrefix + "pmk-" : "pmk-") || markerIDFromPlot(ev.target);
+		if (mk) { select(mk); startDrag("plot", mk, ev, psvg); }
+	}
+});
+
+function markerIDFromPlot(el) {
+	const g = el.closest('[id*="pmk-"]');
+	if (!g) return null;
+	return g.id.slice(g.id.indexOf("pmk-") + 4);
+}
+
+// Trace ids are "<sweepID>-p<port>" (see server/render.go).
+function parseTraceID(s) {
+	const m = /^(.*)-p(\d+)$/.exec(s);
+	return m ? [m[1], Number(m[2])] : [null, 0];
+}
+
+document.addEventListener("pointermove", (ev) => {
+	if (!drag) return;
+	if (drag.kind === "chart") {
+		queueMove({ op: "marker.move", markerId: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+	} else {
+		const f = plotFreq(drag.svg, ev.clientX, ev.clientY);
+		if (f > 0) queueMove({ op: "marker.move", markerId: drag.id, freqHz: f, gesture: drag.gesture });
+	}
+});
+document.addEventListener("pointerup", endDrag);
+document.addEventListener("pointercancel", endDrag);
+
+// plotFreq turns a pointer x on a plot into a frequency, from the plot's
+// data-x0/x1 (user units) and data-f0/f1 (Hz) attributes.
+function plotFreq(svg, clientX, clientY) {
+	const pt = svg.createSVGPoint();
+	pt.x = clientX; pt.y = clientY;
+	const p = pt.matrixTransform(svg.getScreenCTM().inverse());
+	const x0 = Number(svg.dataset.x0), x1 = Number(svg.dataset.x1);
+	const f0 = Number(svg.dataset.f0), f1 = Number(svg.dataset.f1);
+	if (!(x1 > x0) || !(f1 > f0)) return 0;
+	const t = Math.min(1, Math.max(0, (p.x - x0) / (x1 - x0)));
+	return f0 + t * (f1 - f0);
+}
+
+document.addEventListener("keydown", (ev) => {
+	if (!canEdit) return;
+	const tag = (ev.target.tagName || "").toLowerCase();
+	if (tag === "input" || tag === "select" || tag === "textarea") return;
+	if ((ev.ctrlKey || ev.metaKey) && ev.key.toLowerCase() === "z") {
+		change({ op: ev.shiftKey ? "redo" : "undo" });
+		ev.preventDefault();
+		return;
+	}
+	if (!selectedMarker) return;
+	if (ev.key === "ArrowRight" || ev.key === "ArrowLeft") {
+		const n = (ev.key === "ArrowRight" ? 1 : -1) * (ev.shiftKey ? 10 : 1);
+		change({ op: "marker.step", markerId: selectedMarker, steps: n });
+		ev.preventDefault();
+	}
+});
+
+// ---- buttons, inputs and forms ----
+
+document.addEventListener("click", (ev) => {
+	const row = ev.target.closest("#readout-body tr[data-marker]");
+	if (row) select(row.dataset.marker);
+	const b = ev.target.closest("button[data-action]");
+	if (!b || !canEdit) return;
+	const d = b.dataset;
+	switch (d.action) {
+	case "undo": change({ op: "undo" }); break;
+	case "redo": change({ op: "redo" }); break;
+	case "step": change({ op: "marker.step", markerId: d.marker, steps: Number(d.steps) }); break;
+	case "dip": change({ op: "marker.to_dip", markerId: d.marker }); break;
+	case "remove-marker": change({ op: "marker.remove", markerId: d.marker }); break;
+	case "remove-sweep": change({ op: "sweep.remove", sweepId: d.sweep }); break;
+	case "remove-band": change({ op: "band.remove", bandId: d.band }); break;
+	default: send({ type: "action", action: d.action, fields: { ...d } });
+	}
+});
+
+document.addEventListener("change", (ev) => {
+	const el = ev.target;
+	if (!canEdit || !el.dataset || !el.dataset.change) return;
+	const op = el.dataset.change;
+	const ch = { op, sweepId: el.dataset.sweep };
+	if (op === "sweep.visible") ch.visible = el.checked;
+	else if (op === "sweep.color") ch.color = el.value;
+	else if (op === "sweep.rename") ch.name = el.value;
+	change(ch);
+});
+
+document.addEventListener("submit", (ev) => {
+	const form = ev.target.closest("form[data-form]");
+	if (!form) return;
+	ev.preventDefault();
+	if (!canEdit) return;
+	const fields = {};
+	for (const el of form.elements) {
+		if (!el.name) continue;
+		fields[el.name] = el.type === "checkbox" ? String(el.checked) : el.value;
+	}
+	send({ type: "form", form: form.dataset.form, fields });
+});
+
+// ---- uploads ----
+
+async function upload(files) {
+	const list = $("#upload-errors");
+	if (list) list.replaceChildren();
+	for (const f of files) {
+		const fd = new FormData();
+		fd.append("file", f, f.name);
+		let text;
+		try {
+			const res = await fetch(`/s/${token}/upload`, { method: "POST", body: fd, headers: { Accept: "application/json" } });
+			const out = await res.json().catch(() => ({ error: `the server answered ${res.status}` }));
+			text = res.ok ? `${f.name}: added` : `${f.name}: ${out.error}`;
+			addLine(list, text, res.ok);
+		} catch (e) {
+			addLine(list, `${f.name}: ${e}`, false);
+		}
+	}
+}
+
+function addLine(list, text, ok) {
+	if (!list) return;
+	const li = document.createElement("li");
+	li.textContent = text;
+	if (ok) li.className = "ok";
+	li.dataset.testid = ok ? "upload-ok" : "upload-error";
+	list.append(li);
+}
+
+document.addEventListener("dragover", (ev) => {
+	const d = ev.target.closest && ev.target.closest("#drop");
+	if (!d) return;
+	ev.preventDefault();
+	d.classList.add("over");
+});
+document.addEventListener("dragleave", (ev) => {
+	const d = ev.target.closest && ev.target.closest("#drop");
+	if (d) d.classList.remove("over");
+});
+document.addEventListener("drop", (ev) => {
+	const d = ev.target.closest && ev.target.closest("#drop");
+	if (!d) return;
+	ev.preventDefault();
+	d.classList.remove("over");
+	if (ev.dataTransfer && ev.dataTransfer.files.length) upload(ev.dataTransfer.files);
+});
+document.addEventListener("change", (ev) => {
+	if (ev.target.id === "file-input" && ev.target.files.length) {
+		upload(ev.target.files);
+		ev.target.value = "";
+	}
+});
+
+connect();

@@ -1,0 +1,143 @@
+// Package web holds matchbench's pages and panels as templ components, and
+// the static assets (one stylesheet and one small hand-written JS module)
+// embedded with go:embed. Components take view models built by the server
+// and call no services; charts arrive as SVG text already drawn by chartsvg.
+package web
+
+import (
+	"embed"
+	"io/fs"
+)
+
+//go:embed static
+var static embed.FS
+
+// Static returns the static assets, rooted so that "app.js" is at the top.
+func Static() fs.FS {
+	sub, err := fs.Sub(static, "static")
+	if err != nil {
+		panic("web: " + err.Error())
+	}
+	return sub
+}
+
+// StartView is the start page.
+type StartView struct {
+	// Local is true for a visitor on the loopback address: only they see the
+	// list of sessions and may create one.
+	Local    bool
+	Sessions []SessionRow
+	Error    string
+	LAN      []string // addresses the server answers on, when it serves the LAN
+}
+
+// SessionRow is one session in the start page's list.
+type SessionRow struct {
+	Name     string
+	EditHref string
+	ViewHref string
+	Sweeps   int
+	Created  string
+	Version  int64
+}
+
+// SessionView is the session page.
+type SessionView struct {
+	ID      string
+	Name    string
+	Version int64
+	CanEdit bool
+	Token   string // the token in the page's address, used by the websocket
+	Share   ShareView
+	Chart   ChartView
+	Plots   []PlotView
+	Sweeps  []SweepRow
+	Markers []ReadoutRow
+	Bands   []BandRow
+	Options ChartOptions
+	// Upload limits shown beside the drop zone.
+	MaxUploadMB int
+}
+
+// ShareView holds the links a colleague can open.
+type ShareView struct {
+	EditLinks []string
+	ViewLinks []string
+	LAN       bool // the server listens beyond the loopback address
+}
+
+// ChartView is the drawn reflection chart.
+type ChartView struct {
+	SVG string // trusted: written by chartsvg from numbers
+}
+
+// PlotView is one drawn rectangular plot.
+type PlotView struct {
+	ID    string
+	Title string
+	SVG   string // trusted: written by chartsvg from numbers
+}
+
+// SweepRow is one sweep in the sweeps panel.
+type SweepRow struct {
+	ID       string
+	Name     string
+	FileName string
+	Color    string
+	Visible  bool
+	Summary  string // "1-port, 401 points, 700 MHz – 1.1 GHz"
+	RawHref  string
+}
+
+// ReadoutRow is one marker's readout.
+type ReadoutRow struct {
+	MarkerID string
+	Num      int
+	Label    string
+	Trace    string // "Fieldnode · S11"
+	Color    string
+	Freq     string
+	FreqHz   float64
+	Z        string
+	Gamma    string
+	RL       string
+	VSWR     string
+	ML       string
+	Q        string
+	Equiv    string
+	Warning  string
+	Selected bool
+}
+
+// BandRow is one band of interest.
+type BandRow struct {
+	ID    string
+	Name  string
+	Lo    string
+	Hi    string
+	LoHz  float64
+	HiHz  float64
+	MinRL string
+	// Worst is the worst return loss of each visible sweep in the band,
+	// with a pass/fail mark against the requirement.
+	Worst []BandResult
+}
+
+// BandResult is one sweep's figure in one band.
+type BandResult struct {
+	Sweep string
+	Color string
+	Worst string
+	Pass  bool
+	Has   bool // the requirement is set and the sweep covers the band
+}
+
+// ChartOptions are the chart settings as the settings panel shows them.
+type ChartOptions struct {
+	ImpedanceGrid, AdmittanceGrid bool
+	Zoom                          string
+	VSWRCircle                    string
+	ReturnLossCircleDB            string
+	QArcs                         string
+	AngleScale, WavelengthScale   bool
+}
