@@ -195,7 +195,9 @@ func polyPart(sw *writer, l layout, pts []complex128, f float64) complex128 {
 	px, py := tenths(p.x), tenths(p.y)
 	sw.b('M')
 	sw.xy(px, py)
-	sw.b('l')
+	if len(pts) > 1 {
+		sw.b('l')
+	}
 	end := pts[0]
 	for i := 1; i < len(pts); i++ {
 		seg := cmplx.Abs(pts[i] - pts[i-1])

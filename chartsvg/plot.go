@@ -568,21 +568,27 @@ func columnThin(pts []pt) int {
 	return out
 }
 
-// emitKept appends the kept points as one subpath in relative form.
+// emitKept appends the kept points as one subpath: "M x y", then "l" and
+// the moves from each point to the next, leaving out moves that round to
+// nothing.
 func emitKept(sw *writer, pts []pt, keep []bool) {
-	first := true
+	first, rel := true, false
 	var px, py int
 	for i, q := range pts {
 		if !keep[i] {
 			continue
 		}
 		x, y := tenths(q.x), tenths(q.y)
-		if first {
+		switch {
+		case first:
 			sw.b('M')
 			sw.xy(x, y)
-			sw.b('l')
 			first = false
-		} else if x != px || y != py {
+		case x != px || y != py:
+			if !rel {
+				sw.b('l')
+				rel = true
+			}
 			sw.pair(x-px, y-py)
 		}
 		px, py = x, y

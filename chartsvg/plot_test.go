@@ -243,3 +243,31 @@ func TestPlotRXOnOneAxis(t *testing.T) {
 		t.Errorf("y range [%g, %g] does not hold R and X in [%g, %g]", q.YMin, q.YMax, lo, hi)
 	}
 }
+
+// TestPlotLayersMatchRender checks that the layers of a resolved plot,
+// written alone, are byte for byte those of the whole plot.
+func TestPlotLayersMatchRender(t *testing.T) {
+	t.Parallel()
+	series := rlSeries(demoTraces(3001))
+	bands := []Band{{Name: "ISM", LoHz: 2.4e9, HiHz: 2.4835e9, Limit: 10, HasLimit: true}}
+	markers := []PlotMarker{{ID: "m1", Num: 1, FreqHz: 2.45e9}, {ID: "m2", Num: 2, FreqHz: 2.2e9}}
+	p := Plot{Title: "Return loss", YLabel: "Return loss", YUnit: "dB"}
+	var whole bytes.Buffer
+	if err := p.Render(&whole, series, bands, markers); err != nil {
+		t.Fatal(err)
+	}
+	q := p.Resolve(series, bands)
+	for name, f := range map[string]func(*bytes.Buffer) error{
+		"series":  func(b *bytes.Buffer) error { return q.RenderSeries(b, series) },
+		"markers": func(b *bytes.Buffer) error { return q.RenderMarkers(b, markers, series) },
+		"marker":  func(b *bytes.Buffer) error { return q.RenderMarker(b, markers[1], series) },
+	} {
+		var b bytes.Buffer
+		if err := f(&b); err != nil {
+			t.Fatal(err)
+		}
+		if b.Len() < 40 || !bytes.Contains(whole.Bytes(), b.Bytes()) {
+			t.Errorf("layer %s (%d bytes) is not part of the whole plot", name, b.Len())
+		}
+	}
+}

@@ -132,23 +132,7 @@ func (c *Chart) run(sw *writer, t *Trace, pts []pt, keep []bool, a, b int) {
 			k[i] = true
 		}
 	}
-	first := true
-	var px, py int
-	for i, q := range p {
-		if !k[i] {
-			continue
-		}
-		x, y := tenths(q.x), tenths(q.y)
-		if first {
-			sw.b('M')
-			sw.xy(x, y)
-			sw.b('l')
-			first = false
-		} else if x != px || y != py {
-			sw.pair(x-px, y-py)
-		}
-		px, py = x, y
-	}
+	emitKept(sw, p, k)
 }
 
 // nearest returns the index of the value of the increasing slice f nearest v.
