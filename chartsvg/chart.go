@@ -193,12 +193,7 @@ func (c *Chart) RenderLegend(w io.Writer, traces []Trace) error {
 }
 
 // id appends ` id="PREFIXname"`.
-func (c *Chart) id(sw *writer, name string) {
-	sw.s(` id="`)
-	sw.text(c.IDPrefix)
-	sw.text(name)
-	sw.b('"')
-}
+func (c *Chart) id(sw *writer, name string) { c.id2(sw, name, "") }
 
 // id2 appends ` id="PREFIXnamesuffix"`.
 func (c *Chart) id2(sw *writer, name, suffix string) {

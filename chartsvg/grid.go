@@ -277,13 +277,13 @@ func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
 				continue
 			}
 			placed = append(placed, q)
-			c.textAt(sw, q, 0, formatValue(g.v))
+			textAt(sw, q, 0, formatValue(g.v))
 		}
 	}
 	if l.zoom == 1 {
 		// The short-circuit end of the real axis for impedance, the open
 		// end for admittance: r = 0 or g = 0.
-		c.textAt(sw, pt{-sign * (l.rpx - 9), dy}, 0, "0")
+		textAt(sw, pt{-sign * (l.rpx - 9), dy}, 0, "0")
 	}
 	both := c.ImpedanceGrid && c.AdmittanceGrid
 	for pass := 0; pass < 2; pass++ {
@@ -315,7 +315,7 @@ func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
 				if x < 0 {
 					s = "−j" + formatValue(g.v)
 				}
-				c.textAt(sw, q, tangentDeg(th), s)
+				textAt(sw, q, tangentDeg(th), s)
 			}
 		}
 	}
@@ -360,7 +360,7 @@ func tangentDeg(th float64) float64 {
 
 // textAt writes a <text> centred on p (vertically by a .35em shift),
 // rotated by deg about p.
-func (c *Chart) textAt(sw *writer, p pt, deg float64, s string) {
+func textAt(sw *writer, p pt, deg float64, s string) {
 	if s == "" {
 		return
 	}

@@ -67,7 +67,7 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 		if rho := vswrRadius(s); s > 1 && rho <= l.zoom {
 			p := pt{rho * l.k * math.Cos(th), -rho * l.k * math.Sin(th)}
 			sw.s(`<g fill="` + colOverlay + `">`)
-			c.textAt(sw, p, tangentDeg(th), "VSWR "+strconv.FormatFloat(s, 'g', 3, 64))
+			textAt(sw, p, tangentDeg(th), "VSWR "+strconv.FormatFloat(s, 'g', 3, 64))
 			sw.s(`</g>`)
 		}
 	}
@@ -76,7 +76,7 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 		if rho := rlRadius(db); db > 0 && rho <= l.zoom {
 			p := pt{rho * l.k * math.Cos(th), -rho * l.k * math.Sin(th)}
 			sw.s(`<g fill="` + colOverlay + `">`)
-			c.textAt(sw, p, tangentDeg(th), "RL "+strconv.FormatFloat(db, 'g', 3, 64)+" dB")
+			textAt(sw, p, tangentDeg(th), "RL "+strconv.FormatFloat(db, 'g', 3, 64)+" dB")
 			sw.s(`</g>`)
 		}
 	}
@@ -90,7 +90,7 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 			continue
 		}
 		sw.s(`<g fill="` + colQ + `">`)
-		c.textAt(sw, pt{14, -top*l.k - 7}, 0, "Q "+strconv.FormatFloat(q, 'g', 3, 64))
+		textAt(sw, pt{14, -top*l.k - 7}, 0, "Q "+strconv.FormatFloat(q, 'g', 3, 64))
 		sw.s(`</g>`)
 	}
 	sw.s(`</g>`)
@@ -119,7 +119,7 @@ func (c *Chart) angleScale(sw *writer, l layout) {
 		if d < 0 {
 			s = "−" + strconv.Itoa(-d) + "°"
 		}
-		c.textAt(sw, pt{rr * math.Cos(th), -rr * math.Sin(th)}, tangentDeg(th), s)
+		textAt(sw, pt{rr * math.Cos(th), -rr * math.Sin(th)}, tangentDeg(th), s)
 	}
 	sw.s(`</g>`)
 }
@@ -151,7 +151,7 @@ func (c *Chart) wavelengthScale(sw *writer, l layout) {
 		th := (180 - 7.2*float64(i)) * math.Pi / 180
 		rr := r0 + 12
 		s := strconv.FormatFloat(float64(i)/100, 'f', -1, 64)
-		c.textAt(sw, pt{rr * math.Cos(th), -rr * math.Sin(th)}, tangentDeg(th), s)
+		textAt(sw, pt{rr * math.Cos(th), -rr * math.Sin(th)}, tangentDeg(th), s)
 	}
 	sw.s(`</g>`)
 }
