@@ -2,17 +2,25 @@ package sessions
 
 import (
 	"context"
+	"crypto/cipher"
 	"database/sql"
 	"fmt"
 )
+
+// migration is one step of the schema: SQL, then optionally Go code that
+// moves data, in the same transaction.
+type migration struct {
+	sql  string
+	post func(ctx context.Context, tx *sql.Tx, aead cipher.AEAD) error
+}
 
 // migrations are the schema's steps in order. Migration i (from zero) takes
 // the database from PRAGMA user_version i to i+1; each runs in one
 // transaction together with its user_version bump. Never edit a migration
 // that has shipped: append a new one.
-var migrations = []string{
+var migrations = []migration{
 	// 1: sessions, their sweeps and their undo history.
-	`
+	{sql: `
 CREATE TABLE sessions (
 	id         TEXT PRIMARY KEY,
 	name       TEXT NOT NULL,
@@ -56,7 +64,54 @@ CREATE TABLE history (
 	sweep_ids  TEXT NOT NULL,
 	PRIMARY KEY (session_id, step)
 ) STRICT;
-`,
+`},
+
+	// 2: the tokens leave the database in clear: a copy sealed under the
+	// data folder's key (see Store.Tokens) replaces edit_token and
+	// view_token, which migration 1 created.
+	{sql: `ALTER TABLE sessions ADD COLUMN tokens_sealed BLOB;`, post: sealClearTokens},
+}
+
+// sealClearTokens seals the tokens kept in clear by migration 1 and drops
+// their columns.
+func sealClearTokens(ctx context.Context, tx *sql.Tx, aead cipher.AEAD) error {
+	var n int
+	if err := tx.QueryRowContext(ctx,
+		`SELECT count(*) FROM pragma_table_info('sessions') WHERE name IN ('edit_token', 'view_token')`).Scan(&n); err != nil {
+		return err
+	}
+	if n == 0 {
+		return nil
+	}
+	rows, err := tx.QueryContext(ctx, `SELECT id, edit_token, view_token FROM sessions`)
+	if err != nil {
+		return err
+	}
+	type row struct{ id, edit, view string }
+	var all []row
+	for rows.Next() {
+		var r row
+		if err := rows.Scan(&r.id, &r.edit, &r.view); err != nil {
+			rows.Close()
+			return err
+		}
+		all = append(all, r)
+	}
+	rows.Close()
+	if err := rows.Err(); err != nil {
+		return err
+	}
+	for _, r := range all {
+		sealed, err := sealTokens(aead, r.id, r.edit, r.view)
+		if err != nil {
+			return fmt.Errorf("session %q: %w", r.id, err)
+		}
+		if _, err := tx.ExecContext(ctx, `UPDATE sessions SET tokens_sealed = ? WHERE id = ?`, sealed, r.id); err != nil {
+			return err
+		}
+	}
+	_, err = tx.ExecContext(ctx, `ALTER TABLE sessions DROP COLUMN edit_token; ALTER TABLE sessions DROP COLUMN view_token;`)
+	return err
 }
 
 // SchemaVersion is the schema version this build writes.
@@ -64,16 +119,16 @@ var SchemaVersion = len(migrations)
 
 // migrate brings db up to SchemaVersion. A database from a newer build is
 // refused rather than guessed at.
-func migrate(ctx context.Context, db *sql.DB) error {
+func migrate(ctx context.Context, db *sql.DB, aead cipher.AEAD) error {
 	for {
-		done, err := migrateOne(ctx, db)
+		done, err := migrateOne(ctx, db, aead)
 		if err != nil || done {
 			return err
 		}
 	}
 }
 
-func migrateOne(ctx context.Context, db *sql.DB) (done bool, err error) {
+func migrateOne(ctx context.Context, db *sql.DB, aead cipher.AEAD) (done bool, err error) {
 	tx, err := db.BeginTx(ctx, nil)
 	if err != nil {
 		return false, err
@@ -89,8 +144,14 @@ func migrateOne(ctx context.Context, db *sql.DB) (done bool, err error) {
 	case v > len(migrations) || v < 0:
 		return false, fmt.Errorf("sessions: the database has schema version %d, newer than this program's %d; use a newer matchbench", v, len(migrations))
 	}
-	if _, err := tx.ExecContext(ctx, migrations[v]); err != nil {
+	m := migrations[v]
+	if _, err := tx.ExecContext(ctx, m.sql); err != nil {
 		return false, fmt.Errorf("sessions: schema migration %d: %w", v+1, err)
+	}
+	if m.post != nil {
+		if err := m.post(ctx, tx, aead); err != nil {
+			return false, fmt.Errorf("sessions: schema migration %d: %w", v+1, err)
+		}
 	}
 	// PRAGMA takes no parameters; v+1 is a small integer of ours.
 	if _, err := tx.ExecContext(ctx, fmt.Sprintf(`PRAGMA user_version = %d`, v+1)); err != nil {

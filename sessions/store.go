@@ -2,6 +2,7 @@ package sessions
 
 import (
 	"context"
+	"crypto/cipher"
 	"database/sql"
 	"encoding/json"
 	"errors"
@@ -42,8 +43,9 @@ type Store struct {
 	dir  string
 	lim  Limits
 	lock *os.File
-	wdb  *sql.DB // one connection: every write
-	rdb  *sql.DB // reads
+	aead cipher.AEAD // seals the stored copy of the tokens
+	wdb  *sql.DB     // one connection: every write
+	rdb  *sql.DB     // reads
 
 	mu     sync.Mutex // guards closed and hubs
 	closed bool
@@ -97,13 +99,16 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		unlockDir(lock)
 		return nil, err
 	}
+	if st.aead, err = loadKey(dir); err != nil {
+		return fail(err)
+	}
 	path := filepath.Join(dir, DBFile)
 	if st.wdb, err = sql.Open("sqlite", dsn(path, syncMode, true)); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
 	st.wdb.SetMaxOpenConns(1)
 	st.wdb.SetConnMaxIdleTime(0)
-	if err := migrate(context.Background(), st.wdb); err != nil {
+	if err := migrate(context.Background(), st.wdb, st.aead); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
 	if st.rdb, err = sql.Open("sqlite", dsn(path, syncMode, false)); err != nil {
@@ -181,8 +186,7 @@ func (st *Store) dbErr(doing string, err error) error {
 }
 
 // Create makes a new session with a fresh id and fresh tokens, and returns
-// it with its tokens, the only time they are available in clear (the store
-// keeps their SHA-256 hashes). An empty name becomes "Untitled session".
+// it with its tokens. An empty name becomes "Untitled session".
 func (st *Store) Create(ctx context.Context, name string) (*Session, error) {
 	name, err := text("create", "name", name, false, st.lim.TextRunes)
 	if err != nil {
@@ -208,9 +212,13 @@ func (st *Store) Create(ctx context.Context, name string) (*Session, error) {
 		if s.ID, err = newID(6); err != nil {
 			return nil, err
 		}
+		var sealed []byte
+		if sealed, err = sealTokens(st.aead, s.ID, edit, view); err != nil {
+			return nil, err
+		}
 		_, err = st.wdb.ExecContext(ctx,
-			`INSERT INTO sessions (id, name, created_at, version, state, edit_hash, view_hash, edit_token, view_token) VALUES (?, ?, ?, 0, ?, ?, ?, ?, ?)`,
-			s.ID, name, s.CreatedAt.UnixMilli(), string(js), tokenHash(edit), tokenHash(view), edit, view)
+			`INSERT INTO sessions (id, name, created_at, version, state, edit_hash, view_hash, tokens_sealed) VALUES (?, ?, ?, 0, ?, ?, ?, ?)`,
+			s.ID, name, s.CreatedAt.UnixMilli(), string(js), tokenHash(edit), tokenHash(view), sealed)
 		if err == nil {
 			return s, nil
 		}

@@ -124,8 +124,12 @@ func (st *Store) ReissueTokens(ctx context.Context, id string) (*Session, error)
 	if err != nil {
 		return nil, err
 	}
-	if _, err := st.wdb.ExecContext(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ?, edit_token = ?, view_token = ? WHERE id = ?`,
-		tokenHash(edit), tokenHash(view), edit, view, id); err != nil {
+	sealed, err := sealTokens(st.aead, id, edit, view)
+	if err != nil {
+		return nil, err
+	}
+	if _, err := st.wdb.ExecContext(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ?, tokens_sealed = ? WHERE id = ?`,
+		tokenHash(edit), tokenHash(view), sealed, id); err != nil {
 		return nil, st.dbErr("re-issuing tokens", err)
 	}
 	h.closeSubs(ErrTokensReissued)
@@ -163,16 +167,22 @@ func FromContext(ctx context.Context) (Access, bool) {
 
 // Tokens returns the current edit and view tokens of session id, for the
 // bench computer's own user to open the session and show its share links.
-// The tokens are kept in the database file beside their hashes: whoever
-// can read that file can read every session anyway. Tokens are never
-// written to a log. An unknown id gives ErrNotFound.
+// The database keeps only the tokens' hashes and a copy sealed under the
+// data folder's key ([KeyFile]), from which they are read here. Tokens are
+// never written to a log. An unknown id gives ErrNotFound; a copy that
+// cannot be unsealed (the key file was replaced) gives an error wrapping
+// ErrCorrupt, and re-issuing the tokens mends it.
 func (st *Store) Tokens(ctx context.Context, id string) (edit, view string, err error) {
-	err = st.rdb.QueryRowContext(ctx, `SELECT edit_token, view_token FROM sessions WHERE id = ?`, id).Scan(&edit, &view)
+	if err := st.open(); err != nil {
+		return "", "", err
+	}
+	var sealed []byte
+	err = st.rdb.QueryRowContext(ctx, `SELECT tokens_sealed FROM sessions WHERE id = ?`, id).Scan(&sealed)
 	if errors.Is(err, sql.ErrNoRows) {
 		return "", "", ErrNotFound
 	}
 	if err != nil {
 		return "", "", st.dbErr("reading tokens", err)
 	}
-	return edit, view, nil
+	return st.openTokens(id, sealed)
 }
