@@ -300,10 +300,11 @@ func (sc *scene) readoutRows() []web.ReadoutRow {
 			z = fmt.Sprintf("%.2f %s j%.2f Ω", real(ro.Z), sign, math.Abs(imag(ro.Z)))
 		}
 		eq := "—"
-		switch ro.Equiv.Kind {
-		case rfmath.KindL:
+		switch kind := ro.Equiv.Kind; {
+		case ro.Q < 0.01: // X is noise around a resonance: no part to name
+		case kind == rfmath.KindL:
 			eq = units.Format(ro.Equiv.Value, "H", 4)
-		case rfmath.KindC:
+		case kind == rfmath.KindC:
 			eq = units.Format(ro.Equiv.Value, "F", 4)
 		}
 		row := web.ReadoutRow{

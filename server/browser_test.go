@@ -1,0 +1,213 @@
+package server
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/input"
+	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
+
+	"matchbench/rfmath"
+)
+
+// chromiumPath is where Debian's chromium package puts the browser.
+const chromiumPath = "/usr/bin/chromium"
+
+// needBrowser skips the test when Chromium is missing, unless
+// MATCHBENCH_REQUIRE_BROWSER=1 (as CI sets it), when it fails instead.
+func needBrowser(t *testing.T) {
+	t.Helper()
+	required := os.Getenv("MATCHBENCH_REQUIRE_BROWSER") == "1"
+	if _, err := os.Stat(chromiumPath); err != nil {
+		if required {
+			t.Fatalf("MATCHBENCH_REQUIRE_BROWSER=1 but %s is missing: %v", chromiumPath, err)
+		}
+		t.Skipf("skipping the real-browser test: %s not found (apt-get install chromium fonts-liberation)", chromiumPath)
+	}
+	if testing.Short() && !required {
+		t.Skip("skipping the real-browser test in -short mode")
+	}
+}
+
+// browser starts headless Chromium with a fresh profile. The first action
+// runs without a timeout, which would kill the browser.
+func browser(t *testing.T) context.Context {
+	t.Helper()
+	opts := append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(chromiumPath),
+		chromedp.Flag("no-sandbox", true),
+		chromedp.Flag("disable-gpu", true),
+		chromedp.Flag("disable-quic", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-dev-shm-usage", true),
+		chromedp.UserDataDir(t.TempDir()),
+	)
+	allocCtx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
+	t.Cleanup(cancelAlloc)
+	ctx, cancel := chromedp.NewContext(allocCtx)
+	t.Cleanup(cancel)
+	if err := chromedp.Do(ctx); err != nil {
+		t.Fatalf("starting Chromium: %v", err)
+	}
+	return ctx
+}
+
+// shotDir is where screenshots go: $MATCHBENCH_SHOTS when set (to look at
+// them), else a temporary folder.
+func shotDir(t *testing.T) string {
+	if d := os.Getenv("MATCHBENCH_SHOTS"); d != "" {
+		os.MkdirAll(d, 0o755)
+		return d
+	}
+	return t.TempDir()
+}
+
+func shot(t *testing.T, ctx context.Context, path string) {
+	t.Helper()
+	b, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
+	if err != nil {
+		t.Fatalf("screenshot: %v", err)
+	}
+	if len(b) < 10000 {
+		t.Errorf("screenshot %s is only %d bytes: blank page?", path, len(b))
+	}
+	os.WriteFile(path, b, 0o644)
+}
+
+const liveJS = `document.querySelector("#live-status") && document.querySelector("#live-status").classList.contains("on")`
+
+// screenOf returns the client coordinates of Γ on the chart.
+func screenOf(ctx context.Context, g complex128) ([]float64, error) {
+	return chromedp.Run(ctx, chromedp.Evaluate[[]float64](fmt.Sprintf(`(() => {
+		const svg = document.querySelector("#chart svg");
+		const k = Number(svg.dataset.gammaScale);
+		const p = svg.createSVGPoint();
+		p.x = k * %g; p.y = -k * %g;
+		const q = p.matrixTransform(svg.getScreenCTM());
+		return [q.x, q.y];
+	})()`, real(g), imag(g))))
+}
+
+func readoutFreq(ctx context.Context, mk string) (string, error) {
+	return chromedp.Run(ctx, chromedp.TextContent(chromedp.CSS(fmt.Sprintf(`#ro-%s [data-testid="ro-freq"]`, mk))))
+}
+
+// TestBrowserDragAndWatch loads a session in headless Chromium, drags a
+// marker along its trace with the mouse, checks the readout follows in the
+// editor and in a viewer's separate browser context, steps it with the
+// keyboard, and uploads a bad file to see the reader's error.
+func TestBrowserDragAndWatch(t *testing.T) {
+	needBrowser(t)
+	f := newFixture(t, 301)
+	dir := shotDir(t)
+	ctx := browser(t)
+	ectx, cancel := context.WithTimeout(ctx, 90*time.Second)
+	defer cancel()
+	if err := chromedp.Do(ectx,
+		chromedp.EmulateViewport(1400, 1000),
+		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.EditToken+"/"),
+		chromedp.Poll[chromedp.Void](liveJS),
+	); err != nil {
+		t.Fatal(err)
+	}
+	if got, err := readoutFreq(ectx, f.mk); err != nil || got != "150 MHz" {
+		t.Fatalf("readout before the drag: %q, %v", got, err)
+	}
+
+	// The viewer, in a browser context of its own.
+	vtab, vcancel := chromedp.NewContext(ctx, chromedp.WithNewBrowserContext())
+	defer vcancel()
+	vctx, vcancel2 := context.WithTimeout(vtab, 60*time.Second)
+	defer vcancel2()
+	if err := chromedp.Do(vctx,
+		chromedp.EmulateViewport(1400, 1000),
+		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.ViewToken+"/"),
+		chromedp.Poll[chromedp.Void](liveJS),
+	); err != nil {
+		t.Fatal(err)
+	}
+
+	// Drag along the trace from 150 MHz to f0 = 159.155 MHz (R-1), where the
+	// RLC is 5 Ω and Γ = −0.818182 (REFERENCE-CHECKS R-2).
+	gammaAt := func(fHz float64) complex128 {
+		w := 2 * math.Pi * fHz
+		return rfmath.GammaFromZ(complex(5, w*100e-9-1/(w*10e-12)), 50)
+	}
+	start, err := screenOf(ectx, gammaAt(150e6))
+	if err != nil {
+		t.Fatal(err)
+	}
+	acts := []chromedp.Action[chromedp.Void]{chromedp.MouseEvent(chromedp.MousePressed, start[0], start[1], chromedp.ButtonLeft)}
+	for i := 1; i <= 12; i++ {
+		fr := 150e6 + (159.1549e6-150e6)*float64(i)/12
+		p, err := screenOf(ectx, gammaAt(fr))
+		if err != nil {
+			t.Fatal(err)
+		}
+		acts = append(acts, chromedp.MouseEvent(chromedp.MouseMoved, p[0], p[1], chromedp.ButtonLeft), chromedp.Sleep(30*time.Millisecond))
+	}
+	end, _ := screenOf(ectx, gammaAt(159.1549e6))
+	acts = append(acts, chromedp.MouseEvent(chromedp.MouseReleased, end[0], end[1], chromedp.ButtonLeft))
+	if err := chromedp.Do(ectx, acts...); err != nil {
+		t.Fatal(err)
+	}
+	near := func(mhz string) string {
+		return fmt.Sprintf(`(() => { const e = document.querySelector('#ro-%s [data-testid="ro-freq"]'); return e && e.textContent.startsWith(%q); })()`, f.mk, mhz)
+	}
+	pctx, pcancel := context.WithTimeout(ectx, 10*time.Second)
+	defer pcancel()
+	if err := chromedp.Do(pctx, chromedp.Poll[chromedp.Void](near("159."))); err != nil {
+		got, _ := readoutFreq(ectx, f.mk)
+		t.Fatalf("editor readout after the drag is %q, want about 159.155 MHz: %v", got, err)
+	}
+	shot(t, ectx, filepath.Join(dir, "editor-after-drag.png"))
+	wctx, wcancel := context.WithTimeout(vctx, 10*time.Second)
+	defer wcancel()
+	if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](near("159."))); err != nil {
+		got, _ := readoutFreq(vctx, f.mk)
+		t.Fatalf("viewer readout is %q, want the editor's drag to show: %v", got, err)
+	}
+	shot(t, vctx, filepath.Join(dir, "viewer-after-drag.png"))
+	if n, err := chromedp.Run(vctx, chromedp.Evaluate[int](`document.querySelectorAll('#drop, [data-action="undo"]').length`)); err != nil || n != 0 {
+		t.Errorf("viewer page shows %d editing controls (%v)", n, err)
+	}
+
+	// The arrow key steps the selected marker to the next measured point:
+	// the grid is 0.5 MHz, so 159.155 MHz → 159.5 MHz.
+	before, _ := readoutFreq(ectx, f.mk)
+	if err := chromedp.Do(ectx, chromedp.KeyEvent(kb.ArrowRight)); err != nil {
+		t.Fatal(err)
+	}
+	kctx, kcancel := context.WithTimeout(ectx, 10*time.Second)
+	defer kcancel()
+	if err := chromedp.Do(kctx, chromedp.Poll[chromedp.Void](near("159.5 MHz"))); err != nil {
+		got, _ := readoutFreq(ectx, f.mk)
+		t.Errorf("after ArrowRight the readout is %q (was %q), want 159.5 MHz", got, before)
+	}
+
+	// A bad file: the reader's message with its line number appears.
+	bad := filepath.Join(t.TempDir(), "bad.s1p")
+	os.WriteFile(bad, []byte("! hand-made bad file\n# MHz S RI R 50\n100 0.1 0.2\n101 0.1\n"), 0o644)
+	uctx, ucancel := context.WithTimeout(ectx, 15*time.Second)
+	defer ucancel()
+	if err := chromedp.Do(uctx,
+		chromedp.SetUploadFiles(chromedp.CSS("#file-input"), []string{bad}),
+		chromedp.Poll[chromedp.Void](`document.querySelector("#upload-errors").textContent.includes("bad.s1p:4")`),
+	); err != nil {
+		txt, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS("#upload-errors")))
+		t.Fatalf("upload error shown: %q: %v", txt, err)
+	}
+	shot(t, ectx, filepath.Join(dir, "editor-bad-upload.png"))
+	txt, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS("#upload-errors")))
+	if !strings.Contains(txt, "bad.s1p:4") {
+		t.Errorf("upload errors %q", txt)
+	}
+	_ = input.MouseButtonLeft
+}
