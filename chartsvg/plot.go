@@ -221,6 +221,18 @@ func (p *Plot) Render(w io.Writer, series []Series, bands []Band, markers []Plot
 		title = q.YLabel
 	}
 	sw.attr("aria-label", title)
+	// The frequency axis for a page's pointer: x in user units from
+	// data-x0 to data-x1 spans data-f0 to data-f1 Hz, linearly.
+	sw.numAttr("data-x0", l.x0)
+	sw.numAttr("data-x1", l.x1)
+	sw.s(` data-f0="`)
+	sw.s(strconv.FormatFloat(l.xmin, 'g', 12, 64))
+	sw.s(`" data-f1="`)
+	sw.s(strconv.FormatFloat(l.xmax, 'g', 12, 64))
+	sw.b('"')
+	if q.IDPrefix != "" {
+		sw.attr("data-id-prefix", q.IDPrefix)
+	}
 	sw.s(`><title>`)
 	sw.text(title)
 	sw.s(`</title><rect width="`)
