@@ -4,6 +4,7 @@ import (
 	"math"
 	"path"
 	"slices"
+	"sort"
 	"strconv"
 	"strings"
 	"unicode"
@@ -445,20 +446,21 @@ func stepIndex(sw *rfmath.Sweep, fHz float64, n int) int {
 	return min(max(j, 0), last)
 }
 
-// deepestDip returns the index of the point of least |Γ| with lo ≤ f ≤ hi,
-// the first of equals, or −1 when no point lies in the range.
+// deepestDip returns the index of the measured point of highest return
+// loss with lo ≤ f ≤ hi (by [rfmath.DeepestDip] over those points), or −1
+// when no point lies in the range. The measured point, not the refined
+// frequency, is used so that the marker's readout shows that return loss.
 func deepestDip(freq []float64, gamma []complex128, lo, hi float64) int {
-	best, bestMag := -1, math.Inf(1)
-	for k, f := range freq {
-		if f < lo || f > hi {
-			continue
-		}
-		g := gamma[k]
-		if m := real(g)*real(g) + imag(g)*imag(g); m < bestMag {
-			best, bestMag = k, m
-		}
+	i0 := sort.SearchFloat64s(freq, lo)
+	i1 := sort.Search(len(freq), func(i int) bool { return freq[i] > hi })
+	if i0 >= i1 {
+		return -1
 	}
-	return best
+	d := rfmath.DeepestDip(freq[i0:i1], gamma[i0:i1])
+	if d.Index < 0 {
+		return -1
+	}
+	return i0 + d.Index
 }
 
 func checkRange(op string, lo, hi float64) error {

@@ -361,6 +361,9 @@ func TestValidation(t *testing.T) {
 		{"dip range outside sweep", func(f fixture) Change {
 			return Change{Op: OpMarkerToDip, MarkerID: f.marker, LoHz: 3e9, HiHz: 4e9}
 		}, nil, ErrInvalid, "loHz"},
+		{"dip range between two measured points", func(f fixture) Change {
+			return Change{Op: OpMarkerToDip, MarkerID: f.marker, LoHz: 1.001e9, HiHz: 1.002e9}
+		}, nil, ErrInvalid, "loHz"},
 		{"dip range reversed", func(f fixture) Change {
 			return Change{Op: OpMarkerToDip, MarkerID: f.marker, LoHz: 2e9, HiHz: 1e9}
 		}, nil, ErrInvalid, "hiHz"},
