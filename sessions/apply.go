@@ -26,7 +26,11 @@ type Event struct {
 	SweepID  string `json:"sweepId,omitempty"`
 	MarkerID string `json:"markerId,omitempty"`
 	BandID   string `json:"bandId,omitempty"`
-	Gesture  string `json:"gesture,omitempty"`
+	// NetworkID is the active network after a network or part op; PartID
+	// the part added, changed, moved or removed.
+	NetworkID string `json:"networkId,omitempty"`
+	PartID    string `json:"partId,omitempty"`
+	Gesture   string `json:"gesture,omitempty"`
 	// Unchanged is set (by Apply only) when the change left the state as it
 	// was, so nothing was committed or published and Version is the
 	// current one.
@@ -203,9 +207,12 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 	ev.Version = h.version + 1
 	ev.State = r.next
 
-	coalesce := ch.Op == OpMarkerMove && ch.Gesture != "" &&
+	// A drag (a marker along its trace, or a part's value along its arc) is
+	// one undo step: its moves share a gesture id. Part drags leave
+	// markerID empty; their gesture ids are unique per drag.
+	coalesce := coalescible[ch.Op] && ch.Gesture != "" &&
 		h.undoPos == h.maxStep && h.maxStep >= h.minStep &&
-		h.top == stepMeta{OpMarkerMove, ch.Gesture, ch.MarkerID}
+		h.top == stepMeta{ch.Op, ch.Gesture, ev.MarkerID}
 	step := h.undoPos + 1
 	if coalesce {
 		step = h.maxStep

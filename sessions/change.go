@@ -21,7 +21,19 @@ const (
 	OpChartSet      = "chart.set"
 	OpUndo          = "undo"
 	OpRedo          = "redo"
+
+	OpNetworkAdd    = "network.add"
+	OpNetworkSet    = "network.set"
+	OpNetworkSelect = "network.select"
+	OpNetworkRemove = "network.remove"
+	OpPartAdd       = "part.add"
+	OpPartSet       = "part.set"
+	OpPartRemove    = "part.remove"
+	OpPartMove      = "part.move"
 )
+
+// coalescible ops form one undo step per gesture (see Change.Gesture).
+var coalescible = map[string]bool{OpMarkerMove: true, OpPartSet: true}
 
 // Ops lists every op [Store.Apply] accepts, in a stable order.
 var Ops = []string{
@@ -30,6 +42,8 @@ var Ops = []string{
 	OpMarkerAdd, OpMarkerMove, OpMarkerStep, OpMarkerLabel, OpMarkerRemove, OpMarkerToDip,
 	OpBandSet, OpBandRemove,
 	OpChartSet,
+	OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove,
+	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
 	OpUndo, OpRedo,
 }
 
@@ -73,6 +87,22 @@ var Ops = []string{
 //	band.remove     bandId
 //	chart.set       chart                       set the chart fields present in chart (a
 //	                                            [ChartPatch]); absent fields keep their value
+//	network.add     name, sweepId, port,        add a matching network on the trace S(port,port)
+//	                designHz, parts             of sweepId (default: the first sweep) and make it
+//	                                            active; designHz defaults to the band centre;
+//	                                            parts (optional) are its first parts
+//	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs)
+//	                port, designHz, powerW
+//	network.select  networkId                   make it the active network
+//	network.remove  networkId
+//	part.add        networkId, kind, value,     add a part to the network (networkId "" = the
+//	                model, series, params,      active one) at index (from the load; absent =
+//	                index                       nearest the source)
+//	part.set        networkId, partId, value,   change the fields given; part.set with a gesture
+//	                model, series, params,      is a drag: consecutive ones with the same
+//	                gesture                     gesture are one undo step
+//	part.remove     networkId, partId
+//	part.move       networkId, partId, index    move the part to place index (0 = at the load)
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -110,6 +140,20 @@ type Change struct {
 	MinReturnLossDB float64 `json:"minReturnLossDB,omitempty"`
 
 	Chart *ChartPatch `json:"chart,omitempty"`
+
+	// Networks and parts (see the ops above). Pointers tell "absent" from
+	// zero for the fields part.set and network.set may leave alone.
+	NetworkID string             `json:"networkId,omitempty"`
+	PartID    string             `json:"partId,omitempty"`
+	Kind      string             `json:"kind,omitempty"`
+	Value     *float64           `json:"value,omitempty"`
+	Model     *string            `json:"model,omitempty"`
+	ESeries   *string            `json:"series,omitempty"`
+	Params    map[string]float64 `json:"params,omitempty"`
+	Index     *int               `json:"index,omitempty"`
+	DesignHz  float64            `json:"designHz,omitempty"`
+	PowerW    *float64           `json:"powerW,omitempty"`
+	Parts     []Part             `json:"parts,omitempty"`
 
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.
@@ -153,6 +197,8 @@ type Limits struct {
 	QArcs            int
 	TextRunes        int // names, file names and labels
 	HistorySteps     int // undo steps kept per session
+	Networks         int // matching networks per session
+	PartsPerNetwork  int
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
 }
 
@@ -164,6 +210,8 @@ var DefaultLimits = Limits{
 	QArcs:            8,
 	TextRunes:        200,
 	HistorySteps:     1000,
+	Networks:         16,
+	PartsPerNetwork:  8,
 	ReplayEvents:     256,
 }
 
@@ -180,6 +228,8 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.QArcs, d.QArcs)
 	pick(&l.TextRunes, d.TextRunes)
 	pick(&l.HistorySteps, d.HistorySteps)
+	pick(&l.Networks, d.Networks)
+	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
 	pick(&l.ReplayEvents, d.ReplayEvents)
 	return l
 }

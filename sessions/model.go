@@ -34,8 +34,8 @@ type State struct {
 	Bands   []Band        `json:"bands"`
 	Chart   ChartSettings `json:"chart"`
 
-	// Networks and ActiveNetwork hold matching networks; no op changes them
-	// yet (a later issue adds their ops).
+	// Networks are the candidate matching networks; ActiveNetwork names the
+	// one drawn and edited.
 	Networks      []Network `json:"networks,omitempty"`
 	ActiveNetwork string    `json:"activeNetwork,omitempty"`
 }
@@ -110,29 +110,73 @@ type RefPlane struct {
 	FixturePortFacingAnalyser int    `json:"fixturePortFacingAnalyser,omitempty"`
 }
 
-// Network is a named matching network: parts in order from the load
-// towards the source. It is stored and returned but not yet interpreted.
+// Network is a named candidate matching network placed between the load
+// (the trace S(Port,Port) of sweep SweepID) and the source. Parts are in
+// order from the load toward the source. DesignHz is the frequency whose
+// point the chart follows along the matching path; PowerW is the source's
+// available power for the voltage and current figures.
 type Network struct {
-	ID      string `json:"id"`
-	Name    string `json:"name"`
-	SweepID string `json:"sweepId,omitempty"`
-	Port    int    `json:"port,omitempty"`
-	Parts   []Part `json:"parts"`
+	ID       string  `json:"id"`
+	Name     string  `json:"name"`
+	SweepID  string  `json:"sweepId,omitempty"`
+	Port     int     `json:"port,omitempty"`
+	DesignHz float64 `json:"designHz,omitempty"`
+	PowerW   float64 `json:"powerW,omitempty"`
+	Parts    []Part  `json:"parts"`
 }
 
-// Part is one part of a [Network]. Kind names the part and how it is placed
-// (the ops that add parts define the kinds); Value is in SI units (H, F, Ω,
-// or metres/wavelengths for lines as Kind says); Q is the part's quality
-// factor at QRefHz, 0 for ideal. Params leaves room for kinds that need more
-// numbers.
+// Part kinds. Lumped parts sit in series with the line or shunt across it.
+const (
+	PartSeriesL = "series_L"
+	PartSeriesC = "series_C"
+	PartSeriesR = "series_R"
+	PartShuntL  = "shunt_L"
+	PartShuntC  = "shunt_C"
+	PartShuntR  = "shunt_R"
+	// PartLine is a section of transmission line in series: Value is its
+	// length in metres; Params "z0Ohm", "vf", "lossDBPerM", "lossRefHz".
+	PartLine = "line"
+	// PartStubOpen and PartStubShort are shunt stubs: Value is the length in
+	// metres; Params "z0Ohm", "vf".
+	PartStubOpen  = "stub_open"
+	PartStubShort = "stub_short"
+	// PartTransformer is an ideal transformer: Value is the turns ratio n,
+	// so an impedance Z on the load side is seen as n²·Z.
+	PartTransformer = "transformer"
+)
+
+// PartKinds lists the kinds a part may have, in the order the page offers
+// them.
+var PartKinds = []string{PartSeriesL, PartSeriesC, PartShuntL, PartShuntC, PartSeriesR, PartShuntR, PartLine, PartStubOpen, PartStubShort, PartTransformer}
+
+// Part is one part of a [Network]. Value is in SI units: henries, farads,
+// ohms, metres (lines and stubs) or a plain ratio (transformer). Model names
+// the part model of a lumped part: "" or "ideal", or a typical chip family
+// such as "0402" or "0603" (rfmath/parts); Params may override a model's
+// figures ("q", "qRefHz", "srfHz", "esrOhm") and hold a line's figures.
+// ESeries names the IEC 60063 series the value is snapped to ("" for none).
+// Tolerance overrides (relative "tolRel", absolute "tolAbs") and ratings
+// ("maxV", "maxA") also go in Params.
 type Part struct {
-	ID     string             `json:"id"`
-	Kind   string             `json:"kind"`
-	Value  float64            `json:"value"`
-	Q      float64            `json:"q,omitempty"`
-	QRefHz float64            `json:"qRefHz,omitempty"`
-	Series string             `json:"series,omitempty"` // E-series name of a buyable value
-	Params map[string]float64 `json:"params,omitempty"`
+	ID      string             `json:"id"`
+	Kind    string             `json:"kind"`
+	Value   float64            `json:"value"`
+	Model   string             `json:"model,omitempty"`
+	ESeries string             `json:"series,omitempty"`
+	Params  map[string]float64 `json:"params,omitempty"`
+}
+
+// NetworkIndex returns the index of network id in s.Networks, or −1.
+func (s *State) NetworkIndex(id string) int {
+	return slices.IndexFunc(s.Networks, func(n Network) bool { return n.ID == id })
+}
+
+// Active returns the active network, or nil.
+func (s *State) Active() *Network {
+	if i := s.NetworkIndex(s.ActiveNetwork); i >= 0 {
+		return &s.Networks[i]
+	}
+	return nil
 }
 
 // clone returns a deep copy of s, so that a new state can be built without

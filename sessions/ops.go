@@ -331,6 +331,11 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
+	case OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove, OpPartAdd, OpPartSet, OpPartRemove, OpPartMove:
+		if err := computeNetwork(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
 	case "":
 		return r, invalid("(no op)", "op", "missing")
 	default:

@@ -1,0 +1,170 @@
+package sessions
+
+import (
+	"context"
+	"math"
+	"math/cmplx"
+	"testing"
+)
+
+func fptr(v float64) *float64 { return &v }
+func sptr(s string) *string    { return &s }
+func iptr(i int) *int          { return &i }
+
+func TestNetworkOps(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{})
+	s := create(t, st, "net")
+	sw := addSweep(t, st, s.ID, testSweep(201, 1, 0.5e9, 1.5e9), "load")
+	apply(t, st, s.ID, Change{Op: OpBandSet, Name: "b", LoHz: 0.9e9, HiHz: 1.1e9, MinReturnLossDB: 10})
+
+	ev := apply(t, st, s.ID, Change{Op: OpNetworkAdd})
+	cur, _ := state(t, st, s.ID)
+	n := cur.Active()
+	if n == nil || n.SweepID != sw || n.Port != 1 || n.DesignHz != 1e9 || ev.NetworkID != n.ID {
+		t.Fatalf("network.add: %+v, event %+v; want on the sweep, design at the band centre 1 GHz", n, ev)
+	}
+	l := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartShuntC, Value: fptr(1e-12), Model: sptr("0402")})
+	c := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(10e-9), ESeries: sptr("e24"), Index: iptr(0)})
+	cur, _ = state(t, st, s.ID)
+	ps := cur.Active().Parts
+	if len(ps) != 2 || ps[0].ID != c.PartID || ps[1].ID != l.PartID || ps[0].ESeries != "E24" || ps[1].Model != "0402" {
+		t.Fatalf("parts after two adds: %+v", ps)
+	}
+	apply(t, st, s.ID, Change{Op: OpPartMove, PartID: c.PartID, Index: iptr(1)})
+	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: l.PartID, Value: fptr(1.5e-12), Params: map[string]float64{"q": 200}})
+	cur, _ = state(t, st, s.ID)
+	ps = cur.Active().Parts
+	if ps[0].ID != l.PartID || ps[0].Value != 1.5e-12 || ps[0].Params["q"] != 200 || ps[1].ID != c.PartID {
+		t.Fatalf("after move and set: %+v", ps)
+	}
+	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"q": math.NaN()}})
+	cur, _ = state(t, st, s.ID)
+	if _, ok := cur.Active().Parts[0].Params["q"]; ok {
+		t.Errorf("NaN did not clear a parameter: %+v", cur.Active().Parts[0].Params)
+	}
+
+	// A drag of a part's value is one undo step.
+	_, v0 := state(t, st, s.ID)
+	for i := range 5 {
+		apply(t, st, s.ID, Change{Op: OpPartSet, PartID: c.PartID, Value: fptr(11e-9 + float64(i)*1e-9), Gesture: "drag1"})
+	}
+	_, v1 := state(t, st, s.ID)
+	apply(t, st, s.ID, Change{Op: OpUndo})
+	cur, _ = state(t, st, s.ID)
+	if v1 != v0+5 || cur.Active().Parts[1].Value != 10e-9 {
+		t.Errorf("drag: versions %d → %d; after one undo value %g, want 10 nH", v0, v1, cur.Active().Parts[1].Value)
+	}
+
+	b := apply(t, st, s.ID, Change{Op: OpNetworkAdd, Name: "B", Parts: []Part{{Kind: PartSeriesC, Value: 2e-12}}})
+	cur, _ = state(t, st, s.ID)
+	if len(cur.Networks) != 2 || cur.ActiveNetwork != b.NetworkID || cur.Active().Name != "B" || len(cur.Active().Parts) != 1 {
+		t.Fatalf("second network: %+v", cur.Networks)
+	}
+	apply(t, st, s.ID, Change{Op: OpNetworkSelect, NetworkID: n.ID})
+	apply(t, st, s.ID, Change{Op: OpNetworkSet, NetworkID: n.ID, DesignHz: 1.05e9, PowerW: fptr(2), Name: "A"})
+	apply(t, st, s.ID, Change{Op: OpNetworkRemove, NetworkID: b.NetworkID})
+	cur, _ = state(t, st, s.ID)
+	a := cur.Active()
+	if len(cur.Networks) != 1 || a.ID != n.ID || a.DesignHz != 1.05e9 || a.PowerW != 2 || a.Name != "A" {
+		t.Fatalf("after set and remove: %+v", cur.Networks)
+	}
+	apply(t, st, s.ID, Change{Op: OpPartRemove, PartID: c.PartID})
+	cur, _ = state(t, st, s.ID)
+	if len(cur.Active().Parts) != 1 {
+		t.Errorf("part.remove left %d parts", len(cur.Active().Parts))
+	}
+}
+
+func TestNetworkValidation(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{Limits: Limits{PartsPerNetwork: 2, Networks: 1}})
+	s := create(t, st, "v")
+	ctx := context.Background()
+	_, err := st.Apply(ctx, s.ID, Change{Op: OpNetworkAdd})
+	wantErr(t, err, ErrInvalid, "sweepId")
+	_, err = st.Apply(ctx, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9)})
+	wantErr(t, err, ErrInvalid, "networkId")
+	addSweep(t, st, s.ID, testSweep(11, 1, 1e9, 2e9), "load")
+	_, err = st.Apply(ctx, s.ID, Change{Op: OpNetworkAdd, DesignHz: 3e9})
+	wantErr(t, err, ErrInvalid, "designHz")
+	apply(t, st, s.ID, Change{Op: OpNetworkAdd})
+	_, err = st.Apply(ctx, s.ID, Change{Op: OpNetworkAdd})
+	wantErr(t, err, ErrInvalid, "")
+	_, v0 := state(t, st, s.ID)
+	cases := []struct {
+		name  string
+		ch    Change
+		field string
+	}{
+		{"kind", Change{Op: OpPartAdd, Kind: "series_X", Value: fptr(1)}, "kind"},
+		{"zero value", Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(0)}, "value"},
+		{"NaN value", Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(math.NaN())}, "value"},
+		{"no value", Change{Op: OpPartAdd, Kind: PartSeriesL}, "value"},
+		{"model", Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9), Model: sptr("1206")}, "model"},
+		{"model on a line", Change{Op: OpPartAdd, Kind: PartLine, Value: fptr(0.01), Model: sptr("0402")}, "model"},
+		{"series", Change{Op: OpPartAdd, Kind: PartShuntC, Value: fptr(1e-12), ESeries: sptr("E7")}, "series"},
+		{"param", Change{Op: OpPartAdd, Kind: PartLine, Value: fptr(0.01), Params: map[string]float64{"vf": 1.5}}, "params.vf"},
+		{"unknown param", Change{Op: OpPartAdd, Kind: PartLine, Value: fptr(0.01), Params: map[string]float64{"colour": 1}}, "params.colour"},
+		{"index", Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9), Index: iptr(3)}, "index"},
+		{"part id", Change{Op: OpPartSet, PartID: "nope", Value: fptr(1)}, "partId"},
+		{"power", Change{Op: OpNetworkSet, PowerW: fptr(-1)}, "powerW"},
+	}
+	for _, tc := range cases {
+		_, err := st.Apply(ctx, s.ID, tc.ch)
+		if tc.field == "partId" {
+			wantErr(t, err, ErrNotFound, tc.field)
+		} else {
+			wantErr(t, err, ErrInvalid, tc.field)
+		}
+	}
+	apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9)})
+	apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9)})
+	_, err = st.Apply(ctx, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e-9)})
+	wantErr(t, err, ErrInvalid, "")
+	if _, v := state(t, st, s.ID); v != v0+2 {
+		t.Errorf("refused changes moved the version: %d → %d", v0, v)
+	}
+}
+
+// The stored network evaluates as the ladder it describes: the low-pass L
+// section of REFERENCE-CHECKS §6c L-3 (50 Ω to 200 Ω at 100 MHz; shunt
+// C = 13.783 pF across the 200 Ω side, series L = 137.83 nH; values C)
+// brings 200 Ω to 50 Ω.
+func TestNetworkLadder(t *testing.T) {
+	t.Parallel()
+	n := Network{Parts: []Part{{Kind: PartShuntC, Value: 13.783e-12}, {Kind: PartSeriesL, Value: 137.83e-9}}}
+	l, err := n.Ladder(false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if z := l.InputZ(100e6, 200); cmplx.Abs(z-50) > 0.01 {
+		t.Errorf("Zin = %v, want 50 Ω", z)
+	}
+	// Snapped to E24 by ratio (REFERENCE-CHECKS §14's rule): 13.783 pF lies
+	// below √(13·15) = 13.96, so 13 pF; 137.83 nH lies below √(130·150) =
+	// 139.6, so 130 nH. The match is then off, but not far.
+	n.Parts[0].ESeries, n.Parts[1].ESeries = "E24", "E24"
+	if got := n.Parts[0].BuyValue(); math.Abs(got-13e-12) > 1e-18 {
+		t.Errorf("E24 value of 13.783 pF = %g, want 13 pF", got)
+	}
+	if got := n.Parts[1].BuyValue(); math.Abs(got-130e-9) > 1e-15 {
+		t.Errorf("E24 value of 137.83 nH = %g, want 130 nH", got)
+	}
+	lb, _ := n.Ladder(true)
+	zb := lb.InputZ(100e6, 200)
+	if cmplx.Abs(zb-50) < 0.5 || cmplx.Abs(zb-50) > 20 {
+		t.Errorf("standard-value Zin = %v: should be off 50 Ω, but not far", zb)
+	}
+	// A model adds loss: Re(Zin) moves, and Q from Params is honoured.
+	n.Parts[1].Model = "0603"
+	lm, _ := n.Ladder(false)
+	if z := lm.InputZ(100e6, 200); cmplx.Abs(z-50) < 1e-3 {
+		t.Errorf("a modelled inductor left Zin at exactly %v", z)
+	}
+	n.Parts[1].Model, n.Parts[1].Params = "", map[string]float64{"q": 1e5, "qRefHz": 100e6}
+	lq, _ := n.Ladder(false)
+	if z := lq.InputZ(100e6, 200); cmplx.Abs(z-50) > 0.05 {
+		t.Errorf("Q = 1e5 should be nearly ideal: Zin %v", z)
+	}
+}
