@@ -8,8 +8,8 @@ import (
 )
 
 func fptr(v float64) *float64 { return &v }
-func sptr(s string) *string    { return &s }
-func iptr(i int) *int          { return &i }
+func sptr(s string) *string   { return &s }
+func iptr(i int) *int         { return &i }
 
 func TestNetworkOps(t *testing.T) {
 	t.Parallel()
