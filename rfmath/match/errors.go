@@ -1,0 +1,33 @@
+package match
+
+import "errors"
+
+// Errors returned for problems the package cannot solve. Functions wrap
+// them with detail; test for them with [errors.Is].
+var (
+	// ErrNoLoad reports a load with no points, or with fewer frequencies
+	// than reflection coefficients.
+	ErrNoLoad = errors.New("match: load sweep is empty or malformed")
+
+	// ErrBand reports a band that is empty, reversed, or outside the load
+	// sweep.
+	ErrBand = errors.New("match: bad band")
+
+	// ErrSource reports a source impedance with no positive resistance.
+	ErrSource = errors.New("match: source resistance must be positive")
+
+	// ErrFrequency reports a frequency that is not positive and finite.
+	ErrFrequency = errors.New("match: frequency must be positive and finite")
+
+	// ErrRange reports a part value range that holds no standard value.
+	ErrRange = errors.New("match: no standard value in the part range")
+
+	// ErrFit reports a load that the RLC fit cannot describe.
+	ErrFit = errors.New("match: cannot fit an RC, RL or RLC model to the load")
+)
+
+// Panic messages for programmer errors.
+const (
+	badLength = "match: destination length mismatch"
+	badKind   = "match: unknown part kind"
+)
