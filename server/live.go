@@ -89,15 +89,7 @@ func (rm *room) run() {
 	for ev := range rm.sub.C {
 		rm.broadcast(ev)
 	}
-	if rm.sub.Overflowed() {
-		// This room fell behind the session: every page reloads its state.
-		rm.closeAll("fell behind; reloading")
-		rm.s.mu.Lock()
-		if rm.s.rooms[rm.sid] == rm {
-			delete(rm.s.rooms, rm.sid)
-		}
-		rm.s.mu.Unlock()
-	}
+	rm.ended() // tokens.go: overflow, re-issued links, shutdown
 }
 
 func (rm *room) snapshot() []*conn {

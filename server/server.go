@@ -106,6 +106,7 @@ func (s *Server) routes() http.Handler {
 		r.Get("/", s.page)
 		r.Get("/ws", s.websocket)
 		r.Post("/upload", s.upload)
+		r.Post("/reissue", s.reissue)
 		r.Get("/export/chart.svg", s.exportChart)
 		r.Get("/export/plot-{plot}.svg", s.exportPlot)
 		r.Get("/export/markers.csv", s.exportMarkers)

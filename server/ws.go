@@ -58,6 +58,7 @@ type conn struct {
 	closeMu sync.Once
 	done    chan struct{}
 	reason  string
+	final   []byte // a last message sent before the close frame (see closeReload)
 }
 
 func (s *Server) upgrader() *websocket.Upgrader {
@@ -91,6 +92,9 @@ func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	go c.writer()
+	if s.tokenRevoked(a) {
+		c.closeReload("the links of this session were re-issued")
+	}
 	go c.applier(ctx)
 	c.reader()
 	cancel()
@@ -145,8 +149,12 @@ func (c *conn) writer() {
 			}
 		case <-c.done:
 			c.mu.Lock()
-			reason := c.reason
+			reason, final := c.reason, c.final
 			c.mu.Unlock()
+			if final != nil {
+				c.ws.SetWriteDeadline(time.Now().Add(time.Second))
+				c.ws.WriteMessage(websocket.TextMessage, final)
+			}
 			code := websocket.CloseNormalClosure
 			if reason != "" {
 				code = websocket.CloseGoingAway
