@@ -187,7 +187,7 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	name := path.Base(strings.ReplaceAll(hdr.Filename, "\\", "/"))
-	sw, err := parseSweep(name, raw)
+	sw, err := parseSweep(name, raw, s.cfg.FileLimits)
 	if err != nil {
 		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: err.Error()})
 		return
@@ -207,8 +207,8 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 }
 
 // parseSweep reads an uploaded file by the ending of its name.
-func parseSweep(name string, raw []byte) (*rfmath.Sweep, error) {
-	lim := touchstone.DefaultLimits
+// Zero fields of lim take touchstone's defaults.
+func parseSweep(name string, raw []byte, lim touchstone.Limits) (*rfmath.Sweep, error) {
 	if strings.EqualFold(path.Ext(name), ".csv") {
 		return touchstone.ReadCSV(strings.NewReader(string(raw)), name, lim)
 	}

@@ -16,6 +16,7 @@ import (
 	"github.com/go-chi/chi/v5/middleware"
 
 	"matchbench/rfmath"
+	"matchbench/rfmath/touchstone"
 	"matchbench/sessions"
 	"matchbench/web"
 )
@@ -50,6 +51,9 @@ type Config struct {
 	ShareHosts []string
 	// LAN reports that the server listens beyond the loopback address.
 	LAN bool
+	// FileLimits bound what one uploaded file may hold (bytes, ports,
+	// points); zero fields take touchstone.DefaultLimits.
+	FileLimits touchstone.Limits
 	// MsgPerSecond and MsgBurst bound websocket messages per connection;
 	// zero means 120 and 240.
 	MsgPerSecond, MsgBurst float64
