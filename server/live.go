@@ -30,7 +30,16 @@ type outMsg struct {
 	V     int64  `json:"v,omitempty"`     // the session version after it
 	Op    string `json:"op,omitempty"`    // the op that made an update
 	Frags []frag `json:"frags,omitempty"` // fragments to swap
+	Anim  *anim  `json:"anim,omitempty"`  // frames to play before the fragments land
 	Msg   string `json:"msg,omitempty"`   // error text
+}
+
+// anim is the animation of one matching step: each frame is a list of
+// fragments (the matching-path layer, with the morphing response drawn in
+// it), played over MS milliseconds.
+type anim struct {
+	Frames [][]frag `json:"frames"`
+	MS     int      `json:"ms"`
 }
 
 // room fans the events of one session out to its websocket connections.
@@ -135,8 +144,9 @@ var markerOps = map[string]bool{
 
 // render builds the update for one event as seen with capability cap.
 func (rm *room) render(ev sessions.Event, cap sessions.Capability, token string) outMsg {
-	sc := rm.sceneFor(ev.State)
+	sc, prev := rm.sceneFor(ev.State)
 	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
+	msg.Anim = stepAnimation(prev, sc, ev)
 	if markerOps[ev.Op] && ev.MarkerID != "" {
 		msg.Frags = rm.s.markerFrags(sc, ev.MarkerID, cap == sessions.Edit)
 		return msg
@@ -147,19 +157,28 @@ func (rm *room) render(ev sessions.Event, cap sessions.Capability, token string)
 
 // sceneFor returns the scene of st, reusing the previous one's traces and
 // resolved plots when only markers changed.
-func (rm *room) sceneFor(st *sessions.State) *scene {
+func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 	rm.mu.Lock()
 	defer rm.mu.Unlock()
-	key := structureKey(st)
-	if rm.last != nil && rm.key == key {
-		sc := *rm.last
-		sc.st = st
-		rm.last = &sc
-		return &sc
+	prev = rm.last
+	if prev != nil && prev.st == st {
+		return prev, prev.prev
 	}
-	sc := rm.s.scene(rm.sid, st)
-	rm.last, rm.key = sc, key
-	return sc
+	key := structureKey(st)
+	if prev != nil && rm.key == key {
+		c := *prev
+		c.st, c.prev = st, prev
+		sc = &c
+	} else {
+		sc = rm.s.scene(rm.sid, st)
+		sc.prev = prev
+		rm.key = key
+	}
+	if prev != nil {
+		prev.prev = nil // keep one scene back, not the whole history
+	}
+	rm.last = sc
+	return sc, prev
 }
 
 // structureKey identifies everything of a state except its markers: when
@@ -213,6 +232,7 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
 		frag{ID: "sweeps-panel", HTML: renderString(web.SweepsPanel(v))},
 		frag{ID: "bands-panel", HTML: renderString(web.BandsPanel(v))},
 		frag{ID: "chart-panel", HTML: renderString(web.ChartPanel(v))},
+		frag{ID: "network-panel", HTML: renderString(web.NetworkPanel(v))},
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)
 	return out

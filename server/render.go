@@ -46,6 +46,8 @@ type scene struct {
 	fmin   float64
 	fmax   float64
 	plotsC []plot
+	net    *netEval // the active matching network, or nil
+	prev   *scene   // the scene before, while a room renders an event
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
@@ -96,6 +98,9 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	}
 	if cs.ReturnLossCircleDB > 0 {
 		sc.chart.ReturnLossCircleDB = []float64{cs.ReturnLossCircleDB}
+	}
+	if n := st.Active(); n != nil {
+		sc.net = sc.evalNetwork(n)
 	}
 	return sc
 }
@@ -169,7 +174,15 @@ func (t *trace) at(fHz float64) (complex128, bool) {
 }
 
 func (sc *scene) renderChart(w io.Writer) error {
-	return sc.chart.Render(w, sc.chartTraces(), sc.chartMarkers(), nil)
+	traces := append(sc.chartTraces(), sc.netTraces()...)
+	markers := sc.chartMarkers()
+	var path []chartsvg.PathSegment
+	if sc.net != nil {
+		var handles []chartsvg.Marker
+		path, handles = sc.net.path(-1, 0, 1)
+		markers = append(markers, handles...)
+	}
+	return sc.chart.Render(w, traces, markers, path)
 }
 
 // plot is one rectangular plot of the page.
@@ -209,6 +222,16 @@ func (sc *scene) plots() []plot {
 		zx = append(zx,
 			chartsvg.Series{ID: t.id + "-r", Name: name + " R", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: r},
 			chartsvg.Series{ID: t.id + "-x", Name: name + " X", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: x, Dashed: true})
+	}
+	if ne := sc.net; ne != nil && ne.err == nil && len(ne.n.Parts) > 0 {
+		db := func(g []complex128) []float64 {
+			out := make([]float64, len(g))
+			for k, v := range g {
+				out[k] = 20 * math.Log10(cmplx.Abs(v))
+			}
+			return out
+		}
+		rl = append(rl, chartsvg.Series{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: db(ne.result())})
 	}
 	var bands []chartsvg.Band
 	for _, b := range sc.st.Bands {
@@ -426,5 +449,6 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		ID: a.SessionID, Name: sc.st.Name, Version: ver, CanEdit: a.Cap == sessions.Edit, Token: a.Token,
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
+		Network: sc.networkView(),
 	}
 }

@@ -31,6 +31,9 @@ const (
 //	                                full update when the session has moved on
 //	change  {id, v, change}         one sessions.Change (see its doc for ops)
 //	form    {id, v, form, fields}   a panel's form, fields as typed (SI prefixes)
+//	partdrag {id, v, change}        a part's design point dragged on the chart:
+//	                                change.partId, change.gamma, change.gesture; the
+//	                                server finds the value along the part's arc
 //	ping    {}                      keep-alive; ignored
 type inMsg struct {
 	Type   string            `json:"type"`
@@ -192,12 +195,12 @@ func (c *conn) reader() {
 		case "ping":
 		case "hello":
 			c.catchUp(m.V)
-		case "change", "form":
+		case "change", "form", "partdrag":
 			if c.cap != sessions.Edit {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "this is a view-only link: changes are refused"})
 				continue
 			}
-			if m.Type == "change" && m.Change == nil {
+			if m.Type != "form" && m.Change == nil {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "a change message needs a \"change\" object"})
 				continue
 			}
@@ -222,7 +225,7 @@ func (c *conn) push(m inMsg) bool {
 	defer c.mu.Unlock()
 	if isDrag(m) {
 		for i := range c.ops {
-			if isDrag(c.ops[i]) && c.ops[i].Change.MarkerID == m.Change.MarkerID {
+			if isDrag(c.ops[i]) && dragKey(c.ops[i]) == dragKey(m) {
 				c.ops[i] = m
 				return true
 			}
@@ -240,7 +243,16 @@ func (c *conn) push(m inMsg) bool {
 }
 
 func isDrag(m inMsg) bool {
-	return m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove
+	return (m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove) ||
+		(m.Type == "partdrag" && m.Change != nil)
+}
+
+// dragKey is what a drag moves: one marker or one part.
+func dragKey(m inMsg) string {
+	if m.Type == "partdrag" {
+		return "p:" + m.Change.PartID
+	}
+	return "m:" + m.Change.MarkerID
 }
 
 func (c *conn) pop() (inMsg, bool) {
@@ -277,14 +289,41 @@ func (c *conn) applier(ctx context.Context) {
 
 func (c *conn) apply(ctx context.Context, m inMsg) {
 	var ch sessions.Change
-	if m.Type == "form" {
+	switch {
+	case m.Type == "form" && networkForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.partChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	case m.Type == "form":
 		var err error
 		ch, err = formChange(m.Form, m.Fields)
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
 			return
 		}
-	} else {
+	case m.Type == "partdrag":
+		sc, err := c.scene(ctx)
+		if err == nil && (sc.net == nil || sc.net.err != nil) {
+			err = errors.New("the session has no matching network to drag")
+		}
+		var v float64
+		if err == nil && m.Change.Gamma == nil {
+			err = errors.New("a part drag needs a \"gamma\" point")
+		}
+		if err == nil {
+			v, err = sc.net.dragValue(m.Change.PartID, complex(m.Change.Gamma.Re, m.Change.Gamma.Im))
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+		ch = sessions.Change{Op: sessions.OpPartSet, NetworkID: sc.net.n.ID, PartID: m.Change.PartID, Value: &v, Gesture: m.Change.Gesture}
+	default:
 		ch = *m.Change
 		ch.Raw, ch.Sweep = nil, nil
 		if ch.Op == sessions.OpSweepAdd {
@@ -302,6 +341,19 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 		return
 	}
 	c.reply(outMsg{Type: "ack", ID: m.ID, V: ev.Version})
+}
+
+// networkForms are the forms whose fields need the session's current scene
+// (the active network's parts and design frequency).
+var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true}
+
+// scene returns the scene of the session's current state.
+func (c *conn) scene(ctx context.Context) (*scene, error) {
+	st, _, err := c.s.store.State(ctx, c.sid)
+	if err != nil {
+		return nil, err
+	}
+	return c.s.scene(c.sid, st), nil
 }
 
 // catchUp sends a full update when the page's version is not the session's.

@@ -55,6 +55,7 @@ type SessionView struct {
 	Markers []ReadoutRow
 	Bands   []BandRow
 	Options ChartOptions
+	Network NetworkView
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
 }
@@ -140,4 +141,54 @@ type ChartOptions struct {
 	ReturnLossCircleDB            string
 	QArcs                         string
 	AngleScale, WavelengthScale   bool
+}
+
+// Option is one choice of a select.
+type Option struct {
+	Value, Label string
+	Selected     bool
+}
+
+// NetworkView is the matching-network panel.
+type NetworkView struct {
+	Active     bool // a network exists and is shown
+	ID, Name   string
+	Networks   []Option
+	Loads      []Option
+	Kinds      []Option
+	DesignFreq string
+	PowerW     string
+	Parts      []PartRow
+	Metrics    []NetMetricRow
+	HasBuy     bool
+	Error      string
+	Power      []PowerRow
+	PowerNote  string
+}
+
+// PartRow is one part of the network, in order from the load.
+type PartRow struct {
+	ID, Designator, Kind, Color string
+	Index                       int
+	Value                       string // as typed, with prefix and unit
+	Buy                         string // standard value, when the part has a series
+	Model, Series               string
+	Lumped                      bool
+	SliderMin, SliderMax        string // log10 of the value
+	SliderVal                   string
+	First, Last                 bool
+}
+
+// NetMetricRow is one band's figures before and after the network.
+type NetMetricRow struct {
+	Band                    string
+	Before, Worst, Mean, ML string
+	Delivered, Margin, Note string
+	HasReq, Pass            bool
+}
+
+// PowerRow is one part's worst voltage and current over the bands.
+type PowerRow struct {
+	Designator, VPeak, IRMS, Rating, At string
+	Over                                bool
 }

@@ -70,10 +70,13 @@ function change(ch) { return send({ type: "change", change: ch }); }
 function handle(msg) {
 	switch (msg.type) {
 	case "update":
-		if (msg.frags) msg.frags.forEach(applyFrag);
 		if (typeof msg.v === "number") { version = msg.v; body.dataset.version = String(version); }
-		if (msg.anim) playAnimation(msg.anim);
-		restoreSelection();
+		if (msg.anim) {
+			playAnimation(msg.anim, () => { (msg.frags || []).forEach(applyFrag); restoreSelection(); });
+		} else {
+			(msg.frags || []).forEach(applyFrag);
+			restoreSelection();
+		}
 		break;
 	case "ack":
 		if (typeof msg.v === "number" && msg.v > version) { version = msg.v; body.dataset.version = String(version); }
@@ -89,9 +92,31 @@ function handle(msg) {
 
 // applyFrag replaces the element whose id is frag.id with frag.html. SVG
 // fragments are parsed as SVG so that they land in the SVG namespace.
+// pending holds fragments held back while the user is typing or sliding
+// inside the element they would replace; they land when editing ends.
+const pending = new Map();
+let sliding = false;
+
+function editingInside(el) {
+	const a = document.activeElement;
+	if (!a || !el.contains(a)) return false;
+	return sliding || (a.tagName === "INPUT" && a.type === "text");
+}
+
+function flushPending() {
+	const frags = [...pending.values()];
+	pending.clear();
+	frags.forEach(applyFrag);
+	restoreSelection();
+}
+
 function applyFrag(frag) {
 	const old = document.getElementById(frag.id);
 	if (!old) return;
+	if (!frag.svg && editingInside(old)) {
+		pending.set(frag.id, frag);
+		return;
+	}
 	let node;
 	if (frag.svg) {
 		const doc = new DOMParser().parseFromString(`<svg xmlns="${SVGNS}">${frag.html}</svg>`, "image/svg+xml");
@@ -113,15 +138,16 @@ function applyFrag(frag) {
 
 // ---- animation of matching steps: frames of SVG for one layer ----
 
-function playAnimation(anim) {
-	if (!anim.frames || !anim.frames.length) return;
+function playAnimation(anim, done) {
+	const frames = anim.frames || [];
+	if (!frames.length) { done(); return; }
 	const ms = anim.ms || 600;
 	const t0 = performance.now();
 	const step = (now) => {
-		const i = Math.min(anim.frames.length - 1, Math.floor((now - t0) / ms * anim.frames.length));
-		applyFrag({ id: anim.id, html: anim.frames[i], svg: true });
-		if (i < anim.frames.length - 1) requestAnimationFrame(step);
-		else if (anim.final) applyFrag({ id: anim.id, html: anim.final, svg: true });
+		const i = Math.min(frames.length - 1, Math.floor((now - t0) / ms * frames.length));
+		frames[i].forEach(applyFrag);
+		if (i < frames.length - 1) requestAnimationFrame(step);
+		else done();
 	};
 	requestAnimationFrame(step);
 }
@@ -170,14 +196,23 @@ function queueMove(ch) {
 	drag.raf = requestAnimationFrame(() => {
 		if (!drag) return;
 		drag.raf = 0;
-		if (drag.pending) change(drag.pending);
+		if (drag.pending) sendMove(drag.pending);
 		drag.pending = null;
 	});
 }
 
+function sendMove(ch) {
+	if (ch.partdrag) {
+		const { partdrag, ...rest } = ch;
+		send({ type: "partdrag", change: rest });
+	} else {
+		change(ch);
+	}
+}
+
 function endDrag() {
 	if (!drag) return;
-	if (drag.pending) change(drag.pending);
+	if (drag.pending) sendMove(drag.pending);
 	$("#chart")?.classList.remove("dragging");
 	drag = null;
 }
@@ -186,6 +221,10 @@ document.addEventListener("pointerdown", (ev) => {
 	const svg = ev.target.closest("#chart svg");
 	if (svg) {
 		const mk = markerIDOf(ev.target, "mk-");
+		if (mk && mk.startsWith("ph-")) {
+			if (canEdit) startDrag("part", mk.slice(3), ev, svg);
+			return;
+		}
 		if (mk) {
 			select(mk);
 			if (canEdit) startDrag("chart", mk, ev, svg);
@@ -221,6 +260,8 @@ document.addEventListener("pointermove", (ev) => {
 	if (!drag) return;
 	if (drag.kind === "chart") {
 		queueMove({ op: "marker.move", markerId: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+	} else if (drag.kind === "part") {
+		queueMove({ partdrag: true, partId: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
 	} else {
 		const f = plotFreq(drag.svg, ev.clientX, ev.clientY);
 		if (f > 0) queueMove({ op: "marker.move", markerId: drag.id, freqHz: f, gesture: drag.gesture });
@@ -275,13 +316,29 @@ document.addEventListener("click", (ev) => {
 	case "remove-marker": change({ op: "marker.remove", markerId: d.marker }); break;
 	case "remove-sweep": change({ op: "sweep.remove", sweepId: d.sweep }); break;
 	case "remove-band": change({ op: "band.remove", bandId: d.band }); break;
+	case "part-add": send({ type: "form", form: "part.add", fields: { kind: d.kind } }); break;
+	case "part-move": change({ op: "part.move", partId: d.part, index: Number(d.index) }); break;
+	case "part-remove": change({ op: "part.remove", partId: d.part }); break;
 	default: send({ type: "action", action: d.action, fields: { ...d } });
 	}
 });
 
 document.addEventListener("change", (ev) => {
 	const el = ev.target;
-	if (!canEdit || !el.dataset || !el.dataset.change) return;
+	if (!canEdit || !el.dataset) return;
+	const d = el.dataset;
+	if (d.partValue) { partSet(d.partValue, { value: el.value }); return; }
+	if (d.partSeries !== undefined && d.partSeries) { partSet(d.partSeries, { series: el.value }); return; }
+	if (d.partModel) { partSet(d.partModel, { model: el.value }); return; }
+	if (d.partSlider) {
+		sliding = false;
+		partSet(d.partSlider, { log: el.value, gesture: slide && slide.el === el ? slide.gesture : "" });
+		slide = null;
+		flushPending();
+		return;
+	}
+	if (d.change === "network.select") { change({ op: "network.select", networkId: el.value }); return; }
+	if (!d.change) return;
 	const op = el.dataset.change;
 	const ch = { op, sweepId: el.dataset.sweep };
 	if (op === "sweep.visible") ch.visible = el.checked;
@@ -302,6 +359,26 @@ document.addEventListener("submit", (ev) => {
 	}
 	send({ type: "form", form: form.dataset.form, fields });
 });
+
+function partSet(partId, fields) {
+	send({ type: "form", form: "part.set", fields: { partId, ...fields } });
+}
+
+// A part's slider drags its value: one gesture per slide, at most one
+// message per frame.
+let slide = null;
+document.addEventListener("input", (ev) => {
+	const el = ev.target;
+	if (!canEdit || !el.dataset || !el.dataset.partSlider) return;
+	sliding = true;
+	if (!slide || slide.el !== el) slide = { el, gesture: `s${Date.now().toString(36)}`, raf: 0 };
+	if (slide.raf) return;
+	slide.raf = requestAnimationFrame(() => {
+		slide.raf = 0;
+		partSet(el.dataset.partSlider, { log: el.value, gesture: slide.gesture });
+	});
+});
+document.addEventListener("focusout", () => { if (!sliding) setTimeout(flushPending, 0); });
 
 // ---- uploads ----
 
