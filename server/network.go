@@ -156,7 +156,7 @@ func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment,
 			pts = append(pts, stepGamma(ne.n.Parts, buy, i, scaledValue(p, v, t), fd, gL, ne.z0))
 		}
 		col := partColours[i%len(partColours)]
-		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col, Label: designator(ne.n.Parts, i)})
+		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col})
 		handles = append(handles, chartsvg.Marker{ID: "ph-" + p.ID, Num: i + 1, Gamma: pts[len(pts)-1], Color: col, Label: designator(ne.n.Parts, i), Shape: chartsvg.ShapeCircle})
 		if i == override {
 			break
@@ -350,6 +350,7 @@ func (sc *scene) networkView() web.NetworkView {
 		v.Metrics = append(v.Metrics, row)
 	}
 	v.HasBuy = ne.buy != nil
+	v.Power, v.PowerNote = sc.powerRows()
 	return v
 }
 

@@ -115,6 +115,11 @@ func (s *Server) routes() http.Handler {
 		r.Get("/export/plot-{plot}.svg", s.exportPlot)
 		r.Get("/export/markers.csv", s.exportMarkers)
 		r.Get("/sweeps/{sweep}/file", s.rawFile)
+		r.Get("/export/matched.s1p", s.exportMatched)
+		r.Get("/export/network.s2p", s.exportNetwork2)
+		r.Get("/export/network.cir", s.exportNetlist)
+		r.Get("/export/parts.csv", s.exportParts)
+		r.Get("/report", s.report)
 	})
 	// State-changing requests from other sites are refused (Go's
 	// CrossOriginProtection checks Sec-Fetch-Site and Origin).

@@ -192,3 +192,14 @@ type PowerRow struct {
 	Designator, VPeak, IRMS, Rating, At string
 	Over                                bool
 }
+
+// ReportView is the printable report of a matching network.
+type ReportView struct {
+	Title, Session, Network, Load, Design, Generated string
+	ChartBefore, ChartAfter, Plot                    string // trusted SVG from chartsvg
+	Metrics                                          []NetMetricRow
+	PartsHeader                                      []string
+	Parts                                            [][]string
+	Power                                            []PowerRow
+	PowerW                                           string
+}

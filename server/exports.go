@@ -1,0 +1,399 @@
+package server
+
+import (
+	"bufio"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"math/cmplx"
+	"net/http"
+	"strconv"
+	"strings"
+	"time"
+
+	"matchbench/chartsvg"
+	"matchbench/rfmath"
+	"matchbench/rfmath/parts"
+	"matchbench/rfmath/touchstone"
+	"matchbench/rfmath/units"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// activeNet loads the request's session and its active network, answering
+// 404 when it has none.
+func (s *Server) activeNet(w http.ResponseWriter, r *http.Request) (*scene, *netEval, bool) {
+	a := accessFrom(r.Context())
+	st, _, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return nil, nil, false
+	}
+	sc := s.scene(a.SessionID, st)
+	if sc.net == nil || sc.net.err != nil {
+		http.Error(w, "This session has no matching network to export.", http.StatusNotFound)
+		return nil, nil, false
+	}
+	return sc, sc.net, true
+}
+
+// netComments describe a network in an exported file's header.
+func netComments(sc *scene, ne *netEval) []string {
+	c := []string{
+		fmt.Sprintf(" matchbench session %q, network %q", sc.st.Name, ne.n.Name),
+		fmt.Sprintf(" load: sweep %q, S%d%d; design frequency %s", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port, fmtF(ne.n.DesignHz)),
+		" parts from the load toward the source:",
+	}
+	for i, p := range ne.n.Parts {
+		c = append(c, " "+partLine(ne.n.Parts, i, p))
+	}
+	return asciiOnly(c)
+}
+
+// asciiOnly replaces what Touchstone does not allow in comments.
+func asciiOnly(lines []string) []string {
+	out := make([]string, len(lines))
+	for i, l := range lines {
+		var b strings.Builder
+		for _, r := range l {
+			switch {
+			case r == 'Ω':
+				b.WriteString("ohm")
+			case r == 'µ':
+				b.WriteString("u")
+			case r >= 0x20 && r <= 0x7e:
+				b.WriteRune(r)
+			default:
+				b.WriteByte('?')
+			}
+		}
+		out[i] = b.String()
+	}
+	return out
+}
+
+func sweepName(st *sessions.State, id string) string {
+	if i := st.SweepIndex(id); i >= 0 {
+		return st.Sweeps[i].Name
+	}
+	return id
+}
+
+func partLine(ps []sessions.Part, i int, p sessions.Part) string {
+	s := fmt.Sprintf("%s %s %s", designator(ps, i), kindLabels[p.Kind], units.Format(p.BuyValue(), unitOf(p.Kind), 4))
+	if p.ESeries != "" {
+		s += " (" + p.ESeries + ")"
+	}
+	if p.Model != "" {
+		s += ", typical " + p.Model
+	}
+	return s
+}
+
+func (s *Server) exportMatched(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	out := rfmath.NewSweep(ne.sweep.Len(), 1, ne.z0)
+	copy(out.FreqHz, ne.sweep.FreqHz)
+	copy(out.Data, ne.result())
+	attachment(w, safeName(ne.n.Name)+"-matched.s1p", "text/plain; charset=utf-8")
+	bw := bufio.NewWriter(w)
+	comments := append([]string{" input reflection of the load seen through the network (standard values where set)"}, netComments(sc, ne)...)
+	if err := touchstone.Write(bw, out, touchstone.WriteOptions{Comments: comments}); err != nil {
+		s.log.Error("export matched", "err", err)
+	}
+	bw.Flush()
+}
+
+func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	l := ne.resultLadder()
+	out := rfmath.NewSweep(ne.sweep.Len(), 2, ne.z0)
+	copy(out.FreqHz, ne.sweep.FreqHz)
+	for k, f := range out.FreqHz {
+		sm := rfmath.ABCDToS(l.ABCD(f), ne.z0, ne.z0)
+		copy(out.Matrix(k), sm[:])
+	}
+	attachment(w, safeName(ne.n.Name)+"-network.s2p", "text/plain; charset=utf-8")
+	bw := bufio.NewWriter(w)
+	comments := append([]string{" the matching network alone: port 1 faces the source (radio), port 2 the load"}, netComments(sc, ne)...)
+	if err := touchstone.Write(bw, out, touchstone.WriteOptions{Comments: comments}); err != nil {
+		s.log.Error("export network", "err", err)
+	}
+	bw.Flush()
+}
+
+// spiceValue writes v with a SPICE scale suffix (f p n u m k meg g t);
+// SPICE reads "m" as milli and "meg" as mega.
+func spiceValue(v float64) string {
+	type sfx struct {
+		exp float64
+		s   string
+	}
+	for _, x := range []sfx{{12, "t"}, {9, "g"}, {6, "meg"}, {3, "k"}, {0, ""}, {-3, "m"}, {-6, "u"}, {-9, "n"}, {-12, "p"}, {-15, "f"}} {
+		if math.Abs(v) >= math.Pow(10, x.exp)*0.9999999 {
+			return strconv.FormatFloat(v/math.Pow(10, x.exp), 'g', 6, 64) + x.s
+		}
+	}
+	return strconv.FormatFloat(v, 'g', 6, 64)
+}
+
+// writeNetlist writes the network as a SPICE subcircuit with nodes SRC
+// (toward the radio), LOAD (toward the antenna) and 0. Part models appear
+// as their parasitic elements; an inductor's loss resistance, which grows
+// with frequency in the model, is written at the design frequency.
+func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
+	bw := bufio.NewWriter(w)
+	name := strings.ToUpper(safeName(ne.n.Name))
+	for _, c := range netComments(sc, ne) {
+		fmt.Fprintf(bw, "*%s\n", c)
+	}
+	fmt.Fprintf(bw, "* nodes: SRC faces the source (radio), LOAD the load (antenna), 0 ground\n")
+	fmt.Fprintf(bw, ".SUBCKT MATCH_%s SRC LOAD 0\n", name)
+	ps := ne.n.Parts
+	node := func(k int) string { // node between part k-1 and part k, from the load
+		switch {
+		case k == 0:
+			return "LOAD"
+		case k == len(ps):
+			return "SRC"
+		}
+		return "N" + strconv.Itoa(k)
+	}
+	fd := ne.n.DesignHz
+	for k, p := range ps {
+		ref := designator(ps, k)
+		a, b := node(k), node(k+1)
+		if p.Shunt() {
+			// A shunt part hangs from this part's node; the line runs on.
+			fmt.Fprintf(bw, "R%s_THRU %s %s 0\n", ref, a, b)
+			b = "0"
+		}
+		v := p.BuyValue()
+		switch c := p.Component(v).(type) {
+		case parts.Inductor:
+			mid := ref + "_R"
+			fmt.Fprintf(bw, "L%s %s %s %s\n", ref, a, mid, spiceValue(c.LH))
+			fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", mid, b, spiceValue(math.Max(c.SeriesROhm(fd), 1e-6)))
+			if cp := c.ParallelCF(); cp > 0 {
+				fmt.Fprintf(bw, "C%s %s %s %s\n", ref+"_P", a, b, spiceValue(cp))
+			}
+		case parts.IdealInductor:
+			fmt.Fprintf(bw, "L%s %s %s %s\n", ref, a, b, spiceValue(c.LH))
+		case parts.Capacitor:
+			m1, m2 := ref+"_ESR", ref+"_ESL"
+			esr := c.ESROhm
+			if esr == 0 && c.Q > 0 && c.QRefHz > 0 {
+				esr = 1 / (2 * math.Pi * c.QRefHz * c.CF * c.Q)
+			}
+			fmt.Fprintf(bw, "C%s %s %s %s\n", ref, a, m1, spiceValue(c.CF))
+			if c.SRFHz > 0 {
+				ls := 1 / (math.Pow(2*math.Pi*c.SRFHz, 2) * c.CF)
+				fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", m1, m2, spiceValue(math.Max(esr, 1e-6)))
+				fmt.Fprintf(bw, "L%s %s %s %s\n", ref+"_S", m2, b, spiceValue(ls))
+			} else {
+				fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", m1, b, spiceValue(math.Max(esr, 1e-6)))
+			}
+		case parts.IdealCapacitor:
+			fmt.Fprintf(bw, "C%s %s %s %s\n", ref, a, b, spiceValue(c.CF))
+		case parts.Resistor:
+			if c.ESLH > 0 {
+				fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, ref+"_L", spiceValue(c.ROhm))
+				fmt.Fprintf(bw, "L%s %s %s %s\n", ref+"_S", ref+"_L", b, spiceValue(c.ESLH))
+			} else {
+				fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, b, spiceValue(c.ROhm))
+			}
+		case parts.IdealResistor:
+			fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, b, spiceValue(c.ROhm))
+		case nil:
+			e, err := p.ElementAt(v)
+			if err != nil {
+				return err
+			}
+			switch el := e.(type) {
+			case rfmath.Line:
+				fmt.Fprintf(bw, "T%s %s 0 %s 0 Z0=%s TD=%s\n", ref, a, b, spiceValue(el.Z0Ohm), spiceValue(el.DelayS()))
+				if el.LossDBPerM > 0 {
+					fmt.Fprintf(bw, "* T%s: the line's loss (%.3g dB/m at %s) is not in this lossless model\n", ref, el.LossDBPerM, fmtF(el.LossRefHz))
+				}
+			case rfmath.ShuntStub:
+				end := ref + "_END"
+				fmt.Fprintf(bw, "T%s %s 0 %s 0 Z0=%s TD=%s\n", ref, a, end, spiceValue(el.Line.Z0Ohm), spiceValue(el.Line.DelayS()))
+				if el.Open {
+					fmt.Fprintf(bw, "R%s %s 0 1e12\n", ref+"_OPEN", end)
+				} else {
+					fmt.Fprintf(bw, "R%s %s 0 1e-6\n", ref+"_SHORT", end)
+				}
+			case rfmath.Transformer:
+				// An ideal n:1 transformer from a tightly coupled pair; the
+				// load side (secondary, n turns relative) sees n² impedance.
+				fmt.Fprintf(bw, "L%s_P %s 0 1\n", ref, b)
+				fmt.Fprintf(bw, "L%s_S %s 0 %s\n", ref, a, spiceValue(1/(el.Ratio*el.Ratio)))
+				fmt.Fprintf(bw, "K%s L%s_P L%s_S 0.999999\n", ref, ref, ref)
+			}
+		}
+	}
+	fmt.Fprintf(bw, ".ENDS MATCH_%s\n", name)
+	return bw.Flush()
+}
+
+func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	attachment(w, safeName(ne.n.Name)+".cir", "text/plain; charset=utf-8")
+	if err := writeNetlist(w, sc, ne); err != nil {
+		s.log.Error("export netlist", "err", err)
+	}
+}
+
+// partsRows are the parts list: designator, kind, value, series,
+// tolerance, size, rating.
+func partsRows(ne *netEval) [][]string {
+	rows := [][]string{{"designator", "kind", "value", "value_si", "typed_value_si", "series", "tolerance", "size", "rating"}}
+	for i, p := range ne.n.Parts {
+		v := p.BuyValue()
+		u := unitOf(p.Kind)
+		tol, size, rating := "", "", ""
+		if k := p.LumpedKind(); k != "" {
+			t := parts.DefaultTolerance(k)
+			if rel, ok := p.Params["tolRel"]; ok {
+				t.Rel = rel
+			}
+			if abs, ok := p.Params["tolAbs"]; ok {
+				t.Abs = abs
+			}
+			tol = fmt.Sprintf("±%s (±%.3g %%, at least ±%s; typical, from memory)", units.Format(t.Of(v), u, 3), 100*t.Rel, units.Format(t.Abs, u, 3))
+			if fam, err := parts.LookupFamily(p.Model); err == nil && p.Model != "" {
+				size = fam.Name
+				rt := fam.Rating(k, v)
+				rating = ratingText(rt)
+			}
+		}
+		rows = append(rows, []string{designator(ne.n.Parts, i), kindLabels[p.Kind], units.Format(v, u, 4),
+			strconv.FormatFloat(v, 'g', 6, 64), strconv.FormatFloat(p.Value, 'g', 6, 64), p.ESeries, tol, size, rating})
+	}
+	return rows
+}
+
+func ratingText(rt parts.Rating) string {
+	var s []string
+	if rt.MaxVoltageV > 0 {
+		s = append(s, fmt.Sprintf("%.3g V", rt.MaxVoltageV))
+	}
+	if rt.MaxCurrentA > 0 {
+		s = append(s, fmt.Sprintf("%.3g A", rt.MaxCurrentA))
+	}
+	if rt.MaxPowerW > 0 {
+		s = append(s, fmt.Sprintf("%.3g W", rt.MaxPowerW))
+	}
+	return strings.Join(s, ", ")
+}
+
+func (s *Server) exportParts(w http.ResponseWriter, r *http.Request) {
+	_, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	attachment(w, safeName(ne.n.Name)+"-parts.csv", "text/csv; charset=utf-8")
+	cw := csv.NewWriter(w)
+	cw.WriteAll(partsRows(ne))
+}
+
+// powerRows gives each part's worst peak voltage and RMS current over the
+// bands' frequencies (or the design frequency when there are no bands)
+// for the network's input power, with its rating where known.
+func (sc *scene) powerRows() ([]web.PowerRow, string) {
+	ne := sc.net
+	if ne == nil || ne.err != nil || len(ne.n.Parts) == 0 || ne.n.PowerW <= 0 {
+		return nil, ""
+	}
+	l := ne.resultLadder()
+	var freqs []float64
+	for _, b := range sc.st.Bands {
+		for _, f := range ne.sweep.FreqHz {
+			if f >= b.LoHz && f <= b.HiHz {
+				freqs = append(freqs, f)
+			}
+		}
+	}
+	if len(freqs) == 0 {
+		freqs = []float64{ne.n.DesignHz}
+	}
+	worst := make([]rfmath.Stress, len(l))
+	at := make([][2]float64, len(l))
+	buf := make([]rfmath.Stress, len(l))
+	for _, f := range freqs {
+		zl := rfmath.ZFromGamma(ne.loadAt(f), complex(ne.z0, 0))
+		if cmplx.IsInf(zl) || cmplx.IsNaN(zl) {
+			continue
+		}
+		l.StressTo(buf, f, zl, ne.z0, ne.n.PowerW)
+		for k, st := range buf {
+			if st.VPeakV > worst[k].VPeakV {
+				worst[k].VPeakV, at[k][0] = st.VPeakV, f
+			}
+			if st.IPeakA > worst[k].IPeakA {
+				worst[k].IPeakA, at[k][1] = st.IPeakA, f
+			}
+		}
+	}
+	var rows []web.PowerRow
+	for k, p := range ne.n.Parts {
+		irms := worst[k].IPeakA / math.Sqrt2
+		row := web.PowerRow{Designator: designator(ne.n.Parts, k), VPeak: fmt.Sprintf("%.3g V", worst[k].VPeakV), IRMS: fmt.Sprintf("%.3g mA", 1e3*irms), Rating: "—", At: fmtF(at[k][0])}
+		rt := parts.Rating{MaxVoltageV: p.Params["maxV"], MaxCurrentA: p.Params["maxA"]}
+		if fam, err := parts.LookupFamily(p.Model); err == nil && p.Model != "" && p.LumpedKind() != "" {
+			fr := fam.Rating(p.LumpedKind(), p.BuyValue())
+			if rt.MaxVoltageV == 0 {
+				rt.MaxVoltageV = fr.MaxVoltageV
+			}
+			if rt.MaxCurrentA == 0 {
+				rt.MaxCurrentA = fr.MaxCurrentA
+			}
+		}
+		if t := ratingText(rt); t != "" {
+			row.Rating = t
+		}
+		row.Over = (rt.MaxVoltageV > 0 && worst[k].VPeakV > rt.MaxVoltageV) || (rt.MaxCurrentA > 0 && irms > rt.MaxCurrentA)
+		rows = append(rows, row)
+	}
+	note := fmt.Sprintf("over %d frequencies in the bands", len(freqs))
+	return rows, note
+}
+
+func (s *Server) report(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	load := chartsvg.Trace{ID: "load", Name: sweepName(sc.st, ne.n.SweepID), Color: "#1f5fa8", FreqHz: ne.sweep.FreqHz, Gamma: ne.gLoad}
+	ch := sc.chart
+	ch.SizePx = 420
+	var before, after, plotB strings.Builder
+	ch.Render(&before, []chartsvg.Trace{load}, nil, nil)
+	path, handles := ne.path(-1, 0, 1)
+	ch.IDPrefix = "after-"
+	ch.Render(&after, append([]chartsvg.Trace{load}, sc.netTraces()...), handles, path)
+	for _, p := range sc.plots() {
+		if p.id == "refl" {
+			p.render(&plotB, nil)
+		}
+	}
+	rows := partsRows(ne)
+	nv := sc.networkView()
+	v := web.ReportView{
+		Title: ne.n.Name + " report · matchbench", Session: sc.st.Name, Network: ne.n.Name,
+		Load: fmt.Sprintf("%s S%d%d", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port), Design: fmtF(ne.n.DesignHz),
+		Generated: time.Now().Format("2006-01-02 15:04"), ChartBefore: before.String(), ChartAfter: after.String(), Plot: plotB.String(),
+		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW,
+	}
+	s.render(w, r, http.StatusOK, web.ReportPage(v))
+}
