@@ -15,6 +15,7 @@ import (
 	"github.com/chromedp/chromedp/kb"
 
 	"matchbench/rfmath"
+	"matchbench/sessions"
 )
 
 // chromiumPath is where Debian's chromium package puts the browser.
@@ -210,4 +211,95 @@ func TestBrowserDragAndWatch(t *testing.T) {
 		t.Errorf("upload errors %q", txt)
 	}
 	_ = input.MouseButtonLeft
+}
+
+// TestBrowserMatching builds a network in the browser: start one on the
+// 200 Ω load (netFixture's load, without its network), add a shunt
+// capacitor and a series inductor with the buttons, see the band figures
+// appear, then drag the inductor's point on the chart and see its value
+// follow.
+func TestBrowserMatching(t *testing.T) {
+	needBrowser(t)
+	f, nid := netFixture(t)
+	ctx0 := context.Background()
+	if _, err := f.store.Apply(ctx0, f.sess.ID, sessions.Change{Op: sessions.OpNetworkRemove, NetworkID: nid}); err != nil {
+		t.Fatal(err)
+	}
+	dir := shotDir(t)
+	ctx := browser(t)
+	ectx, cancel := context.WithTimeout(ctx, 90*time.Second)
+	defer cancel()
+	must := func(err error) {
+		t.Helper()
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	waitFor := func(js string) {
+		t.Helper()
+		wctx, c := context.WithTimeout(ectx, 10*time.Second)
+		defer c()
+		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
+			t.Fatalf("waiting for %s: %v", js, err)
+		}
+	}
+	must(chromedp.Do(ectx,
+		chromedp.EmulateViewport(1400, 1700),
+		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.EditToken+"/"),
+		chromedp.Poll[chromedp.Void](liveJS),
+		chromedp.Click(chromedp.CSS(`[data-testid="network-add"] button`)),
+	))
+	waitFor(`!!document.querySelector('[data-testid="add-shunt_C"]')`)
+	must(chromedp.Do(ectx, chromedp.Click(chromedp.CSS(`[data-testid="add-shunt_C"]`))))
+	waitFor(`document.querySelectorAll('[data-testid="part-row"]').length === 1`)
+	must(chromedp.Do(ectx, chromedp.Click(chromedp.CSS(`[data-testid="add-series_L"]`))))
+	waitFor(`document.querySelectorAll('[data-testid="part-row"]').length === 2 && !!document.querySelector('[data-testid="net-worst"]')`)
+	before, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-worst"]`)))
+	must(err)
+	// Type the L-3 values (REFERENCE-CHECKS §6c): the band's worst return
+	// loss then rises well above 10 dB.
+	must(chromedp.Do(ectx,
+		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]`), "13.783p"),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
+	))
+	waitFor(`document.querySelector('[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]').value === "13.78 pF"`)
+	must(chromedp.Do(ectx,
+		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]`), "137.83n"),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
+	))
+	waitFor(`document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').value === "137.8 nH"`)
+	waitFor(`parseFloat(document.querySelector('[data-testid="net-worst"]').textContent) > 20`)
+	after, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-worst"]`)))
+	if before == after {
+		t.Errorf("band figure did not change: %q", after)
+	}
+	shot(t, ectx, filepath.Join(dir, "matching-built.png"))
+
+	// Drag L1's point on the chart toward a larger inductance: along its
+	// constant-resistance circle, clockwise (upward here).
+	st, _, _ := f.store.State(ctx0, f.sess.ID)
+	sc := f.srv.scene(f.sess.ID, st)
+	segs, handles := sc.net.path(-1, 0, 1)
+	from := handles[1].Gamma
+	zStart := rfmath.ZFromGamma(segs[1].Points[0], 50)
+	var path []complex128
+	for i := 1; i <= 10; i++ {
+		l := 137.83e-9 * (1 + 0.05*float64(i))
+		z := zStart + complex(0, 2*math.Pi*100e6*l)
+		path = append(path, rfmath.GammaFromZ(z, 50))
+	}
+	p0, err := screenOf(ectx, from)
+	must(err)
+	acts := []chromedp.Action[chromedp.Void]{chromedp.MouseEvent(chromedp.MousePressed, p0[0], p0[1], chromedp.ButtonLeft)}
+	for _, g := range path {
+		p, err := screenOf(ectx, g)
+		must(err)
+		acts = append(acts, chromedp.MouseEvent(chromedp.MouseMoved, p[0], p[1], chromedp.ButtonLeft), chromedp.Sleep(40*time.Millisecond))
+	}
+	pe, _ := screenOf(ectx, path[len(path)-1])
+	acts = append(acts, chromedp.MouseEvent(chromedp.MouseReleased, pe[0], pe[1], chromedp.ButtonLeft))
+	must(chromedp.Do(ectx, acts...))
+	// 137.83 nH × 1.5 = 206.7 nH, within the drag's pixel rounding.
+	waitFor(`(() => { const v = parseFloat(document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').value); return v > 190 && v < 225; })()`)
+	shot(t, ectx, filepath.Join(dir, "matching-dragged.png"))
 }

@@ -194,7 +194,10 @@ func (sc *scene) netTraces() []chartsvg.Trace {
 	if ne == nil || ne.err != nil || len(ne.n.Parts) == 0 {
 		return nil
 	}
-	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name + " (as typed)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.ideal, Dashed: ne.buy != nil, Ticks: -1}}
+	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.ideal, Dashed: ne.buy != nil, Ticks: -1}}
+	if ne.buy != nil {
+		out[0].Name += " (as typed)"
+	}
 	if ne.buy != nil {
 		out = append(out, chartsvg.Trace{ID: "netbuy-" + ne.n.ID, Name: ne.n.Name + " (standard values)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.buy, Ticks: -1})
 	}
