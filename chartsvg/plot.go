@@ -33,6 +33,10 @@ type Plot struct {
 	XMin, XMax, YMin, YMax float64
 	// LogY draws y on a base-10 logarithmic scale (values ≤ 0 are left out).
 	LogY bool
+	// XUnit, when set, makes x a quantity in that unit ("m", "s") rather
+	// than a frequency: tick labels take an SI prefix and that unit. The
+	// fields and data attributes named for Hz then hold that quantity.
+	XUnit string
 	// IDPrefix is put before every element id, so that several plots can
 	// share a page.
 	IDPrefix string
@@ -322,6 +326,9 @@ func (p *Plot) axes(sw *writer, l *plotLayout) {
 	sw.s(`/>`)
 	// Tick labels.
 	div, unit := siHz(math.Max(math.Abs(l.xmin), math.Abs(l.xmax)))
+	if p.XUnit != "" {
+		div, unit = siPrefix(math.Max(math.Abs(l.xmin), math.Abs(l.xmax)), p.XUnit)
+	}
 	sw.s(`<g fill="` + colMuted + `" text-anchor="middle">`)
 	for i := 0; i < nx; i++ {
 		f := xfirst + float64(i)*xstep

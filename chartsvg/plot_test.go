@@ -271,3 +271,23 @@ func TestPlotLayersMatchRender(t *testing.T) {
 		}
 	}
 }
+
+// A plot of distance labels its x ticks in metres with an SI prefix.
+func TestPlotXUnit(t *testing.T) {
+	t.Parallel()
+	p := Plot{XUnit: "m", XLabel: "Distance"}
+	s := Series{ID: "z", FreqHz: []float64{0, 0.25, 0.5}, Y: []float64{50, 75, 50}}
+	var b strings.Builder
+	if err := p.Render(&b, []Series{s}, nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), " mm<") && !strings.Contains(b.String(), " m<") {
+		t.Errorf("no metre tick labels in %q", b.String()[:300])
+	}
+	if strings.Contains(b.String(), "Hz<") {
+		t.Error("a distance plot labels ticks in Hz")
+	}
+	if div, u := siPrefix(0.004, "m"); div != 1e-3 || u != "mm" {
+		t.Errorf("siPrefix(0.004, m) = %g, %q", div, u)
+	}
+}

@@ -38,6 +38,20 @@ func siHz(hz float64) (float64, string) {
 	return 1, "Hz"
 }
 
+// siPrefix returns the divisor and prefixed unit for writing values up to
+// about v in unit: 0.0042 m → (1e-3, "mm").
+func siPrefix(v float64, unit string) (float64, string) {
+	for _, p := range []struct {
+		div float64
+		sym string
+	}{{1e12, "T"}, {1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}, {1e-12, "p"}} {
+		if math.Abs(v) >= p.div {
+			return p.div, p.sym + unit
+		}
+	}
+	return 1e-15, "f" + unit
+}
+
 // FormatHz writes a frequency with an SI prefix and up to six significant
 // digits, trailing zeros dropped: 2.4e9 → "2.4 GHz", 9.15e8 → "915 MHz".
 func FormatHz(hz float64) string {
