@@ -44,6 +44,7 @@ func commands() []command {
 		{"inspect", "print what a sweep shows: dips, band edges, resonances, readouts", runInspect},
 		{"convert", "convert a sweep between Touchstone 1/2 and CSV", runConvert},
 		{"demo", "write the invented demo sweeps to a folder", runDemo},
+		{"check", "pass or fail sweeps against return-loss limits; a lot summary for many", runCheck},
 	}
 }
 
