@@ -30,6 +30,8 @@ const (
 	OpPartSet       = "part.set"
 	OpPartRemove    = "part.remove"
 	OpPartMove      = "part.move"
+	OpSweepRefPlane = "sweep.refplane"
+	OpTDRSet        = "tdr.set"
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
@@ -44,6 +46,7 @@ var Ops = []string{
 	OpChartSet,
 	OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove,
 	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
+	OpSweepRefPlane, OpTDRSet,
 	OpUndo, OpRedo,
 }
 
@@ -103,6 +106,9 @@ var Ops = []string{
 //	                gesture                     gesture are one undo step
 //	part.remove     networkId, partId
 //	part.move       networkId, partId, index    move the part to place index (0 = at the load)
+//	sweep.refplane  sweepId, refPlane           set the sweep's reference plane (a [RefPlane];
+//	                                            absent or all zero: as measured)
+//	tdr.set         timeDomain                  set the time-domain view (a [TimeDomain])
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -154,6 +160,9 @@ type Change struct {
 	DesignHz  float64            `json:"designHz,omitempty"`
 	PowerW    *float64           `json:"powerW,omitempty"`
 	Parts     []Part             `json:"parts,omitempty"`
+
+	RefPlane   *RefPlane   `json:"refPlane,omitempty"`
+	TimeDomain *TimeDomain `json:"timeDomain,omitempty"`
 
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.

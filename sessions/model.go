@@ -34,6 +34,9 @@ type State struct {
 	Bands   []Band        `json:"bands"`
 	Chart   ChartSettings `json:"chart"`
 
+	// TimeDomain holds the time-domain view's settings.
+	TimeDomain TimeDomain `json:"timeDomain"`
+
 	// Networks are the candidate matching networks; ActiveNetwork names the
 	// one drawn and edited.
 	Networks      []Network `json:"networks,omitempty"`
@@ -97,8 +100,10 @@ type ChartSettings struct {
 // chart, no overlays.
 var DefaultChart = ChartSettings{ImpedanceGrid: true, Zoom: 1}
 
-// RefPlane describes how a sweep's reference plane is moved (port extension
-// and fixture removal). It is stored and returned but not yet interpreted.
+// RefPlane describes how a sweep's reference plane is moved: a 2-port
+// fixture removed at the analyser side, then a port extension (delay and
+// loss), then a change of reference impedance. The raw sweep is never
+// changed; the corrected one is computed from it.
 type RefPlane struct {
 	DelayS     float64 `json:"delayS,omitempty"`     // one-way electrical delay
 	LossDB     float64 `json:"lossDB,omitempty"`     // loss at LossRefHz, scaling as √f
@@ -108,6 +113,9 @@ type RefPlane struct {
 	// FixturePortFacingAnalyser is its port (1 or 2) on the analyser side.
 	FixtureSweepID            string `json:"fixtureSweepId,omitempty"`
 	FixturePortFacingAnalyser int    `json:"fixturePortFacingAnalyser,omitempty"`
+	// RenormOhm, when positive, shows the sweep in this real reference
+	// impedance instead of the file's.
+	RenormOhm float64 `json:"renormOhm,omitempty"`
 }
 
 // Network is a named candidate matching network placed between the load
@@ -164,6 +172,22 @@ type Part struct {
 	Model   string             `json:"model,omitempty"`
 	ESeries string             `json:"series,omitempty"`
 	Params  map[string]float64 `json:"params,omitempty"`
+}
+
+// TimeDomain are the settings of the time-domain view of one sweep's
+// reflection. Mode is "step" (low-pass step response as an impedance
+// profile), "impulse" (low-pass) or "bandpass" (impulse magnitude);
+// Window is "rect", "hann" or "kaiser" with Beta; VF converts the round
+// trip into one-way distance; GateCentreS and GateSpanS (seconds, round
+// trip) set the gate, a zero span meaning none.
+type TimeDomain struct {
+	SweepID     string  `json:"sweepId,omitempty"`
+	Mode        string  `json:"mode,omitempty"`
+	Window      string  `json:"window,omitempty"`
+	Beta        float64 `json:"beta,omitempty"`
+	VF          float64 `json:"vf,omitempty"`
+	GateCentreS float64 `json:"gateCentreS,omitempty"`
+	GateSpanS   float64 `json:"gateSpanS,omitempty"`
 }
 
 // NetworkIndex returns the index of network id in s.Networks, or −1.

@@ -331,6 +331,32 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
+	case OpSweepRefPlane:
+		i, err := sweepOf(ch.SweepID)
+		if err != nil {
+			return r, err
+		}
+		rp, err := checkRefPlane(op, cur, ch.SweepID, ch.RefPlane)
+		if err != nil {
+			return r, err
+		}
+		next.Sweeps[i].RefPlane = rp
+
+	case OpTDRSet:
+		if ch.TimeDomain == nil {
+			return r, invalid(op, "timeDomain", "missing")
+		}
+		td := *ch.TimeDomain
+		if td.SweepID != "" {
+			if _, err := sweepOf(td.SweepID); err != nil {
+				return r, err
+			}
+		}
+		if err := checkTimeDomain(op, &td); err != nil {
+			return r, err
+		}
+		next.TimeDomain = td
+
 	case OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove, OpPartAdd, OpPartSet, OpPartRemove, OpPartMove:
 		if err := computeNetwork(cur, next, ch, &r, lim); err != nil {
 			return r, err
