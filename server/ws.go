@@ -111,7 +111,24 @@ func (c *conn) queue(b []byte) {
 	select {
 	case c.send <- b:
 	default:
+		if c.isDone() {
+			return
+		}
 		c.close("too slow; reload")
+		// The writer may be blocked writing to a page that stopped
+		// reading: give that write a second, not writeWait, so the
+		// connection and its goroutines go soon.
+		c.ws.UnderlyingConn().SetWriteDeadline(time.Now().Add(time.Second))
+	}
+}
+
+// isDone reports whether c has been closed.
+func (c *conn) isDone() bool {
+	select {
+	case <-c.done:
+		return true
+	default:
+		return false
 	}
 }
 
@@ -139,6 +156,9 @@ func (c *conn) writer() {
 	for {
 		select {
 		case b := <-c.send:
+			if c.isDone() {
+				continue // closed meanwhile: drop the rest and say goodbye
+			}
 			c.ws.SetWriteDeadline(time.Now().Add(writeWait))
 			if err := c.ws.WriteMessage(websocket.TextMessage, b); err != nil {
 				c.close("")
