@@ -45,6 +45,8 @@ func commands() []command {
 		{"convert", "convert a sweep between Touchstone 1/2 and CSV", runConvert},
 		{"demo", "write the invented demo sweeps to a folder", runDemo},
 		{"check", "pass or fail sweeps against return-loss limits; a lot summary for many", runCheck},
+		{"deembed", "move the reference plane: remove a fixture or a port extension, renormalise", runDeembed},
+		{"tdr", "time-domain view of a reflection sweep: reflections by distance, impedance, gating", runTDR},
 	}
 }
 

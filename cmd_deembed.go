@@ -1,0 +1,226 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"matchbench/rfmath"
+	"matchbench/rfmath/deembed"
+	"matchbench/rfmath/touchstone"
+	"matchbench/rfmath/units"
+)
+
+const deembedUsage = "IN OUT [--fixture F.s2p [--fixture-port 1|2]] [--fixture2 F.s2p [--fixture2-port 1|2]] [--delay 1.26ns] [--loss DB] [--auto-open OPEN.s1p | --auto-short SHORT.s1p] [--port N] [--z0 OHMS]"
+
+// deembedSteps records what was done, for the report and the file header.
+type deembedSteps []string
+
+func (d *deembedSteps) add(format string, a ...any) { *d = append(*d, fmt.Sprintf(format, a...)) }
+
+func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet("deembed", deembedUsage, stderr)
+	fix1 := fs.String("fixture", "", "2-port `file` of the fixture at port 1 to remove")
+	fix1Port := fs.Int("fixture-port", 1, "the fixture's `port` (1 or 2) that faces the analyser")
+	fix2 := fs.String("fixture2", "", "2-port `file` of the fixture at port 2 of a 2-port sweep")
+	fix2Port := fs.Int("fixture2-port", 1, "the port-2 fixture's `port` (1 or 2) that faces the analyser")
+	delay := fs.String("delay", "", "port extension: one-way `delay` to remove (1.26ns)")
+	loss := fs.Float64("loss", 0, "port extension: one-way loss in `dB` at --loss-ref, scaling with √f")
+	lossRef := fs.String("loss-ref", "1GHz", "`frequency` at which --loss holds")
+	flat := fs.Float64("flat-loss", 0, "port extension: one-way loss in `dB` at every frequency")
+	autoOpen := fs.String("auto-open", "", "fit the port extension to this sweep of the open end (`file`) and remove it")
+	autoShort := fs.String("auto-short", "", "fit the port extension to this sweep of the shorted end (`file`) and remove it")
+	port := fs.Int("port", 0, "apply the port extension to this `port` only (default: every port)")
+	z0 := fs.Float64("z0", 0, "write the result against this reference `impedance` in ohms (default: the input's)")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 2 {
+		return usagef("want IN and OUT, got %d arguments", len(pos))
+	}
+	in, out := pos[0], pos[1]
+	if *fix1Port != 1 && *fix1Port != 2 || *fix2Port != 1 && *fix2Port != 2 {
+		return usagef("--fixture-port and --fixture2-port are 1 or 2")
+	}
+	if *autoOpen != "" && *autoShort != "" {
+		return usagef("give --auto-open or --auto-short, not both")
+	}
+	if (*autoOpen != "" || *autoShort != "") && (*delay != "" || *loss != 0 || *flat != 0) {
+		return usagef("--auto-open/--auto-short fit the delay and loss; do not give --delay or --loss too")
+	}
+	var ext deembed.Extension
+	if *delay != "" {
+		d, err := units.ParseValue(*delay, "s")
+		if err != nil {
+			return usagef("--delay: %v", err)
+		}
+		ext.DelayS = d
+	}
+	if math.IsNaN(*loss) || math.IsInf(*loss, 0) || math.IsNaN(*flat) || math.IsInf(*flat, 0) {
+		return usagef("--loss and --flat-loss must be finite")
+	}
+	ext.LossDB, ext.FlatLossDB = *loss, *flat
+	if ext.LossRefHz, err = units.ParseFrequency(*lossRef); err != nil || ext.LossRefHz == 0 {
+		return usagef("--loss-ref %q: want a frequency above 0", *lossRef)
+	}
+	if *z0 < 0 || math.IsNaN(*z0) || math.IsInf(*z0, 0) {
+		return usagef("--z0 %g: the reference impedance must be positive", *z0)
+	}
+	if *fix1 == "" && *fix2 == "" && ext == (deembed.Extension{LossRefHz: ext.LossRefHz}) && *autoOpen == "" && *autoShort == "" && *z0 == 0 {
+		return usagef("nothing to do: give --fixture, --delay, --auto-open, --auto-short or --z0")
+	}
+
+	ls, err := loadSweep(in)
+	if err != nil {
+		return err
+	}
+	s := ls.Sweep
+	if *port < 0 || *port > s.Ports {
+		return usagef("--port %d: %s has %d port(s)", *port, in, s.Ports)
+	}
+	if *fix2 != "" && s.Ports != 2 {
+		return usagef("--fixture2 needs a 2-port sweep; %s has %d port(s)", in, s.Ports)
+	}
+	var steps deembedSteps
+
+	// 1. Fixtures.
+	if *fix1 != "" || *fix2 != "" {
+		fix := make([]deembed.Fixture, s.Ports)
+		for i, f := range []struct {
+			path string
+			at   int
+		}{{*fix1, *fix1Port}, {*fix2, *fix2Port}} {
+			if f.path == "" {
+				continue
+			}
+			fl, err := loadSweep(f.path)
+			if err != nil {
+				return err
+			}
+			fix[i] = deembed.Fixture{S: fl.Sweep, AnalyserPort: f.at}
+			steps.add("removed fixture %s from port %d (its port %d at the analyser)", filepath.Base(f.path), i+1, f.at)
+		}
+		if s, err = deembed.Remove(s, fix); err != nil {
+			return err
+		}
+	}
+
+	// 2. Port extension, given or fitted.
+	if *autoOpen != "" || *autoShort != "" {
+		path, std := *autoOpen, deembed.Open
+		if *autoShort != "" {
+			path, std = *autoShort, deembed.Short
+		}
+		ol, err := loadSweep(path)
+		if err != nil {
+			return err
+		}
+		fit, err := deembed.FitExtension(ol.Sweep, std, nil)
+		if err != nil {
+			return fmt.Errorf("%s: %w", path, err)
+		}
+		ext = fit.Extension
+		steps.add("fitted on the %s end %s: delay %s (+/- %s), loss %.4f dB at %s (sqrt f) + %.4f dB flat; residual %.2f deg, %.3f dB rms; offset %.2f deg",
+			std, filepath.Base(path), units.Format(ext.DelayS, "s", 6), units.Format(fit.DelaySE, "s", 2), ext.LossDB, units.FormatFrequency(ext.LossRefHz, 4),
+			ext.FlatLossDB, fit.PhaseRMSDeg, fit.MagRMSDB, fit.OffsetDeg)
+	}
+	if ext.DelayS != 0 || ext.LossDB != 0 || ext.FlatLossDB != 0 {
+		exts := make([]deembed.Extension, s.Ports)
+		for i := range exts {
+			if *port == 0 || *port == i+1 {
+				exts[i] = ext
+			}
+		}
+		s = deembed.Extend(s, exts)
+		where := "every port"
+		if *port != 0 {
+			where = fmt.Sprintf("port %d", *port)
+		}
+		steps.add("port extension at %s: delay %s, loss %.4g dB at %s + %.4g dB flat", where, units.Format(ext.DelayS, "s", 6), ext.LossDB, units.FormatFrequency(ext.LossRefHz, 4), ext.FlatLossDB)
+	}
+
+	// 3. Reference.
+	if *z0 > 0 {
+		if s, err = deembed.RenormalizeAll(s, *z0); err != nil {
+			return err
+		}
+		steps.add("renormalised to %s ohm", strconv.FormatFloat(*z0, 'g', -1, 64))
+	}
+
+	comments := []string{" de-embedded by matchbench from " + filepath.Base(in)}
+	for _, st := range steps {
+		comments = append(comments, " "+st)
+	}
+	if err := writeSweepFile(out, s, comments); err != nil {
+		return err
+	}
+	for _, st := range steps {
+		fmt.Fprintln(stdout, st)
+	}
+	fmt.Fprintf(stdout, "wrote %s (%d points, %d-port)\n", out, s.Len(), s.Ports)
+	return nil
+}
+
+// writeSweepFile writes s to path as CSV (.csv, 1-port), Touchstone 2
+// (.ts) or Touchstone 1 (.sNp, N the port count), through a temporary file
+// renamed into place. Comments must be printable ASCII; others are dropped
+// from Touchstone headers.
+func writeSweepFile(path string, s *rfmath.Sweep, comments []string) error {
+	ext := strings.ToLower(filepath.Ext(path))
+	version := 1
+	switch {
+	case ext == ".csv":
+		if s.Ports != 1 {
+			return usagef("%s: CSV output holds 1-port sweeps only; this one has %d ports", path, s.Ports)
+		}
+	case ext == ".ts":
+		version = 2
+	default:
+		n, ok := touchstone.PortsFromName(path)
+		if !ok || n != s.Ports {
+			return usagef("%s: the output ending must be .csv, .ts or .s%dp", path, s.Ports)
+		}
+	}
+	var ascii []string
+	for _, c := range comments {
+		ok := true
+		for i := 0; i < len(c); i++ {
+			if c[i] < 0x20 || c[i] > 0x7e {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			ascii = append(ascii, c)
+		}
+	}
+	tmp := path + ".tmp"
+	fh, err := os.Create(tmp)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriter(fh)
+	if ext == ".csv" {
+		err = touchstone.WriteCSV(bw, s)
+	} else {
+		err = touchstone.Write(bw, s, touchstone.WriteOptions{Version: version, Format: "RI", Digits: 12, Comments: ascii})
+	}
+	if err == nil {
+		err = bw.Flush()
+	}
+	if cerr := fh.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return err
+	}
+	return os.Rename(tmp, path)
+}
