@@ -15,6 +15,7 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"net"
 	"net/http"
 	"net/http/httptest"
 	"net/url"
@@ -34,6 +35,13 @@ import (
 // newFixtureOpts is newFixture with store options and a hook to change the
 // server's configuration before it starts.
 func newFixtureOpts(t testing.TB, points int, opt sessions.Options, cfg func(*Config)) *fixture {
+	t.Helper()
+	return newFixtureConns(t, points, opt, cfg, nil)
+}
+
+// newFixtureConns is newFixtureOpts whose server passes each accepted
+// connection to conn first (nil: nothing).
+func newFixtureConns(t testing.TB, points int, opt sessions.Options, cfg func(*Config), conn func(net.Conn)) *fixture {
 	t.Helper()
 	st, err := sessions.OpenWith(t.TempDir(), opt)
 	if err != nil {
@@ -58,13 +66,31 @@ func newFixtureOpts(t testing.TB, points int, opt sessions.Options, cfg func(*Co
 		cfg(&c)
 	}
 	srv := New(c)
-	ts := httptest.NewServer(srv) // 127.0.0.1 only
+	ts := httptest.NewUnstartedServer(srv) // 127.0.0.1 only
+	if conn != nil {
+		ts.Listener = hookListener{ts.Listener, conn}
+	}
+	ts.Start()
 	t.Cleanup(func() {
 		srv.Shutdown()
 		ts.Close()
 		st.Close()
 	})
 	return &fixture{store: st, srv: srv, ts: ts, sess: se, sweep: ev.SweepID, mk: mev.MarkerID}
+}
+
+// hookListener passes each accepted connection to hook.
+type hookListener struct {
+	net.Listener
+	hook func(net.Conn)
+}
+
+func (l hookListener) Accept() (net.Conn, error) {
+	c, err := l.Listener.Accept()
+	if err == nil {
+		l.hook(c)
+	}
+	return c, err
 }
 
 // noRedirect is a client that shows redirects instead of following them.
