@@ -46,19 +46,34 @@ type scene struct {
 	fmin   float64
 	fmax   float64
 	plotsC []plot
-	net    *netEval // the active matching network, or nil
-	prev   *scene   // the scene before, while a room renders an event
+	net    *netEval                 // the active matching network, or nil
+	raw    map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
+	errs   map[string]string        // sweeps whose plane could not be applied
+
+	tdrDone bool // tdrP and tdrNote hold the time-domain view
+	tdrP    *plot
+	tdrNote string
+	prev    *scene // the scene before, while a room renders an event
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
 // out and logged.
 func (s *Server) scene(sid string, st *sessions.State) *scene {
-	sc := &scene{sid: sid, st: st, all: map[string]*rfmath.Sweep{}, fmin: math.Inf(1), fmax: math.Inf(-1)}
+	sc := &scene{sid: sid, st: st, all: map[string]*rfmath.Sweep{}, raw: map[string]*rfmath.Sweep{}, errs: map[string]string{}, fmin: math.Inf(1), fmax: math.Inf(-1)}
 	for _, ref := range st.Sweeps {
 		sw, err := s.store.Sweep(sid, ref.ID)
 		if err != nil {
 			s.log.Error("read sweep", "sweep", ref.ID, "err", err)
 			continue
+		}
+		if ref.RefPlane != nil {
+			c, err := s.corrected(sid, ref, sw)
+			if err != nil {
+				sc.errs[ref.ID] = "the reference plane cannot be applied: " + err.Error()
+			} else {
+				sc.raw[ref.ID] = sw
+				sw = c
+			}
 		}
 		sc.all[ref.ID] = sw
 		if !ref.Visible {
@@ -131,6 +146,12 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 			ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Gamma: t.gamma,
 			Dashed: t.port == 2, KeepHz: keep,
 		})
+		if raw := sc.raw[t.ref.ID]; raw != nil && t.port == 1 {
+			out = append(out, chartsvg.Trace{
+				ID: t.ref.ID + "-raw", Name: name + " (as measured)", Color: t.ref.Color, FreqHz: raw.FreqHz,
+				Gamma: raw.Param(nil, 0, 0), Dashed: true, Ticks: -1,
+			})
+		}
 	}
 	return out
 }
@@ -248,6 +269,9 @@ func (sc *scene) plots() []plot {
 	sc.plotsC = []plot{
 		mk("refl", "Reflection |S11|", "|S11|", "dB", rl, bands),
 		mk("zx", "Impedance: R solid, X dashed", "R, X", "Ω", zx, nil),
+	}
+	if p, _ := sc.tdrPlot(); p != nil {
+		sc.plotsC = append(sc.plotsC, *p)
 	}
 	return sc.plotsC
 }
@@ -449,6 +473,7 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		ID: a.SessionID, Name: sc.st.Name, Version: ver, CanEdit: a.Cap == sessions.Edit, Token: a.Token,
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
-		Network: sc.networkView(),
+		Network:  sc.networkView(),
+		RefPlane: sc.refPlaneView(),
 	}
 }

@@ -69,6 +69,7 @@ type Server struct {
 	mu     sync.Mutex
 	rooms  map[string]*room
 	closed bool
+	corr   corrections
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.

@@ -310,10 +310,12 @@ func (c *conn) applier(ctx context.Context) {
 func (c *conn) apply(ctx context.Context, m inMsg) {
 	var ch sessions.Change
 	switch {
-	case m.Type == "form" && networkForms[m.Form]:
+	case m.Type == "form" && (networkForms[m.Form] || planeForms[m.Form]):
 		sc, err := c.scene(ctx)
-		if err == nil {
+		if err == nil && networkForms[m.Form] {
 			ch, err = sc.partChange(m.Form, m.Fields)
+		} else if err == nil {
+			ch, err = sc.refPlaneChange(c.s, m.Form, m.Fields)
 		}
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
@@ -366,6 +368,10 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 // networkForms are the forms whose fields need the session's current scene
 // (the active network's parts and design frequency).
 var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true}
+
+// planeForms are the reference-plane and time-domain forms; they too need
+// the scene (the sweeps, corrected or raw).
+var planeForms = map[string]bool{"refplane.set": true, "refplane.fit": true, "tdr.set": true, "tdr.gate": true}
 
 // scene returns the scene of the session's current state.
 func (c *conn) scene(ctx context.Context) (*scene, error) {

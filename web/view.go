@@ -43,19 +43,20 @@ type SessionRow struct {
 
 // SessionView is the session page.
 type SessionView struct {
-	ID      string
-	Name    string
-	Version int64
-	CanEdit bool
-	Token   string // the token in the page's address, used by the websocket
-	Share   ShareView
-	Chart   ChartView
-	Plots   []PlotView
-	Sweeps  []SweepRow
-	Markers []ReadoutRow
-	Bands   []BandRow
-	Options ChartOptions
-	Network NetworkView
+	ID       string
+	Name     string
+	Version  int64
+	CanEdit  bool
+	Token    string // the token in the page's address, used by the websocket
+	Share    ShareView
+	Chart    ChartView
+	Plots    []PlotView
+	Sweeps   []SweepRow
+	Markers  []ReadoutRow
+	Bands    []BandRow
+	Options  ChartOptions
+	Network  NetworkView
+	RefPlane RefPlaneView
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
 }
@@ -202,4 +203,25 @@ type ReportView struct {
 	Parts                                            [][]string
 	Power                                            []PowerRow
 	PowerW                                           string
+}
+
+// RefPlaneView is the reference-plane panel and the time-domain settings.
+type RefPlaneView struct {
+	Sweeps []RefPlaneRow
+	TDR    TDRView
+}
+
+// RefPlaneRow is one sweep's reference plane.
+type RefPlaneRow struct {
+	ID, Name, Summary, Error                    string
+	Ports                                       int
+	Delay, Loss, LossRef, Flat, Fixture, Renorm string
+}
+
+// TDRView holds the time-domain view's settings as the panel shows them.
+type TDRView struct {
+	SweepID, Mode, Window, Beta, VF string
+	GateCentre, GateSpan            string
+	HasGate                         bool
+	Note                            string
 }

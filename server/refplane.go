@@ -1,0 +1,344 @@
+package server
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"sync"
+
+	"matchbench/chartsvg"
+	"matchbench/rfmath"
+	"matchbench/rfmath/deembed"
+	"matchbench/rfmath/tdr"
+	"matchbench/rfmath/touchstone"
+	"matchbench/rfmath/units"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// corrections caches corrected sweeps by session, sweep and plane: sweeps
+// are immutable, so a plane always gives the same result.
+type corrections struct {
+	mu sync.Mutex
+	m  map[string]corrected
+}
+
+type corrected struct {
+	s   *rfmath.Sweep
+	err error
+}
+
+const maxCorrections = 128
+
+// corrected returns sweep ref of session sid with its reference plane
+// applied: the fixture removed at the analyser side, then the port
+// extension, then the change of reference.
+func (s *Server) corrected(sid string, ref sessions.SweepRef, raw *rfmath.Sweep) (*rfmath.Sweep, error) {
+	rp := ref.RefPlane
+	if rp == nil {
+		return raw, nil
+	}
+	kb, _ := json.Marshal(rp)
+	key := sid + "/" + ref.ID + "/" + string(kb)
+	s.corr.mu.Lock()
+	if c, ok := s.corr.m[key]; ok {
+		s.corr.mu.Unlock()
+		return c.s, c.err
+	}
+	s.corr.mu.Unlock()
+	out, err := s.applyPlane(sid, rp, raw)
+	s.corr.mu.Lock()
+	if s.corr.m == nil || len(s.corr.m) >= maxCorrections {
+		s.corr.m = map[string]corrected{}
+	}
+	s.corr.m[key] = corrected{out, err}
+	s.corr.mu.Unlock()
+	return out, err
+}
+
+func (s *Server) applyPlane(sid string, rp *sessions.RefPlane, raw *rfmath.Sweep) (*rfmath.Sweep, error) {
+	sw := raw
+	if rp.FixtureSweepID != "" {
+		fx, err := s.store.Sweep(sid, rp.FixtureSweepID)
+		if err != nil {
+			return nil, fmt.Errorf("the fixture sweep: %w", err)
+		}
+		fix := make([]deembed.Fixture, sw.Ports)
+		fix[0] = deembed.Fixture{S: fx, AnalyserPort: rp.FixturePortFacingAnalyser}
+		if sw, err = deembed.Remove(sw, fix); err != nil {
+			return nil, err
+		}
+	}
+	if rp.DelayS != 0 || rp.LossDB != 0 || rp.FlatLossDB != 0 {
+		sw = deembed.ExtendAll(sw, deembed.Extension{DelayS: rp.DelayS, LossDB: rp.LossDB, LossRefHz: rp.LossRefHz, FlatLossDB: rp.FlatLossDB})
+	}
+	if rp.RenormOhm > 0 {
+		var err error
+		if sw, err = deembed.RenormalizeAll(sw, rp.RenormOhm); err != nil {
+			return nil, err
+		}
+	}
+	return sw, nil
+}
+
+// refPlaneChange turns the reference-plane and time-domain forms into
+// changes. Times and frequencies take SI prefixes ("1.26n", "1G").
+func (sc *scene) refPlaneChange(s *Server, form string, f map[string]string) (sessions.Change, error) {
+	fe := func(field, label string, err error) error { return &FieldError{form, field, label, err} }
+	val := func(field, label, unit string) (float64, error) {
+		t := strings.TrimSpace(f[field])
+		if t == "" {
+			return 0, nil
+		}
+		v, err := units.ParseValue(t, unit)
+		if err != nil {
+			return 0, fe(field, label, err)
+		}
+		return v, nil
+	}
+	switch form {
+	case "refplane.set":
+		rp := sessions.RefPlane{FixtureSweepID: f["fixture"]}
+		var err error
+		if rp.DelayS, err = val("delay", "Delay", "s"); err != nil {
+			return sessions.Change{}, err
+		}
+		if l := strings.TrimSpace(f["length"]); l != "" && rp.DelayS == 0 {
+			lm, err := val("length", "Length", "m")
+			if err != nil {
+				return sessions.Change{}, err
+			}
+			vf, err := val("vf", "Velocity factor", "")
+			if err != nil {
+				return sessions.Change{}, err
+			}
+			if vf == 0 {
+				vf = 1
+			}
+			rp.DelayS = deembed.FromLength(lm, vf).DelayS
+		}
+		if rp.LossDB, err = val("loss", "Loss", "dB"); err != nil {
+			return sessions.Change{}, err
+		}
+		if t := strings.TrimSpace(f["lossRef"]); t != "" {
+			if rp.LossRefHz, err = units.ParseFrequency(t); err != nil {
+				return sessions.Change{}, fe("lossRef", "Loss frequency", err)
+			}
+		}
+		if rp.FlatLossDB, err = val("flat", "Flat loss", "dB"); err != nil {
+			return sessions.Change{}, err
+		}
+		if rp.RenormOhm, err = val("renorm", "Reference impedance", "Ω"); err != nil {
+			return sessions.Change{}, err
+		}
+		if p := f["fixturePort"]; p != "" {
+			rp.FixturePortFacingAnalyser, _ = strconv.Atoi(p)
+		}
+		return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: f["sweepId"], RefPlane: &rp}, nil
+
+	case "refplane.fit":
+		// Fit an extension to a sweep of the open (or shorted) end of the
+		// cable or fixture, and set it as the target sweep's extension.
+		from := sc.all[f["fromId"]]
+		if from == nil {
+			return sessions.Change{}, fe("fromId", "Fit from", fmt.Errorf("choose the sweep of the open or shorted end"))
+		}
+		i := sc.st.SweepIndex(f["fromId"])
+		if i >= 0 && sc.st.Sweeps[i].RefPlane != nil {
+			raw, err := s.store.Sweep(sc.sid, f["fromId"])
+			if err == nil {
+				from = raw // fit the raw measurement
+			}
+		}
+		std := deembed.Open
+		if f["standard"] == "short" {
+			std = deembed.Short
+		}
+		fit, err := deembed.FitExtension(from, std, nil)
+		if err != nil {
+			return sessions.Change{}, fe("fromId", "Fit", err)
+		}
+		e := fit.Extension
+		rp := sessions.RefPlane{DelayS: e.DelayS, LossDB: e.LossDB, LossRefHz: e.LossRefHz, FlatLossDB: e.FlatLossDB}
+		if j := sc.st.SweepIndex(f["sweepId"]); j >= 0 && sc.st.Sweeps[j].RefPlane != nil {
+			old := sc.st.Sweeps[j].RefPlane
+			rp.FixtureSweepID, rp.FixturePortFacingAnalyser, rp.RenormOhm = old.FixtureSweepID, old.FixturePortFacingAnalyser, old.RenormOhm
+		}
+		return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: f["sweepId"], RefPlane: &rp}, nil
+
+	case "tdr.set":
+		td := sessions.TimeDomain{SweepID: f["sweepId"], Mode: f["mode"], Window: f["window"]}
+		var err error
+		if td.Beta, err = val("beta", "Kaiser β", ""); err != nil {
+			return sessions.Change{}, err
+		}
+		if td.VF, err = val("vf", "Velocity factor", ""); err != nil {
+			return sessions.Change{}, err
+		}
+		if td.GateCentreS, err = val("gateCentre", "Gate centre", "s"); err != nil {
+			return sessions.Change{}, err
+		}
+		if td.GateSpanS, err = val("gateSpan", "Gate span", "s"); err != nil {
+			return sessions.Change{}, err
+		}
+		return sessions.Change{Op: sessions.OpTDRSet, TimeDomain: &td}, nil
+
+	case "tdr.gate":
+		// The gated sweep becomes a sweep of its own.
+		td := sc.st.TimeDomain
+		sw := sc.all[td.SweepID]
+		if sw == nil || td.GateSpanS <= 0 {
+			return sessions.Change{}, fmt.Errorf("set a gate (centre and span) on a sweep first")
+		}
+		w, _ := tdr.ParseWindow(windowSpec(td))
+		g, err := tdr.GateSweep(sw, tdr.Gate{CentreS: td.GateCentreS, SpanS: td.GateSpanS, Shape: w}, &tdr.Settings{Window: w})
+		if err != nil {
+			return sessions.Change{}, err
+		}
+		var b bytes.Buffer
+		name := sweepName(sc.st, td.SweepID) + " gated"
+		if err := touchstone.Write(&b, g, touchstone.WriteOptions{Comments: asciiOnly([]string{
+			fmt.Sprintf(" %s gated in time: centre %s, span %s (round trip), %s window", sweepName(sc.st, td.SweepID),
+				units.Format(td.GateCentreS, "s", 4), units.Format(td.GateSpanS, "s", 4), td.Window)})}); err != nil {
+			return sessions.Change{}, err
+		}
+		return sessions.Change{Op: sessions.OpSweepAdd, Name: name, FileName: safeName(name) + ".s1p", Raw: b.Bytes(), Sweep: g}, nil
+	}
+	return sessions.Change{}, fmt.Errorf("unknown form %q", form)
+}
+
+func windowSpec(td sessions.TimeDomain) string {
+	if td.Window == "kaiser" {
+		return "kaiser:" + strconv.FormatFloat(td.Beta, 'g', -1, 64)
+	}
+	return td.Window
+}
+
+// tdrPlot draws the time-domain view: the impedance profile (step mode),
+// the impulse response, or the band-pass impulse magnitude, against
+// one-way distance, with the gate shaded.
+func (sc *scene) tdrPlot() (*plot, string) {
+	if !sc.tdrDone {
+		sc.tdrP, sc.tdrNote = sc.computeTDR()
+		sc.tdrDone = true
+	}
+	return sc.tdrP, sc.tdrNote
+}
+
+func (sc *scene) computeTDR() (*plot, string) {
+	td := sc.st.TimeDomain
+	sw := sc.all[td.SweepID]
+	if sw == nil {
+		return nil, ""
+	}
+	w, err := tdr.ParseWindow(windowSpec(td))
+	if err != nil {
+		return nil, err.Error()
+	}
+	mode := tdr.LowPass
+	if td.Mode == "bandpass" {
+		mode = tdr.BandPass
+	}
+	g := sw.Param(nil, 0, 0)
+	r, err := tdr.Transform(sw.FreqHz, g, &tdr.Settings{Mode: mode, Window: w, Pad: 4})
+	if err != nil {
+		return nil, err.Error()
+	}
+	vf := td.VF
+	if vf == 0 {
+		vf = 1
+	}
+	x := r.DistanceTo(nil, vf)
+	var y []float64
+	ylabel, yunit, title := "Impedance", "Ω", "Time domain: impedance along the feed"
+	switch {
+	case td.Mode == "step" && r.Step != nil:
+		y = r.ImpedanceTo(nil, sw.Z0[0])
+		for i, v := range y {
+			if v > 1000 || v < 0 || math.IsInf(v, 0) {
+				y[i] = math.NaN()
+			}
+		}
+	default:
+		y = r.Impulse
+		ylabel, yunit, title = "Impulse response", "", "Time domain: reflections along the feed"
+	}
+	// Show from just before the plane to the end of the unambiguous range.
+	var xs, ys []float64
+	for i := range x {
+		if r.TimeS[i] >= -0.05*r.RangeS() && r.TimeS[i] <= 0.875*r.RangeS() {
+			xs = append(xs, x[i])
+			ys = append(ys, y[i])
+		}
+	}
+	p := chartsvg.Plot{Width: plotWidth, Height: plotHeight, Title: title, XLabel: fmt.Sprintf("One-way distance at velocity factor %.3g", vf), XUnit: "m", YLabel: ylabel, YUnit: yunit, IDPrefix: "tdr-", NoLegend: true}
+	series := []chartsvg.Series{{ID: "tdr", Name: sweepName(sc.st, td.SweepID), Color: "#1f5fa8", FreqHz: xs, Y: ys}}
+	var bands []chartsvg.Band
+	if td.GateSpanS > 0 {
+		bands = append(bands, chartsvg.Band{Name: "gate", LoHz: tdr.Distance(td.GateCentreS-td.GateSpanS/2, vf), HiHz: tdr.Distance(td.GateCentreS+td.GateSpanS/2, vf)})
+	}
+	rp := p.Resolve(series, bands)
+	note := fmt.Sprintf("%s mode, %s window; resolution %s (%s one way), range %s round trip",
+		r.Mode, r.Window, units.Format(r.ResolutionS(), "s", 3), units.Format(tdr.Distance(r.ResolutionS(), vf), "m", 3), units.Format(r.RangeS(), "s", 3))
+	if r.Resampled {
+		note += "; the sweep was resampled onto the harmonic grid the transform needs"
+	}
+	if r.DCExtrapolated {
+		note += "; the DC value was extrapolated"
+	}
+	return &plot{id: "tdr", title: "Time domain", p: rp, series: series, bands: bands}, note
+}
+
+// refPlaneView builds the reference-plane and time-domain panels.
+func (sc *scene) refPlaneView() web.RefPlaneView {
+	v := web.RefPlaneView{}
+	for _, ref := range sc.st.Sweeps {
+		o := web.RefPlaneRow{ID: ref.ID, Name: ref.Name, Ports: ref.Ports}
+		if rp := ref.RefPlane; rp != nil {
+			var parts []string
+			if rp.FixtureSweepID != "" {
+				parts = append(parts, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(sc.st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
+			}
+			if rp.DelayS != 0 {
+				parts = append(parts, "delay "+units.Format(rp.DelayS, "s", 4))
+			}
+			if rp.LossDB != 0 {
+				parts = append(parts, fmt.Sprintf("loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
+			}
+			if rp.FlatLossDB != 0 {
+				parts = append(parts, fmt.Sprintf("flat loss %.3g dB", rp.FlatLossDB))
+			}
+			if rp.RenormOhm > 0 {
+				parts = append(parts, "shown in "+units.Format(rp.RenormOhm, "Ω", 4))
+			}
+			o.Summary = strings.Join(parts, "; ")
+			o.Delay = units.Format(rp.DelayS, "s", 5)
+			o.Loss = strconv.FormatFloat(rp.LossDB, 'g', 5, 64)
+			o.LossRef = fmtF(rp.LossRefHz)
+			o.Flat = strconv.FormatFloat(rp.FlatLossDB, 'g', 5, 64)
+			o.Fixture = rp.FixtureSweepID
+			if rp.RenormOhm > 0 {
+				o.Renorm = strconv.FormatFloat(rp.RenormOhm, 'g', 6, 64)
+			}
+			if sc.errs[ref.ID] != "" {
+				o.Error = sc.errs[ref.ID]
+			}
+		}
+		v.Sweeps = append(v.Sweeps, o)
+	}
+	td := sc.st.TimeDomain
+	v.TDR = web.TDRView{SweepID: td.SweepID, Mode: td.Mode, Window: td.Window, Beta: strconv.FormatFloat(td.Beta, 'g', 4, 64),
+		VF: strconv.FormatFloat(td.VF, 'g', 4, 64)}
+	if _, note := sc.tdrPlot(); note != "" {
+		v.TDR.Note = note
+	}
+	if td.GateSpanS > 0 {
+		v.TDR.GateCentre = units.Format(td.GateCentreS, "s", 4)
+		v.TDR.GateSpan = units.Format(td.GateSpanS, "s", 4)
+		v.TDR.HasGate = true
+	}
+	return v
+}
