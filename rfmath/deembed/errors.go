@@ -37,6 +37,7 @@ const (
 	badLength  = "deembed: destination length mismatch"
 	badPortNum = "deembed: port out of range"
 	badExtLen  = "deembed: number of extensions differs from the number of ports"
+	badRefLen  = "deembed: number of references differs from the number of ports"
 	badFixLen  = "deembed: number of fixtures differs from the number of ports"
 	badFixPort = "deembed: fixture AnalyserPort must be 1 or 2"
 	badGammaF  = "deembed: gamma and frequency lengths differ"

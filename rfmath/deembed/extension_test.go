@@ -153,3 +153,14 @@ func TestExtendPanics(t *testing.T) {
 		t.Error("GammaTo with a short gamma did not panic")
 	}
 }
+
+// TestGammaToAllocs: with dst given, the sweep loop does not allocate.
+func TestGammaToAllocs(t *testing.T) {
+	f := grid(1e6, 1e6, 1000)
+	g := make([]complex128, len(f))
+	dst := make([]complex128, len(f))
+	e := Extension{DelayS: 1e-9, LossDB: 0.3, LossRefHz: 1e9, FlatLossDB: 0.1}
+	if n := testing.AllocsPerRun(10, func() { e.GammaTo(dst, g, f) }); n != 0 {
+		t.Errorf("GammaTo allocates %v times", n)
+	}
+}

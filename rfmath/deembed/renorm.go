@@ -19,7 +19,7 @@ import (
 // wrapping [rfmath.ErrReference]; a z0 whose length is not s.Ports panics.
 func Renormalize(s *rfmath.Sweep, z0 []float64) (*rfmath.Sweep, error) {
 	if len(z0) != s.Ports {
-		panic(badExtLen)
+		panic(badRefLen)
 	}
 	out := s.Clone()
 	copy(out.Z0, z0)
