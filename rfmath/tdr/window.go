@@ -12,14 +12,15 @@ type WindowKind int
 
 const (
 	// Rectangular weights every point equally: the sharpest main lobe and
-	// side lobes 13 dB down (Harris 1978).
+	// side lobes 13 dB down (Harris 1978; 13.3 dB computed).
 	Rectangular WindowKind = iota
 	// Hann is the raised cosine, cos²(π·u/2): side lobes 31 dB down,
-	// falling 18 dB per octave (Harris 1978).
+	// falling 18 dB per octave (Harris 1978; 31.5 dB computed).
 	Hann
 	// Kaiser is the I0–sinh window with shape parameter Beta (Kaiser
-	// 1974): β = 0 is rectangular; β = 6 gives side lobes about 44 dB down
-	// (Harris 1978 tabulates πα = β for α = 2, 2.5, 3, 3.5: from memory).
+	// 1974): β = 0 is rectangular; larger β trades a wider main lobe for
+	// lower side lobes, 43.8 dB down at β = 6 (computed). Harris 1978
+	// writes β as πα.
 	Kaiser
 )
 
