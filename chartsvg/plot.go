@@ -436,6 +436,11 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 	p.id(sw, "bands", "")
 	sw.s(`>`)
 	clampX := func(f float64) float64 { return math.Max(l.x0, math.Min(l.x1, l.px(f))) }
+	// Band names go on the first of two rows where they do not run into an
+	// earlier name (about 5.8 units a character at this size); a name that
+	// fits on neither is left out.
+	var rowEnd [2]float64
+	rowEnd[0], rowEnd[1] = math.Inf(-1), math.Inf(-1)
 	for _, b := range bands {
 		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
 		if !(x1 > x0) {
@@ -448,12 +453,20 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 		sw.numAttr("height", l.y1-l.y0)
 		sw.s(`/>`)
 		if b.Name != "" {
-			sw.s(`<text fill="#3b6b52" font-size="10.5"` + haloStyle)
-			sw.numAttr("x", x0+4)
-			sw.numAttr("y", l.y0+13)
-			sw.s(`>`)
-			sw.text(b.Name)
-			sw.s(`</text>`)
+			w := 5.8 * float64(utf8.RuneCountInString(b.Name))
+			for r := range rowEnd {
+				if x0+4 < rowEnd[r]+6 {
+					continue
+				}
+				sw.s(`<text fill="#3b6b52" font-size="10.5"` + haloStyle)
+				sw.numAttr("x", x0+4)
+				sw.numAttr("y", l.y0+13+12*float64(r))
+				sw.s(`>`)
+				sw.text(b.Name)
+				sw.s(`</text>`)
+				rowEnd[r] = x0 + 4 + w
+				break
+			}
 		}
 	}
 	// Limit lines: bands in order of frequency; a band that starts where
@@ -483,8 +496,17 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 			prevHi = b.HiHz
 		}
 		sw.s(`"/><g fill="` + colLimit + `" font-size="10.5"` + haloStyle + `>`)
+		labelEnd, prevLimit := math.Inf(-1), math.NaN()
+		prevHi = math.NaN()
 		for _, i := range order {
 			b := bands[i]
+			joined := b.LoHz == prevHi && b.Limit == prevLimit
+			prevHi, prevLimit = b.HiHz, b.Limit
+			x := clampX(b.LoHz) + 3
+			if joined || x < labelEnd+6 {
+				continue // the same level goes on, or the label would overlap
+			}
+			labelEnd = x + 5.8*float64(len("limit ")+len(strconv.FormatFloat(b.Limit, 'g', 4, 64))+1+utf8.RuneCountInString(p.YUnit))
 			sw.s(`<text`)
 			sw.numAttr("x", clampX(b.LoHz)+3)
 			sw.numAttr("y", l.py(b.Limit)-4)

@@ -330,6 +330,9 @@ func (sc *scene) refPlaneView() web.RefPlaneView {
 		v.Sweeps = append(v.Sweeps, o)
 	}
 	td := sc.st.TimeDomain
+	if td.Mode == "" { // never set: show the defaults tdr.set would take
+		td.Mode, td.Window, td.Beta, td.VF = "step", "kaiser", 6, 1
+	}
 	v.TDR = web.TDRView{SweepID: td.SweepID, Mode: td.Mode, Window: td.Window, Beta: strconv.FormatFloat(td.Beta, 'g', 4, 64),
 		VF: strconv.FormatFloat(td.VF, 'g', 4, 64)}
 	if _, note := sc.tdrPlot(); note != "" {
