@@ -421,6 +421,14 @@ scan:
 			i++
 		case clsNum:
 			start := i
+			// Most numbers are read in one pass; the rest (and any error)
+			// take the general path below.
+			if v, end, ok := scanFast(line, i); ok && (end == n || charClass[line[end]] == clsBlank || charClass[line[end]] == clsBang) {
+				p.nums = append(p.nums, v)
+				p.cols = append(p.cols, start+1)
+				i = end
+				continue
+			}
 			for i < n && charClass[line[i]] == clsNum {
 				i++
 			}
@@ -501,6 +509,9 @@ func parseNumber(tok []byte) (float64, error) {
 // parseScanned is parseNumber for a token whose bytes the scanner has
 // already found to be number characters.
 func parseScanned(tok []byte) (float64, error) {
+	if v, ok := parseFast(tok); ok {
+		return v, nil
+	}
 	// The string shares tok's memory; ParseFloat does not keep it, and the
 	// buffer is not changed while the parser runs.
 	s := unsafeString(tok)
