@@ -96,7 +96,7 @@ func formChange(form string, f map[string]string) (sessions.Change, error) {
 			zoom = 1
 		}
 		p.VSWRCircle, p.ReturnLossCircleDB, p.Zoom = &vswr, &rl, &zoom
-		var q []float64
+		q := []float64{} // no arcs: [] clears them; a nil slice would encode as null, "leave as is"
 		for _, part := range strings.FieldsFunc(f["qArcs"], func(r rune) bool { return r == ',' || r == ';' || r == ' ' }) {
 			v, err := strconv.ParseFloat(part, 64)
 			if err != nil || !(v > 0) || math.IsInf(v, 0) {
