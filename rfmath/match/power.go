@@ -1,0 +1,154 @@
+package match
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"matchbench/rfmath/parts"
+	"matchbench/rfmath/units"
+)
+
+// Rater gives the rating of a part of a kind and value; [parts.Family]
+// is one.
+type Rater interface {
+	Rating(k parts.Kind, v float64) parts.Rating
+}
+
+// StressSettings tune [Stress].
+type StressSettings struct {
+	// PowerW is the power the source offers: the power it would deliver
+	// into a matched load (its available power), in watts.
+	PowerW float64
+	// Model makes the parts; nil means ideal parts.
+	Model parts.Model
+	// Ratings gives each part's rating. Nil means the model's ratings if
+	// the model is a Rater, else none (no warnings).
+	Ratings Rater
+}
+
+// PartStress is what one part carries at one frequency, as peak and RMS
+// values of the sinusoid.
+type PartStress struct {
+	FreqHz       float64
+	VPeak, VRMS  float64 // across the part
+	IPeak, IRMS  float64 // through the part
+	DissipationW float64 // ½·|I|²·Re Z, the power turned to heat
+}
+
+// PartReport is the stress on one part over the band points.
+type PartReport struct {
+	Part   Part
+	Rating parts.Rating
+	// PerFreq is the stress at each band point, in frequency order.
+	PerFreq []PartStress
+	// WorstV and WorstI are the points of highest voltage and highest
+	// current.
+	WorstV, WorstI PartStress
+	// Warnings say where a rating is exceeded.
+	Warnings []string
+}
+
+// Stress returns, for an input power, the voltage across and the current
+// through each part of the network n at each band point, the worst case of
+// each, and a warning wherever a part's rating is exceeded (peak voltage
+// against the voltage rating, RMS current against the current rating,
+// dissipation against the power rating; no derating is applied).
+//
+// The source is a generator of the load's reference impedance Z0 with
+// available power P: its incident wave has the peak amplitude
+// a = √(2·P·Z0). Carrying the normalised (v, i) from the load toward the
+// source as [Circuit.GammaAt] does gives every node's voltage and every
+// branch's current up to one complex scale, set by the incident wave at the
+// input: a_in = (V + Z0·I)/2. A series part carries the current of its
+// branch and has Z·I across it; a shunt part has its node's voltage V
+// across it and carries V/Z.
+//
+// CAUTION: high RF power can burn and can shock. These are estimates from
+// ideal circuit theory and typical ratings, not a rated design review.
+func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, error) {
+	if !(s.PowerW >= 0) || math.IsInf(s.PowerW, 0) {
+		return nil, fmt.Errorf("match: power %g W", s.PowerW)
+	}
+	pts, err := bandPoints(l, bands)
+	if err != nil {
+		return nil, err
+	}
+	if s.Model == nil {
+		s.Model = parts.Ideal
+	}
+	rater := s.Ratings
+	if rater == nil {
+		rater, _ = s.Model.(Rater)
+	}
+	c := n.Circuit(s.Model)
+	rep := make([]PartReport, len(n))
+	for j, p := range n {
+		rep[j].Part = p
+		if rater != nil {
+			rep[j].Rating = rater.Rating(p.Kind.Part(), p.Value)
+		}
+	}
+	z0 := l.Z0Ohm
+	a := math.Sqrt(2 * s.PowerW * z0) // peak incident voltage
+	across := make([]complex128, len(n))
+	through := make([]complex128, len(n))
+	zs := make([]complex128, len(n))
+	for k, f := range pts.freqHz {
+		g := pts.gamma[k]
+		// Normalised: V = v·S, I = i·S/Z0 for a common complex scale S.
+		v, i := 1+g, 1-g
+		for j, p := range c.parts {
+			z := p.ImpedanceAt(f) / complex(z0, 0)
+			zs[j] = z * complex(z0, 0)
+			if c.shunt[j] {
+				across[j], through[j] = v, v/z
+				i += v / z
+			} else {
+				across[j], through[j] = z*i, i
+				v += z * i
+			}
+		}
+		scale := a / cmplx.Abs((v+i)/2)
+		for j := range n {
+			vp := cmplx.Abs(across[j]) * scale
+			ip := cmplx.Abs(through[j]) * scale / z0
+			st := PartStress{
+				FreqHz: f,
+				VPeak:  vp, VRMS: vp / math.Sqrt2,
+				IPeak: ip, IRMS: ip / math.Sqrt2,
+				DissipationW: 0.5 * ip * ip * math.Max(real(zs[j]), 0),
+			}
+			r := &rep[j]
+			r.PerFreq = append(r.PerFreq, st)
+			if st.VPeak > r.WorstV.VPeak || len(r.PerFreq) == 1 {
+				r.WorstV = st
+			}
+			if st.IRMS > r.WorstI.IRMS || len(r.PerFreq) == 1 {
+				r.WorstI = st
+			}
+		}
+	}
+	for j := range rep {
+		r := &rep[j]
+		name := fmt.Sprintf("part %d (%s)", j+1, r.Part)
+		if m := r.Rating.MaxVoltageV; m > 0 && r.WorstV.VPeak > m {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s: %.3g V peak at %s exceeds its %.3g V rating",
+				name, r.WorstV.VPeak, units.FormatFrequency(r.WorstV.FreqHz, 6), m))
+		}
+		if m := r.Rating.MaxCurrentA; m > 0 && r.WorstI.IRMS > m {
+			r.Warnings = append(r.Warnings, fmt.Sprintf("%s: %.3g A RMS at %s exceeds its %.3g A rating",
+				name, r.WorstI.IRMS, units.FormatFrequency(r.WorstI.FreqHz, 6), m))
+		}
+		if m := r.Rating.MaxPowerW; m > 0 {
+			for _, st := range r.PerFreq {
+				if st.DissipationW > m {
+					r.Warnings = append(r.Warnings, fmt.Sprintf("%s: dissipates %.3g W at %s, above its %.3g W rating",
+						name, st.DissipationW, units.FormatFrequency(st.FreqHz, 6), m))
+					break
+				}
+			}
+		}
+	}
+	return rep, nil
+}

@@ -1,0 +1,878 @@
+package match
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/gonum/optimize"
+
+	"matchbench/rfmath/parts"
+)
+
+// Settings tune [Search] and [Exhaustive]. A nil *Settings, and every zero
+// field, means the default.
+type Settings struct {
+	// LSeries and CSeries name the E-series of the inductors and the
+	// capacitors ("E6" … "E96"); "" means "E24".
+	LSeries, CSeries string
+
+	// Model makes the part of each value; nil means ideal parts.
+	Model parts.Model
+
+	// MinParts and MaxParts bound the number of parts in a ladder, from 1
+	// to 4; zero means 1 and 3.
+	MinParts, MaxParts int
+
+	// LRange and CRange bound the values searched, in henries and farads.
+	// A zero bound takes the default: the values whose reactance lies
+	// between Z0/25 and 25·Z0 somewhere in the bands, narrowed to what the
+	// model says is sold if it has a Range method (as [parts.Family]
+	// does).
+	LRange, CRange [2]float64
+
+	// Top is the number of designs returned: the best of each topology,
+	// best first. Zero means 5.
+	Top int
+
+	// Window chooses between the two modes of the exact phase of Search.
+	// Negative: every combination of standard values in the ranges (the
+	// result is exact over the whole ranges). Positive: the standard
+	// values within ±Window steps of each continuous optimum and of each
+	// best network of one part fewer (whose added part is searched over
+	// its whole range); exact within those windows. Zero: for each number
+	// of parts, the whole ranges when that is at most Budget combinations
+	// (summed over its shapes), else windows of ±6 steps.
+	Window int
+
+	// Budget is the largest number of combinations of one number of parts
+	// that Window = 0 searches whole; zero means 2e10 (every shape of up to
+	// four parts with E24 or E48 values over the default ranges).
+	Budget float64
+
+	// Progress, if not nil, is called from the searching goroutine with
+	// the work done so far and the total, in units of partial networks;
+	// done reaches total at the end. Calls are throttled to a few hundred.
+	Progress func(done, total int)
+}
+
+// Design is a network found by [Search], with how it does.
+type Design struct {
+	Network Network
+	Metrics
+}
+
+// Result is what [Search] and [Exhaustive] return.
+type Result struct {
+	// Designs are the best network of each of the best topologies, best
+	// (largest MarginDB) first; at most Settings.Top of them.
+	Designs []Design
+	// Exact is true when every topology was searched over every
+	// combination of standard values in the ranges; false when only
+	// windows around the continuous optima were (then Window is their
+	// half-width in steps).
+	Exact  bool
+	Window int
+	// Topologies is the number of ladder shapes searched; Combinations
+	// the number of whole networks in the search space; Checked the number
+	// of whole networks whose reflection was computed at one point or
+	// more (the rest were cut off as partial networks).
+	Topologies   int
+	Combinations float64
+	Checked      int64
+	// LRange and CRange are the value ranges searched, in henries and
+	// farads, as the standard values at their ends.
+	LRange, CRange [2]float64
+}
+
+// defaults returns s with its defaults filled in.
+func (s *Settings) defaults() Settings {
+	var d Settings
+	if s != nil {
+		d = *s
+	}
+	if d.LSeries == "" {
+		d.LSeries = "E24"
+	}
+	if d.CSeries == "" {
+		d.CSeries = "E24"
+	}
+	if d.Model == nil {
+		d.Model = parts.Ideal
+	}
+	if d.MinParts == 0 {
+		d.MinParts = 1
+	}
+	if d.MaxParts == 0 {
+		d.MaxParts = 3
+	}
+	if d.Top == 0 {
+		d.Top = 5
+	}
+	if d.Budget == 0 {
+		d.Budget = 2e10
+	}
+	return d
+}
+
+// Search finds the ladder networks of standard-value parts that hold the
+// best return loss across the bands on the load: for every ladder shape of
+// MinParts to MaxParts parts (series and shunt alternating, each an L or a
+// C), the network whose worst margin over the band points (return loss less
+// the band's requirement, MarginDB) is largest. It returns the best network
+// of each of the Top best shapes. Bands are judged at the load's measured
+// frequencies within them and at their edges, as [Evaluate] does, and the
+// returned metrics are computed by Evaluate.
+//
+// The search has two phases.
+//
+//  1. Continuous: for each shape, Nelder–Mead (gonum/optimize) minimises
+//     the worst weighted |Γ|² over a subset of the band points, on the
+//     logarithms of the part values, from several starts: the L-networks
+//     that match the load at the centre of each band and of the whole span
+//     (with any further part set to its least disturbing value) and the
+//     middle of the ranges. Each optimum is rounded to standard values and
+//     the 5ⁿ neighbouring combinations are tried; the best is the shape's
+//     first incumbent.
+//  2. Exact: every combination of standard values (or, in window mode,
+//     every one within ±Window steps of each optimum) is enumerated from the
+//     load outward. It is exact because it only skips what cannot win: a
+//     whole network is dropped at the first band point where its weighted
+//     |Γ|² reaches the incumbent's (the points that dropped the last
+//     networks are tried first); a network lacking only its last part is
+//     dropped when, at one of those points, even the best value of a
+//     passive last part could not bring it below the incumbent (a series
+//     part cannot lower R, a shunt part cannot lower G, so with R > Z0
+//     |Γ| ≥ (R − Z0)/(R + Z0)); and a shape is dropped when it cannot beat
+//     Top other shapes' incumbents. The voltage and current at the load end
+//     of each partial network are computed once per point and reused by
+//     every network that shares it.
+//
+// In every mode the result equals that of [Exhaustive] over the same
+// combinations (in window mode: within the windows); the tests check it.
+//
+// The search stops and returns ctx.Err() when ctx is done. Other errors
+// are about the load, the bands or the settings.
+func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	set := s.defaults()
+	e, err := newEngine(l, bands, &set)
+	if err != nil {
+		return nil, err
+	}
+	return e.search(ctx, &set)
+}
+
+// Exhaustive is the plain search that [Search] is checked against: it
+// computes every combination of standard values in the ranges at every
+// band point, and keeps the best of each shape. Settings.Window, Budget and
+// Progress are ignored. It is slow by design.
+func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	set := s.defaults()
+	e, err := newEngine(l, bands, &set)
+	if err != nil {
+		return nil, err
+	}
+	tops := topologies(set.MinParts, set.MaxParts)
+	best := make([]candidate, len(tops))
+	res := &Result{Exact: true, Topologies: len(tops)}
+	for t, top := range tops {
+		best[t] = candidate{ratio: math.Inf(1)}
+		n := len(top)
+		tabs := e.tables(top)
+		idx := make([]int, n)
+		cnt := e.counts(top)
+		total := 1
+		for _, c := range cnt {
+			total *= c
+		}
+		res.Combinations += float64(total)
+		for c := 0; c < total; c++ {
+			if c%4096 == 0 {
+				if err := ctx.Err(); err != nil {
+					return nil, err
+				}
+			}
+			r := c
+			for p := n - 1; p >= 0; p-- {
+				idx[p] = r % cnt[p]
+				r /= cnt[p]
+			}
+			worst := 0.0
+			for k := range e.K {
+				v, i := e.v0[k], e.i0[k]
+				for p := range n {
+					x := tabs[p][idx[p]*e.K+k]
+					if top[p].Shunt() {
+						i += x * v
+					} else {
+						v += x * i
+					}
+				}
+				d, s := v-i, v+i
+				q := (real(d)*real(d) + imag(d)*imag(d)) * e.wt[k] / (real(s)*real(s) + imag(s)*imag(s))
+				worst = math.Max(worst, q)
+			}
+			res.Checked++
+			if worst < best[t].ratio {
+				best[t] = candidate{ratio: worst, idx: append([]int(nil), idx...)}
+			}
+		}
+	}
+	return e.result(res, tops, best, &set)
+}
+
+// kinds of part value tables
+const (
+	tabL = 0
+	tabC = 1
+)
+
+func kindTab(k Kind) int {
+	if k.Part() == parts.KindL {
+		return tabL
+	}
+	return tabC
+}
+
+// engine holds the data of one search: the band points and the tables of
+// part impedances at them.
+type engine struct {
+	l      Load
+	bands  []Band
+	pts    points
+	K      int
+	v0, i0 []complex128 // at the load: 1 + Γ, 1 − Γ
+	wt     []float64    // per point: 10^(requirement/10), so wt·|Γ|² < 1 meets it
+	ser    [2]*parts.Series
+	first  [2]int // series index of table row 0
+	count  [2]int
+	z, y   [2][]complex128 // [kind][row·K + k]: Z/Z0 and Z0/Z of the part
+	zs, ys [2]sorted       // the rows of z and y sorted by imaginary part, per point
+	lim    [2][2]float64   // value ranges asked for
+	ord    []int           // order in which points are tried
+}
+
+// ranger is a model that knows what values are sold.
+type ranger interface {
+	Range(k parts.Kind) (lo, hi float64)
+}
+
+func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
+	pts, err := bandPoints(l, bands)
+	if err != nil {
+		return nil, err
+	}
+	if set.MinParts < 1 || set.MaxParts > 4 || set.MinParts > set.MaxParts {
+		return nil, fmt.Errorf("match: parts %d to %d; want 1 ≤ min ≤ max ≤ 4", set.MinParts, set.MaxParts)
+	}
+	if set.Top < 1 {
+		return nil, fmt.Errorf("match: top %d; want at least 1", set.Top)
+	}
+	e := &engine{l: l, bands: bands, pts: pts, K: len(pts.freqHz)}
+	for j, name := range []string{set.LSeries, set.CSeries} {
+		if e.ser[j], err = parts.Lookup(name); err != nil {
+			return nil, err
+		}
+	}
+	e.v0 = make([]complex128, e.K)
+	e.i0 = make([]complex128, e.K)
+	e.wt = make([]float64, e.K)
+	for k, g := range pts.gamma {
+		e.v0[k], e.i0[k] = 1+g, 1-g
+		e.wt[k] = math.Pow(10, bands[pts.band[k]].MinReturnLossDB/10)
+	}
+
+	// Value ranges.
+	z0 := l.Z0Ohm
+	fLo, fHi := pts.freqHz[0], pts.freqHz[e.K-1]
+	wLo, wHi := 2*math.Pi*fLo, 2*math.Pi*fHi
+	def := [2][2]float64{
+		{z0 / 25 / wHi, 25 * z0 / wLo},         // L: ωL within [Z0/25, 25·Z0]
+		{1 / (25 * z0 * wHi), 25 / (z0 * wLo)}, // C: 1/(ωC) likewise
+	}
+	if r, ok := set.Model.(ranger); ok {
+		for j, pk := range []parts.Kind{parts.KindL, parts.KindC} {
+			lo, hi := r.Range(pk)
+			def[j][0] = math.Max(def[j][0], lo)
+			def[j][1] = math.Min(def[j][1], hi)
+		}
+	}
+	asked := [2][2]float64{set.LRange, set.CRange}
+	for j := range 2 {
+		lim := def[j]
+		for b := range 2 {
+			if asked[j][b] > 0 {
+				lim[b] = asked[j][b]
+			}
+		}
+		if !(lim[0] > 0 && lim[1] >= lim[0]) || math.IsInf(lim[1], 0) {
+			return nil, fmt.Errorf("%w: %s %g to %g", ErrRange, []string{"inductors", "capacitors"}[j], lim[0], lim[1])
+		}
+		e.lim[j] = lim
+		first, last := e.ser[j].Span(lim[0], lim[1])
+		if last < first {
+			return nil, fmt.Errorf("%w: no %s value of %s between %g and %g", ErrRange, e.ser[j], []string{"inductance", "capacitance"}[j], lim[0], lim[1])
+		}
+		e.first[j], e.count[j] = first, last-first+1
+	}
+
+	// Tables of part impedances.
+	zr := complex(z0, 0)
+	for j, pk := range []parts.Kind{parts.KindL, parts.KindC} {
+		n := e.count[j]
+		e.z[j] = make([]complex128, n*e.K)
+		e.y[j] = make([]complex128, n*e.K)
+		for r := range n {
+			p := set.Model.Part(pk, e.ser[j].Value(e.first[j]+r))
+			for k, f := range pts.freqHz {
+				zz := p.ImpedanceAt(f) / zr
+				e.z[j][r*e.K+k] = zz
+				e.y[j][r*e.K+k] = 1 / zz
+			}
+		}
+	}
+	for j := range 2 {
+		e.zs[j] = sortRows(e.z[j], e.count[j], e.K)
+		e.ys[j] = sortRows(e.y[j], e.count[j], e.K)
+	}
+	e.ord = initialOrder(pts, bands)
+	return e, nil
+}
+
+// sorted holds, for each point k, the rows of a table in increasing order
+// of their imaginary part at k (perm[k·n + r]) with those parts (im), and
+// the least and greatest real part over the rows (rmin[k], rmax[k]).
+type sorted struct {
+	n          int
+	perm       []int32
+	im         []float64
+	rmin, rmax []float64
+}
+
+// sortRows returns the sorted view of the table t of n rows.
+func sortRows(t []complex128, n, K int) sorted {
+	s := sorted{n: n, perm: make([]int32, n*K), im: make([]float64, n*K), rmin: make([]float64, K), rmax: make([]float64, K)}
+	for k := range K {
+		p := s.perm[k*n : (k+1)*n]
+		for r := range p {
+			p[r] = int32(r)
+		}
+		sort.SliceStable(p, func(a, b int) bool { return imag(t[int(p[a])*K+k]) < imag(t[int(p[b])*K+k]) })
+		s.rmin[k], s.rmax[k] = math.Inf(1), math.Inf(-1)
+		for r, j := range p {
+			x := t[int(j)*K+k]
+			s.im[k*n+r] = imag(x)
+			s.rmin[k] = math.Min(s.rmin[k], real(x))
+			s.rmax[k] = math.Max(s.rmax[k], real(x))
+		}
+	}
+	return s
+}
+
+// initialOrder lists the points with each band's edges first (where a
+// match is usually worst), then the rest spread out.
+func initialOrder(p points, bands []Band) []int {
+	K := len(p.freqHz)
+	ord := make([]int, 0, K)
+	seen := make([]bool, K)
+	add := func(k int) {
+		if !seen[k] {
+			seen[k] = true
+			ord = append(ord, k)
+		}
+	}
+	for _, b := range bands {
+		for k, f := range p.freqHz {
+			if f == b.LoHz || f == b.HiHz {
+				add(k)
+			}
+		}
+	}
+	// Bit-reversal-like spread: halves, quarters, eighths …
+	for step := K; step >= 1; step /= 2 {
+		for k := step / 2; k < K; k += max(step, 1) {
+			add(k)
+		}
+		if step == 1 {
+			break
+		}
+	}
+	for k := range K {
+		add(k)
+	}
+	return ord
+}
+
+// tables returns, for each part of the shape, the table the walk reads:
+// Z/Z0 for a series part, Z0/Z for a shunt part.
+func (e *engine) tables(top []Kind) [][]complex128 {
+	t := make([][]complex128, len(top))
+	for p, k := range top {
+		if k.Shunt() {
+			t[p] = e.y[kindTab(k)]
+		} else {
+			t[p] = e.z[kindTab(k)]
+		}
+	}
+	return t
+}
+
+// sortedTables returns, for each part of the shape, the sorted view of its
+// table.
+func (e *engine) sortedTables(top []Kind) []*sorted {
+	m := make([]*sorted, len(top))
+	for p, k := range top {
+		if k.Shunt() {
+			m[p] = &e.ys[kindTab(k)]
+		} else {
+			m[p] = &e.zs[kindTab(k)]
+		}
+	}
+	return m
+}
+
+func (e *engine) counts(top []Kind) []int {
+	c := make([]int, len(top))
+	for p, k := range top {
+		c[p] = e.count[kindTab(k)]
+	}
+	return c
+}
+
+// topologies returns every ladder shape of min to max parts: series and
+// shunt alternate, starting with either at the load, each part an L or a C;
+// fewer parts first.
+func topologies(lo, hi int) [][]Kind {
+	var out [][]Kind
+	for n := lo; n <= hi; n++ {
+		for _, shuntFirst := range []bool{true, false} {
+			for m := 0; m < 1<<n; m++ {
+				top := make([]Kind, n)
+				for p := range n {
+					shunt := (p%2 == 0) == shuntFirst
+					isC := m>>(n-1-p)&1 == 1
+					switch {
+					case shunt && isC:
+						top[p] = ShuntC
+					case shunt:
+						top[p] = ShuntL
+					case isC:
+						top[p] = SeriesC
+					default:
+						top[p] = SeriesL
+					}
+				}
+				out = append(out, top)
+			}
+		}
+	}
+	return out
+}
+
+// candidate is a network as table rows per part, with its worst weighted
+// |Γ|² over the band points.
+type candidate struct {
+	ratio float64
+	idx   []int
+}
+
+// box is a part of the search space: per level, the rows within ±r[p] of
+// c[p], or every row where r[p] < 0.
+type box struct {
+	c, r []int
+}
+
+// boxAround returns the box of radius rad around c, with full ranges at
+// the levels that full marks.
+func boxAround(c []int, full []bool, rad int) box {
+	b := box{c: c, r: make([]int, len(c))}
+	for p := range c {
+		b.r[p] = rad
+		if full != nil && full[p] {
+			b.r[p] = -1
+		}
+	}
+	return b
+}
+
+// centre is a point of the search space to look around, with the levels
+// to search whole.
+type centre struct {
+	idx  []int
+	full []bool
+}
+
+// defaultWindow is the half-width, in steps of the series, of the windows
+// searched when a number of parts is over budget.
+const defaultWindow = 6
+
+// progressPerShape is the number of progress units of one shape.
+const progressPerShape = 1000
+
+// search runs both phases of Search, for shapes of fewer parts first.
+func (e *engine) search(ctx context.Context, set *Settings) (*Result, error) {
+	tops := topologies(set.MinParts, set.MaxParts)
+	res := &Result{Topologies: len(tops)}
+	walkers := make([]*walker, len(tops))
+	best := make([]candidate, len(tops))
+	for t := range best {
+		best[t].ratio = math.Inf(1)
+	}
+	index := map[string]int{}
+	var space float64
+	for t, top := range tops {
+		walkers[t] = newWalker(e, top)
+		index[fmt.Sprint(top)] = t
+		c := 1.0
+		for _, n := range e.counts(top) {
+			c *= float64(n)
+		}
+		space += c
+	}
+	res.Combinations = space
+	res.Exact = true
+	prog := &progress{fn: set.Progress, total: progressPerShape * len(tops)}
+	prog.report()
+
+	for n := set.MinParts; n <= set.MaxParts; n++ {
+		// The mode, chosen per number of parts.
+		win := set.Window
+		if win == 0 {
+			sz := 0.0
+			for _, top := range tops {
+				if len(top) == n {
+					c := 1.0
+					for _, m := range e.counts(top) {
+						c *= float64(m)
+					}
+					sz += c
+				}
+			}
+			if sz <= set.Budget {
+				win = -1
+			} else {
+				win = defaultWindow
+			}
+		}
+		if win >= 0 {
+			res.Exact, res.Window = false, win
+		}
+		var size []int
+		centres := map[int][]centre{}
+		// Phase 1: continuous optima, and the best networks of one part
+		// fewer with a part added at either end; first incumbents.
+		for t, top := range tops {
+			if len(top) != n {
+				continue
+			}
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+			size = append(size, t)
+			for _, c := range e.continuous(top, set.Model) {
+				centres[t] = append(centres[t], centre{idx: c})
+			}
+			if n > 1 {
+				for _, at := range []int{0, n - 1} {
+					sub := append(append([]Kind(nil), top[:at]...), top[at+1:]...)
+					u, ok := index[fmt.Sprint(sub)]
+					if !ok || best[u].idx == nil {
+						continue
+					}
+					c := centre{idx: make([]int, n), full: make([]bool, n)}
+					copy(c.idx[:at], best[u].idx[:at])
+					copy(c.idx[at+1:], best[u].idx[at:])
+					c.full[at] = true
+					centres[t] = append(centres[t], c)
+				}
+			}
+			w := walkers[t]
+			w.thr, w.best = math.Inf(1), math.Inf(1)
+			for _, c := range centres[t] {
+				w.setBox(boxAround(c.idx, c.full, 2))
+				if err := w.run(ctx, nil); err != nil {
+					return nil, err
+				}
+			}
+			best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+		}
+
+		// Phase 2: exact enumeration, the most promising shapes first.
+		sort.SliceStable(size, func(a, b int) bool { return best[size[a]].ratio < best[size[b]].ratio })
+		for _, t := range size {
+			w := walkers[t]
+			w.best = best[t].ratio
+			w.bestIdx = append(w.bestIdx[:0], best[t].idx...)
+			w.thr = math.Min(w.best, topExcluding(best, t, set.Top))
+			var boxes []box
+			if win < 0 {
+				boxes = []box{boxAround(make([]int, n), nil, -1)}
+			} else {
+				for _, c := range centres[t] {
+					boxes = append(boxes, boxAround(c.idx, c.full, win))
+				}
+			}
+			units := 0
+			for _, b := range boxes {
+				w.setBox(b)
+				units += w.units()
+			}
+			prog.startShape(units)
+			for _, b := range boxes {
+				w.setBox(b)
+				if err := w.run(ctx, prog); err != nil {
+					return nil, err
+				}
+			}
+			prog.endShape()
+			if w.best < best[t].ratio {
+				best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+			}
+			res.Checked += w.checked
+		}
+	}
+	prog.done = prog.total
+	prog.report()
+	return e.result(res, tops, best, set)
+}
+
+// topExcluding returns the top-th smallest ratio among the shapes other
+// than t, or +Inf if there are fewer than top others: a network of shape t
+// that does not beat it cannot be among the top best shapes.
+func topExcluding(best []candidate, t, top int) float64 {
+	r := make([]float64, 0, len(best))
+	for u, b := range best {
+		if u != t {
+			r = append(r, b.ratio)
+		}
+	}
+	if len(r) < top {
+		return math.Inf(1)
+	}
+	sort.Float64s(r)
+	return r[top-1]
+}
+
+// result turns the best candidates into designs.
+func (e *engine) result(res *Result, tops [][]Kind, best []candidate, set *Settings) (*Result, error) {
+	order := make([]int, 0, len(tops))
+	for t := range tops {
+		if best[t].idx != nil {
+			order = append(order, t)
+		}
+	}
+	sort.SliceStable(order, func(a, b int) bool { return best[order[a]].ratio < best[order[b]].ratio })
+	if len(order) > set.Top {
+		order = order[:set.Top]
+	}
+	for j := range 2 {
+		lim := [2]float64{e.ser[j].Value(e.first[j]), e.ser[j].Value(e.first[j] + e.count[j] - 1)}
+		if j == tabL {
+			res.LRange = lim
+		} else {
+			res.CRange = lim
+		}
+	}
+	for _, t := range order {
+		n := e.network(tops[t], best[t].idx)
+		m, err := Evaluate(e.l, e.bands, n, set.Model)
+		if err != nil {
+			return nil, err
+		}
+		res.Designs = append(res.Designs, Design{Network: n, Metrics: m})
+	}
+	return res, nil
+}
+
+// network returns the parts of shape top at table rows idx.
+func (e *engine) network(top []Kind, idx []int) Network {
+	n := make(Network, len(top))
+	for p, k := range top {
+		j := kindTab(k)
+		n[p] = Part{Kind: k, Value: e.ser[j].Value(e.first[j] + idx[p]), Series: e.ser[j].Name()}
+	}
+	return n
+}
+
+// progress throttles the Progress callback. Each shape is worth
+// progressPerShape units, shared out over the shape's own units of work.
+type progress struct {
+	fn                 func(done, total int)
+	done, total, shown int
+	base, units, count int
+}
+
+func (p *progress) startShape(units int) {
+	p.base, p.units, p.count = p.done, max(units, 1), 0
+}
+
+func (p *progress) endShape() {
+	p.done = p.base + progressPerShape
+	p.report()
+}
+
+func (p *progress) add(n int) {
+	p.count += n
+	p.done = p.base + progressPerShape*min(p.count, p.units)/p.units
+	if p.fn != nil && p.done-p.shown >= max(1, p.total/256) {
+		p.report()
+	}
+}
+
+func (p *progress) report() {
+	if p.fn != nil {
+		p.shown = p.done
+		p.fn(p.done, p.total)
+	}
+}
+
+// continuous returns the table rows of the rounded continuous optima of
+// shape top (phase 1 of Search), without duplicates.
+func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
+	n := len(top)
+	sub := e.subsample(24)
+	lo := make([]float64, n)
+	hi := make([]float64, n)
+	for p, k := range top {
+		j := kindTab(k)
+		lo[p] = math.Log(e.ser[j].Value(e.first[j]))
+		hi[p] = math.Log(e.ser[j].Value(e.first[j] + e.count[j] - 1))
+	}
+	net := make(Network, n)
+	copy(net, e.network(top, make([]int, n)))
+	obj := func(x []float64) float64 {
+		pen := 0.0
+		for p := range n {
+			v := math.Min(math.Max(x[p], lo[p]), hi[p])
+			pen += (x[p] - v) * (x[p] - v)
+			net[p].Value = math.Exp(v)
+		}
+		c := net.Circuit(model)
+		worst := 0.0
+		for _, k := range sub {
+			g := c.GammaAt(e.pts.freqHz[k], e.pts.gamma[k], e.l.Z0Ohm)
+			worst = math.Max(worst, (real(g)*real(g)+imag(g)*imag(g))*e.wt[k])
+		}
+		return math.Log(worst+1e-300) + 10*pen
+	}
+	var out [][]int
+	seen := map[string]bool{}
+	for _, x0 := range e.starts(top, lo, hi) {
+		r, err := optimize.Minimize(optimize.Problem{Func: obj}, x0,
+			&optimize.Settings{
+				FuncEvaluations: 80 + 60*n,
+				Converger:       &optimize.FunctionConverge{Absolute: 1e-3, Relative: 1e-3, Iterations: 20},
+			},
+			&optimize.NelderMead{SimplexSize: 0.4})
+		x := x0
+		if err == nil || r != nil {
+			if r != nil && r.X != nil {
+				x = r.X
+			}
+		}
+		idx := make([]int, n)
+		for p, k := range top {
+			j := kindTab(k)
+			v := math.Exp(math.Min(math.Max(x[p], lo[p]), hi[p]))
+			idx[p] = min(max(e.ser[j].Index(v)-e.first[j], 0), e.count[j]-1)
+		}
+		key := fmt.Sprint(idx)
+		if !seen[key] {
+			seen[key] = true
+			out = append(out, idx)
+		}
+	}
+	return out
+}
+
+// subsample returns up to about m band points: each band's edges and
+// points spread between them.
+func (e *engine) subsample(m int) []int {
+	if e.K <= m {
+		s := make([]int, e.K)
+		for k := range s {
+			s[k] = k
+		}
+		return s
+	}
+	per := max(2, m/len(e.bands))
+	var s []int
+	for _, b := range e.bands {
+		var in []int
+		for k, f := range e.pts.freqHz {
+			if f >= b.LoHz && f <= b.HiHz {
+				in = append(in, k)
+			}
+		}
+		if len(in) <= per {
+			s = append(s, in...)
+			continue
+		}
+		for i := range per {
+			s = append(s, in[i*(len(in)-1)/(per-1)])
+		}
+	}
+	sort.Ints(s)
+	return s
+}
+
+// starts returns the starting points (log values) of the continuous phase
+// for shape top: the middle of the ranges, and each L-network at the centre
+// of each band and of the whole span embedded where the shape has its two
+// parts in a row, the other parts at their least disturbing end of the
+// range (a series L or shunt C small, a series C or shunt L large).
+func (e *engine) starts(top []Kind, lo, hi []float64) [][]float64 {
+	n := len(top)
+	neutral := make([]float64, n)
+	mid := make([]float64, n)
+	for p, k := range top {
+		mid[p] = (lo[p] + hi[p]) / 2
+		if k == SeriesL || k == ShuntC {
+			neutral[p] = lo[p]
+		} else {
+			neutral[p] = hi[p]
+		}
+	}
+	out := [][]float64{mid}
+	centres := []float64{math.Sqrt(e.pts.freqHz[0] * e.pts.freqHz[e.K-1])}
+	if len(e.bands) > 1 {
+		for _, b := range e.bands {
+			centres = append(centres, math.Sqrt(b.LoHz*b.HiHz))
+		}
+	}
+	for _, fc := range centres {
+		zl, ok := e.l.ZAt(fc)
+		if !ok {
+			continue
+		}
+		sols, _, err := LNetworks(zl, complex(e.l.Z0Ohm, 0), fc)
+		if err != nil {
+			continue
+		}
+		for _, s := range sols {
+			m := len(s.Parts)
+			if m == 0 {
+				continue
+			}
+			for at := 0; at+m <= n; at++ {
+				fits := true
+				for i, p := range s.Parts {
+					fits = fits && top[at+i] == p.Kind
+				}
+				if !fits {
+					continue
+				}
+				x := append([]float64(nil), neutral...)
+				for i, p := range s.Parts {
+					x[at+i] = math.Min(math.Max(math.Log(p.Value), lo[at+i]), hi[at+i])
+				}
+				out = append(out, x)
+			}
+		}
+	}
+	if len(out) > 6 {
+		out = out[:6]
+	}
+	return out
+}

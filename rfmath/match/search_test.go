@@ -1,0 +1,395 @@
+package match
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+	"testing"
+
+	"matchbench/rfmath/parts"
+)
+
+// shapeKey names the shape of a network, e.g. "shunt_C series_L".
+func shapeKey(n Network) string {
+	s := make([]string, len(n))
+	for i, p := range n {
+		s[i] = string(p.Kind)
+	}
+	return strings.Join(s, " ")
+}
+
+type bruteBest struct {
+	net    Network
+	margin float64
+}
+
+// bruteForce is the test's own oracle: every network of every shape of
+// minP to maxP parts, built from the standard values of the two series
+// within the ranges, judged by Evaluate (rfmath's ABCD ladder), not by the
+// search's arithmetic. It returns the best of each shape.
+func bruteForce(t *testing.T, l Load, bands []Band, set *Settings) map[string]bruteBest {
+	t.Helper()
+	vals := func(name string, r [2]float64) []float64 {
+		s, err := parts.Lookup(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, b := s.Span(r[0], r[1])
+		var v []float64
+		for n := a; n <= b; n++ {
+			v = append(v, s.Value(n))
+		}
+		return v
+	}
+	lv, cv := vals(set.LSeries, set.LRange), vals(set.CSeries, set.CRange)
+	out := map[string]bruteBest{}
+	for n := set.MinParts; n <= set.MaxParts; n++ {
+		for _, top := range topologies(n, n) {
+			net := make(Network, n)
+			var rec func(p int)
+			rec = func(p int) {
+				if p == n {
+					m, err := Evaluate(l, bands, net, set.Model)
+					if err != nil {
+						t.Fatal(err)
+					}
+					k := shapeKey(net)
+					if b, ok := out[k]; !ok || m.MarginDB > b.margin {
+						out[k] = bruteBest{append(Network(nil), net...), m.MarginDB}
+					}
+					return
+				}
+				vs, ser := lv, set.LSeries
+				if top[p].Part() == parts.KindC {
+					vs, ser = cv, set.CSeries
+				}
+				for _, v := range vs {
+					net[p] = Part{Kind: top[p], Value: v, Series: strings.ToUpper(ser)}
+					rec(p + 1)
+				}
+			}
+			rec(0)
+		}
+	}
+	return out
+}
+
+// TestSearchAgainstBruteForce checks that the search returns, for every
+// shape, the same best network as the test's plain exhaustive search over
+// the same standard values, with ideal and modelled parts, one band and two
+// bands of different requirements.
+func TestSearchAgainstBruteForce(t *testing.T) {
+	t.Parallel()
+	hi := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
+	lo := loadOf(grid(800e6, 1000e6, 101), 50, lowBandAntenna)
+	for _, tc := range []struct {
+		name  string
+		l     Load
+		bands []Band
+		set   Settings
+		long  bool
+	}{
+		{"one band, ideal, E12", hi, []Band{{2.4e9, 2.4835e9, 10}},
+			Settings{LSeries: "E12", CSeries: "E12", MinParts: 1, MaxParts: 3,
+				LRange: [2]float64{0.5e-9, 15e-9}, CRange: [2]float64{0.3e-12, 12e-12}}, false},
+		{"one band, 0402 models, E12", hi, []Band{{2.4e9, 2.4835e9, 10}},
+			Settings{LSeries: "E12", CSeries: "E12", MinParts: 1, MaxParts: 3, Model: parts.Typical0402,
+				LRange: [2]float64{1e-9, 15e-9}, CRange: [2]float64{0.3e-12, 12e-12}}, false},
+		{"two bands 12 and 10 dB, 0603 models, E12 L, E6 C", lo, []Band{{863e6, 870e6, 12}, {902e6, 928e6, 10}},
+			Settings{LSeries: "E12", CSeries: "E6", MinParts: 2, MaxParts: 3, Model: parts.Typical0603,
+				LRange: [2]float64{1e-9, 100e-9}, CRange: [2]float64{0.5e-12, 47e-12}}, false},
+		{"four parts, E6", hi, []Band{{2.4e9, 2.4835e9, 10}},
+			Settings{LSeries: "E6", CSeries: "E6", MinParts: 4, MaxParts: 4,
+				LRange: [2]float64{0.68e-9, 10e-9}, CRange: [2]float64{0.47e-12, 10e-12}}, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			if tc.long && testing.Short() {
+				t.Skip("long")
+			}
+			set := tc.set
+			set.Top = 1000
+			set.Window = -1
+			res, err := Search(context.Background(), tc.l, tc.bands, &set)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !res.Exact {
+				t.Errorf("not exact")
+			}
+			want := bruteForce(t, tc.l, tc.bands, &set)
+			if len(res.Designs) != len(want) {
+				t.Fatalf("%d designs, brute force has %d shapes", len(res.Designs), len(want))
+			}
+			prev := math.Inf(1)
+			for _, d := range res.Designs {
+				b, ok := want[shapeKey(d.Network)]
+				if !ok {
+					t.Fatalf("shape %s not in the brute force", shapeKey(d.Network))
+				}
+				same := d.Network.String() == b.net.String()
+				if !same && math.Abs(d.MarginDB-b.margin) > 1e-9 || math.Abs(d.MarginDB-b.margin) > 1e-9 {
+					t.Errorf("%s: search %v (%.12g dB), brute force %v (%.12g dB)", shapeKey(d.Network), d.Network, d.MarginDB, b.net, b.margin)
+				}
+				if d.MarginDB > prev+1e-9 {
+					t.Errorf("designs not sorted: %v after %v", d.MarginDB, prev)
+				}
+				prev = d.MarginDB
+			}
+		})
+	}
+}
+
+// TestSearchAgainstExhaustive compares Search with the package's plain
+// Exhaustive on a 41-point band with E24 values and the default ranges,
+// with the default number of designs (so shapes that cannot reach the top
+// five are cut off early), ideal and modelled.
+func TestSearchAgainstExhaustive(t *testing.T) {
+	if testing.Short() {
+		t.Skip("long")
+	}
+	t.Parallel()
+	l := loadOf(grid(2.4e9, 2.4835e9, 41), 50, smallAntenna)
+	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	for _, m := range []parts.Model{nil, parts.Typical0402} {
+		set := &Settings{MaxParts: 3, Model: m}
+		a, err := Search(context.Background(), l, bands, set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := Exhaustive(context.Background(), l, bands, set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(a.Designs) != 5 || len(b.Designs) != 5 {
+			t.Fatalf("%d and %d designs", len(a.Designs), len(b.Designs))
+		}
+		for i := range a.Designs {
+			if a.Designs[i].Network.String() != b.Designs[i].Network.String() || a.Designs[i].MarginDB != b.Designs[i].MarginDB {
+				t.Errorf("model %v, design %d: search %v (%v dB), exhaustive %v (%v dB)", m, i,
+					a.Designs[i].Network, a.Designs[i].MarginDB, b.Designs[i].Network, b.Designs[i].MarginDB)
+			}
+		}
+		if a.Checked >= b.Checked/10 {
+			t.Errorf("search computed %d networks, exhaustive %d: the cuts do little", a.Checked, b.Checked)
+		}
+	}
+}
+
+// TestSearchBeatsSnappedL checks that the search is never worse than the
+// best L-network at the band centre with its values snapped to the series.
+func TestSearchBeatsSnappedL(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		name  string
+		l     Load
+		bands []Band
+		set   Settings
+	}{
+		{"2.4 GHz antenna, E12 ideal", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10}},
+			Settings{LSeries: "E12", CSeries: "E12", MaxParts: 2}},
+		{"2.4 GHz antenna, E24 0402", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10}},
+			Settings{MaxParts: 3, Model: parts.Typical0402}},
+		{"Pozar 5.1 load, 480–520 MHz", loadOf(grid(400e6, 600e6, 81), 100, func(float64) complex128 { return complex(200, -100) }),
+			[]Band{{480e6, 520e6, 15}}, Settings{MaxParts: 2}},
+		{"two bands, E24 0603", loadOf(grid(800e6, 1000e6, 201), 50, lowBandAntenna), []Band{{863e6, 870e6, 10}, {902e6, 928e6, 10}},
+			Settings{MaxParts: 3, Model: parts.Typical0603}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			res, err := Search(context.Background(), tc.l, tc.bands, &tc.set)
+			if err != nil {
+				t.Fatal(err)
+			}
+			lo, hi := tc.bands[0].LoHz, tc.bands[len(tc.bands)-1].HiHz
+			fc := math.Sqrt(lo * hi)
+			zl, _ := tc.l.ZAt(fc)
+			sols, _, err := LNetworks(zl, complex(tc.l.Z0Ohm, 0), fc)
+			if err != nil {
+				t.Fatal(err)
+			}
+			set := tc.set.defaults()
+			tried := 0
+			for _, s := range sols {
+				n := append(Network(nil), s.Parts...)
+				inRange := len(n) > 0
+				for i, p := range n {
+					ser, r := set.LSeries, res.LRange
+					if p.Kind.Part() == parts.KindC {
+						ser, r = set.CSeries, res.CRange
+					}
+					n[i].Value = parts.Nearest(p.Value, ser)
+					inRange = inRange && n[i].Value >= r[0] && n[i].Value <= r[1]
+				}
+				if !inRange {
+					continue
+				}
+				tried++
+				m, err := Evaluate(tc.l, tc.bands, n, set.Model)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if res.Designs[0].MarginDB < m.MarginDB-1e-12 {
+					t.Errorf("search best %v (%.4g dB) worse than snapped L %v (%.4g dB)", res.Designs[0].Network, res.Designs[0].MarginDB, n, m.MarginDB)
+				}
+			}
+			if tried == 0 {
+				t.Fatalf("no snapped L-network within the ranges to compare with")
+			}
+		})
+	}
+}
+
+// TestSearchWindow checks the window mode: never better than the whole
+// search, equal to it when the windows cover the ranges, and marked as not
+// exact otherwise.
+func TestSearchWindow(t *testing.T) {
+	t.Parallel()
+	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
+	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	base := Settings{LSeries: "E12", CSeries: "E12", MaxParts: 3, Top: 1}
+	whole := base
+	whole.Window = -1
+	a, err := Search(context.Background(), l, bands, &whole)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []int{1, 3, 1000} {
+		s := base
+		s.Window = w
+		b, err := Search(context.Background(), l, bands, &s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if b.Exact || b.Window != w {
+			t.Errorf("window %d: Exact %v, Window %d", w, b.Exact, b.Window)
+		}
+		if b.Designs[0].MarginDB > a.Designs[0].MarginDB+1e-12 {
+			t.Errorf("window %d beats the whole search: %v > %v", w, b.Designs[0].MarginDB, a.Designs[0].MarginDB)
+		}
+		if w == 1000 && b.Designs[0].Network.String() != a.Designs[0].Network.String() {
+			t.Errorf("window covering everything: %v, whole %v", b.Designs[0].Network, a.Designs[0].Network)
+		}
+	}
+	// An automatic choice under a tiny budget uses windows.
+	s := base
+	s.Budget = 10
+	b, err := Search(context.Background(), l, bands, &s)
+	if err != nil || b.Exact || b.Window != defaultWindow {
+		t.Errorf("tiny budget: exact %v, window %d, %v", b.Exact, b.Window, err)
+	}
+}
+
+func TestSearchProgressCancel(t *testing.T) {
+	t.Parallel()
+	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
+	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	var calls, last, total int
+	set := &Settings{MaxParts: 3, Progress: func(done, tot int) {
+		if done < last || tot != total && total != 0 {
+			t.Errorf("progress went back: %d/%d after %d/%d", done, tot, last, total)
+		}
+		calls++
+		last, total = done, tot
+	}}
+	if _, err := Search(context.Background(), l, bands, set); err != nil {
+		t.Fatal(err)
+	}
+	if calls < 3 || last != total || total == 0 {
+		t.Errorf("%d calls, last %d of %d", calls, last, total)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	set.Progress = func(done, total int) {
+		if done > total/4 {
+			cancel()
+		}
+	}
+	if _, err := Search(ctx, l, bands, set); !errors.Is(err, context.Canceled) {
+		t.Errorf("cancelled search: %v", err)
+	}
+	if _, err := Exhaustive(ctx, l, bands, set); !errors.Is(err, context.Canceled) {
+		t.Errorf("cancelled exhaustive: %v", err)
+	}
+}
+
+func TestSearchErrors(t *testing.T) {
+	t.Parallel()
+	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
+	ok := []Band{{2.4e9, 2.5e9, 10}}
+	for _, tc := range []struct {
+		name  string
+		l     Load
+		bands []Band
+		set   Settings
+		want  error
+	}{
+		{"no band", l, nil, Settings{}, ErrBand},
+		{"band outside", l, []Band{{2.5e9, 2.7e9, 10}}, Settings{}, ErrBand},
+		{"reversed band", l, []Band{{2.5e9, 2.4e9, 10}}, Settings{}, ErrBand},
+		{"empty load", Load{Z0Ohm: 50}, ok, Settings{}, ErrNoLoad},
+		{"bad series", l, ok, Settings{LSeries: "E7"}, parts.ErrUnknownSeries},
+		{"empty range", l, ok, Settings{LRange: [2]float64{1.3e-9, 1.4e-9}, LSeries: "E12"}, ErrRange},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			if _, err := Search(context.Background(), tc.l, tc.bands, &tc.set); !errors.Is(err, tc.want) {
+				t.Errorf("error %v, want %v", err, tc.want)
+			}
+		})
+	}
+	if _, err := Search(context.Background(), l, ok, &Settings{MaxParts: 5}); err == nil {
+		t.Errorf("5 parts accepted")
+	}
+}
+
+// TestTopologies checks the shapes: 4, 8, 16 and 32 of one to four parts,
+// series and shunt alternating, every one different.
+func TestTopologies(t *testing.T) {
+	t.Parallel()
+	seen := map[string]bool{}
+	for n, want := range map[int]int{1: 4, 2: 8, 3: 16, 4: 32} {
+		tops := topologies(n, n)
+		if len(tops) != want {
+			t.Errorf("%d parts: %d shapes, want %d", n, len(tops), want)
+		}
+		for _, top := range tops {
+			k := fmt.Sprint(top)
+			if seen[k] {
+				t.Errorf("shape %s twice", k)
+			}
+			seen[k] = true
+			for p := 1; p < len(top); p++ {
+				if top[p].Shunt() == top[p-1].Shunt() {
+					t.Errorf("shape %s does not alternate", k)
+				}
+			}
+		}
+	}
+}
+
+// TestZeroAlloc locks in that evaluating a circuit and walking the search
+// space allocate nothing per frequency.
+func TestZeroAlloc(t *testing.T) {
+	l := loadOf(grid(2.4e9, 2.5e9, 201), 50, smallAntenna)
+	n := Network{{ShuntL, 2.2e-9, ""}, {SeriesC, 1.5e-12, ""}, {ShuntC, 1e-12, ""}, {SeriesL, 3.3e-9, ""}}
+	c := n.Circuit(parts.Typical0402)
+	dst := make([]complex128, len(l.FreqHz))
+	if a := testing.AllocsPerRun(10, func() { c.GammaTo(dst, l.FreqHz, l.Gamma, 50) }); a != 0 {
+		t.Errorf("GammaTo allocates %v times", a)
+	}
+	set := (&Settings{MaxParts: 3}).defaults()
+	e, err := newEngine(l, []Band{{2.4e9, 2.5e9, 10}}, &set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := newWalker(e, []Kind{ShuntL, SeriesC, ShuntC})
+	w.setBox(boxAround(make([]int, 3), nil, -1))
+	ctx := context.Background()
+	_ = w.run(ctx, nil) // sizes bestIdx
+	w.thr = math.Inf(1)
+	if a := testing.AllocsPerRun(3, func() { _ = w.run(ctx, nil) }); a != 0 {
+		t.Errorf("walker allocates %v times", a)
+	}
+}

@@ -1,0 +1,241 @@
+package match
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"matchbench/rfmath/parts"
+)
+
+// Distribution is how a part's value spreads within its tolerance.
+type Distribution int
+
+const (
+	// Uniform: every value within ±tolerance equally likely. The zero
+	// value and the default: a maker guarantees the tolerance but not the
+	// shape, and parts are often sorted into tolerance grades, so the
+	// uniform spread is the cautious assumption (common practice).
+	Uniform Distribution = iota
+	// Normal: a normal spread with σ = tolerance/3, cut at ±tolerance (a
+	// draw outside is drawn again), for a process centred on the nominal
+	// value.
+	Normal
+)
+
+// YieldSettings tune [Yield]. A nil *YieldSettings, and every zero field,
+// means the default.
+type YieldSettings struct {
+	// Builds is the number of random builds; zero means 1000.
+	Builds int
+	// Seed seeds the random numbers (PCG); zero means 1. The same seed
+	// gives the same result.
+	Seed uint64
+	// Dist is the spread of each part within its tolerance.
+	Dist Distribution
+	// Tolerances gives each part's tolerance, in the network's order; nil
+	// means [parts.DefaultTolerance] of each part's kind. A wrong length
+	// is an error.
+	Tolerances []parts.Tolerance
+	// Model makes the parts; nil means ideal parts.
+	Model parts.Model
+	// Traces is the number of builds (the first ones) whose reflection at
+	// every frequency of the load is returned, for drawing the spread.
+	Traces int
+}
+
+// YieldResult is what [Yield] returns.
+type YieldResult struct {
+	Builds, Passed int
+	// Yield is Passed/Builds: the share of builds that meet every band's
+	// requirement.
+	Yield float64
+	// Nominal is how the network does with every part at its nominal
+	// value.
+	Nominal Metrics
+	// WorstMarginDB, MedianMarginDB and P5MarginDB are the least, the
+	// median and the 5th percentile of the margin over the builds.
+	WorstMarginDB, MedianMarginDB, P5MarginDB float64
+	// WorstCorner is the worst of the 2ⁿ builds with every part at one end
+	// of its tolerance.
+	WorstCorner Corner
+	// Sensitivity has one entry per part, in the network's order.
+	Sensitivity []Sensitivity
+	// MostSensitive is the index of the part whose tolerance costs the
+	// most margin alone.
+	MostSensitive int
+	// Traces holds Γ at every frequency of the load for the first
+	// Settings.Traces builds.
+	Traces [][]complex128
+}
+
+// Corner is a build with every part at one end of its tolerance.
+type Corner struct {
+	Signs    []int     // per part: −1 at the low end, +1 at the high end
+	Values   []float64 // per part, henries or farads
+	MarginDB float64
+}
+
+// Sensitivity is what one part's tolerance alone does to the margin.
+type Sensitivity struct {
+	Tolerance  float64 // ± in henries or farads
+	LowDB      float64 // margin with this part at its low end, the others nominal
+	HighDB     float64 // margin with this part at its high end
+	DropDB     float64 // nominal margin less the worse of LowDB and HighDB
+	Importance float64 // DropDB as a share of the sum over the parts
+}
+
+// Yield builds the network n many times with each part's value drawn at
+// random within its tolerance (Settings.Dist, with gonum's distuv
+// distributions) and reports the share of builds that meet every band's
+// requirement on the load, judged as [Evaluate] does. It also reports the
+// worst corner (all 2ⁿ builds with every part at one end of its tolerance;
+// a corner is the usual worst case but not always the worst build) and,
+// for each part alone, how much margin its tolerance can cost.
+//
+// The same Seed gives the same builds. A network whose parts all have
+// zero tolerance has a yield of 1 or 0 as its nominal margin is at least
+// zero or not.
+//
+// It returns ctx.Err() if ctx is done, and errors about the load, the
+// bands or the settings.
+func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
+	var set YieldSettings
+	if s != nil {
+		set = *s
+	}
+	if set.Builds == 0 {
+		set.Builds = 1000
+	}
+	if set.Builds < 0 || set.Traces < 0 {
+		return nil, fmt.Errorf("match: %d builds, %d traces", set.Builds, set.Traces)
+	}
+	if set.Seed == 0 {
+		set.Seed = 1
+	}
+	if set.Model == nil {
+		set.Model = parts.Ideal
+	}
+	tol := make([]float64, len(n))
+	switch {
+	case set.Tolerances == nil:
+		for i, p := range n {
+			tol[i] = parts.DefaultTolerance(p.Kind.Part()).Of(p.Value)
+		}
+	case len(set.Tolerances) != len(n):
+		return nil, fmt.Errorf("match: %d tolerances for %d parts", len(set.Tolerances), len(n))
+	default:
+		for i, p := range n {
+			tol[i] = set.Tolerances[i].Of(p.Value)
+			if tol[i] >= p.Value {
+				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+			}
+		}
+	}
+	pts, err := bandPoints(l, bands)
+	if err != nil {
+		return nil, err
+	}
+	g := make([]complex128, len(pts.freqHz))
+	margin := func(b Network) Metrics {
+		b.Circuit(set.Model).GammaTo(g, pts.freqHz, pts.gamma, l.Z0Ohm)
+		return metricsOf(pts, bands, g)
+	}
+	res := &YieldResult{Builds: set.Builds, Nominal: margin(n)}
+
+	// Random builds.
+	src := rand.NewPCG(set.Seed, set.Seed^0x9e3779b97f4a7c15)
+	draw := make([]func() float64, len(n))
+	for i, p := range n {
+		v, t := p.Value, tol[i]
+		switch set.Dist {
+		case Normal:
+			d := distuv.Normal{Mu: v, Sigma: t / 3, Src: src}
+			draw[i] = func() float64 {
+				for {
+					if x := d.Rand(); math.Abs(x-v) <= t {
+						return x
+					}
+				}
+			}
+		default:
+			d := distuv.Uniform{Min: v - t, Max: v + t, Src: src}
+			draw[i] = d.Rand
+		}
+	}
+	b := append(Network(nil), n...)
+	margins := make([]float64, set.Builds)
+	for k := range set.Builds {
+		if k%256 == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+		}
+		for i := range b {
+			b[i].Value = draw[i]()
+		}
+		m := margin(b)
+		margins[k] = m.MarginDB
+		if m.Meets() {
+			res.Passed++
+		}
+		if k < set.Traces {
+			res.Traces = append(res.Traces, b.Circuit(set.Model).GammaTo(nil, l.FreqHz, l.Gamma, l.Z0Ohm))
+		}
+	}
+	if set.Builds > 0 {
+		res.Yield = float64(res.Passed) / float64(set.Builds)
+		sort.Float64s(margins)
+		res.WorstMarginDB = margins[0]
+		res.MedianMarginDB = margins[set.Builds/2]
+		res.P5MarginDB = margins[set.Builds*5/100]
+	}
+
+	// Corners.
+	res.WorstCorner.MarginDB = math.Inf(1)
+	for c := 0; c < 1<<len(n); c++ {
+		signs := make([]int, len(n))
+		for i := range b {
+			signs[i] = 1
+			if c>>i&1 == 0 {
+				signs[i] = -1
+			}
+			b[i].Value = n[i].Value + float64(signs[i])*tol[i]
+		}
+		if m := margin(b).MarginDB; m < res.WorstCorner.MarginDB {
+			vals := make([]float64, len(n))
+			for i := range b {
+				vals[i] = b[i].Value
+			}
+			res.WorstCorner = Corner{Signs: signs, Values: vals, MarginDB: m}
+		}
+	}
+
+	// One part at a time.
+	copy(b, n)
+	sum := 0.0
+	for i := range n {
+		s := Sensitivity{Tolerance: tol[i]}
+		b[i].Value = n[i].Value - tol[i]
+		s.LowDB = margin(b).MarginDB
+		b[i].Value = n[i].Value + tol[i]
+		s.HighDB = margin(b).MarginDB
+		b[i].Value = n[i].Value
+		s.DropDB = math.Max(0, res.Nominal.MarginDB-math.Min(s.LowDB, s.HighDB))
+		sum += s.DropDB
+		res.Sensitivity = append(res.Sensitivity, s)
+		if s.DropDB > res.Sensitivity[res.MostSensitive].DropDB {
+			res.MostSensitive = i
+		}
+	}
+	for i := range res.Sensitivity {
+		if sum > 0 {
+			res.Sensitivity[i].Importance = res.Sensitivity[i].DropDB / sum
+		}
+	}
+	return res, nil
+}
