@@ -463,6 +463,7 @@ func stepIndex(sw *rfmath.Sweep, fHz float64, n int) int {
 	if err != nil || last == 0 {
 		return 0
 	}
+	n = min(max(n, -last-1), last+1) // so that k+1+n cannot overflow (found by FuzzChange)
 	var j int
 	switch {
 	case t == 0:
