@@ -187,6 +187,20 @@ func fitOne(fs []float64, zs []complex128, parallel bool) (RLC, bool) {
 			return RLC{}, false
 		}
 	}
+	// Drop an element too weak to matter anywhere in the window (a
+	// rounding residue of the fit): its reactance (or susceptance) below
+	// 1e-9 of the model's scale.
+	wLo, wHi := 2*math.Pi*fs[0], 2*math.Pi*fs[len(fs)-1]
+	scale := math.Max(p, math.Max(a*wHi, b/wLo))
+	if a*wHi < 1e-9*scale {
+		a = 0
+	}
+	if b/wLo < 1e-9*scale {
+		b = 0
+	}
+	if a == 0 && b == 0 {
+		return RLC{}, false
+	}
 	m := RLC{Parallel: parallel}
 	if parallel {
 		// Y = G + j(ωC − 1/(ωL)).

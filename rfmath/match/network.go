@@ -81,83 +81,14 @@ func (n Network) String() string {
 func (n Network) Ladder(m parts.Model) rfmath.Ladder {
 	c := n.Circuit(m)
 	l := make(rfmath.Ladder, len(n))
-	for i, p := range c.parts {
-		if c.shunt[i] {
-			l[i] = rfmath.Shunt{Part: p}
+	for i, e := range c.els {
+		if e.shunt {
+			l[i] = rfmath.Shunt{Part: e.part}
 		} else {
-			l[i] = rfmath.Series{Part: p}
+			l[i] = rfmath.Series{Part: e.part}
 		}
 	}
 	return l
-}
-
-// Circuit returns the network with its parts made by the model m (nil
-// means ideal parts), ready to be evaluated without allocation.
-func (n Network) Circuit(m parts.Model) Circuit {
-	if m == nil {
-		m = parts.Ideal
-	}
-	c := Circuit{shunt: make([]bool, len(n)), parts: make([]rfmath.Part, len(n))}
-	for i, p := range n {
-		c.shunt[i] = p.Kind.Shunt()
-		c.parts[i] = m.Part(p.Kind.Part(), p.Value)
-	}
-	return c
-}
-
-// Circuit is a [Network] whose parts have been made by a model.
-type Circuit struct {
-	shunt []bool
-	parts []rfmath.Part
-}
-
-// GammaAt returns the reflection coefficient seen from the source at fHz,
-// against the real reference z0 (ohms), with a load of reflection
-// coefficient loadGamma against the same z0.
-//
-// It carries the voltage and current from the load toward the source, both
-// scaled by the incident wave and with the current in units of 1/z0:
-//
-//	at the load     v = 1 + ΓL,  i = 1 − ΓL
-//	series Z        v ← v + (Z/z0)·i
-//	shunt Z         i ← i + (z0/Z)·v
-//	at the source   Γin = (v − i)/(v + i)
-//
-// which is the ABCD cascade of the ladder applied to the load's (V, I)
-// (see [rfmath.ABCD.InputGamma]). An open or short load needs no infinite
-// number.
-func (c Circuit) GammaAt(fHz float64, loadGamma complex128, z0 float64) complex128 {
-	v, i := 1+loadGamma, 1-loadGamma
-	zr := complex(z0, 0)
-	for j, p := range c.parts {
-		z := p.ImpedanceAt(fHz)
-		if c.shunt[j] {
-			i += zr / z * v
-		} else {
-			v += z / zr * i
-		}
-	}
-	return (v - i) / (v + i)
-}
-
-// GammaTo fills dst with the reflection coefficient seen from the source at
-// each frequency of freqHz, with the load's reflection coefficient
-// loadGamma[k] at freqHz[k], all against the real reference z0, and returns
-// dst. A nil dst is allocated; a dst or loadGamma whose length differs from
-// freqHz panics. Given dst it does not allocate.
-func (c Circuit) GammaTo(dst []complex128, freqHz []float64, loadGamma []complex128, z0 float64) []complex128 {
-	if len(loadGamma) != len(freqHz) {
-		panic(badLength)
-	}
-	if dst == nil {
-		dst = make([]complex128, len(freqHz))
-	} else if len(dst) != len(freqHz) {
-		panic(badLength)
-	}
-	for k, f := range freqHz {
-		dst[k] = c.GammaAt(f, loadGamma[k], z0)
-	}
-	return dst
 }
 
 // Load is a one-port load as measured: its reflection coefficient Gamma[k]

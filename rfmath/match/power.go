@@ -98,10 +98,10 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 		g := pts.gamma[k]
 		// Normalised: V = v·S, I = i·S/Z0 for a common complex scale S.
 		v, i := 1+g, 1-g
-		for j, p := range c.parts {
-			z := p.ImpedanceAt(f) / complex(z0, 0)
+		for j, e := range c.els {
+			z := e.part.ImpedanceAt(f) / complex(z0, 0)
 			zs[j] = z * complex(z0, 0)
-			if c.shunt[j] {
+			if e.shunt {
 				across[j], through[j] = v, v/z
 				i += v / z
 			} else {

@@ -5,9 +5,12 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
+	"math/rand/v2"
 	"strings"
 	"testing"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 )
 
@@ -392,4 +395,63 @@ func TestZeroAlloc(t *testing.T) {
 	if a := testing.AllocsPerRun(3, func() { _ = w.run(ctx, nil) }); a != 0 {
 		t.Errorf("walker allocates %v times", a)
 	}
+}
+
+// TestCircuitAgainstLadder checks the closed forms of Circuit against
+// rfmath's ABCD ladder of the same parts (asked for their ImpedanceAt), for
+// random networks of ideal and modelled parts, every law of inductor loss,
+// and a part the circuit does not know (a generic rfmath.Part).
+func TestCircuitAgainstLadder(t *testing.T) {
+	t.Parallel()
+	rnd := rand.New(rand.NewPCG(9, 9))
+	l := loadOf(grid(0.5e9, 4e9, 57), 50, smallAntenna)
+	kinds := []Kind{SeriesL, SeriesC, ShuntL, ShuntC}
+	models := []parts.Model{nil, parts.Typical0402, parts.Typical0603, lawModel{parts.Flat}, lawModel{parts.Linear}, genericModel{}}
+	for trial := range 300 {
+		n := make(Network, 1+rnd.IntN(4))
+		for i := range n {
+			k := kinds[rnd.IntN(4)]
+			v := math.Pow(10, -9.5+2*rnd.Float64()) // 0.3 to 30 nH
+			if k.Part() == parts.KindC {
+				v = math.Pow(10, -12.5+2*rnd.Float64()) // 0.3 to 30 pF
+			}
+			n[i] = Part{Kind: k, Value: v}
+		}
+		m := models[trial%len(models)]
+		c := n.Circuit(m)
+		lad := n.Ladder(m)
+		for k, f := range l.FreqHz {
+			got := c.GammaAt(f, l.Gamma[k], 50)
+			want := lad.InputGamma(f, l.Gamma[k], 50)
+			if cmplx.Abs(got-want) > 1e-12 {
+				t.Fatalf("model %T, %v at %g Hz: Γ %v, ladder %v", m, n, f, got, want)
+			}
+		}
+	}
+}
+
+// lawModel makes inductors with a given loss law and capacitors with a Q.
+type lawModel struct{ law parts.Law }
+
+func (m lawModel) Part(k parts.Kind, v float64) rfmath.Part {
+	if k == parts.KindL {
+		return parts.Inductor{LH: v, Q: 30, QRefHz: 1e9, SRFHz: 8e9, RLaw: m.law}
+	}
+	return parts.Capacitor{CF: v, Q: 300, QRefHz: 1e9, SRFHz: 9e9}
+}
+
+// genericModel makes parts the circuit has no closed form for.
+type genericModel struct{}
+
+type lossyReactance struct{ z complex128 }
+
+func (p lossyReactance) ImpedanceAt(f float64) complex128 {
+	return complex(real(p.z), imag(p.z)*f/1e9)
+}
+
+func (genericModel) Part(k parts.Kind, v float64) rfmath.Part {
+	if k == parts.KindL {
+		return lossyReactance{complex(0.5, 2*math.Pi*1e9*v)}
+	}
+	return parts.Resistor{ROhm: 1 / (2 * math.Pi * 1e9 * v * 10), ESLH: 1e-9}
 }

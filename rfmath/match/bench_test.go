@@ -1,0 +1,87 @@
+package match
+
+import (
+	"context"
+	"fmt"
+	"testing"
+	"time"
+
+	"matchbench/rfmath/parts"
+)
+
+// BenchmarkCircuit4Part evaluates a 4-part ladder of 0402 part models
+// over 10,001 frequencies; it reports the time per part × frequency.
+func BenchmarkCircuit4Part(b *testing.B) {
+	l := loadOf(grid(1e9, 3e9, 10001), 50, smallAntenna)
+	n := Network{{ShuntL, 2.2e-9, ""}, {SeriesC, 1.5e-12, ""}, {ShuntC, 1e-12, ""}, {SeriesL, 3.3e-9, ""}}
+	for _, tc := range []struct {
+		name  string
+		model parts.Model
+	}{{"ideal", nil}, {"0402", parts.Typical0402}} {
+		b.Run(tc.name, func(b *testing.B) {
+			c := n.Circuit(tc.model)
+			dst := make([]complex128, len(l.FreqHz))
+			b.ReportAllocs()
+			for b.Loop() {
+				c.GammaTo(dst, l.FreqHz, l.Gamma, 50)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(n)*len(l.FreqHz)), "ns/part·freq")
+		})
+	}
+}
+
+// BenchmarkSearchVsExhaustive runs the search and the plain exhaustive
+// search on the same 401-point band with E24 values and the default
+// ranges, checks that they return the same designs, and reports both times
+// and their ratio.
+func BenchmarkSearchVsExhaustive(b *testing.B) {
+	l := loadOf(grid(2.4e9, 2.4835e9, 401), 50, smallAntenna)
+	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	for _, parts3 := range []int{2, 3} {
+		for _, m := range []struct {
+			name  string
+			model parts.Model
+		}{{"ideal", nil}, {"0402", parts.Typical0402}} {
+			b.Run(fmt.Sprintf("parts=%d/%s", parts3, m.name), func(b *testing.B) {
+				set := &Settings{MinParts: parts3, MaxParts: parts3, Model: m.model}
+				var ts, te time.Duration
+				for b.Loop() {
+					t0 := time.Now()
+					a, err := Search(context.Background(), l, bands, set)
+					ts += time.Since(t0)
+					if err != nil {
+						b.Fatal(err)
+					}
+					t0 = time.Now()
+					x, err := Exhaustive(context.Background(), l, bands, set)
+					te += time.Since(t0)
+					if err != nil {
+						b.Fatal(err)
+					}
+					for i := range a.Designs {
+						if a.Designs[i].Network.String() != x.Designs[i].Network.String() {
+							b.Fatalf("design %d: search %v, exhaustive %v", i, a.Designs[i].Network, x.Designs[i].Network)
+						}
+					}
+				}
+				b.ReportMetric(float64(ts.Milliseconds())/float64(b.N), "search-ms")
+				b.ReportMetric(float64(te.Milliseconds())/float64(b.N), "exhaustive-ms")
+				b.ReportMetric(float64(te)/float64(ts), "speedup")
+			})
+		}
+	}
+}
+
+// BenchmarkYield10000 runs a Monte Carlo of 10,000 builds of a 3-part
+// network with 0402 models on a 401-point band.
+func BenchmarkYield10000(b *testing.B) {
+	l := loadOf(grid(2.4e9, 2.4835e9, 401), 50, smallAntenna)
+	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	n := Network{{ShuntL, 1.8e-9, "E24"}, {SeriesL, 1.1e-9, "E24"}, {ShuntC, 1.3e-12, "E24"}}
+	set := &YieldSettings{Builds: 10000, Model: parts.Typical0402}
+	for b.Loop() {
+		if _, err := Yield(context.Background(), l, bands, n, set); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

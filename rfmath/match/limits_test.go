@@ -1,0 +1,210 @@
+package match
+
+import (
+	"context"
+	"math"
+	"math/cmplx"
+	"testing"
+
+	"gonum.org/v1/gonum/integrate/quad"
+
+	"matchbench/rfmath"
+)
+
+// integral0Inf returns ∫₀^∞ f(ω) dω by ω = s·tan θ and a 4000-point
+// Gauss–Legendre rule on θ ∈ [0, π/2] (gonum/integrate/quad).
+func integral0Inf(f func(float64) float64, s float64) float64 {
+	g := func(th float64) float64 {
+		c := math.Cos(th)
+		return f(s*math.Tan(th)) * s / (c * c)
+	}
+	return quad.Fixed(g, 0, math.Pi/2, 4000, quad.Legendre{}, 0)
+}
+
+// TestBodeFanoIntegralTight checks the constants of the Bode–Fano bounds
+// against a case where they hold with equality: a parallel RC (or series
+// RL) connected straight to a source of its own R has
+// |Γ|² = x²/(4 + x²), x = ωRC (or ωL/R), and ∫₀^∞ ½·ln(1 + 4/x²) dx = π
+// (the standard integral ∫₀^∞ ln(1 + a²/x²) dx = π·a, from memory), so
+// the integral of ln(1/|Γ|) is exactly π/(RC) (or π·R/L). Computed here by
+// quadrature, independently of BodeFano.
+func TestBodeFanoIntegralTight(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		name string
+		m    RLC
+	}{
+		{"parallel RC", RLC{Parallel: true, ROhm: 50, CF: 2e-12}},
+		{"series RL", RLC{ROhm: 25, LH: 8e-9}},
+	} {
+		r := tc.m.ROhm
+		got := integral0Inf(func(w float64) float64 {
+			g := rfmath.GammaFromZ(tc.m.Z(w/(2*math.Pi)), complex(r, 0))
+			return -math.Log(cmplx.Abs(g))
+		}, 1e10)
+		lim := BodeFano(tc.m, []Band{{1e9, 2e9, 10}})
+		if math.Abs(got-lim.Integral) > 1e-3*lim.Integral {
+			t.Errorf("%s: ∫ln(1/|Γ|)dω = %.6g, bound %.6g", tc.name, got, lim.Integral)
+		}
+		if !math.IsInf(lim.IntegralInv, 1) {
+			t.Errorf("%s: a bound on ∫ω⁻²… without the element that sets it", tc.name)
+		}
+	}
+}
+
+// TestBodeFanoBands checks the best constant reflection over bands
+// against the textbook forms (Pozar, Microwave Engineering, Section 5.9,
+// from memory; values computed here): Γm = exp(−π/(Δω·RC)) for a parallel
+// RC; Γm = exp(−π/(Q·B)) for a series RLC of Q = ω0L/R over a fractional
+// bandwidth B centred on ω0 (REFERENCE-CHECKS §9 R-1 values: Q = 20 at
+// 159.155 MHz); and the margin against requirements.
+func TestBodeFanoBands(t *testing.T) {
+	t.Parallel()
+	const dbPerNeper = 20 / math.Ln10
+	rc := RLC{Parallel: true, ROhm: 200, CF: 2e-12}
+	band := Band{2.0e9, 2.5e9, 10}
+	lim := BodeFano(rc, []Band{band})
+	want := math.Exp(-math.Pi / (2 * math.Pi * 0.5e9 * 200 * 2e-12)) // e^−2.5
+	if math.Abs(lim.GammaMin-want) > 1e-12 || math.Abs(lim.BestRLdB-21.7147241) > 1e-6 {
+		t.Errorf("parallel RC: Γm %v (want %v), %v dB (want 21.7147)", lim.GammaMin, want, lim.BestRLdB)
+	}
+	if math.Abs(lim.MaxMarginDB-(lim.BestRLdB-10)) > 1e-9 || !lim.Feasible() {
+		t.Errorf("margin %v, want %v", lim.MaxMarginDB, lim.BestRLdB-10)
+	}
+
+	// Series RLC, R-1: R 5 Ω, L 100 nH, C 10 pF; band f0 ± 4 MHz.
+	s := RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}
+	f0 := s.ResonanceHz()
+	b := Band{f0 - 4e6, f0 + 4e6, 0}
+	lim = BodeFano(s, []Band{b})
+	q := 2 * math.Pi * f0 * s.LH / s.ROhm
+	if math.Abs(q-20) > 1e-9 {
+		t.Fatalf("Q = %v", q)
+	}
+	rhoL := math.Pi / (q * (b.HiHz - b.LoHz) / f0)
+	w1, w2 := 2*math.Pi*b.LoHz, 2*math.Pi*b.HiHz
+	rhoC := math.Pi * s.ROhm * s.CF / (1/w1 - 1/w2)
+	if math.Abs(lim.BestRLdB-math.Min(rhoL, rhoC)*dbPerNeper) > 1e-9 {
+		t.Errorf("series RLC: %v dB, want %v", lim.BestRLdB, math.Min(rhoL, rhoC)*dbPerNeper)
+	}
+
+	// Two bands share the bound: Σ Δω·ρ = π/(RC); a requirement of
+	// BestRL in both has zero margin, 1 dB more is infeasible.
+	two := []Band{{2.0e9, 2.1e9, 0}, {2.4e9, 2.6e9, 0}}
+	lim = BodeFano(rc, two)
+	rho := math.Pi / (200 * 2e-12) / (2 * math.Pi * 0.3e9)
+	if math.Abs(lim.BestRLdB-rho*dbPerNeper) > 1e-9 {
+		t.Errorf("two bands: %v dB, want %v", lim.BestRLdB, rho*dbPerNeper)
+	}
+	two[0].MinReturnLossDB, two[1].MinReturnLossDB = lim.BestRLdB+1, lim.BestRLdB+1
+	if l := BodeFano(rc, two); math.Abs(l.MaxMarginDB+1) > 1e-9 || l.Feasible() {
+		t.Errorf("over the limit by 1 dB: margin %v", l.MaxMarginDB)
+	}
+	// Nothing reactive, nothing limits.
+	if l := BodeFano(RLC{ROhm: 30}, two); !math.IsInf(l.BestRLdB, 1) {
+		t.Errorf("resistor: %v dB", l.BestRLdB)
+	}
+}
+
+// TestFitRLC fits models to sweeps made from them (exact recovery), on
+// the networks of REFERENCE-CHECKS §9 and on an RC.
+func TestFitRLC(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		name string
+		m    RLC
+		lo   float64
+		hi   float64
+	}{
+		{"series RLC (R-1)", RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}, 140e6, 180e6},
+		{"parallel RLC (R-3)", RLC{Parallel: true, ROhm: 1000, LH: 100e-9, CF: 10e-12}, 140e6, 180e6},
+		{"series RC", RLC{ROhm: 20, CF: 5e-12}, 1e9, 2e9},
+		{"parallel RC", RLC{Parallel: true, ROhm: 200, CF: 2e-12}, 1e9, 2e9},
+	} {
+		l := loadOf(grid(tc.lo, tc.hi, 81), 50, tc.m.Z)
+		fit, err := FitRLC(l, tc.lo, tc.hi)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		g := fit.RLC
+		if g.Parallel != tc.m.Parallel || !closeF(g.ROhm, tc.m.ROhm, 1e-9) ||
+			!closeF(g.LH*1e9, tc.m.LH*1e9, 1e-9) || !closeF(g.CF*1e12, tc.m.CF*1e12, 1e-9) || fit.RMSGammaError > 1e-9 {
+			t.Errorf("%s: fit %v (error %g), want %v", tc.name, g, fit.RMSGammaError, tc.m)
+		}
+	}
+	if _, err := FitRLC(loadOf(grid(1e9, 2e9, 5), 50, func(float64) complex128 { return 30 }), 1e9, 1.1e9); err == nil {
+		t.Errorf("fit of 1 point accepted")
+	}
+}
+
+// TestSearchRespectsBodeFano checks that no design the search returns
+// beats the limit: on a parallel RC load every design's worst return loss
+// over the band is below the Bode–Fano figure, and the best design's
+// ∫ln(1/|Γ|)dω over all frequencies (by quadrature, on the exact load)
+// stays below π/(RC).
+func TestSearchRespectsBodeFano(t *testing.T) {
+	t.Parallel()
+	rc := RLC{Parallel: true, ROhm: 200, CF: 2e-12}
+	l := loadOf(grid(1.9e9, 2.6e9, 141), 50, rc.Z)
+	bands := []Band{{2.0e9, 2.5e9, 10}}
+	lim, fit, err := BodeFanoOf(l, bands)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !fit.Parallel || !closeF(fit.CF*1e12, 2, 1e-9) || !closeF(fit.ROhm, 200, 1e-9) {
+		t.Fatalf("fit %v", fit)
+	}
+	res, err := Search(context.Background(), l, bands, &Settings{MaxParts: 4, Top: 10})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range res.Designs {
+		if d.WorstRLdB > lim.BestRLdB {
+			t.Errorf("%v: %v dB beats the Bode–Fano limit %v dB", d.Network, d.WorstRLdB, lim.BestRLdB)
+		}
+	}
+	c := res.Designs[0].Network.Circuit(nil)
+	got := integral0Inf(func(w float64) float64 {
+		f := w / (2 * math.Pi)
+		g := c.GammaAt(f, rfmath.GammaFromZ(rc.Z(f), 50), 50)
+		return -math.Log(cmplx.Abs(g))
+	}, 1.4e10)
+	if got > lim.Integral*(1+1e-3) {
+		t.Errorf("∫ln(1/|Γ|)dω = %v > π/(RC) = %v", got, lim.Integral)
+	}
+	t.Logf("best %v: worst %.2f dB; limit %.2f dB; integral %.3g of %.3g", res.Designs[0].Network, res.Designs[0].WorstRLdB, lim.BestRLdB, got, lim.Integral)
+}
+
+// TestChu checks McLean's form of the Chu limit, Q = 1/(ka)³ + 1/(ka)
+// (J. S. McLean, IEEE Trans. AP-44(5), 1996): Q = 2 at ka = 1 and 10 at
+// ka = 0.5 (arithmetic), ka of a 5 cm sphere at 868 MHz (arithmetic,
+// c = 299 792 458 m/s), and the comparison with the Q of the R-1 series
+// RLC (Q = 20, REFERENCE-CHECKS §9) in a sphere with ka = 0.5.
+func TestChu(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct{ ka, q float64 }{{1, 2}, {0.5, 10}, {0.1, 1010}} {
+		if got := ChuQ(c.ka); math.Abs(got-c.q) > 1e-9*c.q {
+			t.Errorf("ChuQ(%v) = %v, want %v", c.ka, got, c.q)
+		}
+	}
+	if !math.IsNaN(ChuQ(0)) || !math.IsNaN(ChuQ(-1)) {
+		t.Errorf("ChuQ of a non-positive ka is not NaN")
+	}
+	if ka := KA(0.05, 868e6); math.Abs(ka-0.909597) > 1e-6 {
+		t.Errorf("KA = %v, want 0.909597", ka)
+	}
+	m := RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}
+	l := loadOf(grid(100e6, 250e6, 3001), 50, m.Z)
+	f0 := m.ResonanceHz()
+	a := 0.5 * rfmath.SpeedOfLight / (2 * math.Pi * f0)
+	c, err := ChuCompare(l, 160e6, a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(c.Measured.Q-20) > 0.05 || math.Abs(c.KA-0.5) > 1e-4 || math.Abs(c.Ratio-2) > 0.01 {
+		t.Errorf("Chu compare %+v", c)
+	}
+	if _, err := ChuCompare(loadOf(grid(1e9, 2e9, 11), 50, func(float64) complex128 { return 30 + 5i }), 1.5e9, 0.01); err == nil {
+		t.Errorf("no resonance accepted")
+	}
+}
