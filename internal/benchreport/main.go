@@ -6,7 +6,7 @@
 // Usage:
 //
 //	go run ./internal/benchreport gen [-points N] FILE
-//	go run ./internal/benchreport summary [-numpy-skipped WHY] [-search-fast RE] [-search-exhaustive RE] RESULTS...
+//	go run ./internal/benchreport summary [-numpy-skipped WHY] [-search-combined RE] [-search-fast RE] [-search-exhaustive RE] RESULTS...
 //
 // The summary takes the median of every metric over the runs (-count) and
 // prints "not yet measured" for a figure whose benchmarks are missing, so
@@ -31,7 +31,7 @@ func main() {
 
 const usage = `usage:
   benchreport gen [-points N] FILE
-  benchreport summary [-numpy-skipped WHY] [-search-fast RE] [-search-exhaustive RE] RESULTS...`
+  benchreport summary [-numpy-skipped WHY] [-search-combined RE] [-search-fast RE] [-search-exhaustive RE] RESULTS...`
 
 func run(args []string, stdout io.Writer) error {
 	if len(args) == 0 {
@@ -72,6 +72,7 @@ func summary(args []string, stdout io.Writer) error {
 	fs.StringVar(&opt.NumpySkipped, "numpy-skipped", "", "why the numpy scripts did not run")
 	fast := fs.String("search-fast", DefaultSearchFast.String(), "name pattern of the 3-part E24 broadband search benchmark in rfmath/match")
 	slow := fs.String("search-exhaustive", DefaultSearchExhaustive.String(), "name pattern of the plain exhaustive search benchmark in rfmath/match")
+	both := fs.String("search-combined", DefaultSearchCombined.String(), "name pattern of rfmath/match benchmarks that time both searches and report speedup")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -83,6 +84,9 @@ func summary(args []string, stdout io.Writer) error {
 		return err
 	}
 	if opt.SearchExhaustive, err = regexp.Compile(*slow); err != nil {
+		return err
+	}
+	if opt.SearchCombined, err = regexp.Compile(*both); err != nil {
 		return err
 	}
 	var readers []io.Reader

@@ -255,3 +255,41 @@ func TestRunErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestBuildCombinedSearch reads rfmath/match's BenchmarkSearchVsExhaustive,
+// which times both searches itself: one row per 3-part variant, none for
+// the 2-part ones, and the evaluator's figure beside the ladder's.
+func TestBuildCombinedSearch(t *testing.T) {
+	t.Parallel()
+	in := `pkg: matchbench/rfmath/match
+BenchmarkCircuit4Part/0402-2   	 100	 1500000 ns/op	 37.50 ns/part·freq	 0 B/op	 0 allocs/op
+BenchmarkSearchVsExhaustive/parts=2/ideal-2 	 1	 5000 ns/op	 1.000 search-ms	 3.000 exhaustive-ms	 3.000 speedup
+BenchmarkSearchVsExhaustive/parts=3/ideal-2 	 1	 5000 ns/op	 12.00 search-ms	 300.0 exhaustive-ms	 25.00 speedup
+BenchmarkSearchVsExhaustive/parts=3/ideal-2 	 1	 5000 ns/op	 14.00 search-ms	 300.0 exhaustive-ms	 21.00 speedup
+BenchmarkSearchVsExhaustive/parts=3/0402-2 	 1	 5000 ns/op	 20.00 search-ms	 300.0 exhaustive-ms	 15.00 speedup
+`
+	r, err := Parse(strings.NewReader(in))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := Build(r, Options{})
+	tests := []struct {
+		prefix, value, verdict string
+	}{
+		{"exhaustive ÷ search, same run (parts=3/0402)", "15.0×", miss},
+		{"exhaustive ÷ search, same run (parts=3/ideal)", "23.0×", pass},
+		{"same best design (parts=3/ideal)", "same", pass},
+		{"rfmath/match circuit (0402)", "37.5 ns", info},
+	}
+	for _, tc := range tests {
+		r := find(t, rows, tc.prefix)
+		if r.value != tc.value || r.verdict != tc.verdict {
+			t.Errorf("%q: %q %s, want %q %s", tc.prefix, r.value, r.verdict, tc.value, tc.verdict)
+		}
+	}
+	for _, r := range rows {
+		if strings.Contains(r.figure, "parts=2") {
+			t.Errorf("a 2-part search made a row: %q", r.figure)
+		}
+	}
+}
