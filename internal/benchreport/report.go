@@ -215,7 +215,8 @@ func (rp *report) drag() {
 	const g = "Marker drag, server side, 10,001-point sweep (share of the 16.7 ms frame)"
 	for _, d := range []struct{ fig, name, what string }{
 		{"decode, snap, commit, render fragments, encode", "BenchmarkDrag/points=10001", "in-process, no socket"},
-		{"the same with 20 viewers, send → ack + all 20 have the update", "BenchmarkDragViewers/viewers=20", "over loopback websockets"},
+		{"over websockets, no viewer: send → ack", "BenchmarkDragViewers/viewers=0", "over loopback websockets, client in the same process"},
+		{"the same with 20 viewers, send → ack + all 20 have the update", "BenchmarkDragViewers/viewers=20", "over loopback websockets, the 21 clients in the same process"},
 	} {
 		t, ok := rp.med(pkgServer, d.name, "ns/op")
 		if !ok {

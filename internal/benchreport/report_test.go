@@ -158,6 +158,7 @@ func TestBuildFull(t *testing.T) {
 	line("BenchmarkDrag/points=1001", "ns/op", 300e3)
 	line("BenchmarkDrag/points=10001", "ns/op", 400e3)
 	line("BenchmarkDrag/points=100001", "ns/op", 330e3)
+	line("BenchmarkDragViewers/viewers=0", "ns/op", 0.5e6)
 	line("BenchmarkDragViewers/viewers=20", "ns/op", 1e6)
 	line("BenchmarkSessionMemory", "base-rss-bytes", 20e6, "extra-rss-bytes", 6.4e6, "raw-bytes", 3.2e6, "extra-heap-bytes", 5e6)
 	in.WriteString("pkg: matchbench/chartsvg\n")
@@ -183,6 +184,7 @@ func TestBuildFull(t *testing.T) {
 		{"Go speed ÷ numpy", "0.50×", miss},
 		{"allocations per frequency", "0", pass},
 		{"decode, snap, commit", "2.4 %", pass},
+		{"over websockets, no viewer", "3.0 %", pass},
 		{"the same with 20 viewers", "6.0 %", miss},
 		{"full chart SVG size", "151.0 kB", miss},
 		{"full chart allocations", "108", info},
