@@ -240,13 +240,15 @@ func TestBrowserMatching(t *testing.T) {
 		wctx, c := context.WithTimeout(ectx, 10*time.Second)
 		defer c()
 		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			t.Fatalf("waiting for %s: %v", js, err)
+			state, _ := chromedp.Run(ectx, chromedp.Evaluate[string](`(document.querySelector("#notice")||{}).textContent + " | " + [...document.querySelectorAll('[data-testid="part-value"]')].map(e => e.value).join(", ") + " | active: " + (document.activeElement && document.activeElement.outerHTML.slice(0, 120)) + " | errors: " + (window.__errs || []).join("; ")`))
+			t.Fatalf("waiting for %s: %v (page: %s)", js, err, state)
 		}
 	}
 	must(chromedp.Do(ectx,
 		chromedp.EmulateViewport(1400, 1700),
 		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.EditToken+"/"),
 		chromedp.Poll[chromedp.Void](liveJS),
+		chromedp.Evaluate[chromedp.Void](`window.addEventListener("error", e => { window.__errs = (window.__errs || []).concat(e.message); })`),
 		chromedp.Click(chromedp.CSS(`[data-testid="network-add"] button`)),
 	))
 	waitFor(`!!document.querySelector('[data-testid="add-shunt_C"]')`)

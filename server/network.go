@@ -354,6 +354,7 @@ func (sc *scene) networkView() web.NetworkView {
 	}
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
+	v.Search = sc.searchView()
 	return v
 }
 

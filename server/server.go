@@ -70,6 +70,7 @@ type Server struct {
 	rooms  map[string]*room
 	closed bool
 	corr   corrections
+	search searchJobs
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.

@@ -31,6 +31,7 @@ const (
 //	                                full update when the session has moved on
 //	change  {id, v, change}         one sessions.Change (see its doc for ops)
 //	form    {id, v, form, fields}   a panel's form, fields as typed (SI prefixes)
+//	action  {id, action}            "search-cancel" stops the session's search
 //	partdrag {id, v, change}        a part's design point dragged on the chart:
 //	                                change.partId, change.gamma, change.gesture; the
 //	                                server finds the value along the part's arc
@@ -41,6 +42,7 @@ type inMsg struct {
 	V      int64             `json:"v"`
 	Change *sessions.Change  `json:"change,omitempty"`
 	Form   string            `json:"form,omitempty"`
+	Action string            `json:"action,omitempty"`
 	Fields map[string]string `json:"fields,omitempty"`
 }
 
@@ -215,12 +217,12 @@ func (c *conn) reader() {
 		case "ping":
 		case "hello":
 			c.catchUp(m.V)
-		case "change", "form", "partdrag":
+		case "change", "form", "partdrag", "action":
 			if c.cap != sessions.Edit {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "this is a view-only link: changes are refused"})
 				continue
 			}
-			if m.Type != "form" && m.Change == nil {
+			if (m.Type == "change" || m.Type == "partdrag") && m.Change == nil {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "a change message needs a \"change\" object"})
 				continue
 			}
@@ -310,6 +312,38 @@ func (c *conn) applier(ctx context.Context) {
 func (c *conn) apply(ctx context.Context, m inMsg) {
 	var ch sessions.Change
 	switch {
+	case m.Type == "action":
+		switch m.Action {
+		case "search-cancel":
+			if !c.s.cancelSearch(c.sid) {
+				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "no search is running"})
+				return
+			}
+			c.reply(outMsg{Type: "ack", ID: m.ID})
+		default:
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + strconvQuote(m.Action)})
+		}
+		return
+	case m.Type == "form" && m.Form == "search.start":
+		sc, err := c.scene(ctx)
+		if err == nil {
+			err = c.s.startSearch(sc, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+		c.reply(outMsg{Type: "ack", ID: m.ID})
+		return
+	case m.Type == "form" && searchForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.searchChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
 	case m.Type == "form" && (networkForms[m.Form] || planeForms[m.Form]):
 		sc, err := c.scene(ctx)
 		if err == nil && networkForms[m.Form] {
@@ -368,6 +402,9 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 // networkForms are the forms whose fields need the session's current scene
 // (the active network's parts and design frequency).
 var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true}
+
+// searchForms turn a found design or solution into a network.
+var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true}
 
 // planeForms are the reference-plane and time-domain forms; they too need
 // the scene (the sweeps, corrected or raw).

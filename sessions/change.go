@@ -32,6 +32,8 @@ const (
 	OpPartMove      = "part.move"
 	OpSweepRefPlane = "sweep.refplane"
 	OpTDRSet        = "tdr.set"
+	OpSearchStore   = "search.store"
+	OpSearchClear   = "search.clear"
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
@@ -47,6 +49,7 @@ var Ops = []string{
 	OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove,
 	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
 	OpSweepRefPlane, OpTDRSet,
+	OpSearchStore, OpSearchClear,
 	OpUndo, OpRedo,
 }
 
@@ -109,6 +112,9 @@ var Ops = []string{
 //	sweep.refplane  sweepId, refPlane           set the sweep's reference plane (a [RefPlane];
 //	                                            absent or all zero: as measured)
 //	tdr.set         timeDomain                  set the time-domain view (a [TimeDomain])
+//	search.store    search                      keep a broadband search's result (a [SearchResult];
+//	                                            the server runs searches, pages do not send this)
+//	search.clear                                forget it
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -161,8 +167,9 @@ type Change struct {
 	PowerW    *float64           `json:"powerW,omitempty"`
 	Parts     []Part             `json:"parts,omitempty"`
 
-	RefPlane   *RefPlane   `json:"refPlane,omitempty"`
-	TimeDomain *TimeDomain `json:"timeDomain,omitempty"`
+	RefPlane   *RefPlane     `json:"refPlane,omitempty"`
+	Search     *SearchResult `json:"search,omitempty"`
+	TimeDomain *TimeDomain   `json:"timeDomain,omitempty"`
 
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.

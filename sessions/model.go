@@ -34,6 +34,9 @@ type State struct {
 	Bands   []Band        `json:"bands"`
 	Chart   ChartSettings `json:"chart"`
 
+	// Search holds the latest broadband search's best designs, if any.
+	Search *SearchResult `json:"search,omitempty"`
+
 	// TimeDomain holds the time-domain view's settings.
 	TimeDomain TimeDomain `json:"timeDomain"`
 
@@ -174,6 +177,33 @@ type Part struct {
 	Params  map[string]float64 `json:"params,omitempty"`
 }
 
+// SearchResult is what a broadband search of standard values found for a
+// load: the settings it ran with and its best designs, best first.
+type SearchResult struct {
+	SweepID  string   `json:"sweepId"`
+	Port     int      `json:"port"`
+	Settings string   `json:"settings"` // as the engineer chose them, in words
+	Exact    bool     `json:"exact"`    // every combination in the ranges was searched
+	Designs  []Design `json:"designs"`
+	Note     string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+}
+
+// Design is one network a search found, with its figures.
+type Design struct {
+	Parts     []Part        `json:"parts"`
+	WorstRLdB float64       `json:"worstRLdB"`
+	MarginDB  float64       `json:"marginDB"`
+	Bands     []BandFigures `json:"bands"`
+}
+
+// BandFigures are a design's worst and mean return loss in one band.
+type BandFigures struct {
+	LoHz      float64 `json:"loHz"`
+	HiHz      float64 `json:"hiHz"`
+	WorstRLdB float64 `json:"worstRLdB"`
+	MeanRLdB  float64 `json:"meanRLdB"`
+}
+
 // TimeDomain are the settings of the time-domain view of one sweep's
 // reflection. Mode is "step" (low-pass step response as an impedance
 // profile), "impulse" (low-pass) or "bandpass" (impulse magnitude);
@@ -217,6 +247,7 @@ func (s *State) clone() *State {
 	c.Markers = slices.Clone(s.Markers)
 	c.Bands = slices.Clone(s.Bands)
 	c.Chart.QArcs = slices.Clone(s.Chart.QArcs)
+	// Search results are replaced whole, never changed in place.
 	if s.Networks != nil {
 		c.Networks = make([]Network, len(s.Networks))
 		for i, n := range s.Networks {

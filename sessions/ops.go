@@ -357,6 +357,36 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		}
 		next.TimeDomain = td
 
+	case OpSearchStore:
+		if ch.Search == nil {
+			return r, invalid(op, "search", "missing")
+		}
+		res := *ch.Search
+		if _, err := sweepOf(res.SweepID); err != nil {
+			return r, err
+		}
+		if len(res.Designs) > 20 {
+			return r, invalid(op, "search.designs", "%d designs; at most 20 are kept", len(res.Designs))
+		}
+		res.Designs = slices.Clone(res.Designs)
+		for i := range res.Designs {
+			d := &res.Designs[i]
+			if len(d.Parts) > lim.PartsPerNetwork {
+				return r, invalid(op, "search.designs.parts", "%d parts; a network holds at most %d", len(d.Parts), lim.PartsPerNetwork)
+			}
+			d.Parts = slices.Clone(d.Parts)
+			for j := range d.Parts {
+				d.Parts[j].ID = ""
+				if err := checkPart(op, &d.Parts[j]); err != nil {
+					return r, err
+				}
+			}
+		}
+		next.Search = &res
+
+	case OpSearchClear:
+		next.Search = nil
+
 	case OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove, OpPartAdd, OpPartSet, OpPartRemove, OpPartMove:
 		if err := computeNetwork(cur, next, ch, &r, lim); err != nil {
 			return r, err

@@ -165,6 +165,7 @@ type NetworkView struct {
 	Error      string
 	Power      []PowerRow
 	PowerNote  string
+	Search     SearchView
 }
 
 // PartRow is one part of the network, in order from the load.
@@ -224,4 +225,32 @@ type TDRView struct {
 	GateCentre, GateSpan            string
 	HasGate                         bool
 	Note                            string
+}
+
+// SearchView is the broadband search's result and the single-frequency
+// solutions, shown in the network panel.
+type SearchView struct {
+	Has            bool
+	Settings, Note string
+	Exact          bool
+	Designs        []DesignRow
+	SynthAt        string
+	SynthLoad      string
+	LNets, Stubs   []SynthRow
+	NoL, Quarter   []string
+	SynthNote      string
+}
+
+// DesignRow is one design a search found.
+type DesignRow struct {
+	Index                       int
+	Parts, Bands, Worst, Margin string
+	Pass                        bool
+}
+
+// SynthRow is one single-frequency solution.
+type SynthRow struct {
+	Index        int
+	Label, Parts string
+	CanUse       bool
 }

@@ -71,12 +71,8 @@ function handle(msg) {
 	switch (msg.type) {
 	case "update":
 		if (typeof msg.v === "number") { version = msg.v; body.dataset.version = String(version); }
-		if (msg.anim) {
-			playAnimation(msg.anim, () => { (msg.frags || []).forEach(applyFrag); restoreSelection(); });
-		} else {
-			(msg.frags || []).forEach(applyFrag);
-			restoreSelection();
-		}
+		updates.push(msg);
+		if (!animating) nextUpdate();
 		break;
 	case "ack":
 		if (typeof msg.v === "number" && msg.v > version) { version = msg.v; body.dataset.version = String(version); }
@@ -87,7 +83,47 @@ function handle(msg) {
 	case "reload":
 		location.reload();
 		break;
+	case "progress":
+		showProgress(msg);
+		break;
 	}
+}
+
+// Updates land in order: one that comes while an animation plays waits
+// for it, so an older step's fragments never overwrite a newer one's.
+const updates = [];
+let animating = false;
+
+function nextUpdate() {
+	while (updates.length) {
+		const msg = updates.shift();
+		if (msg.anim && !document.hidden) {
+			animating = true;
+			playAnimation(msg.anim, () => {
+				(msg.frags || []).forEach(applyFrag);
+				restoreSelection();
+				animating = false;
+				nextUpdate();
+			});
+			return;
+		}
+		(msg.frags || []).forEach(applyFrag);
+		restoreSelection();
+	}
+}
+
+// showProgress shows a running search's progress bar and status.
+function showProgress(msg) {
+	const row = $("#search-progress-row");
+	if (!row) return;
+	row.hidden = false;
+	const bar = $("#search-progress");
+	if (bar && msg.total > 0) { bar.max = msg.total; bar.value = msg.done; }
+	const st = $("#search-status");
+	if (st) st.textContent = msg.msg || (msg.total > 0 ? `${Math.round(100 * msg.done / msg.total)} %` : "");
+	const c = $("#search-cancel");
+	if (c) c.hidden = !msg.running;
+	if (bar) bar.hidden = !msg.running;
 }
 
 // applyFrag replaces the element whose id is frag.id with frag.html. SVG
@@ -144,7 +180,7 @@ function playAnimation(anim, done) {
 	const ms = anim.ms || 600;
 	const t0 = performance.now();
 	const step = (now) => {
-		const i = Math.min(frames.length - 1, Math.floor((now - t0) / ms * frames.length));
+		const i = Math.max(0, Math.min(frames.length - 1, Math.floor((now - t0) / ms * frames.length)));
 		frames[i].forEach(applyFrag);
 		if (i < frames.length - 1) requestAnimationFrame(step);
 		else done();
@@ -319,6 +355,10 @@ document.addEventListener("click", (ev) => {
 	case "part-add": send({ type: "form", form: "part.add", fields: { kind: d.kind } }); break;
 	case "part-move": change({ op: "part.move", partId: d.part, index: Number(d.index) }); break;
 	case "part-remove": change({ op: "part.remove", partId: d.part }); break;
+	case "search-use": send({ type: "form", form: "search.use", fields: { index: d.index } }); break;
+	case "synth-use": send({ type: "form", form: "synth.use", fields: { index: d.index } }); break;
+	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index } }); break;
+	case "search-cancel": send({ type: "action", action: "search-cancel" }); break;
 	default: send({ type: "action", action: d.action, fields: { ...d } });
 	}
 });
