@@ -44,6 +44,8 @@ func commands() []command {
 		{"inspect", "print what a sweep shows: dips, band edges, resonances, readouts", runInspect},
 		{"convert", "convert a sweep between Touchstone 1/2 and CSV", runConvert},
 		{"demo", "write the invented demo sweeps to a folder", runDemo},
+		{"match", "search ladders of standard-value parts for the best match across bands", runMatch},
+		{"synth", "every L-network, stub and quarter-wave match of an impedance at one frequency", runSynth},
 		{"check", "pass or fail sweeps against return-loss limits; a lot summary for many", runCheck},
 		{"deembed", "move the reference plane: remove a fixture or a port extension, renormalise", runDeembed},
 		{"tdr", "time-domain view of a reflection sweep: reflections by distance, impedance, gating", runTDR},

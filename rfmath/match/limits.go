@@ -74,6 +74,22 @@ func (m RLC) ResonanceHz() float64 {
 	return 0
 }
 
+// Q returns the model's Q at its resonance: ω0·L/R for a series RLC,
+// R/(ω0·L) for a parallel one (Pozar, Microwave Engineering, Section 6.1,
+// from memory; REFERENCE-CHECKS §9 ), or NaN if it does not
+// resonate (an element is missing).
+func (m RLC) Q() float64 {
+	f0 := m.ResonanceHz()
+	if f0 == 0 {
+		return math.NaN()
+	}
+	x := 2 * math.Pi * f0 * m.LH
+	if m.Parallel {
+		return m.ROhm / x
+	}
+	return x / m.ROhm
+}
+
 // Fit is an [RLC] fitted to a measured load.
 type Fit struct {
 	RLC

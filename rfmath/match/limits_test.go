@@ -132,6 +132,18 @@ func TestFitRLC(t *testing.T) {
 			t.Errorf("%s: fit %v (error %g), want %v", tc.name, g, fit.RMSGammaError, tc.m)
 		}
 	}
+	// Q of the models (REFERENCE-CHECKS §9: R-1 Q = 20, R-3 Q = 10).
+	for _, c := range []struct {
+		m RLC
+		q float64
+	}{{RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}, 20}, {RLC{Parallel: true, ROhm: 1000, LH: 100e-9, CF: 10e-12}, 10}} {
+		if got := c.m.Q(); math.Abs(got-c.q) > 1e-9 {
+			t.Errorf("%v: Q = %v, want %v", c.m, got, c.q)
+		}
+	}
+	if !math.IsNaN((RLC{ROhm: 5, CF: 1e-12}).Q()) {
+		t.Errorf("RC has a Q")
+	}
 	if _, err := FitRLC(loadOf(grid(1e9, 2e9, 5), 50, func(float64) complex128 { return 30 }), 1e9, 1.1e9); err == nil {
 		t.Errorf("fit of 1 point accepted")
 	}
