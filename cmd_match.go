@@ -23,7 +23,7 @@ type matchDesignJSON struct {
 	WorstRLdB jsonNum         `json:"worst_rl_db"`
 	MarginDB  jsonNum         `json:"margin_db"`
 	Meets     bool            `json:"meets"`
-	Bands     []matchBandJSON      `json:"bands"`
+	Bands     []matchBandJSON `json:"bands"`
 	Yield     *float64        `json:"yield,omitempty"`
 	Limit     *limitJSON      `json:"bode_fano,omitempty"`
 	Stress    []stressJSON    `json:"stress,omitempty"`
