@@ -3,8 +3,8 @@ package match
 import (
 	"fmt"
 	"math"
-	"math/cmplx"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 	"matchbench/rfmath/units"
 )
@@ -56,13 +56,10 @@ type PartReport struct {
 // dissipation against the power rating; no derating is applied).
 //
 // The source is a generator of the load's reference impedance Z0 with
-// available power P: its incident wave has the peak amplitude
-// a = √(2·P·Z0). Carrying the normalised (v, i) from the load toward the
-// source as [Circuit.GammaAt] does gives every node's voltage and every
-// branch's current up to one complex scale, set by the incident wave at the
-// input: a_in = (V + Z0·I)/2. A series part carries the current of its
-// branch and has Z·I across it; a shunt part has its node's voltage V
-// across it and carries V/Z.
+// available power P; the voltages and currents are those of
+// [rfmath.Ladder.StressTo], which walks the source's voltage and current
+// through the ladder toward the load. The dissipation of a part is
+// ½·|I|²·Re Z.
 //
 // CAUTION: high RF power can burn and can shock. These are estimates from
 // ideal circuit theory and typical ratings, not a rated design review.
@@ -81,7 +78,7 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 	if rater == nil {
 		rater, _ = s.Model.(Rater)
 	}
-	c := n.Circuit(s.Model)
+	lad := n.Ladder(s.Model)
 	rep := make([]PartReport, len(n))
 	for j, p := range n {
 		rep[j].Part = p
@@ -89,43 +86,25 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 			rep[j].Rating = rater.Rating(p.Kind.Part(), p.Value)
 		}
 	}
-	z0 := l.Z0Ohm
-	a := math.Sqrt(2 * s.PowerW * z0) // peak incident voltage
-	across := make([]complex128, len(n))
-	through := make([]complex128, len(n))
-	zs := make([]complex128, len(n))
+	z0 := complex(l.Z0Ohm, 0)
+	st := make([]rfmath.Stress, len(n))
 	for k, f := range pts.freqHz {
-		g := pts.gamma[k]
-		// Normalised: V = v·S, I = i·S/Z0 for a common complex scale S.
-		v, i := 1+g, 1-g
-		for j, e := range c.els {
-			z := e.part.ImpedanceAt(f) / complex(z0, 0)
-			zs[j] = z * complex(z0, 0)
-			if e.shunt {
-				across[j], through[j] = v, v/z
-				i += v / z
-			} else {
-				across[j], through[j] = z*i, i
-				v += z * i
-			}
-		}
-		scale := a / cmplx.Abs((v+i)/2)
+		lad.StressTo(st, f, rfmath.ZFromGamma(pts.gamma[k], z0), l.Z0Ohm, s.PowerW)
 		for j := range n {
-			vp := cmplx.Abs(across[j]) * scale
-			ip := cmplx.Abs(through[j]) * scale / z0
-			st := PartStress{
+			vp, ip := st[j].VPeakV, st[j].IPeakA
+			ps := PartStress{
 				FreqHz: f,
 				VPeak:  vp, VRMS: vp / math.Sqrt2,
 				IPeak: ip, IRMS: ip / math.Sqrt2,
-				DissipationW: 0.5 * ip * ip * math.Max(real(zs[j]), 0),
+				DissipationW: 0.5 * ip * ip * math.Max(real(partZ(lad[j], f)), 0),
 			}
 			r := &rep[j]
-			r.PerFreq = append(r.PerFreq, st)
-			if st.VPeak > r.WorstV.VPeak || len(r.PerFreq) == 1 {
-				r.WorstV = st
+			r.PerFreq = append(r.PerFreq, ps)
+			if ps.VPeak > r.WorstV.VPeak || len(r.PerFreq) == 1 {
+				r.WorstV = ps
 			}
-			if st.IRMS > r.WorstI.IRMS || len(r.PerFreq) == 1 {
-				r.WorstI = st
+			if ps.IRMS > r.WorstI.IRMS || len(r.PerFreq) == 1 {
+				r.WorstI = ps
 			}
 		}
 	}
@@ -151,4 +130,16 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 		}
 	}
 	return rep, nil
+}
+
+// partZ returns the impedance of the part of a ladder element made by
+// [Network.Ladder].
+func partZ(e rfmath.Element, fHz float64) complex128 {
+	switch p := e.(type) {
+	case rfmath.Series:
+		return p.Part.ImpedanceAt(fHz)
+	case rfmath.Shunt:
+		return p.Part.ImpedanceAt(fHz)
+	}
+	return 0
 }
