@@ -317,18 +317,19 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 		e.first[j], e.count[j] = first, last-first+1
 	}
 
-	// Tables of part impedances.
-	zr := complex(z0, 0)
+	// Tables of part impedances, by the closed forms of Circuit.
 	for j, pk := range []parts.Kind{parts.KindL, parts.KindC} {
 		n := e.count[j]
 		e.z[j] = make([]complex128, n*e.K)
 		e.y[j] = make([]complex128, n*e.K)
 		for r := range n {
 			p := set.Model.Part(pk, e.ser[j].Value(e.first[j]+r))
+			ser, sh := compile(p, false), compile(p, true)
 			for k, f := range pts.freqHz {
-				zz := p.ImpedanceAt(f) / zr
-				e.z[j][r*e.K+k] = zz
-				e.y[j][r*e.K+k] = 1 / zz
+				w := 2 * math.Pi * f
+				zz, yy := ser.step(f, w), sh.step(f, w)
+				e.z[j][r*e.K+k] = complex(real(zz)/z0, imag(zz)/z0)
+				e.y[j][r*e.K+k] = complex(real(yy)*z0, imag(yy)*z0)
 			}
 		}
 	}
@@ -355,10 +356,25 @@ func sortRows(t []complex128, n, K int) sorted {
 	s := sorted{n: n, perm: make([]int32, n*K), im: make([]float64, n*K), rmin: make([]float64, K), rmax: make([]float64, K)}
 	for k := range K {
 		p := s.perm[k*n : (k+1)*n]
-		for r := range p {
-			p[r] = int32(r)
+		if k == 0 {
+			for r := range p {
+				p[r] = int32(r)
+			}
+		} else {
+			// Neighbouring points order the rows alike: start from the
+			// last order, and insertion sort has little to do.
+			copy(p, s.perm[(k-1)*n:k*n])
 		}
-		sort.SliceStable(p, func(a, b int) bool { return imag(t[int(p[a])*K+k]) < imag(t[int(p[b])*K+k]) })
+		for a := 1; a < n; a++ {
+			x := p[a]
+			xi := imag(t[int(x)*K+k])
+			b := a
+			for b > 0 && imag(t[int(p[b-1])*K+k]) > xi {
+				p[b] = p[b-1]
+				b--
+			}
+			p[b] = x
+		}
 		s.rmin[k], s.rmax[k] = math.Inf(1), math.Inf(-1)
 		for r, j := range p {
 			x := t[int(j)*K+k]
