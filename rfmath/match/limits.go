@@ -241,9 +241,9 @@ func sq(x float64) float64 { return x * x }
 // Limit is the Bode–Fano limit of a load over a set of bands.
 type Limit struct {
 	Model RLC
-	// IntegralHz is the bound on ∫ ln(1/|Γ|) dω over all frequencies (in
-	// rad/s), +Inf when the model has no element that sets it;
-	// IntegralInvHz the bound on ∫ ω⁻² ln(1/|Γ|) dω (in s/rad), likewise.
+	// Integral is the bound on ∫₀^∞ ln(1/|Γ|) dω (ω in rad/s), +Inf when
+	// the model has no element that sets it; IntegralInv the bound on
+	// ∫₀^∞ ω⁻² ln(1/|Γ|) dω (in s/rad), likewise.
 	Integral, IntegralInv float64
 	// BestRLdB is the highest return loss that a lossless network of any
 	// order can hold at once across every band, with total reflection

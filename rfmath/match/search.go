@@ -125,29 +125,34 @@ func (s *Settings) defaults() Settings {
 // frequencies within them and at their edges, as [Evaluate] does, and the
 // returned metrics are computed by Evaluate.
 //
-// The search has two phases.
+// Shapes are searched by number of parts, fewest first, each in two
+// phases.
 //
-//  1. Continuous: for each shape, Nelder–Mead (gonum/optimize) minimises
-//     the worst weighted |Γ|² over a subset of the band points, on the
-//     logarithms of the part values, from several starts: the L-networks
-//     that match the load at the centre of each band and of the whole span
-//     (with any further part set to its least disturbing value) and the
-//     middle of the ranges. Each optimum is rounded to standard values and
-//     the 5ⁿ neighbouring combinations are tried; the best is the shape's
-//     first incumbent.
-//  2. Exact: every combination of standard values (or, in window mode,
-//     every one within ±Window steps of each optimum) is enumerated from the
-//     load outward. It is exact because it only skips what cannot win: a
-//     whole network is dropped at the first band point where its weighted
-//     |Γ|² reaches the incumbent's (the points that dropped the last
-//     networks are tried first); a network lacking only its last part is
-//     dropped when, at one of those points, even the best value of a
-//     passive last part could not bring it below the incumbent (a series
-//     part cannot lower R, a shunt part cannot lower G, so with R > Z0
-//     |Γ| ≥ (R − Z0)/(R + Z0)); and a shape is dropped when it cannot beat
-//     Top other shapes' incumbents. The voltage and current at the load end
-//     of each partial network are computed once per point and reused by
-//     every network that shares it.
+//  1. Continuous: Nelder–Mead (gonum/optimize) minimises the worst
+//     weighted |Γ|² over a subset of the band points, on the logarithms of
+//     the part values, from several starts: the L-networks that match the
+//     load at the centre of each band and of the whole span (any further
+//     part at its least disturbing end of the range) and the middle of the
+//     ranges. Each optimum is rounded to standard values; so is the best
+//     network of one part fewer with a part added at either end (that part
+//     over its whole range). The standard values within ±2 steps of these
+//     give the shape's first incumbent.
+//  2. Exact: every combination of standard values (in window mode, every
+//     one within ±Window steps of the points of phase 1) is enumerated
+//     from the load outward. It is exact because it only skips what cannot
+//     win. A whole network is dropped at the first band point where its
+//     weighted |Γ|² reaches the incumbent's; the points that dropped the
+//     last networks are tried first. At the first of them, the last part's
+//     values that could pass form one range of its values sorted by
+//     reactance: after the part the impedance must lie in a circle
+//     (|Γ|² ≤ incumbent), and a passive part moves it by its own reactance
+//     with a resistance in a known range; only that range is tried. A
+//     network lacking its last two parts is dropped when no passive pair
+//     can bring it below the incumbent (after a shunt part the resistance is
+//     at most 1/G, after a series part the conductance at most 1/R). A
+//     shape is dropped when it cannot beat Top other shapes' incumbents.
+//     The voltage and current at each partial network's source end are
+//     computed once per point and shared by every network that extends it.
 //
 // In every mode the result equals that of [Exhaustive] over the same
 // combinations (in window mode: within the windows); the tests check it.
@@ -755,8 +760,7 @@ func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
 		lo[p] = math.Log(e.ser[j].Value(e.first[j]))
 		hi[p] = math.Log(e.ser[j].Value(e.first[j] + e.count[j] - 1))
 	}
-	net := make(Network, n)
-	copy(net, e.network(top, make([]int, n)))
+	net := e.network(top, make([]int, n))
 	obj := func(x []float64) float64 {
 		pen := 0.0
 		for p := range n {
@@ -775,17 +779,17 @@ func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
 	var out [][]int
 	seen := map[string]bool{}
 	for _, x0 := range e.starts(top, lo, hi) {
-		r, err := optimize.Minimize(optimize.Problem{Func: obj}, x0,
+		// An error (such as the limit on evaluations) still leaves the best
+		// point found in r.
+		r, _ := optimize.Minimize(optimize.Problem{Func: obj}, x0,
 			&optimize.Settings{
 				FuncEvaluations: 80 + 60*n,
 				Converger:       &optimize.FunctionConverge{Absolute: 1e-3, Relative: 1e-3, Iterations: 20},
 			},
 			&optimize.NelderMead{SimplexSize: 0.4})
 		x := x0
-		if err == nil || r != nil {
-			if r != nil && r.X != nil {
-				x = r.X
-			}
+		if r != nil && r.X != nil {
+			x = r.X
 		}
 		idx := make([]int, n)
 		for p, k := range top {
