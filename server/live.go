@@ -132,7 +132,7 @@ func (rm *room) broadcast(ev sessions.Event) {
 			}
 			msgs[c.cap] = b
 		}
-		c.queue(msgs[c.cap])
+		c.queueUpdate(ev.Version, msgs[c.cap])
 	}
 }
 

@@ -355,6 +355,8 @@ func (sc *scene) networkView() web.NetworkView {
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
+	v.Limits = sc.limitsView()
+	v.Yield = sc.yieldView()
 	return v
 }
 
@@ -373,6 +375,27 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 				return ch, fe("design", "Design frequency", err)
 			}
 			ch.DesignHz = v
+		}
+		if s, ok := f["yield"]; ok {
+			switch n, err := strconv.Atoi(strings.TrimSpace(s)); {
+			case strings.TrimSpace(s) == "" || s == "0" || s == "off":
+				ch.YieldBuilds = -1
+			case err != nil || n < 1:
+				return ch, fe("yield", "Builds", fmt.Errorf("%q is not a number of builds", s))
+			default:
+				ch.YieldBuilds = n
+			}
+		}
+		if s, ok := f["radius"]; ok {
+			if strings.TrimSpace(s) == "" {
+				ch.ChuRadiusM = -1
+			} else {
+				r, err := units.ParseValue(s, "m")
+				if err != nil {
+					return ch, fe("radius", "Sphere radius", err)
+				}
+				ch.ChuRadiusM = r
+			}
 		}
 		if s := strings.TrimSpace(f["power"]); s != "" {
 			v, err := units.ParseValue(s, "W")

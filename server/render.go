@@ -12,6 +12,7 @@ import (
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath"
+	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
 	"matchbench/web"
@@ -49,6 +50,10 @@ type scene struct {
 	net    *netEval                 // the active matching network, or nil
 	raw    map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
 	errs   map[string]string        // sweeps whose plane could not be applied
+
+	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
+	yieldRes  *match.YieldResult
+	yieldMsg  string
 
 	tdrDone bool // tdrP and tdrNote hold the time-domain view
 	tdrP    *plot
@@ -195,7 +200,8 @@ func (t *trace) at(fHz float64) (complex128, bool) {
 }
 
 func (sc *scene) renderChart(w io.Writer) error {
-	traces := append(sc.chartTraces(), sc.netTraces()...)
+	traces := append(sc.cloudTraces(), sc.chartTraces()...)
+	traces = append(traces, sc.netTraces()...)
 	markers := sc.chartMarkers()
 	var path []chartsvg.PathSegment
 	if sc.net != nil {

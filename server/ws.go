@@ -64,6 +64,9 @@ type conn struct {
 	done    chan struct{}
 	reason  string
 	final   []byte // a last message sent before the close frame (see closeReload)
+
+	sendMu sync.Mutex // orders updates; see queueUpdate
+	sentV  int64      // the version of the newest update queued
 }
 
 func (s *Server) upgrader() *websocket.Upgrader {
@@ -420,7 +423,12 @@ func (c *conn) scene(ctx context.Context) (*scene, error) {
 }
 
 // catchUp sends a full update when the page's version is not the session's.
+// It holds sendMu throughout, so that the room's updates queue either
+// before the catch-up (and it overtakes them) or after it (and those it
+// already covers are skipped).
 func (c *conn) catchUp(v int64) {
+	c.sendMu.Lock()
+	defer c.sendMu.Unlock()
 	cu, err := c.s.store.Since(context.Background(), c.sid, v)
 	if err != nil {
 		if !errors.Is(err, sessions.ErrNotFound) {
@@ -429,6 +437,7 @@ func (c *conn) catchUp(v int64) {
 		c.reply(outMsg{Type: "reload"})
 		return
 	}
+	c.sentV = max(c.sentV, cu.Version)
 	if cu.Version == v {
 		return
 	}

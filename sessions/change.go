@@ -97,8 +97,9 @@ var Ops = []string{
 //	                designHz, parts             of sweepId (default: the first sweep) and make it
 //	                                            active; designHz defaults to the band centre;
 //	                                            parts (optional) are its first parts
-//	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs)
-//	                port, designHz, powerW
+//	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs);
+//	                port, designHz, powerW,     yieldBuilds −1 turns the Monte Carlo off, chuRadiusM
+//	                yieldBuilds, chuRadiusM     −1 forgets the radius
 //	network.select  networkId                   make it the active network
 //	network.remove  networkId
 //	part.add        networkId, kind, value,     add a part to the network (networkId "" = the
@@ -165,7 +166,10 @@ type Change struct {
 	Index     *int               `json:"index,omitempty"`
 	DesignHz  float64            `json:"designHz,omitempty"`
 	PowerW    *float64           `json:"powerW,omitempty"`
-	Parts     []Part             `json:"parts,omitempty"`
+	// YieldBuilds and ChuRadiusM are for network.set (see there).
+	YieldBuilds int     `json:"yieldBuilds,omitempty"`
+	ChuRadiusM  float64 `json:"chuRadiusM,omitempty"`
+	Parts       []Part  `json:"parts,omitempty"`
 
 	RefPlane   *RefPlane     `json:"refPlane,omitempty"`
 	Search     *SearchResult `json:"search,omitempty"`

@@ -134,6 +134,13 @@ type Network struct {
 	DesignHz float64 `json:"designHz,omitempty"`
 	PowerW   float64 `json:"powerW,omitempty"`
 	Parts    []Part  `json:"parts"`
+	// YieldBuilds, when positive, asks for a Monte Carlo of that many
+	// builds over the parts' tolerances (seed YieldSeed, 0 meaning 1).
+	YieldBuilds int    `json:"yieldBuilds,omitempty"`
+	YieldSeed   uint64 `json:"yieldSeed,omitempty"`
+	// ChuRadiusM, when positive, is the radius of the sphere enclosing the
+	// antenna, for the Chu limit on its Q.
+	ChuRadiusM float64 `json:"chuRadiusM,omitempty"`
 }
 
 // Part kinds. Lumped parts sit in series with the line or shunt across it.

@@ -136,6 +136,22 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			}
 			n.DesignHz = ch.DesignHz
 		}
+		switch {
+		case ch.YieldBuilds < 0:
+			n.YieldBuilds = 0
+		case ch.YieldBuilds > 100000:
+			return invalid(op, "yieldBuilds", "%d builds; at most 100000", ch.YieldBuilds)
+		case ch.YieldBuilds > 0:
+			n.YieldBuilds = ch.YieldBuilds
+		}
+		switch {
+		case ch.ChuRadiusM < 0:
+			n.ChuRadiusM = 0
+		case ch.ChuRadiusM > 100 || !finite(ch.ChuRadiusM):
+			return invalid(op, "chuRadiusM", "%g m is not a sphere around an antenna on a board", ch.ChuRadiusM)
+		case ch.ChuRadiusM > 0:
+			n.ChuRadiusM = ch.ChuRadiusM
+		}
 		if ch.PowerW != nil {
 			if !finite(*ch.PowerW) || *ch.PowerW < 0 || *ch.PowerW > 1e4 {
 				return invalid(op, "powerW", "%g W is not within 0–10 kW", *ch.PowerW)

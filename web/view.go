@@ -166,6 +166,8 @@ type NetworkView struct {
 	Power      []PowerRow
 	PowerNote  string
 	Search     SearchView
+	Limits     LimitsView
+	Yield      YieldView
 }
 
 // PartRow is one part of the network, in order from the load.
@@ -253,4 +255,23 @@ type SynthRow struct {
 	Index        int
 	Label, Parts string
 	CanUse       bool
+}
+
+// LimitsView holds the limits no network can beat, in words.
+type LimitsView struct {
+	BodeFano, Chu, Radius string
+	Feasible              bool
+}
+
+// YieldView is the Monte Carlo over the parts' tolerances.
+type YieldView struct {
+	On            bool
+	Summary, Note string
+	Parts         []SensRow
+}
+
+// SensRow is what one part's tolerance alone costs.
+type SensRow struct {
+	Designator, Tol, Low, High, Share string
+	Most                              bool
 }

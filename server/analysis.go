@@ -1,0 +1,164 @@
+package server
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"time"
+
+	"matchbench/chartsvg"
+	"matchbench/rfmath/match"
+	"matchbench/rfmath/parts"
+	"matchbench/rfmath/units"
+	"matchbench/sessions"
+	"matchbench/web"
+)
+
+// cloudTraces is how many Monte Carlo builds are drawn on the chart.
+const cloudTraces = 24
+
+// matchLoad returns the active network's load and the session's bands that
+// carry a requirement, as rfmath/match wants them.
+func (ne *netEval) matchLoad(st *sessions.State) (match.Load, []match.Band) {
+	l := match.Load{FreqHz: ne.sweep.FreqHz, Gamma: ne.gLoad, Z0Ohm: ne.z0}
+	var bands []match.Band
+	for _, b := range st.Bands {
+		if b.MinReturnLossDB > 0 && b.LoHz >= ne.sweep.FreqHz[0] && b.HiHz <= ne.sweep.FreqHz[ne.sweep.Len()-1] {
+			bands = append(bands, match.Band{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB})
+		}
+	}
+	return l, bands
+}
+
+// limitsView gives the Bode–Fano limit across the bands and, with a sphere
+// radius, the Chu limit on the antenna's Q.
+func (sc *scene) limitsView() web.LimitsView {
+	var v web.LimitsView
+	ne := sc.net
+	if ne == nil || ne.err != nil {
+		return v
+	}
+	l, bands := ne.matchLoad(sc.st)
+	if len(bands) > 0 {
+		lim, fit, err := match.BodeFanoOf(l, bands)
+		if err != nil {
+			v.BodeFano = "Bode–Fano: " + err.Error()
+		} else {
+			kind := "series"
+			if fit.Parallel {
+				kind = "parallel"
+			}
+			best := "no limit"
+			if !math.IsInf(lim.BestRLdB, 1) {
+				best = fmt.Sprintf("%.1f dB", lim.BestRLdB)
+			}
+			v.BodeFano = fmt.Sprintf("Bode–Fano: near the bands the load behaves as a %s RLC (%s; fit error %.3f in Γ). No lossless network of any order can hold more than %s across all the bands at once; the largest common margin over the requirements is %+.1f dB.",
+				kind, fit.RLC, fit.RMSGammaError, best, lim.MaxMarginDB)
+			v.Feasible = lim.Feasible()
+		}
+	}
+	if r := ne.n.ChuRadiusM; r > 0 {
+		c, err := match.ChuCompare(l, ne.n.DesignHz, r)
+		if err != nil {
+			v.Chu = "Chu limit: " + err.Error()
+		} else {
+			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance near %s, so Q ≥ %.1f; the sweep shows Q = %.1f (%.2f × the limit%s).",
+				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, c.Ratio,
+				map[bool]string{true: "; below 1 means loss, or a radiator larger than the sphere such as the ground plane", false: ""}[c.Ratio < 1])
+		}
+		v.Radius = units.Format(r, "m", 3)
+	}
+	return v
+}
+
+// yield runs the network's Monte Carlo when one is asked for: only for
+// networks of L and C parts; the model is the first part's family.
+func (sc *scene) yield() (*match.YieldResult, string) {
+	if sc.yieldDone {
+		return sc.yieldRes, sc.yieldMsg
+	}
+	sc.yieldDone = true
+	ne := sc.net
+	if ne == nil || ne.err != nil || ne.n.YieldBuilds <= 0 || len(ne.n.Parts) == 0 {
+		return nil, ""
+	}
+	l, bands := ne.matchLoad(sc.st)
+	if len(bands) == 0 {
+		sc.yieldMsg = "Yield needs a band with a return-loss requirement."
+		return nil, sc.yieldMsg
+	}
+	var nw match.Network
+	var tols []parts.Tolerance
+	var model parts.Model
+	for _, p := range ne.n.Parts {
+		k := match.Kind(p.Kind)
+		switch k {
+		case match.SeriesL, match.SeriesC, match.ShuntL, match.ShuntC:
+		default:
+			sc.yieldMsg = "Yield is computed for networks of inductors and capacitors only."
+			return nil, sc.yieldMsg
+		}
+		nw = append(nw, match.Part{Kind: k, Value: p.BuyValue(), Series: p.ESeries})
+		t := parts.DefaultTolerance(p.LumpedKind())
+		if v, ok := p.Params["tolRel"]; ok {
+			t.Rel = v
+		}
+		if v, ok := p.Params["tolAbs"]; ok {
+			t.Abs = v
+		}
+		tols = append(tols, t)
+		if model == nil && p.Model != "" {
+			if fam, err := parts.LookupFamily(p.Model); err == nil {
+				model = fam
+			}
+		}
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	defer cancel()
+	res, err := match.Yield(ctx, l, bands, nw, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Tolerances: tols, Model: model, Traces: cloudTraces})
+	if err != nil {
+		sc.yieldMsg = "Yield: " + err.Error()
+		return nil, sc.yieldMsg
+	}
+	sc.yieldRes = res
+	return res, ""
+}
+
+// yieldView summarises the Monte Carlo for the panel.
+func (sc *scene) yieldView() web.YieldView {
+	ne := sc.net
+	v := web.YieldView{}
+	if ne == nil || ne.err != nil {
+		return v
+	}
+	v.On = ne.n.YieldBuilds > 0
+	res, msg := sc.yield()
+	v.Note = msg
+	if res == nil {
+		return v
+	}
+	v.Summary = fmt.Sprintf("%d builds (seed %d): %.1f %% meet every band. Margin: median %+.2f dB, 5th percentile %+.2f dB, worst build %+.2f dB; worst corner %+.2f dB.",
+		res.Builds, max(ne.n.YieldSeed, 1), 100*res.Yield, res.MedianMarginDB, res.P5MarginDB, res.WorstMarginDB, res.WorstCorner.MarginDB)
+	for i, s := range res.Sensitivity {
+		u := unitOf(ne.n.Parts[i].Kind)
+		v.Parts = append(v.Parts, web.SensRow{
+			Designator: designator(ne.n.Parts, i), Tol: "±" + units.Format(s.Tolerance, u, 3),
+			Low: fmt.Sprintf("%+.2f dB", s.LowDB), High: fmt.Sprintf("%+.2f dB", s.HighDB),
+			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: i == res.MostSensitive,
+		})
+	}
+	return v
+}
+
+// cloudTraces are the first Monte Carlo builds, drawn thin and grey.
+func (sc *scene) cloudTraces() []chartsvg.Trace {
+	res, _ := sc.yield()
+	if res == nil {
+		return nil
+	}
+	out := make([]chartsvg.Trace, 0, len(res.Traces))
+	for i, g := range res.Traces {
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "tolerance builds", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, Dashed: false})
+	}
+	return out
+}
