@@ -2,6 +2,7 @@ package chartsvg
 
 import (
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"unicode/utf8"
@@ -35,6 +36,9 @@ type Trace struct {
 	// KeepHz lists frequencies whose nearest points always stay in the
 	// drawn curve however it is thinned (e.g. the markers' frequencies).
 	KeepHz []float64
+	// NoLegend leaves the trace out of the legend (for example all but one
+	// of a cloud of similar traces).
+	NoLegend bool
 }
 
 const badTraceLength = "chartsvg: trace FreqHz and Gamma lengths differ"
@@ -384,12 +388,15 @@ func legendWidth(t *Trace) float64 {
 // placeLegend calls put with the top-left corner of each entry, flowing
 // entries left to right in rows across the width, and returns the height.
 func placeLegend(traces []Trace, size float64, put func(i int, x, y float64)) float64 {
-	if len(traces) == 0 {
+	if !slices.ContainsFunc(traces, func(t Trace) bool { return !t.NoLegend }) {
 		return 0
 	}
 	left := -size/2 + 14
 	x, y := left, size/2
 	for i := range traces {
+		if traces[i].NoLegend {
+			continue
+		}
 		w := legendWidth(&traces[i])
 		if x > left && x+w > size/2-8 {
 			x, y = left, y+legendRowPx

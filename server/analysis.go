@@ -158,7 +158,7 @@ func (sc *scene) cloudTraces() []chartsvg.Trace {
 	}
 	out := make([]chartsvg.Trace, 0, len(res.Traces))
 	for i, g := range res.Traces {
-		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "tolerance builds", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, Dashed: false})
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, NoLegend: i > 0})
 	}
 	return out
 }

@@ -22,7 +22,9 @@ import (
 	"matchbench/sessions"
 )
 
-var reconnectWhy atomic.Value
+// loadLastDrop holds why a load-test page's connection last ended, for
+// the report.
+var loadLastDrop atomic.Value
 
 var loadBig = flag.Bool("load.big", false, "run TestLoad with 200 changes per editor instead of 10")
 
@@ -113,7 +115,7 @@ func (c *loadClient) run(done *sync.WaitGroup) {
 		}
 		c.mu.Lock()
 		c.reconnects++
-		reconnectWhy.Store(c.lastErr)
+		loadLastDrop.Store(c.lastErr)
 		c.mu.Unlock()
 		if c.acks != nil {
 			c.acks <- outMsg{Type: "dropped"}
@@ -376,7 +378,7 @@ func TestLoad(t *testing.T) {
 	t.Logf("%d updates delivered; all pages at their session's final version %v after the last ack; %d reconnects, %d changes with a lost answer",
 		updates, time.Since(conv).Round(time.Millisecond), reconnects, unknown)
 	if reconnects > 0 {
-		t.Logf("a connection ended with: %v", reconnectWhy.Load())
+		t.Logf("the last dropped connection ended with: %v", loadLastDrop.Load())
 	}
 	if backwards > 0 {
 		t.Errorf("%d updates arrived older than one already seen", backwards)

@@ -225,10 +225,10 @@ func (sc *scene) searchView() web.SearchView {
 		if len(ps) == 0 {
 			ps = []string{"nothing: already matched"}
 		}
-		v.LNets = append(v.LNets, web.SynthRow{Index: i, Label: string(l.Orientation), Parts: strings.Join(ps, " → "), CanUse: len(l.Parts) > 0})
+		v.LNets = append(v.LNets, web.SynthRow{Index: i, Label: orientationText[l.Orientation], Parts: strings.Join(ps, " → "), CanUse: len(l.Parts) > 0})
 	}
 	for _, no := range syn.NoL {
-		v.NoL = append(v.NoL, fmt.Sprintf("%s: %s", no.Orientation, no.Reason))
+		v.NoL = append(v.NoL, fmt.Sprintf("No L-network with the %s: %s", orientationText[no.Orientation], no.Reason))
 	}
 	for i, st := range syn.Stubs {
 		v.Stubs = append(v.Stubs, web.SynthRow{Index: i, Label: string(st.Type) + " stub",
@@ -239,6 +239,11 @@ func (sc *scene) searchView() web.SearchView {
 	}
 	v.SynthNote = strings.Join(syn.Notes, "; ")
 	return v
+}
+
+var orientationText = map[match.Orientation]string{
+	match.ShuntAtLoad:  "shunt part next to the load",
+	match.SeriesAtLoad: "series part next to the load",
 }
 
 func sign(x float64) string {
@@ -285,7 +290,7 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		switch {
 		case form == "synth.use" && idx < len(syn.LNetworks):
 			l := syn.LNetworks[idx]
-			ch.Name = "L-network " + string(l.Orientation)
+			ch.Name = "L-network, " + orientationText[l.Orientation]
 			for _, p := range l.Parts {
 				ch.Parts = append(ch.Parts, sessions.Part{Kind: string(p.Kind), Value: p.Value})
 			}
