@@ -196,6 +196,15 @@ func TestReissue(t *testing.T) {
 	hello(t, ed, v0)
 	hello(t, vw, v0)
 
+	// The edit page offers the re-issue (a POST form with a required
+	// confirmation box); the view page does not.
+	_, editPage := get(t, f.ts.URL+"/s/"+oldEdit+"/")
+	_, viewPage := get(t, f.ts.URL+"/s/"+oldView+"/")
+	form := regexp.MustCompile(`(?s)<form method="post" action="/s/` + oldEdit + `/reissue"[^>]*data-testid="reissue"[^>]*>.*?name="confirm"[^>]*required`)
+	if !form.MatchString(editPage) || strings.Contains(viewPage, "reissue") {
+		t.Error("the edit page lacks the re-issue form, or the view page has it")
+	}
+
 	// Refused: without the confirmation, and from another site.
 	if status, _, body := postForm(t, f.ts.URL+"/s/"+oldEdit+"/reissue", nil, nil); status != http.StatusBadRequest || !strings.Contains(body, "confirmation") {
 		t.Errorf("re-issue without confirmation: %d %q, want 400", status, body)
