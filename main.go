@@ -43,6 +43,7 @@ func commands() []command {
 		{"serve", "start the bench web app (the default)", runServe},
 		{"inspect", "print what a sweep shows: dips, band edges, resonances, readouts", runInspect},
 		{"convert", "convert a sweep between Touchstone 1/2 and CSV", runConvert},
+		{"chart", "draw sweeps on the reflection chart and plots, as SVG files", runChart},
 		{"demo", "write the invented demo sweeps to a folder", runDemo},
 		{"match", "search ladders of standard-value parts for the best match across bands", runMatch},
 		{"synth", "every L-network, stub and quarter-wave match of an impedance at one frequency", runSynth},

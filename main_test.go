@@ -228,3 +228,22 @@ func TestConvertRoundTrip(t *testing.T) {
 		t.Errorf(".ts output is not version 2.1:\n%.200s", b)
 	}
 }
+
+// chart writes the demo sweeps' chart and plots as SVG documents.
+func TestChartCommand(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	code, out, errOut := runCLI(t, "chart", "testdata/demo/fieldnode-antenna.s1p", "testdata/demo/wristtag-antenna.s1p", "--out", dir, "--band", "863M:870M:10")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	for _, f := range []string{"chart.svg", "reflection.svg", "impedance.svg", "vswr.svg"} {
+		b, err := os.ReadFile(filepath.Join(dir, f))
+		if err != nil || !strings.HasPrefix(string(b), "<svg") || !strings.Contains(out, f) {
+			t.Errorf("%s: %v, %.40q", f, err, b)
+		}
+	}
+	if code, _, _ := runCLI(t, "chart", "testdata/demo/fieldnode-antenna.s1p"); code != exitUsage {
+		t.Errorf("chart without --out: exit %d", code)
+	}
+}
