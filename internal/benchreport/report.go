@@ -170,44 +170,46 @@ func (rp *report) reading() {
 }
 
 func (rp *report) ladder() {
-	const g = "Evaluating a network (4-part ladder with part models, 10,001 frequencies)"
-	const name = "BenchmarkLadder4Models/points=10001"
+	const g = "Evaluating a network (4-part ladder of part models, 10,001 frequencies; numpy: same parts, same maths)"
 	perPF := float64(ladderParts * ladderPoints)
-	goNs, okGo := rp.med(pkgRF, name, "ns/op")
 	npNs, okNp := rp.med(pkgNumpy, "BenchmarkNumpyLadder4Models", "ns/op")
-	if okGo {
-		rp.add(row{group: g, figure: "Go: ns per part × frequency", value: fmt.Sprintf("%.1f ns", goNs/perPF), target: "", verdict: info,
-			from: fmt.Sprintf("%s per evaluation", ms(goNs))})
-	} else {
-		rp.missing(g, "Go: ns per part × frequency", "", false, name)
-	}
-	fig := "Go speed ÷ numpy complex arrays (same maths)"
-	if okGo && okNp {
-		ratio := npNs / goNs
-		rp.add(row{figure: fig, value: fmt.Sprintf("%.2f×", ratio), target: "≥ 1×", verdict: atLeast(ratio, 1),
-			from: fmt.Sprintf("Go %.1f ns, numpy %.1f ns per part × frequency", goNs/perPF, npNs/perPF)})
-	} else {
-		rp.missing("", fig, "≥ 1×", !okNp, name, "BenchmarkNumpyLadder4Models")
+	for _, ev := range []struct{ pkg, name, what string }{
+		{pkgRF, "BenchmarkLadder4Models/points=10001", "rfmath.Ladder (parts behind interfaces)"},
+		{pkgMatch, "BenchmarkCircuit4Models/points=10001", "match.Circuit (compiled, as the search uses it)"},
+	} {
+		goNs, okGo := rp.med(ev.pkg, ev.name, "ns/op")
+		fig := ev.what + ": speed ÷ numpy"
+		switch {
+		case okGo && okNp:
+			ratio := npNs / goNs
+			rp.add(row{group: g, figure: fig, value: fmt.Sprintf("%.2f×", ratio), target: "≥ 1×", verdict: atLeast(ratio, 1),
+				from: fmt.Sprintf("Go %.1f ns, numpy %.1f ns per part × frequency", goNs/perPF, npNs/perPF)})
+		case okGo:
+			rp.missing(g, fig, "≥ 1×", true, "BenchmarkNumpyLadder4Models")
+			rp.rows[len(rp.rows)-1].from = fmt.Sprintf("Go %.1f ns per part × frequency; needs BenchmarkNumpyLadder4Models", goNs/perPF)
+		default:
+			rp.missing(g, fig, "≥ 1×", !okNp, ev.name, "BenchmarkNumpyLadder4Models")
+		}
+		fig = ev.what + ": allocations per frequency"
+		if a, ok := rp.med(ev.pkg, ev.name, "allocs/op"); ok {
+			per := a / ladderPoints
+			rp.add(row{group: g, figure: fig, value: fmt.Sprintf("%.3g", per), target: "0", verdict: atMost(per, 0),
+				from: fmt.Sprintf("%.0f allocs per evaluation of %d frequencies", a, ladderPoints)})
+		} else {
+			rp.missing(g, fig, "0", false, ev.name)
+		}
 	}
 	for _, n := range rp.r.Names(pkgMatch) {
 		if !strings.HasPrefix(n, "BenchmarkCircuit4Part/") {
 			continue
 		}
 		if v, ok := rp.med(pkgMatch, n, "ns/part·freq"); ok {
-			ctx := "rfmath/match's own evaluator, its own network"
+			ctx := "rfmath/match's own benchmark and network"
 			if okNp {
 				ctx += fmt.Sprintf("; numpy above: %.1f ns", npNs/perPF)
 			}
-			rp.add(row{group: g, figure: "rfmath/match circuit (" + strings.TrimPrefix(n, "BenchmarkCircuit4Part/") + "): ns per part × frequency", value: fmt.Sprintf("%.1f ns", v), verdict: info, from: ctx})
+			rp.add(row{group: g, figure: "match.Circuit, its own network (" + strings.TrimPrefix(n, "BenchmarkCircuit4Part/") + "): ns per part × frequency", value: fmt.Sprintf("%.1f ns", v), verdict: info, from: ctx})
 		}
-	}
-	fig = "allocations per frequency"
-	if a, ok := rp.med(pkgRF, name, "allocs/op"); ok {
-		per := a / ladderPoints
-		rp.add(row{figure: fig, value: fmt.Sprintf("%.3g", per), target: "0", verdict: atMost(per, 0),
-			from: fmt.Sprintf("%.0f allocs per evaluation of %d frequencies", a, ladderPoints)})
-	} else {
-		rp.missing("", fig, "0", false, name)
 	}
 }
 
@@ -350,7 +352,8 @@ func (rp *report) scale() {
 			from: fmt.Sprintf("per point: %s at 1k, %s at 10k, %s at 100k", nsf(pLo), nsf(pMid), nsf(pHi))})
 	}
 	perPoint(pkgTouchstone, "BenchmarkReadScale", "reading a 2-port file")
-	perPoint(pkgRF, "BenchmarkLadder4Models", "evaluating the 4-part ladder")
+	perPoint(pkgRF, "BenchmarkLadder4Models", "evaluating the 4-part ladder (rfmath.Ladder)")
+	perPoint(pkgMatch, "BenchmarkCircuit4Models", "evaluating the 4-part ladder (match.Circuit)")
 	lo, ok1 := rp.med(pkgServer, "BenchmarkDrag/points=1001", "ns/op")
 	mid, ok2 := rp.med(pkgServer, "BenchmarkDrag/points=10001", "ns/op")
 	hi, ok3 := rp.med(pkgServer, "BenchmarkDrag/points=100001", "ns/op")

@@ -4,12 +4,14 @@ frequencies) written with numpy complex arrays: the same network, the same
 load and the same maths, line for line, so that scripts/bench can compare
 the two in one run.
 
-    usage: ladder.py COUNT [GO_GAMMA_FILE]
+    usage: ladder.py COUNT [GO_GAMMA_FILE...]
 
 It prints COUNT lines in the format of go test -bench under "pkg: numpy".
-Given GO_GAMMA_FILE (Γin at every 1000th frequency, written by the Go
-benchmark when MATCHBENCH_LADDER_GAMMA is set), it first checks that numpy's
-Γin agrees with Go's to 1e-12 and exits with status 1 if it does not.
+Given GO_GAMMA_FILEs (Γin at every 1000th frequency, written by the Go
+benchmarks when MATCHBENCH_LADDER_GAMMA (rfmath.Ladder) and
+MATCHBENCH_CIRCUIT_GAMMA (match.Circuit, the search's evaluator) are set),
+it first checks that numpy's Γin agrees with each to 1e-12 and exits with
+status 1 if it does not.
 
 Go (rfmath, rfmath/parts)                     numpy (this file)
 --------------------------------------------  ------------------------------------
@@ -114,17 +116,17 @@ def check(path, g):
             worst = max(worst, abs(g[int(k)] - complex(float(re), float(im))))
             rows += 1
     if rows == 0 or worst > 1e-12:
-        print(f"ladder.py: numpy and Go disagree: max |ΔΓ| = {worst:.3g} over {rows} frequencies", file=sys.stderr)
+        print(f"ladder.py: numpy and Go ({path}) disagree: max |ΔΓ| = {worst:.3g} over {rows} frequencies", file=sys.stderr)
         sys.exit(1)
-    print(f"ladder.py: numpy and Go agree at {rows} frequencies, max |ΔΓ| = {worst:.2g}", file=sys.stderr)
+    print(f"ladder.py: numpy and Go ({path}) agree at {rows} frequencies, max |ΔΓ| = {worst:.2g}", file=sys.stderr)
 
 
 def main():
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 5
     f, g_load = sweep(N)
     g = evaluate(f, g_load)
-    if len(sys.argv) > 2:
-        check(sys.argv[2], g)
+    for path in sys.argv[2:]:
+        check(path, g)
     print("pkg: numpy")
     for _ in range(count):
         # Like go test: grow the iteration count until one sample takes 1 s.
