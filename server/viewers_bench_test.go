@@ -64,8 +64,11 @@ func benchHello(b *testing.B, c *websocket.Conn) {
 }
 
 // benchWatch reads c until it closes and sends the version of every update.
+// It lifts the read deadline that readUntil left on c: the benchmark may
+// run for longer than that.
 func benchWatch(c *websocket.Conn, ch chan<- int64) {
 	defer close(ch)
+	c.SetReadDeadline(time.Time{})
 	for {
 		_, data, err := c.ReadMessage()
 		if err != nil {
