@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"errors"
 	"flag"
 	"fmt"
@@ -112,4 +113,64 @@ func defaultDataDir() string {
 		return filepath.Join(h, ".local", "share", "matchbench")
 	}
 	return "data"
+}
+
+// writeSweepFile writes s to path as CSV (.csv, 1-port), Touchstone 2
+// (.ts) or Touchstone 1 (.sNp, N the port count), through a temporary file
+// renamed into place, so a failed write leaves no half file. opt.Version
+// zero means by the ending; comments that are not printable ASCII are
+// dropped from Touchstone headers.
+func writeSweepFile(path string, s *rfmath.Sweep, opt touchstone.WriteOptions) error {
+	ext := strings.ToLower(filepath.Ext(path))
+	switch {
+	case ext == ".csv":
+		if s.Ports != 1 {
+			return usagef("%s: CSV output holds 1-port sweeps only; this one has %d ports", path, s.Ports)
+		}
+	case ext == ".ts":
+		if opt.Version == 1 {
+			return usagef("%s: a .ts file is Touchstone version 2; use a .s%dp name for version 1", path, s.Ports)
+		}
+		opt.Version = 2
+	default:
+		n, ok := touchstone.PortsFromName(path)
+		if !ok {
+			return usagef("%s: the output ending must be .csv, .ts or .s%dp", path, s.Ports)
+		}
+		if n != s.Ports {
+			return usagef("%s names a %d-port file but the sweep has %d ports: name it .s%dp", path, n, s.Ports, s.Ports)
+		}
+		if opt.Version == 0 {
+			opt.Version = 1
+		}
+	}
+	var ascii []string
+	for _, c := range opt.Comments {
+		if !strings.ContainsFunc(c, func(r rune) bool { return r < 0x20 || r > 0x7e }) {
+			ascii = append(ascii, c)
+		}
+	}
+	opt.Comments = ascii
+	tmp := path + ".tmp"
+	fh, err := os.Create(tmp)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriter(fh)
+	if ext == ".csv" {
+		err = touchstone.WriteCSV(bw, s)
+	} else {
+		err = touchstone.Write(bw, s, opt)
+	}
+	if err == nil {
+		err = bw.Flush()
+	}
+	if cerr := fh.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return err
+	}
+	return os.Rename(tmp, path)
 }

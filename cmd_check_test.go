@@ -23,7 +23,7 @@ func writeDemoFiles(t testing.TB, dir string, files []demo.File) []string {
 	paths := make([]string, len(files))
 	for i, f := range files {
 		paths[i] = filepath.Join(dir, f.Name)
-		if err := writeTouchstone(paths[i], f, 1); err != nil {
+		if err := writeDemoFile(paths[i], f); err != nil {
 			t.Fatal(err)
 		}
 	}

@@ -1,11 +1,9 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strings"
 
@@ -43,53 +41,8 @@ func runConvert(_ context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return err
 	}
-	ext := strings.ToLower(filepath.Ext(out))
-	isCSV := ext == ".csv"
-	if isCSV && ls.Sweep.Ports != 1 {
-		return fmt.Errorf("%s has %d ports; CSV output holds 1-port sweeps only", in, ls.Sweep.Ports)
-	}
-	v := *version
-	if !isCSV {
-		if n, ok := touchstone.PortsFromName(out); ok {
-			if n != ls.Sweep.Ports {
-				return usagef("%s names a %d-port file but %s has %d ports", out, n, in, ls.Sweep.Ports)
-			}
-		} else if ext == ".ts" {
-			if v == 1 {
-				return usagef("a .ts file is Touchstone version 2; use --version 2 or a .s%dp name", ls.Sweep.Ports)
-			}
-			v = 2
-		} else {
-			return usagef("%s: the output ending must be .csv, .ts or .s%dp", out, ls.Sweep.Ports)
-		}
-	}
-	if v == 0 {
-		v = 1
-	}
-
-	tmp := out + ".tmp"
-	fh, err := os.Create(tmp)
-	if err != nil {
-		return err
-	}
-	bw := bufio.NewWriter(fh)
-	if isCSV {
-		err = touchstone.WriteCSV(bw, ls.Sweep)
-	} else {
-		comments := append([]string{fmt.Sprintf(" converted by matchbench from %s", filepath.Base(in))}, ls.Comments...)
-		err = touchstone.Write(bw, ls.Sweep, touchstone.WriteOptions{Version: v, Format: f, FreqUnit: *unit, Digits: *digits, Comments: comments})
-	}
-	if err == nil {
-		err = bw.Flush()
-	}
-	if cerr := fh.Close(); err == nil {
-		err = cerr
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	if err := os.Rename(tmp, out); err != nil {
+	comments := append([]string{fmt.Sprintf(" converted by matchbench from %s", filepath.Base(in))}, ls.Comments...)
+	if err := writeSweepFile(out, ls.Sweep, touchstone.WriteOptions{Version: *version, Format: f, FreqUnit: *unit, Digits: *digits, Comments: comments}); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "wrote %s (%d points, %d-port)\n", out, ls.Sweep.Len(), ls.Sweep.Ports)

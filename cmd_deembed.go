@@ -1,17 +1,13 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
-	"strings"
 
-	"matchbench/rfmath"
 	"matchbench/rfmath/deembed"
 	"matchbench/rfmath/touchstone"
 	"matchbench/rfmath/units"
@@ -158,7 +154,7 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 	for _, st := range steps {
 		comments = append(comments, " "+st)
 	}
-	if err := writeSweepFile(out, s, comments); err != nil {
+	if err := writeSweepFile(out, s, touchstone.WriteOptions{Comments: comments}); err != nil {
 		return err
 	}
 	for _, st := range steps {
@@ -166,61 +162,4 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	fmt.Fprintf(stdout, "wrote %s (%d points, %d-port)\n", out, s.Len(), s.Ports)
 	return nil
-}
-
-// writeSweepFile writes s to path as CSV (.csv, 1-port), Touchstone 2
-// (.ts) or Touchstone 1 (.sNp, N the port count), through a temporary file
-// renamed into place. Comments must be printable ASCII; others are dropped
-// from Touchstone headers.
-func writeSweepFile(path string, s *rfmath.Sweep, comments []string) error {
-	ext := strings.ToLower(filepath.Ext(path))
-	version := 1
-	switch {
-	case ext == ".csv":
-		if s.Ports != 1 {
-			return usagef("%s: CSV output holds 1-port sweeps only; this one has %d ports", path, s.Ports)
-		}
-	case ext == ".ts":
-		version = 2
-	default:
-		n, ok := touchstone.PortsFromName(path)
-		if !ok || n != s.Ports {
-			return usagef("%s: the output ending must be .csv, .ts or .s%dp", path, s.Ports)
-		}
-	}
-	var ascii []string
-	for _, c := range comments {
-		ok := true
-		for i := 0; i < len(c); i++ {
-			if c[i] < 0x20 || c[i] > 0x7e {
-				ok = false
-				break
-			}
-		}
-		if ok {
-			ascii = append(ascii, c)
-		}
-	}
-	tmp := path + ".tmp"
-	fh, err := os.Create(tmp)
-	if err != nil {
-		return err
-	}
-	bw := bufio.NewWriter(fh)
-	if ext == ".csv" {
-		err = touchstone.WriteCSV(bw, s)
-	} else {
-		err = touchstone.Write(bw, s, touchstone.WriteOptions{Version: version, Format: "RI", Digits: 12, Comments: ascii})
-	}
-	if err == nil {
-		err = bw.Flush()
-	}
-	if cerr := fh.Close(); err == nil {
-		err = cerr
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	return os.Rename(tmp, path)
 }

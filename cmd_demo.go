@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"fmt"
 	"io"
@@ -26,7 +25,7 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	for _, f := range demo.Generate() {
-		if err := writeTouchstone(filepath.Join(dir, f.Name), f, 1); err != nil {
+		if err := writeDemoFile(filepath.Join(dir, f.Name), f); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "wrote %s\n", filepath.Join(dir, f.Name))
@@ -34,22 +33,11 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-func writeTouchstone(path string, f demo.File, version int) error {
-	fh, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	bw := bufio.NewWriter(fh)
+// writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes.
+func writeDemoFile(path string, f demo.File) error {
 	comments := make([]string, len(f.Note))
 	for i, n := range f.Note {
 		comments[i] = " " + n
 	}
-	err = touchstone.Write(bw, f.Sweep, touchstone.WriteOptions{Version: version, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments})
-	if err == nil {
-		err = bw.Flush()
-	}
-	if cerr := fh.Close(); err == nil {
-		err = cerr
-	}
-	return err
+	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments})
 }

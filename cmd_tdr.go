@@ -12,6 +12,7 @@ import (
 	"text/tabwriter"
 
 	"matchbench/rfmath/tdr"
+	"matchbench/rfmath/touchstone"
 	"matchbench/rfmath/units"
 )
 
@@ -128,7 +129,7 @@ func runTDR(_ context.Context, args []string, stdout, stderr io.Writer) error {
 		}
 		comment := fmt.Sprintf(" time-gated by matchbench from %s: %s %s to %s round trip (%s edges, %s spectrum window)",
 			filepath.Base(pos[0]), kind, units.Format(g.CentreS-g.SpanS/2, "s", 4), units.Format(g.CentreS+g.SpanS/2, "s", 4), g.Shape, w)
-		if err := writeSweepFile(*out, gated, []string{comment}); err != nil {
+		if err := writeSweepFile(*out, gated, touchstone.WriteOptions{Comments: []string{comment}}); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "wrote %s (%d points): reflections between %s and %s round trip %s\n", *out, gated.Len(),
