@@ -11,6 +11,9 @@ let ws = null;
 let nextID = 1;
 let retryMs = 500;
 let selectedMarker = null;
+// A plain form (re-issuing the links) takes the page elsewhere; the reload
+// the server then asks of every page on the old links must not overtake it.
+let leaving = false;
 
 const SVGNS = "http://www.w3.org/2000/svg";
 
@@ -81,7 +84,7 @@ function handle(msg) {
 		notice(msg.msg || "the server refused the change");
 		break;
 	case "reload":
-		location.reload();
+		if (!leaving) location.reload();
 		break;
 	case "progress":
 		showProgress(msg);
@@ -389,7 +392,10 @@ document.addEventListener("change", (ev) => {
 
 document.addEventListener("submit", (ev) => {
 	const form = ev.target.closest("form[data-form]");
-	if (!form) return;
+	if (!form) {
+		leaving = true;
+		return;
+	}
 	ev.preventDefault();
 	if (!canEdit) return;
 	const fields = {};
