@@ -6,6 +6,7 @@ import (
 	"image"
 	"image/png"
 	"io"
+	"matchbench/internal/browsertest"
 	"math"
 	"math/cmplx"
 	"net/http"
@@ -18,48 +19,9 @@ import (
 	"github.com/chromedp/chromedp"
 )
 
-// chromiumPath is where Debian's chromium package puts the browser.
-const chromiumPath = "/usr/bin/chromium"
+func needBrowser(t *testing.T) { browsertest.Need(t) }
 
-// needBrowser skips the test when Chromium is missing, unless
-// MATCHBENCH_REQUIRE_BROWSER=1 (as CI sets it), when it fails instead.
-func needBrowser(t *testing.T) {
-	t.Helper()
-	required := os.Getenv("MATCHBENCH_REQUIRE_BROWSER") == "1"
-	if _, err := os.Stat(chromiumPath); err != nil {
-		if required {
-			t.Fatalf("MATCHBENCH_REQUIRE_BROWSER=1 but %s is missing: %v", chromiumPath, err)
-		}
-		t.Skipf("skipping the real-browser test: %s not found (apt-get install chromium fonts-liberation; "+
-			"set MATCHBENCH_REQUIRE_BROWSER=1 to make this a failure)", chromiumPath)
-	}
-	if testing.Short() && !required {
-		t.Skip("skipping the real-browser test in -short mode")
-	}
-}
-
-// browser starts headless Chromium with a fresh profile and returns a tab's
-// context. The first action runs without a timeout, which would kill the
-// browser; later steps take their own.
-func browser(t *testing.T) context.Context {
-	t.Helper()
-	opts := append(chromedp.DefaultExecAllocatorOptions[:],
-		chromedp.ExecPath(chromiumPath),
-		chromedp.Flag("no-sandbox", true),
-		chromedp.Flag("disable-gpu", true),
-		chromedp.Flag("disable-quic", true),
-		chromedp.Flag("disable-component-update", true),
-		chromedp.UserDataDir(t.TempDir()),
-	)
-	allocCtx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
-	t.Cleanup(cancelAlloc)
-	ctx, cancel := chromedp.NewContext(allocCtx)
-	t.Cleanup(cancel)
-	if err := chromedp.Do(ctx); err != nil {
-		t.Fatalf("starting Chromium: %v", err)
-	}
-	return ctx
-}
+func browser(t *testing.T) context.Context { return browsertest.Start(t) }
 
 // TestChartInBrowser renders the demo chart in headless Chromium, takes a
 // screenshot and checks it is the expected size and not blank; it also

@@ -24,13 +24,10 @@ import (
 // activeNet loads the request's session and its active network, answering
 // 404 when it has none.
 func (s *Server) activeNet(w http.ResponseWriter, r *http.Request) (*scene, *netEval, bool) {
-	a := accessFrom(r.Context())
-	st, _, err := s.store.State(r.Context(), a.SessionID)
-	if err != nil {
-		s.fail(w, r, err)
+	sc, ok := s.requestScene(w, r)
+	if !ok {
 		return nil, nil, false
 	}
-	sc := s.scene(a.SessionID, st)
 	if sc.net == nil || sc.net.err != nil {
 		http.Error(w, "This session has no matching network to export.", http.StatusNotFound)
 		return nil, nil, false

@@ -253,31 +253,25 @@ func attachment(w http.ResponseWriter, name, ctype string) {
 }
 
 func (s *Server) exportChart(w http.ResponseWriter, r *http.Request) {
-	a := accessFrom(r.Context())
-	st, _, err := s.store.State(r.Context(), a.SessionID)
-	if err != nil {
-		s.fail(w, r, err)
+	sc, ok := s.requestScene(w, r)
+	if !ok {
 		return
 	}
-	sc := s.scene(a.SessionID, st)
-	attachment(w, safeName(st.Name)+"-chart.svg", "image/svg+xml")
+	attachment(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml")
 	if err := sc.renderChart(w); err != nil {
 		s.log.Error("export chart", "err", err)
 	}
 }
 
 func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
-	a := accessFrom(r.Context())
-	st, _, err := s.store.State(r.Context(), a.SessionID)
-	if err != nil {
-		s.fail(w, r, err)
+	sc, ok := s.requestScene(w, r)
+	if !ok {
 		return
 	}
-	sc := s.scene(a.SessionID, st)
 	id := chi.URLParam(r, "plot")
 	for _, p := range sc.plots() {
 		if p.id == id {
-			attachment(w, safeName(st.Name)+"-"+id+".svg", "image/svg+xml")
+			attachment(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml")
 			if err := p.render(w, sc.plotMarkers()); err != nil {
 				s.log.Error("export plot", "err", err)
 			}
@@ -288,14 +282,11 @@ func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
 }
 
 func (s *Server) exportMarkers(w http.ResponseWriter, r *http.Request) {
-	a := accessFrom(r.Context())
-	st, _, err := s.store.State(r.Context(), a.SessionID)
-	if err != nil {
-		s.fail(w, r, err)
+	sc, ok := s.requestScene(w, r)
+	if !ok {
 		return
 	}
-	sc := s.scene(a.SessionID, st)
-	attachment(w, safeName(st.Name)+"-markers.csv", "text/csv; charset=utf-8")
+	attachment(w, safeName(sc.st.Name)+"-markers.csv", "text/csv; charset=utf-8")
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
 		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"})
@@ -308,6 +299,18 @@ func (s *Server) exportMarkers(w http.ResponseWriter, r *http.Request) {
 		})
 	}
 	cw.Flush()
+}
+
+// requestScene builds the scene of the request's session, answering the
+// request itself when the session cannot be read.
+func (s *Server) requestScene(w http.ResponseWriter, r *http.Request) (*scene, bool) {
+	a := accessFrom(r.Context())
+	st, _, err := s.store.State(r.Context(), a.SessionID)
+	if err != nil {
+		s.fail(w, r, err)
+		return nil, false
+	}
+	return s.scene(a.SessionID, st), true
 }
 
 func g(v float64) string { return fmt.Sprintf("%.10g", v) }
