@@ -9,6 +9,7 @@ import (
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath"
+	"matchbench/rfmath/parts"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
 	"matchbench/web"
@@ -328,6 +329,9 @@ func (sc *scene) networkView() web.NetworkView {
 		if p.ESeries != "" {
 			row.Buy = units.Format(p.BuyValue(), unit, 3)
 		}
+		if p.LumpedKind() != "" {
+			fillPartFigures(&row, p, n.DesignHz)
+		}
 		v.Parts = append(v.Parts, row)
 	}
 	res := ne.result()
@@ -415,6 +419,55 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 		}
 		v := defaultValue(kind, ne.n.DesignHz, ne.z0)
 		return sessions.Change{Op: sessions.OpPartAdd, NetworkID: ne.n.ID, Kind: kind, Value: &v}, nil
+	case "part.params":
+		if ne == nil {
+			return sessions.Change{}, fmt.Errorf("start a matching network first")
+		}
+		ch := sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: f["partId"], Params: map[string]float64{}}
+		for _, fd := range []struct{ field, param, label, unit string }{
+			{"q", "q", "Q", ""}, {"esr", "esrOhm", "ESR", "Ω"}, {"maxV", "maxV", "Rated voltage", "V"}, {"maxA", "maxA", "Rated current", "A"},
+		} {
+			t, ok := f[fd.field]
+			if !ok {
+				continue
+			}
+			if strings.TrimSpace(t) == "" {
+				ch.Params[fd.param] = math.NaN() // clears it: the model's figure again
+				continue
+			}
+			v, err := units.ParseValue(t, fd.unit)
+			if err != nil {
+				return ch, fe(fd.field, fd.label, err)
+			}
+			ch.Params[fd.param] = v
+		}
+		for _, fd := range []struct{ field, param, label string }{{"qRef", "qRefHz", "Q frequency"}, {"srf", "srfHz", "Self-resonance"}} {
+			t, ok := f[fd.field]
+			if !ok {
+				continue
+			}
+			if strings.TrimSpace(t) == "" {
+				ch.Params[fd.param] = math.NaN()
+				continue
+			}
+			v, err := units.ParseFrequency(t)
+			if err != nil {
+				return ch, fe(fd.field, fd.label, err)
+			}
+			ch.Params[fd.param] = v
+		}
+		if t, ok := f["tol"]; ok {
+			if strings.TrimSpace(t) == "" {
+				ch.Params["tolRel"] = math.NaN()
+			} else {
+				v, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(t, "%")), 64)
+				if err != nil || !(v >= 0 && v < 100) {
+					return ch, fe("tol", "Tolerance", fmt.Errorf("%q is not a percentage from 0 to 100", t))
+				}
+				ch.Params["tolRel"] = v / 100
+			}
+		}
+		return ch, nil
 	case "part.set":
 		if ne == nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
@@ -572,4 +625,35 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 		a.Frames = append(a.Frames, []frag{{ID: "match-path", HTML: b.String(), SVG: true}})
 	}
 	return a
+}
+
+// fillPartFigures shows a lumped part's own figures and, in words, what
+// its model gives at the design frequency.
+func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
+	g := func(name string, f func(float64) string) string {
+		if v, ok := p.Params[name]; ok {
+			return f(v)
+		}
+		return ""
+	}
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
+	freq := func(v float64) string { return units.FormatFrequency(v, 4) }
+	row.Q, row.QRef, row.SRF, row.ESR = g("q", num), g("qRefHz", freq), g("srfHz", freq), g("esrOhm", num)
+	row.Tol = g("tolRel", func(v float64) string { return num(100 * v) })
+	row.MaxV, row.MaxA = g("maxV", num), g("maxA", num)
+	c := p.Component(p.BuyValue())
+	z := c.ImpedanceAt(fHz)
+	model := "ideal"
+	if p.Model != "" {
+		model = "typical " + p.Model
+	}
+	switch m := c.(type) {
+	case parts.Inductor:
+		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %.3g Ω + j%.4g Ω", model, m.Q, fmtF(m.QRefHz), fmtF(m.SRFHz), fmtF(fHz), real(z), imag(z))
+	case parts.Capacitor:
+		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %.3g Ω %s j%.4g Ω", model, m.ESROhm, fmtF(m.SRFHz), fmtF(fHz), real(z), sign(imag(z)), abs(imag(z)))
+	default:
+		row.ModelNote = fmt.Sprintf("%s: at %s it is %.4g %s j%.4g Ω", model, fmtF(fHz), real(z), sign(imag(z)), abs(imag(z)))
+	}
+	row.ModelNote += " (set the part's own figures)"
 }

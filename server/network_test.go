@@ -287,3 +287,46 @@ func TestNetworkOverWebsocket(t *testing.T) {
 		t.Errorf("viewer partdrag: %+v", e)
 	}
 }
+
+// A part's own figures override its model: a Q of 20 at 100 MHz on the
+// series L of the L-3 section adds R = ωL/Q = 2π·100 MHz·137.83 nH/20 =
+// 4.330 Ω in series at 100 MHz (the definition of Q; common practice), so
+// Zin moves from 50 to 54.33 Ω there. An empty field gives the model back.
+func TestPartFigures(t *testing.T) {
+	t.Parallel()
+	f, _ := netFixture(t)
+	ctx := context.Background()
+	st, _, _ := f.store.State(ctx, f.sess.ID)
+	sc := f.srv.scene(f.sess.ID, st)
+	pid := st.Active().Parts[1].ID
+	ch, err := sc.partChange("part.params", map[string]string{"partId": pid, "q": "20", "qRef": "100M", "tol": "5"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.store.Apply(ctx, f.sess.ID, ch); err != nil {
+		t.Fatal(err)
+	}
+	st, _, _ = f.store.State(ctx, f.sess.ID)
+	p := st.Active().Parts[1]
+	if p.Params["q"] != 20 || p.Params["qRefHz"] != 100e6 || p.Params["tolRel"] != 0.05 {
+		t.Fatalf("params %+v", p.Params)
+	}
+	sc = f.srv.scene(f.sess.ID, st)
+	l, _ := sc.net.n.Ladder(false)
+	if z := l.InputZ(100e6, 200); math.Abs(real(z)-(50+2*math.Pi*100e6*137.83e-9/20)) > 0.01 {
+		t.Errorf("Zin with Q 20: %v, want R ≈ 54.33 Ω", z)
+	}
+	nv := sc.networkView()
+	if nv.Parts[1].Q != "20" || nv.Parts[1].Tol != "5" || !strings.Contains(nv.Parts[1].ModelNote, "Q 20") {
+		t.Errorf("part row %+v", nv.Parts[1])
+	}
+	ch, _ = sc.partChange("part.params", map[string]string{"partId": pid, "q": "", "qRef": "", "tol": ""})
+	f.store.Apply(ctx, f.sess.ID, ch)
+	st, _, _ = f.store.State(ctx, f.sess.ID)
+	if len(st.Active().Parts[1].Params) != 0 {
+		t.Errorf("cleared params %+v", st.Active().Parts[1].Params)
+	}
+	if _, err := sc.partChange("part.params", map[string]string{"partId": pid, "tol": "150"}); err == nil {
+		t.Error("a 150 % tolerance was accepted")
+	}
+}

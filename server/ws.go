@@ -404,7 +404,7 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 
 // networkForms are the forms whose fields need the session's current scene
 // (the active network's parts and design frequency).
-var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true}
+var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true, "part.params": true}
 
 // searchForms turn a found design or solution into a network.
 var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true}

@@ -181,6 +181,9 @@ type PartRow struct {
 	SliderMin, SliderMax        string // log10 of the value
 	SliderVal                   string
 	First, Last                 bool
+	// The part's own figures, overriding its model's ("" = the model's).
+	Q, QRef, SRF, ESR, Tol, MaxV, MaxA string
+	ModelNote                          string // what the model gives, in words
 }
 
 // NetMetricRow is one band's figures before and after the network.
