@@ -543,7 +543,7 @@ func TestWebsocketMessageTooBig(t *testing.T) {
 // connection stays open; once the bucket refills they pass again.
 func TestWebsocketRate(t *testing.T) {
 	t.Parallel()
-	f := newFixtureOpts(t, 11, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst = 20, 5 })
+	f := newFixtureOpts(t, 11, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst = 2, 5 })
 	c := wsDial(t, f, f.sess.EditToken)
 	// Every message of an unknown type is answered, with "unknown message
 	// type" when it passes the bucket and "slow down" when it does not.
@@ -557,12 +557,12 @@ func TestWebsocketRate(t *testing.T) {
 			refused++
 		}
 	}
-	// 30 messages sent at once: a burst of 5 passes, plus what 20/s
+	// 30 messages sent at once: a burst of 5 passes, plus what 2/s
 	// refills while they arrive; most are refused.
 	if refused < 15 || refused > 25 {
 		t.Errorf("%d of 30 messages refused, want most but not all", refused)
 	}
-	time.Sleep(300 * time.Millisecond) // 6 tokens back
+	time.Sleep(600 * time.Millisecond) // a token back
 	c.WriteJSON(inMsg{Type: "change", ID: 99, Change: &sessions.Change{Op: sessions.OpSessionRename, Name: "calm"}})
 	if m := readUntil(t, c, func(m outMsg) bool { return m.ID == 99 }); m.Type != "ack" {
 		t.Errorf("after a pause: %+v, want an ack", m)
