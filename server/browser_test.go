@@ -224,15 +224,15 @@ func TestBrowserMatching(t *testing.T) {
 	// Type the L-3 values (REFERENCE-CHECKS §6c): the band's worst return
 	// loss then rises well above 10 dB.
 	must(chromedp.Do(ectx,
-		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]`), "13.783p"),
-		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
+		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"][data-index="0"] [data-testid="part-value"]`), "13.783p"),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"][data-index="0"] [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
 	))
-	waitFor(`document.querySelector('[data-testid="part-row"]:nth-child(1) [data-testid="part-value"]').value === "13.78 pF"`)
+	waitFor(`document.querySelector('[data-testid="part-row"][data-index="0"] [data-testid="part-value"]').value === "13.78 pF"`)
 	must(chromedp.Do(ectx,
-		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]`), "137.83n"),
-		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
+		chromedp.SetValue(chromedp.CSS(`[data-testid="part-row"][data-index="1"] [data-testid="part-value"]`), "137.83n"),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').dispatchEvent(new Event("change", {bubbles: true}))`),
 	))
-	waitFor(`document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').value === "137.8 nH"`)
+	waitFor(`document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').value === "137.8 nH"`)
 	waitFor(`parseFloat(document.querySelector('[data-testid="net-worst"]').textContent) > 20`)
 	after, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-worst"]`)))
 	if before == after {
@@ -265,6 +265,6 @@ func TestBrowserMatching(t *testing.T) {
 	acts = append(acts, chromedp.MouseEvent(chromedp.MouseReleased, pe[0], pe[1], chromedp.ButtonLeft))
 	must(chromedp.Do(ectx, acts...))
 	// 137.83 nH × 1.5 = 206.7 nH, within the drag's pixel rounding.
-	waitFor(`(() => { const v = parseFloat(document.querySelector('[data-testid="part-row"]:nth-child(2) [data-testid="part-value"]').value); return v > 190 && v < 225; })()`)
+	waitFor(`(() => { const v = parseFloat(document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').value); return v > 190 && v < 225; })()`)
 	shot(t, ectx, filepath.Join(dir, "matching-dragged.png"))
 }

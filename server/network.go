@@ -47,7 +47,7 @@ func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 		return &netEval{n: n, err: fmt.Errorf("the network's load sweep is gone")}
 	}
 	port := max(n.Port, 1)
-	ne := &netEval{n: n, sweep: sw, port: port, z0: sw.Z0[port-1], gLoad: sw.Param(nil, port-1, port-1)}
+	ne := &netEval{n: n, sweep: sw, port: port, z0: sw.Z0[port-1], gLoad: reflection(sw, port-1)}
 	var err error
 	if ne.ladder, err = n.Ladder(false); err != nil {
 		ne.err = err

@@ -242,7 +242,7 @@ func (sc *scene) computeTDR() (*plot, string) {
 	if td.Mode == "bandpass" {
 		mode = tdr.BandPass
 	}
-	g := sw.Param(nil, 0, 0)
+	g := reflection(sw, 0)
 	r, err := tdr.Transform(sw.FreqHz, g, &tdr.Settings{Mode: mode, Window: w, Pad: 4})
 	if err != nil {
 		return nil, err.Error()

@@ -91,7 +91,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 		for p := 1; p <= ports; p++ {
 			sc.traces = append(sc.traces, &trace{
 				id: fmt.Sprintf("%s-p%d", ref.ID, p), ref: ref, port: p, sweep: sw,
-				z0: sw.Z0[p-1], gamma: sw.Param(nil, p-1, p-1),
+				z0: sw.Z0[p-1], gamma: reflection(sw, p-1),
 			})
 		}
 		sc.fmin = math.Min(sc.fmin, sw.FreqHz[0])
@@ -154,8 +154,57 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 		if raw := sc.raw[t.ref.ID]; raw != nil && t.port == 1 {
 			out = append(out, chartsvg.Trace{
 				ID: t.ref.ID + "-raw", Name: name + " (as measured)", Color: t.ref.Color, FreqHz: raw.FreqHz,
-				Gamma: raw.Param(nil, 0, 0), Dashed: true, Ticks: -1,
+				Gamma: reflection(raw, 0), Dashed: true, Ticks: -1,
 			})
+		}
+	}
+	return out
+}
+
+// thinSeries keeps, of a long series, the first, lowest, highest and last
+// point of each of 4·plotWidth frequency columns: what the plot can show
+// (chartsvg thins again to its pixels), at a fraction of the memory that a
+// room's cached scene holds between renders.
+func thinSeries(s chartsvg.Series) chartsvg.Series {
+	const cols = 4 * plotWidth
+	n := len(s.FreqHz)
+	if n <= 4*cols {
+		return s
+	}
+	f0, f1 := s.FreqHz[0], s.FreqHz[n-1]
+	fs := make([]float64, 0, 4*cols)
+	ys := make([]float64, 0, 4*cols)
+	for start := 0; start < n; {
+		col := int(float64(cols) * (s.FreqHz[start] - f0) / (f1 - f0))
+		end := start + 1
+		for end < n && int(float64(cols)*(s.FreqHz[end]-f0)/(f1-f0)) == col {
+			end++
+		}
+		lo, hi := start, start
+		for k := start; k < end; k++ {
+			if s.Y[k] < s.Y[lo] || math.IsNaN(s.Y[lo]) {
+				lo = k
+			}
+			if s.Y[k] > s.Y[hi] || math.IsNaN(s.Y[hi]) {
+				hi = k
+			}
+		}
+		for _, k := range sortedUnique(start, min(lo, hi), max(lo, hi), end-1) {
+			fs = append(fs, s.FreqHz[k])
+			ys = append(ys, s.Y[k])
+		}
+		start = end
+	}
+	s.FreqHz, s.Y = fs, ys
+	return s
+}
+
+// sortedUnique returns its increasing arguments without repeats.
+func sortedUnique(a, b, c, d int) []int {
+	out := []int{a}
+	for _, v := range []int{b, c, d} {
+		if v != out[len(out)-1] {
+			out = append(out, v)
 		}
 	}
 	return out
@@ -185,6 +234,15 @@ func (sc *scene) chartMarkers() []chartsvg.Marker {
 		}
 	}
 	return out
+}
+
+// reflection returns S(p+1,p+1) of sw for reading only: a 1-port sweep's
+// data are that trace already, so they are not copied.
+func reflection(sw *rfmath.Sweep, p int) []complex128 {
+	if sw.Ports == 1 {
+		return sw.Data
+	}
+	return sw.Param(nil, p, p)
 }
 
 // at interpolates the trace's Γ at fHz.
@@ -245,10 +303,10 @@ func (sc *scene) plots() []plot {
 		if t.sweep.Ports > 1 {
 			name += fmt.Sprintf(" S%d%d", t.port, t.port)
 		}
-		rl = append(rl, chartsvg.Series{ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: db, Dashed: t.port == 2})
+		rl = append(rl, thinSeries(chartsvg.Series{ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: db, Dashed: t.port == 2}))
 		zx = append(zx,
-			chartsvg.Series{ID: t.id + "-r", Name: name + " R", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: r},
-			chartsvg.Series{ID: t.id + "-x", Name: name + " X", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: x, Dashed: true})
+			thinSeries(chartsvg.Series{ID: t.id + "-r", Name: name + " R", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: r}),
+			thinSeries(chartsvg.Series{ID: t.id + "-x", Name: name + " X", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: x, Dashed: true}))
 	}
 	if ne := sc.net; ne != nil && ne.err == nil && len(ne.n.Parts) > 0 {
 		db := func(g []complex128) []float64 {
