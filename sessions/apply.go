@@ -218,7 +218,8 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 		step = h.maxStep
 	}
 	minStep := h.minStep
-	err = st.tx(ctx, h, func(ctx context.Context, tx *sql.Tx) error {
+	relaxed := st.fullSync && coalescible[ch.Op] && ch.Gesture != ""
+	err = st.txSync(ctx, h, relaxed, func(ctx context.Context, tx *sql.Tx) error {
 		if s := r.newSweep; s != nil {
 			if _, err := tx.ExecContext(ctx,
 				`INSERT INTO sweeps (session_id, id, file_name, created_at, parsed, raw) VALUES (?, ?, ?, ?, ?, ?)`,
@@ -390,10 +391,36 @@ func sweepIDs(a, b *State) string {
 // reloading from the database, so memory never runs ahead of or behind the
 // disk.
 func (st *Store) tx(ctx context.Context, h *hub, f func(context.Context, *sql.Tx) error) error {
+	return st.txSync(ctx, h, false, f)
+}
+
+// writeExec runs one statement on the write connection, outside any
+// relaxed drag transaction (see txSync).
+func (st *Store) writeExec(ctx context.Context, q string, args ...any) (sql.Result, error) {
+	st.writeMu.Lock()
+	defer st.writeMu.Unlock()
+	return st.wdb.ExecContext(ctx, q, args...)
+}
+
+// txSync is tx with, when relaxed, the transaction committed with
+// synchronous NORMAL instead of FULL (a drag's steps; see
+// Options.Synchronous). writeMu keeps the switch and the transaction
+// together: the write pool holds one connection, and no other session's
+// transaction may run under the relaxed setting.
+func (st *Store) txSync(ctx context.Context, h *hub, relaxed bool, f func(context.Context, *sql.Tx) error) error {
 	if err := ctx.Err(); err != nil {
 		return err
 	}
 	ctx = context.WithoutCancel(ctx)
+	st.writeMu.Lock()
+	defer st.writeMu.Unlock()
+	if relaxed {
+		if _, err := st.wdb.ExecContext(ctx, "PRAGMA synchronous=NORMAL"); err != nil {
+			relaxed = false // stay FULL: only slower
+		} else {
+			defer st.wdb.ExecContext(ctx, "PRAGMA synchronous=FULL")
+		}
+	}
 	tx, err := st.wdb.BeginTx(ctx, nil)
 	if err == nil {
 		if err = f(ctx, tx); err != nil {

@@ -128,7 +128,7 @@ func (st *Store) ReissueTokens(ctx context.Context, id string) (*Session, error)
 	if err != nil {
 		return nil, err
 	}
-	if _, err := st.wdb.ExecContext(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ?, tokens_sealed = ? WHERE id = ?`,
+	if _, err := st.writeExec(ctx, `UPDATE sessions SET edit_hash = ?, view_hash = ?, tokens_sealed = ? WHERE id = ?`,
 		tokenHash(edit), tokenHash(view), sealed, id); err != nil {
 		return nil, st.dbErr("re-issuing tokens", err)
 	}
