@@ -1,5 +1,7 @@
 package rfmath
 
+import "math"
+
 // Element is one section of a [Ladder]: a two-port whose ABCD matrix
 // depends on frequency. Port 1 faces the source and port 2 the load.
 type Element interface {
@@ -103,7 +105,7 @@ func (e Series) ABCD(fHz float64) ABCD { return SeriesZ(e.Part.ImpedanceAt(fHz))
 type Shunt struct{ Part Part }
 
 // ABCD returns [1, 0; 1/Z, 1] with the part's impedance Z at fHz.
-func (e Shunt) ABCD(fHz float64) ABCD { return ShuntY(1 / e.Part.ImpedanceAt(fHz)) }
+func (e Shunt) ABCD(fHz float64) ABCD { return ShuntY(recip(e.Part.ImpedanceAt(fHz))) }
 
 // Ladder is a cascade of elements listed from the LOAD toward the SOURCE:
 // l[0] is connected to the load and l[len(l)−1] faces the source. This is
@@ -118,14 +120,54 @@ type Ladder []Element
 //
 // It does not allocate.
 func (l Ladder) ABCD(fHz float64) ABCD {
-	if len(l) == 0 {
-		return Thru
-	}
-	m := l[len(l)-1].ABCD(fHz)
-	for i := len(l) - 2; i >= 0; i-- {
-		m = m.Mul(l[i].ABCD(fHz))
+	// Built from the load: m = l[i]·m for i = 0, 1, …; series and shunt
+	// parts take the two complex products their sparse matrices need
+	// rather than a full 2×2 product.
+	m := Thru
+	for _, e := range l {
+		switch e := e.(type) {
+		case SeriesL:
+			m = m.leftSeries(ImpedanceOfL(e.LH, fHz))
+		case SeriesC:
+			m = m.leftSeries(ImpedanceOfC(e.CF, fHz))
+		case SeriesR:
+			m = m.leftSeries(complex(e.ROhm, 0))
+		case Series:
+			m = m.leftSeries(e.Part.ImpedanceAt(fHz))
+		case ShuntL:
+			m = m.leftShunt(AdmittanceOfL(e.LH, fHz))
+		case ShuntC:
+			m = m.leftShunt(AdmittanceOfC(e.CF, fHz))
+		case ShuntR:
+			m = m.leftShunt(complex(1/e.ROhm, 0))
+		case Shunt:
+			m = m.leftShunt(recip(e.Part.ImpedanceAt(fHz)))
+		default:
+			m = e.ABCD(fHz).Mul(m)
+		}
 	}
 	return m
+}
+
+// leftSeries returns [1, z; 0, 1]·m.
+func (m ABCD) leftSeries(z complex128) ABCD {
+	return ABCD{m[0] + z*m[2], m[1] + z*m[3], m[2], m[3]}
+}
+
+// leftShunt returns [1, 0; y, 1]·m.
+func (m ABCD) leftShunt(y complex128) ABCD {
+	return ABCD{m[0], m[1], y*m[0] + m[2], y*m[1] + m[3]}
+}
+
+// recip returns 1/z with one real division, z*/|z|²; zero and non-finite z
+// take Go's complex division (1/0 is infinite: a short's admittance).
+func recip(z complex128) complex128 {
+	re, im := real(z), imag(z)
+	d := re*re + im*im
+	if d == 0 || math.IsInf(d, 0) || math.IsNaN(d) {
+		return 1 / z
+	}
+	return complex(re/d, -im/d)
 }
 
 // InputZ returns the impedance in ohms seen from the source at fHz with

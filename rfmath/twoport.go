@@ -65,10 +65,12 @@ func (a ABCD) InputImpedance(zLoad complex128) complex128 {
 //
 // which is GammaFromZ(InputImpedance(ZL), z0) with ZL = z0·(1 + ΓL)/(1 − ΓL).
 func (a ABCD) InputGamma(gLoad complex128, z0 float64) complex128 {
-	zr := complex(z0, 0)
+	inv := 1 / z0
+	b := complex(real(a[1])*inv, imag(a[1])*inv)
+	c := complex(real(a[2])*z0, imag(a[2])*z0)
 	p, m := 1+gLoad, 1-gLoad
-	n := a[0]*p + a[1]/zr*m
-	d := a[2]*zr*p + a[3]*m
+	n := a[0]*p + b*m
+	d := c*p + a[3]*m
 	return (n - d) / (n + d)
 }
 
