@@ -106,10 +106,10 @@ func TestLadderElements(t *testing.T) {
 		{"Transformer", Ladder{Transformer{2}}, Ladder{Transformer{4}, Transformer{0.5}}},
 		{"empty", Ladder{}, Ladder{SeriesR{0}}},
 	}
-	rnd := rand.New(rand.NewPCG(1, 1))
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
+			rnd := rand.New(rand.NewPCG(1, 1)) // one per subtest: they run in parallel
 			for range 10 {
 				zl := complex(100*rnd.Float64()+1, 100*(rnd.Float64()-0.5))
 				got, want := tc.got.InputZ(f, zl), tc.want.InputZ(f, zl)
