@@ -441,6 +441,8 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 	// fits on neither is left out.
 	var rowEnd [2]float64
 	rowEnd[0], rowEnd[1] = math.Inf(-1), math.Inf(-1)
+	// Every band's shade first, then the names, so that no shade covers
+	// a name.
 	for _, b := range bands {
 		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
 		if !(x1 > x0) {
@@ -452,6 +454,12 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 		sw.numAttr("width", x1-x0)
 		sw.numAttr("height", l.y1-l.y0)
 		sw.s(`/>`)
+	}
+	for _, b := range bands {
+		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
+		if !(x1 > x0) {
+			continue
+		}
 		if b.Name != "" {
 			w := 5.8 * float64(utf8.RuneCountInString(b.Name))
 			for r := range rowEnd {

@@ -627,6 +627,8 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 	return a
 }
 
+func fmtF4(f float64) string { return units.FormatFrequency(f, 4) }
+
 // fillPartFigures shows a lumped part's own figures and, in words, what
 // its model gives at the design frequency.
 func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
@@ -649,11 +651,11 @@ func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
 	}
 	switch m := c.(type) {
 	case parts.Inductor:
-		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %.3g Ω + j%.4g Ω", model, m.Q, fmtF(m.QRefHz), fmtF(m.SRFHz), fmtF(fHz), real(z), imag(z))
+		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %.3g Ω + j%.4g Ω", model, m.Q, fmtF4(m.QRefHz), fmtF4(m.SRFHz), fmtF4(fHz), real(z), imag(z))
 	case parts.Capacitor:
-		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %.3g Ω %s j%.4g Ω", model, m.ESROhm, fmtF(m.SRFHz), fmtF(fHz), real(z), sign(imag(z)), abs(imag(z)))
+		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %.3g Ω %s j%.4g Ω", model, m.ESROhm, fmtF4(m.SRFHz), fmtF4(fHz), real(z), sign(imag(z)), abs(imag(z)))
 	default:
-		row.ModelNote = fmt.Sprintf("%s: at %s it is %.4g %s j%.4g Ω", model, fmtF(fHz), real(z), sign(imag(z)), abs(imag(z)))
+		row.ModelNote = fmt.Sprintf("%s: at %s it is %.4g %s j%.4g Ω", model, fmtF4(fHz), real(z), sign(imag(z)), abs(imag(z)))
 	}
 	row.ModelNote += " (set the part's own figures)"
 }
