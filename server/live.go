@@ -222,11 +222,13 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
 	var b bytes.Buffer
 	sc.renderChart(&b)
 	out := []frag{{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true}}
+	var pv []web.PlotView
 	for _, p := range sc.plots() {
 		var pb bytes.Buffer
 		p.render(&pb, sc.plotMarkers())
-		out = append(out, frag{ID: "plot-" + p.id, HTML: renderString(web.PlotFigure(web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()}))})
+		pv = append(pv, web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()})
 	}
+	out = append(out, frag{ID: "plots-pane", HTML: renderString(web.PlotsPane(pv))})
 	out = append(out,
 		frag{ID: "markers-panel", HTML: renderString(web.MarkersPanel(v))},
 		frag{ID: "sweeps-panel", HTML: renderString(web.SweepsPanel(v))},

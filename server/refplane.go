@@ -266,10 +266,23 @@ func (sc *scene) computeTDR() (*plot, string) {
 		y = r.Impulse
 		ylabel, yunit, title = "Impulse response", "", "Time domain: reflections along the feed"
 	}
-	// Show from just before the plane to the end of the unambiguous range.
+	// Show from just before the plane to half again beyond the last
+	// reflection above 2 % of the largest (at least ten resolution cells),
+	// within the unambiguous range.
+	peak := 0.0
+	for _, v := range r.Impulse {
+		peak = math.Max(peak, math.Abs(v))
+	}
+	last := 0.0
+	for i, v := range r.Impulse {
+		if math.Abs(v) > 0.02*peak && r.TimeS[i] < 0.875*r.RangeS() {
+			last = r.TimeS[i]
+		}
+	}
+	tmax := math.Min(0.875*r.RangeS(), math.Max(1.5*last, 10*r.ResolutionS()))
 	var xs, ys []float64
 	for i := range x {
-		if r.TimeS[i] >= -0.05*r.RangeS() && r.TimeS[i] <= 0.875*r.RangeS() {
+		if r.TimeS[i] >= -0.05*tmax && r.TimeS[i] <= tmax {
 			xs = append(xs, x[i])
 			ys = append(ys, y[i])
 		}
