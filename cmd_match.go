@@ -210,14 +210,14 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	} else {
 		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %.3f in Γ).\n", fit, fit.RMSGammaError)
 		fmt.Fprintf(stdout, "  No lossless network of any order can hold more than %s dB across all the bands at once", fmtDB(lim.BestRLdB))
-		fmt.Fprintf(stdout, " (largest common margin over the requirements: %s dB)", fmtSigned(lim.MaxMarginDB))
+		fmt.Fprintf(stdout, " (largest common margin over the requirements: %s dB)", signed(lim.MaxMarginDB))
 		if lim.BestRLdB >= 60 {
 			fmt.Fprint(stdout, ";\n  so far above any requirement that the bands are narrow for this load's Q, and the limit does not bind")
 		}
 		fmt.Fprintln(stdout, ".")
 	}
 	if best.Meets() {
-		fmt.Fprintf(stdout, "Result: %s meets every band with %s dB to spare.\n", best.Network, fmtSigned(best.MarginDB))
+		fmt.Fprintf(stdout, "Result: %s meets every band with %s dB to spare.\n", best.Network, signed(best.MarginDB))
 	} else {
 		fmt.Fprintln(stdout, unmetNote(best, lim, limErr))
 	}
@@ -269,16 +269,6 @@ func unmetNote(best match.Design, lim match.Limit, limErr error) string {
 	return s
 }
 
-func fmtSigned(v float64) string {
-	if math.IsInf(v, 0) {
-		if v > 0 {
-			return "+∞"
-		}
-		return "−∞"
-	}
-	return fmt.Sprintf("%+.2f", v)
-}
-
 func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, res *match.Result, designs []matchDesignJSON, model, lSer, cSer string, took time.Duration) {
 	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
 	fmt.Fprintf(w, "%s: S11, %d points, %s to %s, reference %s\n", path, len(load.FreqHz),
@@ -315,7 +305,7 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 		for _, p := range d.Network {
 			ps = append(ps, fmt.Sprintf("%s %s", p.Kind, units.Format(p.Value, p.Kind.Unit(), 3)))
 		}
-		fmt.Fprintf(tw, "%d\t%s\t%s dB\t%s dB\t", i+1, strings.Join(ps, ", "), fmtDB(d.WorstRLdB), fmtSigned(d.MarginDB))
+		fmt.Fprintf(tw, "%d\t%s\t%s dB\t%s dB\t", i+1, strings.Join(ps, ", "), fmtDB(d.WorstRLdB), signed(d.MarginDB))
 		for _, b := range d.Bands {
 			fmt.Fprintf(tw, "%s / %s dB\t", fmtDB(b.WorstRLdB), fmtDB(b.MeanRLdB))
 		}

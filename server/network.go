@@ -651,11 +651,11 @@ func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
 	}
 	switch m := c.(type) {
 	case parts.Inductor:
-		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %.3g Ω + j%.4g Ω", model, m.Q, fmtF4(m.QRefHz), fmtF4(m.SRFHz), fmtF4(fHz), real(z), imag(z))
+		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %s", model, m.Q, fmtF4(m.QRefHz), fmtF4(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4))
 	case parts.Capacitor:
-		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %.3g Ω %s j%.4g Ω", model, m.ESROhm, fmtF4(m.SRFHz), fmtF4(fHz), real(z), sign(imag(z)), abs(imag(z)))
+		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %s", model, m.ESROhm, fmtF4(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4))
 	default:
-		row.ModelNote = fmt.Sprintf("%s: at %s it is %.4g %s j%.4g Ω", model, fmtF4(fHz), real(z), sign(imag(z)), abs(imag(z)))
+		row.ModelNote = fmt.Sprintf("%s: at %s it is %s", model, fmtF4(fHz), fmtZ(z, 'g', 4))
 	}
 	row.ModelNote += " (set the part's own figures)"
 }

@@ -378,6 +378,16 @@ func (sc *scene) readouts() []readout {
 
 func fmtF(f float64) string { return units.FormatFrequency(f, 7) }
 
+// fmtZ writes an impedance as "R ± jX Ω" with a true minus sign, each part
+// in strconv's format fmt at precision prec.
+func fmtZ(z complex128, fmt byte, prec int) string {
+	sign := "+"
+	if imag(z) < 0 {
+		sign = "−"
+	}
+	return strconv.FormatFloat(real(z), fmt, prec, 64) + " " + sign + " j" + strconv.FormatFloat(math.Abs(imag(z)), fmt, prec, 64) + " Ω"
+}
+
 func fmtDB(v float64) string {
 	switch {
 	case math.IsInf(v, 1):
@@ -402,13 +412,9 @@ func (sc *scene) readoutRows() []web.ReadoutRow {
 	var rows []web.ReadoutRow
 	for _, r := range sc.readouts() {
 		ro := r.ro
-		sign := "+"
-		if imag(ro.Z) < 0 {
-			sign = "−"
-		}
 		z := "open"
 		if !cmplx.IsInf(ro.Z) {
-			z = fmt.Sprintf("%.2f %s j%.2f Ω", real(ro.Z), sign, math.Abs(imag(ro.Z)))
+			z = fmtZ(ro.Z, 'f', 2)
 		}
 		eq := "—"
 		switch kind := ro.Equiv.Kind; {

@@ -216,7 +216,7 @@ func (sc *scene) searchView() web.SearchView {
 		return v
 	}
 	v.SynthAt = fmtF(fd)
-	v.SynthLoad = fmt.Sprintf("%.2f %s j%.2f Ω", real(zl), sign(imag(zl)), abs(imag(zl)))
+	v.SynthLoad = fmtZ(zl, 'f', 2)
 	for i, l := range syn.LNetworks {
 		var ps []string
 		for _, p := range l.Parts {
@@ -244,20 +244,6 @@ func (sc *scene) searchView() web.SearchView {
 var orientationText = map[match.Orientation]string{
 	match.ShuntAtLoad:  "shunt part next to the load",
 	match.SeriesAtLoad: "series part next to the load",
-}
-
-func sign(x float64) string {
-	if x < 0 {
-		return "−"
-	}
-	return "+"
-}
-
-func abs(x float64) float64 {
-	if x < 0 {
-		return -x
-	}
-	return x
 }
 
 // searchChange turns the search and synthesis forms into changes.
