@@ -156,6 +156,38 @@ func TestBrowserDragAndWatch(t *testing.T) {
 		t.Errorf("after ArrowRight the readout is %q (was %q), want 159.5 MHz", got, before)
 	}
 
+	// Drag the marker's line along the reflection plot's frequency axis to
+	// 200 MHz: the plot maps x to frequency from its data-x0/x1/f0/f1.
+	pts, err := chromedp.Run(ectx, chromedp.Evaluate[[]float64](fmt.Sprintf(`(() => {
+		const svg = document.querySelector("#plot-refl svg");
+		const g = document.getElementById("refl-pmk-%s");
+		const r = g.getBoundingClientRect();
+		const at = (f) => {
+			const d = svg.dataset, x = Number(d.x0) + (f - Number(d.f0)) / (Number(d.f1) - Number(d.f0)) * (Number(d.x1) - Number(d.x0));
+			const p = svg.createSVGPoint(); p.x = x; p.y = Number(d.x0);
+			const q = p.matrixTransform(svg.getScreenCTM());
+			return q.x;
+		};
+		return [r.left + r.width / 2, r.top + r.height / 2, at(180e6), at(200e6)];
+	})()`, f.mk)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := chromedp.Do(ectx,
+		chromedp.MouseEvent(chromedp.MousePressed, pts[0], pts[1], chromedp.ButtonLeft),
+		chromedp.MouseEvent(chromedp.MouseMoved, pts[2], pts[1], chromedp.ButtonLeft), chromedp.Sleep(50*time.Millisecond),
+		chromedp.MouseEvent(chromedp.MouseMoved, pts[3], pts[1], chromedp.ButtonLeft), chromedp.Sleep(50*time.Millisecond),
+		chromedp.MouseEvent(chromedp.MouseReleased, pts[3], pts[1], chromedp.ButtonLeft),
+	); err != nil {
+		t.Fatal(err)
+	}
+	dctx, dcancel := context.WithTimeout(ectx, 10*time.Second)
+	defer dcancel()
+	if err := chromedp.Do(dctx, chromedp.Poll[chromedp.Void](`(() => { const e = document.querySelector('#ro-`+f.mk+` [data-testid="ro-freq"]'); const v = e && parseFloat(e.textContent); return v > 198 && v < 202; })()`)); err != nil {
+		got, _ := readoutFreq(ectx, f.mk)
+		t.Errorf("after dragging along the plot the readout is %q, want about 200 MHz", got)
+	}
+
 	// A bad file: the reader's message with its line number appears.
 	bad := filepath.Join(t.TempDir(), "bad.s1p")
 	os.WriteFile(bad, []byte("! hand-made bad file\n# MHz S RI R 50\n100 0.1 0.2\n101 0.1\n"), 0o644)
