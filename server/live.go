@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"net/http"
+	"slices"
 	"sync"
 
 	"github.com/a-h/templ"
@@ -96,10 +97,29 @@ func (s *Server) leave(rm *room, c *conn) {
 func (rm *room) run() {
 	defer close(rm.done)
 	for ev := range rm.sub.C {
-		rm.broadcast(ev)
+		// Events that arrived while the last one was being sent go out as
+		// one update: a room that falls behind a fast drag sends the latest
+		// state, not every step of the way.
+		batch := []sessions.Event{ev}
+	drain:
+		for len(batch) < maxBatch {
+			select {
+			case e, ok := <-rm.sub.C:
+				if !ok {
+					break drain
+				}
+				batch = append(batch, e)
+			default:
+				break drain
+			}
+		}
+		rm.broadcast(batch)
 	}
 	rm.ended() // tokens.go: overflow, re-issued links, shutdown
 }
+
+// maxBatch bounds the events merged into one update.
+const maxBatch = 256
 
 func (rm *room) snapshot() []*conn {
 	rm.mu.Lock()
@@ -117,14 +137,16 @@ func (rm *room) closeAll(reason string) {
 	}
 }
 
-// broadcast renders ev once for editors and once for viewers (only when
-// the room has them) and queues it on every connection.
-func (rm *room) broadcast(ev sessions.Event) {
+// broadcast renders a batch of events (one update, at the last event's
+// version) once for editors and once for viewers (only when the room has
+// them) and queues it on every connection.
+func (rm *room) broadcast(batch []sessions.Event) {
+	ev := batch[len(batch)-1]
 	conns := rm.snapshot()
 	var msgs [3][]byte // by capability
 	for _, c := range conns {
 		if msgs[c.cap] == nil {
-			m := rm.render(ev, c.cap, c.token)
+			m := rm.render(batch, c.cap, c.token)
 			b, err := json.Marshal(m)
 			if err != nil {
 				rm.s.log.Error("encode update", "err", err)
@@ -142,13 +164,35 @@ var markerOps = map[string]bool{
 	sessions.OpMarkerMove: true, sessions.OpMarkerStep: true, sessions.OpMarkerToDip: true, sessions.OpMarkerLabel: true,
 }
 
-// render builds the update for one event as seen with capability cap.
-func (rm *room) render(ev sessions.Event, cap sessions.Capability, token string) outMsg {
+// render builds the update for a batch of events as seen with capability
+// cap: the last event's state; only the moved markers' fragments when every
+// event only moved markers; the animation of a step when it is alone.
+func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string) outMsg {
+	ev := batch[len(batch)-1]
 	sc, prev := rm.sceneFor(ev.State)
 	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
-	msg.Anim = stepAnimation(prev, sc, ev)
-	if markerOps[ev.Op] && ev.MarkerID != "" {
-		msg.Frags = rm.s.markerFrags(sc, ev.MarkerID, cap == sessions.Edit)
+	if len(batch) == 1 {
+		msg.Anim = stepAnimation(prev, sc, ev)
+	}
+	var moved []string
+	onlyMarkers := true
+	for _, e := range batch {
+		if !markerOps[e.Op] || e.MarkerID == "" {
+			onlyMarkers = false
+			break
+		}
+		if !slices.Contains(moved, e.MarkerID) {
+			moved = append(moved, e.MarkerID)
+		}
+	}
+	if onlyMarkers {
+		for i, id := range moved {
+			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit)
+			if i < len(moved)-1 {
+				frags = frags[:len(frags)-1] // the readout table once, at the end
+			}
+			msg.Frags = append(msg.Frags, frags...)
+		}
 		return msg
 	}
 	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version)

@@ -521,11 +521,41 @@ func BenchmarkDrag(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				out := rm.render(ev, sessions.Edit, f.sess.EditToken)
+				out := rm.render([]sessions.Event{ev}, sessions.Edit, f.sess.EditToken)
 				if _, err := json.Marshal(out); err != nil {
 					b.Fatal(err)
 				}
 			}
 		})
+	}
+}
+
+// A batch of marker moves becomes one update at the last version with each
+// moved marker's groups and the readout table once; a batch with any other
+// change redraws everything.
+func TestRenderBatch(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 101)
+	ctx := context.Background()
+	m2 := f.store
+	ev2, err := m2.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerAdd, SweepID: f.sweep, Port: 1, FreqHz: 200e6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: f.mk, FreqHz: 160e6})
+	b, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: ev2.MarkerID, FreqHz: 210e6})
+	rm := &room{s: f.srv, sid: f.sess.ID}
+	msg := rm.render([]sessions.Event{a, b}, sessions.View, f.sess.ViewToken)
+	count := map[string]int{}
+	for _, fr := range msg.Frags {
+		count[fr.ID]++
+	}
+	if msg.V != b.Version || count["mk-"+f.mk] != 1 || count["mk-"+ev2.MarkerID] != 1 || count["readout-body"] != 1 || count["chart"] != 0 {
+		t.Errorf("batched marker update: version %d (want %d), frags %v", msg.V, b.Version, count)
+	}
+	c, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 120e6, HiHz: 130e6})
+	msg = rm.render([]sessions.Event{a, c}, sessions.View, f.sess.ViewToken)
+	if msg.V != c.Version || !hasFrag(msg, "chart") || !hasFrag(msg, "bands-panel") || msg.Anim != nil {
+		t.Errorf("mixed batch: version %d, anim %v", msg.V, msg.Anim != nil)
 	}
 }
