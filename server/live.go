@@ -166,14 +166,12 @@ var markerOps = map[string]bool{
 
 // render builds the update for a batch of events as seen with capability
 // cap: the last event's state; only the moved markers' fragments when every
-// event only moved markers; the animation of a step when it is alone.
+// event only moved markers; the animation of the last event's step.
 func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string) outMsg {
 	ev := batch[len(batch)-1]
 	sc, prev := rm.sceneFor(ev.State)
 	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
-	if len(batch) == 1 {
-		msg.Anim = stepAnimation(prev, sc, ev)
-	}
+	msg.Anim = stepAnimation(prev, sc, ev) // from the state before the batch
 	var moved []string
 	onlyMarkers := true
 	for _, e := range batch {

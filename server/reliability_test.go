@@ -599,14 +599,22 @@ func TestMarkupShownAsText(t *testing.T) {
 	var frags strings.Builder
 	for i, ch := range changes {
 		c.WriteJSON(inMsg{Type: "change", ID: int64(i + 1), Change: &ch})
-		m := readUntil(t, c, func(m outMsg) bool { return m.ID == int64(i+1) })
-		if m.Type != "ack" {
-			t.Fatalf("%s: %+v", ch.Op, m)
-		}
-		up := readUntil(t, c, func(m outMsg) bool { return m.Type == "update" && m.Op == ch.Op })
-		for _, fr := range up.Frags {
-			frags.WriteString(fr.HTML)
-		}
+		// The update may reach the page before the ack or after it.
+		acked, updated := false, false
+		readUntil(t, c, func(m outMsg) bool {
+			switch {
+			case m.ID == int64(i+1) && m.Type != "ack":
+				t.Fatalf("%s: %+v", ch.Op, m)
+			case m.ID == int64(i+1):
+				acked = true
+			case m.Type == "update" && m.Op == ch.Op:
+				updated = true
+				for _, fr := range m.Frags {
+					frags.WriteString(fr.HTML)
+				}
+			}
+			return acked && updated
+		})
 	}
 	// A page reconnecting from version 0 gets every panel whole.
 	c.WriteJSON(inMsg{Type: "hello", V: 0})
