@@ -1,6 +1,7 @@
 package sessions
 
 import (
+	"maps"
 	"math"
 	"slices"
 	"strings"
@@ -33,6 +34,17 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			return -1, notFound(op, "partId", "part", id)
 		}
 		return i, nil
+	}
+	// partIn finds part partID of network netID (the active one when
+	// empty) in next, the state being built.
+	partIn := func(netID, partID string) (*Network, int, error) {
+		i, err := netOf(netID)
+		if err != nil {
+			return nil, 0, err
+		}
+		n := &next.Networks[i]
+		j, err := partOf(n, partID)
+		return n, j, err
 	}
 	sweepRef := func(id string) (SweepRef, error) {
 		i := cur.SweepIndex(id)
@@ -218,12 +230,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		r.ev.PartID = p.ID
 
 	case OpPartSet:
-		i, err := netOf(ch.NetworkID)
-		if err != nil {
-			return err
-		}
-		n := &next.Networks[i]
-		j, err := partOf(n, ch.PartID)
+		n, j, err := partIn(ch.NetworkID, ch.PartID)
 		if err != nil {
 			return err
 		}
@@ -238,9 +245,9 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			p.ESeries = *ch.ESeries
 		}
 		if ch.Params != nil {
-			merged := map[string]float64{}
-			for k, v := range p.Params {
-				merged[k] = v
+			merged := maps.Clone(p.Params)
+			if merged == nil {
+				merged = map[string]float64{}
 			}
 			for k, v := range ch.Params {
 				if math.IsNaN(v) { // NaN clears a parameter
@@ -258,12 +265,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		r.ev.PartID = p.ID
 
 	case OpPartRemove:
-		i, err := netOf(ch.NetworkID)
-		if err != nil {
-			return err
-		}
-		n := &next.Networks[i]
-		j, err := partOf(n, ch.PartID)
+		n, j, err := partIn(ch.NetworkID, ch.PartID)
 		if err != nil {
 			return err
 		}
@@ -271,12 +273,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		r.ev.PartID = ch.PartID
 
 	case OpPartMove:
-		i, err := netOf(ch.NetworkID)
-		if err != nil {
-			return err
-		}
-		n := &next.Networks[i]
-		j, err := partOf(n, ch.PartID)
+		n, j, err := partIn(ch.NetworkID, ch.PartID)
 		if err != nil {
 			return err
 		}
