@@ -50,25 +50,8 @@ type Fixture struct {
 // frequency (S12·S21 = 0) or a cascade without a solution. A fix whose
 // length is not meas.Ports, or an AnalyserPort other than 0, 1 or 2, panics.
 func Remove(meas *rfmath.Sweep, fix []Fixture) (*rfmath.Sweep, error) {
-	if len(fix) != meas.Ports {
-		panic(badFixLen)
-	}
-	if meas.Ports > 2 {
-		return nil, fmt.Errorf("%w: fixtures can be removed from a 1- or 2-port sweep, not a %d-port", ErrPorts, meas.Ports)
-	}
-	for p, fx := range fix {
-		if fx.AnalyserPort < 0 || fx.AnalyserPort > 2 {
-			panic(badFixPort)
-		}
-		if fx.S == nil {
-			continue
-		}
-		if fx.S.Ports != 2 {
-			return nil, fmt.Errorf("%w: the fixture at port %d has %d ports, want 2", ErrPorts, p+1, fx.S.Ports)
-		}
-		if err := covers(fx.S, meas.FreqHz, p+1); err != nil {
-			return nil, err
-		}
+	if err := checkFixtures(meas, fix, "removed from"); err != nil {
+		return nil, err
 	}
 	out := meas.Clone()
 	var inv [2][4]complex128 // S of the inverse network at each port
@@ -128,25 +111,8 @@ func Remove(meas *rfmath.Sweep, fix []Fixture) (*rfmath.Sweep, error) {
 // for building test cases and for previewing a fixture. The conventions are
 // those of Remove; Embed also refuses to extrapolate a fixture.
 func Embed(dev *rfmath.Sweep, fix []Fixture) (*rfmath.Sweep, error) {
-	if len(fix) != dev.Ports {
-		panic(badFixLen)
-	}
-	if dev.Ports > 2 {
-		return nil, fmt.Errorf("%w: fixtures can be added to a 1- or 2-port sweep, not a %d-port", ErrPorts, dev.Ports)
-	}
-	for p, fx := range fix {
-		if fx.AnalyserPort < 0 || fx.AnalyserPort > 2 {
-			panic(badFixPort)
-		}
-		if fx.S == nil {
-			continue
-		}
-		if fx.S.Ports != 2 {
-			return nil, fmt.Errorf("%w: the fixture at port %d has %d ports, want 2", ErrPorts, p+1, fx.S.Ports)
-		}
-		if err := covers(fx.S, dev.FreqHz, p+1); err != nil {
-			return nil, err
-		}
+	if err := checkFixtures(dev, fix, "added to"); err != nil {
+		return nil, err
 	}
 	out := dev.Clone()
 	var x [4]complex128
@@ -275,4 +241,31 @@ func cascade(a, b [4]complex128) ([4]complex128, bool) {
 		return a, false
 	}
 	return rfmath.CascadeS(a, b, 0), true
+}
+
+// checkFixtures checks the fixtures of [Remove] and [Embed] against the
+// sweep s: its port count, each fixture's ports and frequency coverage.
+// verb says what is done, for the error ("removed from", "added to").
+func checkFixtures(s *rfmath.Sweep, fix []Fixture, verb string) error {
+	if len(fix) != s.Ports {
+		panic(badFixLen)
+	}
+	if s.Ports > 2 {
+		return fmt.Errorf("%w: fixtures can be %s a 1- or 2-port sweep, not a %d-port", ErrPorts, verb, s.Ports)
+	}
+	for p, fx := range fix {
+		if fx.AnalyserPort < 0 || fx.AnalyserPort > 2 {
+			panic(badFixPort)
+		}
+		if fx.S == nil {
+			continue
+		}
+		if fx.S.Ports != 2 {
+			return fmt.Errorf("%w: the fixture at port %d has %d ports, want 2", ErrPorts, p+1, fx.S.Ports)
+		}
+		if err := covers(fx.S, s.FreqHz, p+1); err != nil {
+			return err
+		}
+	}
+	return nil
 }
