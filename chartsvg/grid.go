@@ -47,22 +47,17 @@ var (
 	}
 	// Zoomed-in charts (K ≥ 700 units) add lines between the medium ones
 	// near the centre.
-	rLinesFine = append(append([]gridLine{}, rLinesMedium...),
-		gridLine{0.05, 0.5, false}, gridLine{0.15, 1, false}, gridLine{0.25, 1, false},
-		gridLine{0.35, 1, false}, gridLine{0.45, 1, false}, gridLine{0.55, 1, false},
-		gridLine{0.65, 1, false}, gridLine{0.75, 1, false}, gridLine{0.85, 1, false},
-		gridLine{0.95, 1, false}, gridLine{1.1, 1, false}, gridLine{1.3, 1, false},
-		gridLine{1.5, 2, false}, gridLine{1.7, 1, false}, gridLine{1.9, 1, false},
-		gridLine{2.5, 2, false},
-	)
-	xLinesFine = append(append([]gridLine{}, xLinesMedium...),
-		gridLine{0.05, 0.5, false}, gridLine{0.15, 1, false}, gridLine{0.25, 1, false},
-		gridLine{0.35, 1, false}, gridLine{0.45, 1, false}, gridLine{0.55, 1, false},
-		gridLine{0.65, 1, false}, gridLine{0.75, 1, false}, gridLine{0.85, 1, false},
-		gridLine{0.95, 1, false}, gridLine{1.1, 1, false}, gridLine{1.3, 1, false},
-		gridLine{1.5, 2, false}, gridLine{1.7, 1, false}, gridLine{1.9, 1, false},
-		gridLine{2.5, 2, false},
-	)
+	// The same values join both families.
+	fineExtra = []gridLine{
+		{0.05, 0.5, false}, {0.15, 1, false}, {0.25, 1, false},
+		{0.35, 1, false}, {0.45, 1, false}, {0.55, 1, false},
+		{0.65, 1, false}, {0.75, 1, false}, {0.85, 1, false},
+		{0.95, 1, false}, {1.1, 1, false}, {1.3, 1, false},
+		{1.5, 2, false}, {1.7, 1, false}, {1.9, 1, false},
+		{2.5, 2, false},
+	}
+	rLinesFine = append(append([]gridLine{}, rLinesMedium...), fineExtra...)
+	xLinesFine = append(append([]gridLine{}, xLinesMedium...), fineExtra...)
 )
 
 // gridTables returns the grid grades suited to the scale K.
