@@ -42,7 +42,22 @@ type netEval struct {
 
 // evalNetwork evaluates n over the sweep it sits on.
 func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
-	sw := sc.all[n.SweepID]
+	ne := prepareNetwork(n, sc.all[n.SweepID])
+	if ne.err != nil {
+		return ne
+	}
+	ne.ideal = ne.ladder.InputGammaTo(nil, ne.sweep.FreqHz, ne.gLoad, ne.z0)
+	if ne.buyL != nil {
+		ne.buy = ne.buyL.InputGammaTo(nil, ne.sweep.FreqHz, ne.gLoad, ne.z0)
+	}
+	return ne
+}
+
+// prepareNetwork builds n's ladders on its load sweep sw without
+// evaluating them over the sweep: what a part drag at the design
+// frequency needs. buyL is set when some part has a standard value that
+// differs from its typed one.
+func prepareNetwork(n *sessions.Network, sw *rfmath.Sweep) *netEval {
 	if sw == nil {
 		return &netEval{n: n, err: fmt.Errorf("the network's load sweep is gone")}
 	}
@@ -53,11 +68,9 @@ func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 		ne.err = err
 		return ne
 	}
-	ne.ideal = ne.ladder.InputGammaTo(nil, sw.FreqHz, ne.gLoad, ne.z0)
 	for _, p := range n.Parts {
 		if p.ESeries != "" && p.BuyValue() != p.Value {
 			ne.buyL, _ = n.Ladder(true)
-			ne.buy = ne.buyL.InputGammaTo(nil, sw.FreqHz, ne.gLoad, ne.z0)
 			break
 		}
 	}

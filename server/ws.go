@@ -366,22 +366,19 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			return
 		}
 	case m.Type == "partdrag":
-		sc, err := c.scene(ctx)
-		if err == nil && (sc.net == nil || sc.net.err != nil) {
-			err = errors.New("the session has no matching network to drag")
-		}
+		ne, err := c.activeNetwork(ctx)
 		var v float64
 		if err == nil && m.Change.Gamma == nil {
 			err = errors.New("a part drag needs a \"gamma\" point")
 		}
 		if err == nil {
-			v, err = sc.net.dragValue(m.Change.PartID, complex(m.Change.Gamma.Re, m.Change.Gamma.Im))
+			v, err = ne.dragValue(m.Change.PartID, complex(m.Change.Gamma.Re, m.Change.Gamma.Im))
 		}
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
 			return
 		}
-		ch = sessions.Change{Op: sessions.OpPartSet, NetworkID: sc.net.n.ID, PartID: m.Change.PartID, Value: &v, Gesture: m.Change.Gesture}
+		ch = sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: m.Change.PartID, Value: &v, Gesture: m.Change.Gesture}
 	default:
 		ch = *m.Change
 		ch.Raw, ch.Sweep = nil, nil
@@ -420,6 +417,33 @@ func (c *conn) scene(ctx context.Context) (*scene, error) {
 		return nil, err
 	}
 	return c.s.scene(c.sid, st), nil
+}
+
+// activeNetwork prepares the session's active network on its load (with
+// the load's reference plane) without drawing anything or evaluating it
+// over the sweep: a part drag needs only its design frequency.
+func (c *conn) activeNetwork(ctx context.Context) (*netEval, error) {
+	st, _, err := c.s.store.State(ctx, c.sid)
+	if err != nil {
+		return nil, err
+	}
+	n := st.Active()
+	i := -1
+	if n != nil {
+		i = st.SweepIndex(n.SweepID)
+	}
+	if i < 0 {
+		return nil, errors.New("the session has no matching network to drag")
+	}
+	sw, err := c.s.store.Sweep(c.sid, n.SweepID)
+	if err == nil {
+		sw, err = c.s.corrected(c.sid, st.Sweeps[i], sw)
+	}
+	if err != nil {
+		return nil, err
+	}
+	ne := prepareNetwork(n, sw)
+	return ne, ne.err
 }
 
 // catchUp sends a full update when the page's version is not the session's.
