@@ -5,11 +5,8 @@ import (
 	"math/cmplx"
 )
 
-// ArcKind names a lumped reactive part by how it is placed: "series_L",
-// "series_C", "shunt_L" or "shunt_C".
-type ArcKind string
-
 // ValueAlongArc returns the value (henries or farads) of a part of kind k
+// (series or shunt L or C)
 // that moves the point Γb (the reflection seen before the part, in a real
 // reference z0Ohm, at fHz) along its circle of constant resistance (series
 // parts) or conductance (shunt parts) to the point nearest target, and
@@ -24,28 +21,28 @@ type ArcKind string
 // negative reactance) gives the smallest value that moves the point by
 // 10⁻⁶·z0, i.e. the part at its lower end of travel; current is returned
 // unchanged when target is not a finite point.
-func ValueAlongArc(k ArcKind, gb, target complex128, z0Ohm, fHz, current float64) (float64, bool) {
+func ValueAlongArc(k PartKind, gb, target complex128, z0Ohm, fHz, current float64) (float64, bool) {
 	w := 2 * math.Pi * fHz
 	z0 := complex(z0Ohm, 0)
 	if cmplx.IsNaN(target) || cmplx.IsInf(target) || cmplx.Abs(target) >= 1 {
 		if cmplx.Abs(target) >= 1 {
 			target = target / complex(cmplx.Abs(target)*(1+1e-9), 0)
 		} else {
-			return current, k == "series_L" || k == "series_C" || k == "shunt_L" || k == "shunt_C"
+			return current, k.Reactive()
 		}
 	}
 	tiny := 1e-6 * z0Ohm
 	switch k {
-	case "series_L", "series_C":
+	case PartSeriesL, PartSeriesC:
 		x := imag(ZFromGamma(target, z0)) - imag(ZFromGamma(gb, z0))
-		if k == "series_L" {
+		if k == PartSeriesL {
 			return math.Max(x, tiny) / w, true
 		}
 		return 1 / (w * math.Max(-x, tiny)), true
-	case "shunt_L", "shunt_C":
+	case PartShuntL, PartShuntC:
 		b := imag(YFromGamma(target, z0)) - imag(YFromGamma(gb, z0))
 		tinyB := 1e-6 / z0Ohm
-		if k == "shunt_C" {
+		if k == PartShuntC {
 			return math.Max(b, tinyB) / w, true
 		}
 		return 1 / (w * math.Max(-b, tinyB)), true

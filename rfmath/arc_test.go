@@ -13,7 +13,7 @@ import (
 func TestValueAlongArcRoundTrip(t *testing.T) {
 	t.Parallel()
 	cases := []struct {
-		kind  ArcKind
+		kind  PartKind
 		value float64
 		elem  func(v float64) Element
 	}{

@@ -14,19 +14,30 @@ var (
 	_ rfmath.Part = IdealInductor{}
 	_ rfmath.Part = IdealCapacitor{}
 	_ rfmath.Part = IdealResistor{}
+
+	_ rfmath.Lumper = Inductor{}
+	_ rfmath.Lumper = Capacitor{}
+	_ rfmath.Lumper = Resistor{}
+	_ rfmath.Lumper = IdealInductor{}
+	_ rfmath.Lumper = IdealCapacitor{}
+	_ rfmath.Lumper = IdealResistor{}
 )
 
-// Law says how the series resistance of an inductor grows with frequency.
-type Law int
+// Law says how the series resistance of a part grows with frequency; it
+// is [rfmath.Law].
+type Law = rfmath.Law
 
+// The laws of [rfmath.Law].
 const (
 	// SqrtF: R ∝ √f, the skin effect in the winding, so Q ∝ √f below the
 	// self-resonance. The zero value, and the default.
-	SqrtF Law = iota
-	// Flat: R constant, so Q ∝ f.
-	Flat
-	// Linear: R ∝ f, so Q is constant (an older rule of thumb).
-	Linear
+	SqrtF = rfmath.SqrtF
+	// Flat: R constant, so an inductor's Q ∝ f.
+	Flat = rfmath.Flat
+	// Linear: R ∝ f, so an inductor's Q is constant.
+	Linear = rfmath.Linear
+	// Inverse: R ∝ 1/f, so a capacitor's Q is constant.
+	Inverse = rfmath.Inverse
 )
 
 // Inductor is a chip inductor: an inductance LH in series with a loss
@@ -52,20 +63,7 @@ type Inductor struct {
 }
 
 // SeriesROhm returns the loss resistance R(f) in ohms at fHz.
-func (p Inductor) SeriesROhm(fHz float64) float64 {
-	if !(p.Q > 0 && p.QRefHz > 0) {
-		return 0
-	}
-	r := 2 * math.Pi * p.QRefHz * p.LH / p.Q
-	switch p.RLaw {
-	case Flat:
-	case Linear:
-		r *= fHz / p.QRefHz
-	default:
-		r *= math.Sqrt(fHz / p.QRefHz)
-	}
-	return r
-}
+func (p Inductor) SeriesROhm(fHz float64) float64 { return p.Lumped().SeriesROhm(fHz) }
 
 // ParallelCF returns the parallel capacitance Cp in farads that sets the
 // self-resonance: 1/((2π·SRF)²·L), or 0 without an SRF.
@@ -77,16 +75,18 @@ func (p Inductor) ParallelCF() float64 {
 	return 1 / (w * w * p.LH)
 }
 
-// ImpedanceAt returns the impedance in ohms at fHz (see [Inductor]).
-func (p Inductor) ImpedanceAt(fHz float64) complex128 {
-	w := 2 * math.Pi * fHz
-	zs := complex(p.SeriesROhm(fHz), w*p.LH)
-	cp := p.ParallelCF()
-	if cp == 0 {
-		return zs
+// Lumped returns the inductor's closed form: L in series with R(f), the
+// pair shunted by Cp.
+func (p Inductor) Lumped() rfmath.Lumped {
+	f := rfmath.Lumped{LH: p.LH, ParallelCF: p.ParallelCF(), RLaw: p.RLaw}
+	if p.Q > 0 && p.QRefHz > 0 {
+		f.ROhm, f.RefHz = 2*math.Pi*p.QRefHz*p.LH/p.Q, p.QRefHz
 	}
-	return zs / (1 + complex(0, w*cp)*zs)
+	return f
 }
+
+// ImpedanceAt returns the impedance in ohms at fHz (see [Inductor]).
+func (p Inductor) ImpedanceAt(fHz float64) complex128 { return p.Lumped().ImpedanceAt(fHz) }
 
 // Capacitor is a chip capacitor: a capacitance CF in series with its
 // equivalent series resistance (ESR) and the series inductance Ls that makes
@@ -99,14 +99,17 @@ func (p Inductor) ImpedanceAt(fHz float64) complex128 {
 // QRefHz as ESR = 1/(2π·QRefHz·C·Q), the Q of the capacitance alone. Either
 // way the ESR is held constant with frequency, a fair description of a C0G
 // (NP0) multilayer part over an octave or two of the GHz range (common
-// practice; its ESR rises slowly with f), so Q falls as 1/f. Zero ESR and Q
-// make it lossless; an SRFHz of zero (or less) leaves out Ls.
+// practice; its ESR rises slowly with f), so Q falls as 1/f, unless
+// ConstantQ is set: then the ESR falls as 1/f so that the capacitance's Q
+// is the same at every frequency (a what-if model, not a real part). Zero
+// ESR and Q make it lossless; an SRFHz of zero (or less) leaves out Ls.
 type Capacitor struct {
-	CF     float64 // capacitance in farads
-	ESROhm float64 // series resistance in ohms; 0: from Q, or lossless
-	Q      float64 // Q at QRefHz, used when ESROhm is 0
-	QRefHz float64 // frequency at which Q holds
-	SRFHz  float64 // self-resonant frequency; 0 means none
+	CF        float64 // capacitance in farads
+	ESROhm    float64 // series resistance in ohms; 0: from Q, or lossless
+	Q         float64 // Q at QRefHz, used when ESROhm is 0
+	QRefHz    float64 // frequency at which Q holds
+	SRFHz     float64 // self-resonant frequency; 0 means none
+	ConstantQ bool    // ESR ∝ 1/f from QRefHz, so Q holds at every frequency
 }
 
 // ESR returns the series resistance in ohms.
@@ -130,11 +133,18 @@ func (p Capacitor) SeriesLH() float64 {
 	return 1 / (w * w * p.CF)
 }
 
-// ImpedanceAt returns the impedance in ohms at fHz (see [Capacitor]).
-func (p Capacitor) ImpedanceAt(fHz float64) complex128 {
-	w := 2 * math.Pi * fHz
-	return complex(p.ESR(), w*p.SeriesLH()-1/(w*p.CF))
+// Lumped returns the capacitor's closed form: C in series with Ls and the
+// ESR.
+func (p Capacitor) Lumped() rfmath.Lumped {
+	f := rfmath.Lumped{CF: p.CF, LH: p.SeriesLH(), ROhm: p.ESR(), RLaw: rfmath.Flat}
+	if p.ConstantQ && p.QRefHz > 0 {
+		f.RefHz, f.RLaw = p.QRefHz, rfmath.Inverse
+	}
+	return f
 }
+
+// ImpedanceAt returns the impedance in ohms at fHz (see [Capacitor]).
+func (p Capacitor) ImpedanceAt(fHz float64) complex128 { return p.Lumped().ImpedanceAt(fHz) }
 
 // Resistor is a chip resistor with its series inductance (ESL):
 //
@@ -144,13 +154,19 @@ type Resistor struct {
 	ESLH float64 // series inductance in henries
 }
 
-// ImpedanceAt returns the impedance in ohms at fHz.
-func (p Resistor) ImpedanceAt(fHz float64) complex128 {
-	return complex(p.ROhm, 2*math.Pi*fHz*p.ESLH)
+// Lumped returns the resistor's closed form.
+func (p Resistor) Lumped() rfmath.Lumped {
+	return rfmath.Lumped{ROhm: p.ROhm, LH: p.ESLH, RLaw: rfmath.Flat}
 }
+
+// ImpedanceAt returns the impedance in ohms at fHz.
+func (p Resistor) ImpedanceAt(fHz float64) complex128 { return p.Lumped().ImpedanceAt(fHz) }
 
 // IdealInductor is a lossless inductance without parasitics: Z = jωL.
 type IdealInductor struct{ LH float64 }
+
+// Lumped returns the closed form, L alone.
+func (p IdealInductor) Lumped() rfmath.Lumped { return rfmath.Lumped{LH: p.LH} }
 
 // ImpedanceAt returns jωL in ohms.
 func (p IdealInductor) ImpedanceAt(fHz float64) complex128 {
@@ -161,6 +177,9 @@ func (p IdealInductor) ImpedanceAt(fHz float64) complex128 {
 // Z = 1/(jωC).
 type IdealCapacitor struct{ CF float64 }
 
+// Lumped returns the closed form, C alone.
+func (p IdealCapacitor) Lumped() rfmath.Lumped { return rfmath.Lumped{CF: p.CF} }
+
 // ImpedanceAt returns 1/(jωC) in ohms.
 func (p IdealCapacitor) ImpedanceAt(fHz float64) complex128 {
 	return rfmath.ImpedanceOfC(p.CF, fHz)
@@ -168,6 +187,9 @@ func (p IdealCapacitor) ImpedanceAt(fHz float64) complex128 {
 
 // IdealResistor is a resistance without parasitics.
 type IdealResistor struct{ ROhm float64 }
+
+// Lumped returns the closed form, R alone.
+func (p IdealResistor) Lumped() rfmath.Lumped { return rfmath.Lumped{ROhm: p.ROhm, RLaw: rfmath.Flat} }
 
 // ImpedanceAt returns R in ohms.
 func (p IdealResistor) ImpedanceAt(float64) complex128 {

@@ -9,14 +9,14 @@ import (
 	"matchbench/rfmath"
 )
 
-// Kind is the kind of a lumped part.
-type Kind string
+// Kind is the kind of a lumped part: [rfmath.Component].
+type Kind = rfmath.Component
 
-// Kinds of part, spelled as rfmath's equivalent elements are.
+// Kinds of part.
 const (
-	KindL Kind = "L" // inductor; values in henries
-	KindC Kind = "C" // capacitor; values in farads
-	KindR Kind = "R" // resistor; values in ohms
+	KindL = rfmath.ComponentL // inductor; values in henries
+	KindC = rfmath.ComponentC // capacitor; values in farads
+	KindR = rfmath.ComponentR // resistor; values in ohms
 )
 
 // Model makes the part that a nominal value stands for.

@@ -271,3 +271,41 @@ func Format(v float64, unit string, digits int) string {
 
 // FormatFrequency writes a frequency in Hz with a prefix: "2.45 GHz".
 func FormatFrequency(fHz float64, digits int) string { return Format(fHz, "Hz", digits) }
+
+// FormatPercent writes a share (0.784 for 78.4 %) as a percentage with
+// decimals decimal places and a space before the sign: "78.4 %". NaN is
+// "n/a" and ±Inf "±∞ %".
+func FormatPercent(share float64, decimals int) string {
+	switch {
+	case math.IsNaN(share):
+		return "n/a"
+	case math.IsInf(share, 1):
+		return "∞ %"
+	case math.IsInf(share, -1):
+		return "−∞ %"
+	}
+	return strconv.FormatFloat(100*share, 'f', decimals, 64) + " %"
+}
+
+// FormatDB writes a figure in decibels with two decimals and its unit:
+// "14.69 dB", "-0.35 dB"; +Inf is "∞ dB" (a perfect match's return loss),
+// −Inf "−∞ dB" and NaN "n/a". Every figure in dB that matchbench shows, on
+// the page, in the report and on the command line, is written by it, so
+// that they agree to the last digit.
+func FormatDB(v float64) string {
+	switch {
+	case math.IsNaN(v):
+		return "n/a"
+	case math.IsInf(v, 1):
+		return "∞ dB"
+	case math.IsInf(v, -1):
+		return "−∞ dB"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64) + " dB"
+}
+
+// FormatShare writes a share of the available power as a percentage with
+// one decimal and, in brackets, as a loss in dB: "78.4 % (1.06 dB)".
+func FormatShare(share float64) string {
+	return FormatPercent(share, 1) + " (" + FormatDB(-10*math.Log10(share)) + ")"
+}
