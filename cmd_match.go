@@ -11,6 +11,7 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"matchbench/rfmath/limits"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
 	"matchbench/rfmath/units"
@@ -19,24 +20,50 @@ import (
 // matchDesignJSON is one element of the array `matchbench match --json`
 // prints. Keys are part of the command-line contract; add, never rename.
 type matchDesignJSON struct {
-	Parts     []partJSON      `json:"parts"` // from the load toward the source
-	WorstRLdB jsonNum         `json:"worst_rl_db"`
-	MarginDB  jsonNum         `json:"margin_db"`
-	Meets     bool            `json:"meets"`
-	Bands     []matchBandJSON `json:"bands"`
-	Yield     *float64        `json:"yield,omitempty"`
-	Limit     *limitJSON      `json:"bode_fano,omitempty"`
-	Stress    []stressJSON    `json:"stress,omitempty"`
-	Model     string          `json:"model"`
-	Search    *searchInfoJSON `json:"search,omitempty"`
+	Parts            []partJSON      `json:"parts"` // from the load toward the source
+	WorstRLdB        jsonNum         `json:"worst_rl_db"`
+	WorstPowerToLoad jsonNum         `json:"worst_power_to_load"`
+	MarginDB         jsonNum         `json:"margin_db"`
+	Meets            bool            `json:"meets"`
+	OverDissipating  bool            `json:"over_dissipating"`
+	WorseThanNone    bool            `json:"worse_than_no_network"`
+	Bands            []matchBandJSON `json:"bands"`
+	Yield            *float64        `json:"yield,omitempty"`
+	Limit            *limitJSON      `json:"bode_fano,omitempty"`
+	Stress           []stressJSON    `json:"stress,omitempty"`
+	Model            string          `json:"model"`
+	Search           *searchInfoJSON `json:"search,omitempty"`
 }
 
 type matchBandJSON struct {
-	LoHz      float64 `json:"lo_hz"`
-	HiHz      float64 `json:"hi_hz"`
-	Required  float64 `json:"required_rl_db"`
-	WorstRLdB jsonNum `json:"worst_rl_db"`
-	MeanRLdB  jsonNum `json:"mean_rl_db"`
+	LoHz                float64  `json:"lo_hz"`
+	HiHz                float64  `json:"hi_hz"`
+	Required            float64  `json:"required_rl_db"`
+	RequiredPower       float64  `json:"required_power_to_load,omitempty"`
+	WorstRLdB           jsonNum  `json:"worst_rl_db"`
+	MeanRLdB            jsonNum  `json:"mean_rl_db"`
+	WorstPowerToLoad    jsonNum  `json:"worst_power_to_load"`
+	MeanPowerToLoad     jsonNum  `json:"mean_power_to_load"`
+	MismatchLossDB      jsonNum  `json:"mismatch_loss_db"`
+	NetworkLossDB       jsonNum  `json:"network_loss_db"`
+	WorstNetworkLossDB  jsonNum  `json:"worst_network_loss_db"`
+	UnmatchedWorstRLdB  jsonNum  `json:"unmatched_worst_rl_db"`
+	UnmatchedWorstPower jsonNum  `json:"unmatched_worst_power_to_load"`
+	UnmatchedMeanPower  jsonNum  `json:"unmatched_mean_power_to_load"`
+	MarginDB            jsonNum  `json:"margin_db"`
+	Notes               []string `json:"notes,omitempty"`
+}
+
+// bandJSONOf writes one band's figures (match.Evaluate's) as JSON.
+func bandJSONOf(b match.BandResult) matchBandJSON {
+	return matchBandJSON{
+		LoHz: b.LoHz, HiHz: b.HiHz, Required: b.MinReturnLossDB, RequiredPower: b.MinPowerToLoad,
+		WorstRLdB: jsonNum(b.WorstRLdB), MeanRLdB: jsonNum(b.MeanRLdB),
+		WorstPowerToLoad: jsonNum(b.WorstPowerToLoad), MeanPowerToLoad: jsonNum(b.MeanPowerToLoad),
+		MismatchLossDB: jsonNum(b.MismatchLossDB), NetworkLossDB: jsonNum(b.NetworkLossDB), WorstNetworkLossDB: jsonNum(b.WorstNetworkLossDB),
+		UnmatchedWorstRLdB: jsonNum(b.Unmatched.WorstRLdB), UnmatchedWorstPower: jsonNum(b.Unmatched.WorstPowerToLoad),
+		UnmatchedMeanPower: jsonNum(b.Unmatched.MeanPowerToLoad), MarginDB: jsonNum(b.MarginDB), Notes: b.LossNotes(),
+	}
 }
 
 type limitJSON struct {
@@ -47,14 +74,16 @@ type limitJSON struct {
 }
 
 type stressJSON struct {
-	Kind     string   `json:"kind"`
-	Value    float64  `json:"value"`
-	VPeak    float64  `json:"v_peak"`
-	IRMS     float64  `json:"i_rms_a"`
-	Warnings []string `json:"warnings,omitempty"`
+	Kind         string   `json:"kind"`
+	Value        float64  `json:"value"`
+	VPeak        float64  `json:"v_peak"`
+	IRMS         float64  `json:"i_rms_a"`
+	DissipationW float64  `json:"dissipation_w"`
+	Warnings     []string `json:"warnings,omitempty"`
 }
 
 type searchInfoJSON struct {
+	Objective    string  `json:"objective"`
 	Exact        bool    `json:"exact"`
 	Window       int     `json:"window,omitempty"`
 	Combinations float64 `json:"combinations"`
@@ -62,7 +91,7 @@ type searchInfoJSON struct {
 }
 
 func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("match", "FILE --band LO:HI[:RL] [--band ...] [--rl DB] [--series E24] [--parts 3] [--ideal] [--size 0402] [--top 5] [--json]", stderr)
+	fs := newFlagSet("match", "FILE --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--top 5] [--json]", stderr)
 	var bandArgs listFlag
 	fs.Var(&bandArgs, "band", "a band to match, `LO:HI[:RL]` (SI prefixes: 2.40G:2.4835G, or 863M:870M:12 with its own return loss); repeatable")
 	rl := fs.Float64("rl", 10, "required return `loss` in dB for bands that do not give their own")
@@ -70,6 +99,9 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	nParts := fs.Int("parts", 3, "largest `number` of parts in a ladder (1 to 4); smaller ladders are searched too")
 	ideal := fs.Bool("ideal", false, "lossless parts without parasitics (to compare with hand calculations)")
 	size := fs.String("size", "0402", "case `size` whose typical part models to use (0402, 0603; typical values from memory, not a vendor's data)")
+	qFlag := fs.String("q", "", "what-if parts of a constant unloaded `Q`: L=30,C=300 (or one Q for both); each part is its ideal reactance X in series with |X|/Q, no self-resonance")
+	objective := fs.String("objective", "power", "what the designs are ranked by: `power` (meet every requirement, then the most power to the load) or rl (return loss margin only)")
+	minPower := fs.String("min-power", "", "least share of the available power that must reach the load in every band: a `percentage` (80%) or a loss (1dB)")
 	top := fs.Int("top", 5, "number of designs to print (the best of each ladder shape)")
 	window := fs.Int("window", 0, "search only ±`N` standard values around each continuous optimum (0: the whole range when it is small enough; -1: always the whole range)")
 	builds := fs.Int("builds", 1000, "Monte Carlo `builds` per design for the yield under typical tolerances (0: none)")
@@ -110,9 +142,32 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *builds < 0 || *power < 0 || *radius < 0 || math.IsNaN(*power) || math.IsNaN(*radius) {
 		return usagef("--builds, --power and --radius must not be negative")
 	}
+	obj, err := match.ParseObjective(*objective)
+	if err != nil {
+		return usagef("--objective %s: want power or rl", *objective)
+	}
+	if *minPower != "" {
+		share, err := limits.ParseShare(*minPower)
+		if err != nil {
+			return usagef("--min-power %s: %v", *minPower, err)
+		}
+		for i := range bands {
+			bands[i].MinPowerToLoad = share
+		}
+	}
 	var model parts.Model
 	modelName := "ideal"
-	if !*ideal {
+	switch {
+	case *qFlag != "":
+		if *ideal {
+			return usagef("--q and --ideal: choose one part model")
+		}
+		cq, err := parts.ParseConstantQ(*qFlag)
+		if err != nil {
+			return usagef("--q %s: %v", *qFlag, err)
+		}
+		model, modelName = cq, cq.String()
+	case !*ideal:
 		fam, err := parts.LookupFamily(*size)
 		if err != nil {
 			return usagef("--size %s: %v", *size, err)
@@ -135,7 +190,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 	}
 
-	set := &match.Settings{LSeries: lSer, CSeries: cSer, Model: model, MaxParts: *nParts, Top: *top, Window: *window}
+	set := &match.Settings{LSeries: lSer, CSeries: cSer, Model: model, MaxParts: *nParts, Top: *top, Window: *window, Objective: obj}
 	t0 := time.Now()
 	res, err := match.Search(ctx, load, bands, set)
 	if err != nil {
@@ -147,17 +202,20 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	designs := make([]matchDesignJSON, len(res.Designs))
 	for i, d := range res.Designs {
 		j := matchDesignJSON{
-			Parts:     partsJSON(d.Network),
-			WorstRLdB: jsonNum(d.WorstRLdB),
-			MarginDB:  jsonNum(d.MarginDB),
-			Meets:     d.Meets(),
-			Model:     modelName,
+			Parts:            partsJSON(d.Network),
+			WorstRLdB:        jsonNum(d.WorstRLdB),
+			WorstPowerToLoad: jsonNum(d.WorstPowerToLoad),
+			MarginDB:         jsonNum(d.MarginDB),
+			Meets:            d.Meets(),
+			OverDissipating:  d.OverDissipating(),
+			WorseThanNone:    d.WorseThanNone(),
+			Model:            modelName,
 		}
 		for _, b := range d.Bands {
-			j.Bands = append(j.Bands, matchBandJSON{b.LoHz, b.HiHz, b.MinReturnLossDB, jsonNum(b.WorstRLdB), jsonNum(b.MeanRLdB)})
+			j.Bands = append(j.Bands, bandJSONOf(b))
 		}
 		if *builds > 0 {
-			y, err := match.Yield(ctx, load, bands, d.Network, &match.YieldSettings{Builds: *builds, Model: model})
+			y, err := match.Yield(ctx, load, bands, d.Network, &match.YieldSettings{Builds: *builds})
 			if err != nil {
 				return err
 			}
@@ -167,14 +225,14 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			j.Limit = &limitJSON{fit.String(), fit.RMSGammaError, jsonNum(lim.BestRLdB), jsonNum(lim.MaxMarginDB)}
 		}
 		if i == 0 {
-			j.Search = &searchInfoJSON{res.Exact, res.Window, res.Combinations, took.Seconds()}
+			j.Search = &searchInfoJSON{res.Objective.String(), res.Exact, res.Window, res.Combinations, took.Seconds()}
 			if *power > 0 {
-				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: *power, Model: model})
+				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: *power})
 				if err != nil {
 					return err
 				}
 				for _, r := range rep {
-					j.Stress = append(j.Stress, stressJSON{string(r.Part.Kind), r.Part.Value, r.WorstV.VPeak, r.WorstI.IRMS, r.Warnings})
+					j.Stress = append(j.Stress, stressJSON{string(r.Part.Kind), r.Part.Value, r.WorstV.VPeak, r.WorstI.IRMS, r.WorstP.DissipationW, r.Warnings})
 				}
 			}
 		}
@@ -217,7 +275,8 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintln(stdout, ".")
 	}
 	if best.Meets() {
-		fmt.Fprintf(stdout, "Result: %s meets every band with %s dB to spare.\n", best.Network, signed(best.MarginDB))
+		fmt.Fprintf(stdout, "Result: %s meets every band with %s dB to spare; at worst %s of the available power reaches the load.\n",
+			best.Network, signed(best.MarginDB), units.FormatShare(best.WorstPowerToLoad))
 	} else {
 		fmt.Fprintln(stdout, unmetNote(best, lim, limErr))
 	}
@@ -279,22 +338,35 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 	}
 	fmt.Fprintf(w, "Bands: %s\n", strings.Join(bs, "; "))
 	note := ""
-	if model != "ideal" {
+	if strings.HasPrefix(model, "typical") {
 		note = " (typical values from memory, not a vendor's data)"
 	}
 	fmt.Fprintf(w, "Parts: inductors %s from %s to %s, capacitors %s from %s to %s; %s models%s\n",
 		lSer, units.Format(res.LRange[0], "H", 3), units.Format(res.LRange[1], "H", 3),
 		cSer, units.Format(res.CRange[0], "F", 3), units.Format(res.CRange[1], "F", 3), model, note)
+	goal := "meet every requirement, then the most power to the load at the worst band point"
+	if res.Objective == match.ReturnLoss {
+		goal = "the largest return-loss margin over the requirements"
+	}
 	mode := "exact over every combination of standard values in those ranges"
 	if !res.Exact {
-		mode = fmt.Sprintf("exact within ±%d values of each continuous optimum, not over the whole ranges", res.Window)
+		mode = fmt.Sprintf("best found: searched within ±%d values of each continuous optimum, not proven over the whole ranges", res.Window)
 	}
-	fmt.Fprintf(w, "Searched %d ladder shapes, %.3g networks, %s, in %s\n\n", res.Topologies, res.Combinations, mode, took.Round(time.Millisecond))
+	fmt.Fprintf(w, "Best by: %s\n", goal)
+	fmt.Fprintf(w, "Searched %d ladder shapes, %.3g networks, %s, in %s\n", res.Topologies, res.Combinations, mode, took.Round(time.Millisecond))
+	if len(res.Designs) > 0 {
+		fmt.Fprint(w, "No network:")
+		for _, b := range res.Designs[0].Bands {
+			fmt.Fprintf(w, "  %s–%s worst RL %s, worst power to the load %s;", ff(b.LoHz), ff(b.HiHz), units.FormatDB(b.Unmatched.WorstRLdB), units.FormatShare(b.Unmatched.WorstPowerToLoad))
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintln(w)
 
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
-	fmt.Fprint(tw, "#\tparts, from the load toward the source\tworst RL\tmargin\t")
+	fmt.Fprint(tw, "#\tparts, from the load toward the source\tworst RL\tworst power to load\tmargin\t")
 	for _, b := range bands {
-		fmt.Fprintf(tw, "%s–%s worst/mean\t", ff(b.LoHz), ff(b.HiHz))
+		fmt.Fprintf(tw, "%s–%s RL worst/mean, power worst/mean\t", ff(b.LoHz), ff(b.HiHz))
 	}
 	if designs[0].Yield != nil {
 		fmt.Fprint(tw, "yield\t")
@@ -305,28 +377,40 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 		for _, p := range d.Network {
 			ps = append(ps, fmt.Sprintf("%s %s", p.Kind, units.Format(p.Value, p.Kind.Unit(), 3)))
 		}
-		fmt.Fprintf(tw, "%d\t%s\t%s dB\t%s dB\t", i+1, strings.Join(ps, ", "), fmtDB(d.WorstRLdB), signed(d.MarginDB))
+		flag := ""
+		if d.OverDissipating() || d.WorseThanNone() {
+			flag = " (!)"
+		}
+		fmt.Fprintf(tw, "%d\t%s%s\t%s\t%s\t%s dB\t", i+1, strings.Join(ps, ", "), flag, units.FormatDB(d.WorstRLdB), units.FormatPercent(d.WorstPowerToLoad, 1), signed(d.MarginDB))
 		for _, b := range d.Bands {
-			fmt.Fprintf(tw, "%s / %s dB\t", fmtDB(b.WorstRLdB), fmtDB(b.MeanRLdB))
+			fmt.Fprintf(tw, "%s / %s, %s / %s\t", fmtDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB), units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.MeanPowerToLoad, 1))
 		}
 		if y := designs[i].Yield; y != nil {
-			fmt.Fprintf(tw, "%.1f %%\t", 100**y)
+			fmt.Fprintf(tw, "%s\t", units.FormatPercent(*y, 1))
 		}
 		fmt.Fprintln(tw)
 	}
 	tw.Flush()
+	fmt.Fprintln(w, "(power: the share of the power the source makes available that reaches the load through the parts as modelled, with their losses)")
+	for i, d := range res.Designs {
+		for _, b := range d.Bands {
+			for _, n := range b.LossNotes() {
+				fmt.Fprintf(w, "(!) design %d, %s–%s: %s.\n", i+1, ff(b.LoHz), ff(b.HiHz), n)
+			}
+		}
+	}
 	if designs[0].Yield != nil {
-		fmt.Fprintln(w, "(yield: share of random builds meeting every band, with typical tolerances ±2 % or ±0.1 nH, ±2 % or ±0.05 pF — from memory)")
+		fmt.Fprintln(w, "(yield: share of random builds meeting every requirement, with typical tolerances ±2 % or ±0.1 nH, ±2 % or ±0.05 pF — from memory)")
 	}
 }
 
 func printStress(w io.Writer, d matchDesignJSON, powerW float64) {
 	fmt.Fprintf(w, "\nPart stress of design 1 at %s in, worst over the band points:\n", units.Format(powerW, "W", 3))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "  part\tpeak voltage\tRMS current\t")
+	fmt.Fprintln(tw, "  part\tpeak voltage\tRMS current\theat\t")
 	for _, s := range d.Stress {
-		fmt.Fprintf(tw, "  %s %s\t%s\t%s\t\n", s.Kind, units.Format(s.Value, match.Kind(s.Kind).Unit(), 3),
-			units.Format(s.VPeak, "V", 3), units.Format(s.IRMS, "A", 3))
+		fmt.Fprintf(tw, "  %s %s\t%s\t%s\t%s\t\n", s.Kind, units.Format(s.Value, match.Kind(s.Kind).Unit(), 3),
+			units.Format(s.VPeak, "V", 3), units.Format(s.IRMS, "A", 3), units.Format(s.DissipationW, "W", 3))
 	}
 	tw.Flush()
 	for _, s := range d.Stress {

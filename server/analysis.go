@@ -8,7 +8,6 @@ import (
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath/match"
-	"matchbench/rfmath/parts"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
 	"matchbench/web"
@@ -20,14 +19,8 @@ const cloudTraces = 24
 // matchLoad returns the active network's load and the session's bands that
 // carry a requirement, as rfmath/match wants them.
 func (ne *netEval) matchLoad(st *sessions.State) (match.Load, []match.Band) {
-	l := match.Load{FreqHz: ne.sweep.FreqHz, Gamma: ne.gLoad, Z0Ohm: ne.z0}
-	var bands []match.Band
-	for _, b := range st.Bands {
-		if b.MinReturnLossDB > 0 && b.LoHz >= ne.sweep.FreqHz[0] && b.HiHz <= ne.sweep.FreqHz[ne.sweep.Len()-1] {
-			bands = append(bands, match.Band{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB})
-		}
-	}
-	return l, bands
+	bands, _ := ne.netBands(st, true)
+	return ne.load, bands
 }
 
 // limitsView gives the Bode–Fano limit across the bands and, with a sphere
@@ -71,8 +64,9 @@ func (sc *scene) limitsView() web.LimitsView {
 	return v
 }
 
-// yield runs the network's Monte Carlo when one is asked for: only for
-// networks of L and C parts; the model is the first part's family.
+// yield runs the network's Monte Carlo when one is asked for, on the
+// network as built (every part with its own model and figures; only the
+// values spread within each part's tolerance).
 func (sc *scene) yield() (*match.YieldResult, string) {
 	if sc.yieldDone {
 		return sc.yieldRes, sc.yieldMsg
@@ -84,38 +78,12 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	}
 	l, bands := ne.matchLoad(sc.st)
 	if len(bands) == 0 {
-		sc.yieldMsg = "Yield needs a band with a return-loss requirement."
+		sc.yieldMsg = "Yield needs a band with a requirement (return loss or power to the load)."
 		return nil, sc.yieldMsg
-	}
-	var nw match.Network
-	var tols []parts.Tolerance
-	var model parts.Model
-	for _, p := range ne.n.Parts {
-		k := match.Kind(p.Kind)
-		switch k {
-		case match.SeriesL, match.SeriesC, match.ShuntL, match.ShuntC:
-		default:
-			sc.yieldMsg = "Yield is computed for networks of inductors and capacitors only."
-			return nil, sc.yieldMsg
-		}
-		nw = append(nw, match.Part{Kind: k, Value: p.BuyValue(), Series: p.ESeries})
-		t := parts.DefaultTolerance(p.LumpedKind())
-		if v, ok := p.Params["tolRel"]; ok {
-			t.Rel = v
-		}
-		if v, ok := p.Params["tolAbs"]; ok {
-			t.Abs = v
-		}
-		tols = append(tols, t)
-		if model == nil && p.Model != "" {
-			if fam, err := parts.LookupFamily(p.Model); err == nil {
-				model = fam
-			}
-		}
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
-	res, err := match.Yield(ctx, l, bands, nw, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Tolerances: tols, Model: model, Traces: cloudTraces})
+	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
 	if err != nil {
 		sc.yieldMsg = "Yield: " + err.Error()
 		return nil, sc.yieldMsg
@@ -137,13 +105,13 @@ func (sc *scene) yieldView() web.YieldView {
 	if res == nil {
 		return v
 	}
-	v.Summary = fmt.Sprintf("%d builds (seed %d): %.1f %% meet every band. Margin: median %+.2f dB, 5th percentile %+.2f dB, worst build %+.2f dB; worst corner %+.2f dB.",
-		res.Builds, max(ne.n.YieldSeed, 1), 100*res.Yield, res.MedianMarginDB, res.P5MarginDB, res.WorstMarginDB, res.WorstCorner.MarginDB)
+	v.Summary = fmt.Sprintf("%d builds (seed %d): %s meet every requirement of every band (return loss and power to the load). Margin: median %s, 5th percentile %s, worst build %s; worst corner %s.",
+		res.Builds, max(ne.n.YieldSeed, 1), units.FormatPercent(res.Yield, 1), signedDB(res.MedianMarginDB), signedDB(res.P5MarginDB), signedDB(res.WorstMarginDB), signedDB(res.WorstCorner.MarginDB))
 	for i, s := range res.Sensitivity {
-		u := unitOf(ne.n.Parts[i].Kind)
+		u := ne.n.Parts[i].Kind.Unit()
 		v.Parts = append(v.Parts, web.SensRow{
 			Designator: designator(ne.n.Parts, i), Tol: "±" + units.Format(s.Tolerance, u, 3),
-			Low: fmt.Sprintf("%+.2f dB", s.LowDB), High: fmt.Sprintf("%+.2f dB", s.HighDB),
+			Low: signedDB(s.LowDB), High: signedDB(s.HighDB),
 			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: i == res.MostSensitive,
 		})
 	}

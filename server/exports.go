@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/cmplx"
 	"net/http"
 	"strconv"
 	"strings"
@@ -14,6 +13,7 @@ import (
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath"
+	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
 	"matchbench/rfmath/touchstone"
 	"matchbench/rfmath/units"
@@ -42,8 +42,8 @@ func netComments(sc *scene, ne *netEval) []string {
 		fmt.Sprintf(" load: sweep %q, S%d%d; design frequency %s", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port, fmtF(ne.n.DesignHz)),
 		" parts from the load toward the source:",
 	}
-	for i, p := range ne.n.Parts {
-		c = append(c, " "+partLine(ne.n.Parts, i, p))
+	for i := range ne.n.Parts {
+		c = append(c, " "+partLine(ne, i))
 	}
 	return asciiOnly(c)
 }
@@ -77,13 +77,15 @@ func sweepName(st *sessions.State, id string) string {
 	return id
 }
 
-func partLine(ps []sessions.Part, i int, p sessions.Part) string {
-	s := fmt.Sprintf("%s %s %s", designator(ps, i), kindLabels[p.Kind], units.Format(p.BuyValue(), unitOf(p.Kind), 4))
+// partLine describes part i of the network as built.
+func partLine(ne *netEval, i int) string {
+	p, b := ne.n.Parts[i], ne.built[i]
+	s := fmt.Sprintf("%s %s %s", designator(ne.n.Parts, i), kindLabels[p.Kind], units.Format(b.Value, p.Kind.Unit(), 4))
 	if p.ESeries != "" {
 		s += " (" + p.ESeries + ")"
 	}
 	if p.Model != "" {
-		s += ", typical " + p.Model
+		s += ", " + modelText(p.Model)
 	}
 	return s
 }
@@ -110,7 +112,11 @@ func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	l := ne.resultLadder()
+	l, err := ne.built.Ladder()
+	if err != nil {
+		http.Error(w, "The network cannot be built: "+err.Error(), http.StatusUnprocessableEntity)
+		return
+	}
 	out := rfmath.NewSweep(ne.sweep.Len(), 2, ne.z0)
 	copy(out.FreqHz, ne.sweep.FreqHz)
 	for k, f := range out.FreqHz {
@@ -164,15 +170,15 @@ func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
 		return "N" + strconv.Itoa(k)
 	}
 	fd := ne.n.DesignHz
-	for k, p := range ps {
+	for k, p := range ne.built {
 		ref := designator(ps, k)
 		a, b := node(k), node(k+1)
-		if p.Shunt() {
+		if p.Kind.Shunt() {
 			// A shunt part hangs from this part's node; the line runs on.
 			fmt.Fprintf(bw, "R%s_THRU %s %s 0\n", ref, a, b)
 			b = "0"
 		}
-		v := p.BuyValue()
+		v := p.Value
 		switch c := p.Component(v).(type) {
 		case parts.Inductor:
 			mid := ref + "_R"
@@ -185,10 +191,7 @@ func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
 			fmt.Fprintf(bw, "L%s %s %s %s\n", ref, a, b, spiceValue(c.LH))
 		case parts.Capacitor:
 			m1, m2 := ref+"_ESR", ref+"_ESL"
-			esr := c.ESROhm
-			if esr == 0 && c.Q > 0 && c.QRefHz > 0 {
-				esr = 1 / (2 * math.Pi * c.QRefHz * c.CF * c.Q)
-			}
+			esr := c.ESR()
 			fmt.Fprintf(bw, "C%s %s %s %s\n", ref, a, m1, spiceValue(c.CF))
 			if c.SRFHz > 0 {
 				ls := 1 / (math.Pow(2*math.Pi*c.SRFHz, 2) * c.CF)
@@ -209,7 +212,7 @@ func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
 		case parts.IdealResistor:
 			fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, b, spiceValue(c.ROhm))
 		case nil:
-			e, err := p.ElementAt(v)
+			e, err := p.Element(v)
 			if err != nil {
 				return err
 			}
@@ -256,23 +259,17 @@ func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
 func partsRows(ne *netEval) [][]string {
 	rows := [][]string{{"designator", "kind", "value", "value_si", "typed_value_si", "series", "tolerance", "size", "rating"}}
 	for i, p := range ne.n.Parts {
-		v := p.BuyValue()
-		u := unitOf(p.Kind)
+		d := ne.built[i]
+		v := d.Value
+		u := p.Kind.Unit()
 		tol, size, rating := "", "", ""
-		if k := p.LumpedKind(); k != "" {
-			t := parts.DefaultTolerance(k)
-			if rel, ok := p.Params["tolRel"]; ok {
-				t.Rel = rel
-			}
-			if abs, ok := p.Params["tolAbs"]; ok {
-				t.Abs = abs
-			}
+		if p.Kind.Component() != "" {
+			t := d.Tolerance()
 			tol = fmt.Sprintf("±%s (±%.3g %%, at least ±%s; typical, from memory)", units.Format(t.Of(v), u, 3), 100*t.Rel, units.Format(t.Abs, u, 3))
-			if fam, err := parts.LookupFamily(p.Model); err == nil && p.Model != "" {
+			if fam, ok := d.Model.(*parts.Family); ok {
 				size = fam.Name
-				rt := fam.Rating(k, v)
-				rating = ratingText(rt)
 			}
+			rating = ratingText(d.Rating(v))
 		}
 		rows = append(rows, []string{designator(ne.n.Parts, i), kindLabels[p.Kind], units.Format(v, u, 4),
 			strconv.FormatFloat(v, 'g', 6, 64), strconv.FormatFloat(p.Value, 'g', 6, 64), p.ESeries, tol, size, rating})
@@ -304,65 +301,34 @@ func (s *Server) exportParts(w http.ResponseWriter, r *http.Request) {
 	cw.WriteAll(partsRows(ne))
 }
 
-// powerRows gives each part's worst peak voltage and RMS current over the
-// bands' frequencies (or the design frequency when there are no bands)
-// for the network's input power, with its rating where known.
+// powerRows gives each part's worst peak voltage, RMS current and
+// dissipation over the bands' points (or the design frequency when there
+// are no bands) for the network's input power, with its rating where
+// known (match.Stress on the network as built).
 func (sc *scene) powerRows() ([]web.PowerRow, string) {
 	ne := sc.net
 	if ne == nil || ne.err != nil || len(ne.n.Parts) == 0 || ne.n.PowerW <= 0 {
 		return nil, ""
 	}
-	l := ne.resultLadder()
-	var freqs []float64
-	for _, b := range sc.st.Bands {
-		for _, f := range ne.sweep.FreqHz {
-			if f >= b.LoHz && f <= b.HiHz {
-				freqs = append(freqs, f)
-			}
-		}
+	bands, _ := ne.netBands(sc.st, false)
+	if len(bands) == 0 {
+		bands = []match.Band{{LoHz: ne.n.DesignHz, HiHz: ne.n.DesignHz}}
 	}
-	if len(freqs) == 0 {
-		freqs = []float64{ne.n.DesignHz}
-	}
-	worst := make([]rfmath.Stress, len(l))
-	at := make([][2]float64, len(l))
-	buf := make([]rfmath.Stress, len(l))
-	for _, f := range freqs {
-		zl := rfmath.ZFromGamma(ne.loadAt(f), complex(ne.z0, 0))
-		if cmplx.IsInf(zl) || cmplx.IsNaN(zl) {
-			continue
-		}
-		l.StressTo(buf, f, zl, ne.z0, ne.n.PowerW)
-		for k, st := range buf {
-			if st.VPeakV > worst[k].VPeakV {
-				worst[k].VPeakV, at[k][0] = st.VPeakV, f
-			}
-			if st.IPeakA > worst[k].IPeakA {
-				worst[k].IPeakA, at[k][1] = st.IPeakA, f
-			}
-		}
+	rep, err := match.Stress(ne.load, bands, ne.built, match.StressSettings{PowerW: ne.n.PowerW})
+	if err != nil {
+		return nil, "Stress: " + err.Error()
 	}
 	var rows []web.PowerRow
-	for k, p := range ne.n.Parts {
-		irms := worst[k].IPeakA / math.Sqrt2
-		row := web.PowerRow{Designator: designator(ne.n.Parts, k), VPeak: fmt.Sprintf("%.3g V", worst[k].VPeakV), IRMS: fmt.Sprintf("%.3g mA", 1e3*irms), Rating: "—", At: fmtF(at[k][0])}
-		rt := parts.Rating{MaxVoltageV: p.Params["maxV"], MaxCurrentA: p.Params["maxA"]}
-		if fam, err := parts.LookupFamily(p.Model); err == nil && p.Model != "" && p.LumpedKind() != "" {
-			fr := fam.Rating(p.LumpedKind(), p.BuyValue())
-			if rt.MaxVoltageV == 0 {
-				rt.MaxVoltageV = fr.MaxVoltageV
-			}
-			if rt.MaxCurrentA == 0 {
-				rt.MaxCurrentA = fr.MaxCurrentA
-			}
-		}
-		if t := ratingText(rt); t != "" {
+	for k, r := range rep {
+		row := web.PowerRow{Designator: designator(ne.n.Parts, k), VPeak: units.Format(r.WorstV.VPeak, "V", 3), IRMS: units.Format(r.WorstI.IRMS, "A", 3),
+			Heat: units.Format(r.WorstP.DissipationW, "W", 3), Rating: "—", At: fmtF(r.WorstV.FreqHz)}
+		if t := ratingText(r.Rating); t != "" {
 			row.Rating = t
 		}
-		row.Over = (rt.MaxVoltageV > 0 && worst[k].VPeakV > rt.MaxVoltageV) || (rt.MaxCurrentA > 0 && irms > rt.MaxCurrentA)
+		row.Over = len(r.Warnings) > 0
 		rows = append(rows, row)
 	}
-	note := fmt.Sprintf("over %d frequencies in the bands", len(freqs))
+	note := fmt.Sprintf("over %d frequencies in the bands", len(rep[0].PerFreq))
 	return rows, note
 }
 

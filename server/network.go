@@ -3,12 +3,12 @@ package server
 import (
 	"fmt"
 	"math"
-	"math/cmplx"
 	"strconv"
 	"strings"
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath"
+	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
@@ -29,14 +29,17 @@ const (
 // netEval is the active network evaluated over its load's sweep.
 type netEval struct {
 	n      *sessions.Network
+	design match.Network // the parts as typed, with their models
+	built  match.Network // the parts at their standard values (as typed where they have none)
+	snaps  bool          // some part's standard value differs from its typed one
+	load   match.Load
 	sweep  *rfmath.Sweep
 	port   int
 	z0     float64
 	gLoad  []complex128
-	ideal  []complex128 // with the values as typed
-	buy    []complex128 // with standard values; nil when no part has a series
-	ladder rfmath.Ladder
-	buyL   rfmath.Ladder
+	ideal  []complex128 // Γ with the values as typed
+	buy    []complex128 // Γ with standard values; nil when no part snaps
+	toLoad []float64    // share of the available power at the load, as built
 	err    error
 }
 
@@ -46,35 +49,52 @@ func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 	if ne.err != nil {
 		return ne
 	}
-	ne.ideal = ne.ladder.InputGammaTo(nil, ne.sweep.FreqHz, ne.gLoad, ne.z0)
-	if ne.buyL != nil {
-		ne.buy = ne.buyL.InputGammaTo(nil, ne.sweep.FreqHz, ne.gLoad, ne.z0)
+	var err error
+	if ne.ideal, ne.toLoad, err = match.Response(ne.load, ne.design, nil, nil); err != nil {
+		ne.err = err
+		return ne
+	}
+	if ne.snaps {
+		if ne.buy, ne.toLoad, err = match.Response(ne.load, ne.built, nil, nil); err != nil {
+			ne.err = err
+		}
 	}
 	return ne
 }
 
-// prepareNetwork builds n's ladders on its load sweep sw without
-// evaluating them over the sweep: what a part drag at the design
-// frequency needs. buyL is set when some part has a standard value that
-// differs from its typed one.
+// prepareNetwork adapts n to the design type of rfmath/match on its load
+// sweep sw without evaluating it over the sweep: what a part drag at the
+// design frequency needs.
 func prepareNetwork(n *sessions.Network, sw *rfmath.Sweep) *netEval {
 	if sw == nil {
 		return &netEval{n: n, err: fmt.Errorf("the network's load sweep is gone")}
 	}
 	port := max(n.Port, 1)
 	ne := &netEval{n: n, sweep: sw, port: port, z0: sw.Z0[port-1], gLoad: reflection(sw, port-1)}
-	var err error
-	if ne.ladder, err = n.Ladder(false); err != nil {
-		ne.err = err
+	ne.load = match.Load{FreqHz: sw.FreqHz, Gamma: ne.gLoad, Z0Ohm: ne.z0}
+	if ne.design, ne.err = designOf(n); ne.err != nil {
 		return ne
 	}
-	for _, p := range n.Parts {
-		if p.ESeries != "" && p.BuyValue() != p.Value {
-			ne.buyL, _ = n.Ladder(true)
-			break
-		}
+	ne.built, ne.snaps = ne.design.Built(), ne.design.HasSnaps()
+	if _, err := ne.built.Circuit(); err != nil {
+		ne.err = err
 	}
 	return ne
+}
+
+// designOf adapts the stored network's parts to the design type that the
+// search, the yield, the panel and the exports all judge: the one adapter
+// from stored parts to rfmath.
+func designOf(n *sessions.Network) (match.Network, error) {
+	out := make(match.Network, len(n.Parts))
+	for i, p := range n.Parts {
+		m, err := parts.LookupModel(p.Model)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", designator(n.Parts, i), err)
+		}
+		out[i] = match.Part{Kind: p.Kind, Value: p.Value, Series: p.ESeries, Model: m, Params: p.Params}
+	}
+	return out, nil
 }
 
 // result is the response that would be built: standard values when any
@@ -86,57 +106,10 @@ func (ne *netEval) result() []complex128 {
 	return ne.ideal
 }
 
-func (ne *netEval) resultLadder() rfmath.Ladder {
-	if ne.buyL != nil {
-		return ne.buyL
-	}
-	return ne.ladder
-}
-
 // loadAt interpolates the load's Γ at fHz.
 func (ne *netEval) loadAt(fHz float64) complex128 {
-	k, t, err := ne.sweep.Locate(fHz)
-	if err != nil {
-		return 0
-	}
-	if k+1 >= len(ne.gLoad) {
-		return ne.gLoad[k]
-	}
-	return ne.gLoad[k] + complex(t, 0)*(ne.gLoad[k+1]-ne.gLoad[k])
-}
-
-// scaledValue is the value of part p at the fraction t ∈ (0, 1] of its way
-// in: a series part's impedance or a shunt part's admittance grows as t,
-// a line grows in length, a transformer's ratio goes from 1 to its own.
-func scaledValue(p sessions.Part, v, t float64) float64 {
-	switch p.Kind {
-	case sessions.PartSeriesC, sessions.PartShuntL, sessions.PartShuntR:
-		return v / t
-	case sessions.PartTransformer:
-		return 1 + t*(v-1)
-	}
-	return v * t
-}
-
-// stepGamma returns Γ at fHz seen through parts 0…i−1 at their values and
-// part i at value vi.
-func stepGamma(parts []sessions.Part, buy bool, i int, vi float64, fHz float64, gL complex128, z0 float64) complex128 {
-	a := rfmath.Thru
-	for j := 0; j <= i; j++ {
-		v := parts[j].Value
-		if buy {
-			v = parts[j].BuyValue()
-		}
-		if j == i {
-			v = vi
-		}
-		e, err := parts[j].ElementAt(v)
-		if err != nil {
-			return cmplx.NaN()
-		}
-		a = e.ABCD(fHz).Mul(a)
-	}
-	return a.InputGamma(gL, z0)
+	g, _ := ne.load.GammaAt(fHz)
+	return g
 }
 
 // path returns the matching path at the design frequency: one segment per
@@ -147,34 +120,14 @@ func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment,
 	if ne.err != nil {
 		return nil, nil
 	}
-	fd := ne.n.DesignHz
-	gL := ne.loadAt(fd)
-	buy := ne.buyL != nil
-	segs := make([]chartsvg.PathSegment, 0, len(ne.n.Parts))
+	tracks := ne.built.Path(ne.n.DesignHz, ne.loadAt(ne.n.DesignHz), ne.z0, pathSamples, override, ov, frac)
+	segs := make([]chartsvg.PathSegment, 0, len(tracks))
 	var handles []chartsvg.Marker
-	for i, p := range ne.n.Parts {
-		v := p.Value
-		if buy {
-			v = p.BuyValue()
-		}
-		if i == override {
-			v = ov
-		}
-		last := 1.0
-		if i == override && frac > 0 && frac < 1 {
-			last = frac
-		}
-		pts := make([]complex128, 0, pathSamples)
-		for s := range pathSamples {
-			t := last * math.Max(float64(s)/float64(pathSamples-1), 1e-4)
-			pts = append(pts, stepGamma(ne.n.Parts, buy, i, scaledValue(p, v, t), fd, gL, ne.z0))
-		}
+	for i, pts := range tracks {
+		p := ne.n.Parts[i]
 		col := partColours[i%len(partColours)]
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col})
 		handles = append(handles, chartsvg.Marker{ID: "ph-" + p.ID, Num: i + 1, Gamma: pts[len(pts)-1], Color: col, Label: designator(ne.n.Parts, i), Shape: chartsvg.ShapeCircle})
-		if i == override {
-			break
-		}
 	}
 	return segs, handles
 }
@@ -191,7 +144,7 @@ func designator(parts []sessions.Part, i int) string {
 		case sessions.PartTransformer:
 			return "T"
 		}
-		return string(p.LumpedKind())
+		return string(p.Kind.Component())
 	}
 	want, n := prefix(parts[i]), 0
 	for j := 0; j <= i; j++ {
@@ -218,88 +171,95 @@ func (sc *scene) netTraces() []chartsvg.Trace {
 	return out
 }
 
-// unitOf is the unit a part's value is typed in.
-func unitOf(kind string) string {
-	switch kind {
-	case sessions.PartSeriesL, sessions.PartShuntL:
-		return "H"
-	case sessions.PartSeriesC, sessions.PartShuntC:
-		return "F"
-	case sessions.PartSeriesR, sessions.PartShuntR:
-		return "Ω"
-	case sessions.PartLine, sessions.PartStubOpen, sessions.PartStubShort:
-		return "m"
-	}
-	return ""
-}
-
-var kindLabels = map[string]string{
+var kindLabels = map[rfmath.PartKind]string{
 	sessions.PartSeriesL: "series L", sessions.PartSeriesC: "series C", sessions.PartSeriesR: "series R",
 	sessions.PartShuntL: "shunt L", sessions.PartShuntC: "shunt C", sessions.PartShuntR: "shunt R",
 	sessions.PartLine: "line", sessions.PartStubOpen: "open stub", sessions.PartStubShort: "shorted stub",
 	sessions.PartTransformer: "transformer n:1",
 }
 
-// defaultValue is a new part's value at the design frequency: a reactance
-// or resistance of Z0, an eighth of a wavelength, or a ratio of 1.5.
-func defaultValue(kind string, fHz, z0 float64) float64 {
-	w := 2 * math.Pi * fHz
-	switch kind {
-	case sessions.PartSeriesL, sessions.PartShuntL:
-		return z0 / w
-	case sessions.PartSeriesC, sessions.PartShuntC:
-		return 1 / (w * z0)
-	case sessions.PartSeriesR, sessions.PartShuntR:
-		return z0
-	case sessions.PartLine, sessions.PartStubOpen, sessions.PartStubShort:
-		return rfmath.SpeedOfLight / fHz / 8
-	}
-	return 1.5
-}
-
-// sliderRange is the value range of a part's logarithmic slider: two
-// decades either side of the value at |X| = Z0, or of the value itself.
-func sliderRange(p sessions.Part, fHz, z0 float64) (lo, hi float64) {
-	c := defaultValue(p.Kind, fHz, z0)
-	lo, hi = c/100, c*100
-	if p.Kind == sessions.PartLine || p.Kind == sessions.PartStubOpen || p.Kind == sessions.PartStubShort {
-		lo, hi = c/50, c*4 // up to a half wavelength
-	}
-	if p.Kind == sessions.PartTransformer {
-		lo, hi = 0.1, 10
-	}
-	return math.Min(lo, p.Value), math.Max(hi, p.Value)
-}
-
-// bandFigures are a response's figures over one band.
-type bandFigures struct {
-	worstRL, meanRL, worstML, meanDelivered float64
-	ok                                      bool
-}
-
-func figuresIn(freq []float64, g []complex128, lo, hi float64) bandFigures {
-	var f bandFigures
-	f.worstRL = math.Inf(1)
-	n := 0
-	for k, fk := range freq {
-		if fk < lo || fk > hi {
+// netBands returns the session's bands that lie within the network's load
+// sweep, as rfmath/match wants them, and for every session band the index
+// among those (−1 for a band outside the sweep). With onlyReq set, bands
+// that ask nothing are left out.
+func (ne *netEval) netBands(st *sessions.State, onlyReq bool) ([]match.Band, []int) {
+	var bands []match.Band
+	idx := make([]int, len(st.Bands))
+	f := ne.sweep.FreqHz
+	for i, b := range st.Bands {
+		idx[i] = -1
+		if b.LoHz < f[0] || b.HiHz > f[len(f)-1] || (onlyReq && !b.HasRequirement()) {
 			continue
 		}
-		m := cmplx.Abs(g[k])
-		rl := rfmath.ReturnLossDB(m)
-		f.worstRL = math.Min(f.worstRL, rl)
-		f.meanRL += math.Min(rl, 60)
-		f.worstML = math.Max(f.worstML, rfmath.MismatchLossDB(m))
-		f.meanDelivered += rfmath.PowerDeliveredFraction(m)
-		n++
+		idx[i] = len(bands)
+		bands = append(bands, match.Band{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB, MinPowerToLoad: b.MinPowerToLoad})
 	}
-	if n == 0 || lo < freq[0] || hi > freq[len(freq)-1] {
-		return f
+	return bands, idx
+}
+
+// metrics evaluates the network as built across the session's bands that
+// its load covers (match.Evaluate, the one evaluator of band figures).
+func (sc *scene) metrics() (match.Metrics, []int, error) {
+	if sc.metricsDone {
+		return sc.metricsRes, sc.metricsIdx, sc.metricsErr
 	}
-	f.meanRL /= float64(n)
-	f.meanDelivered /= float64(n)
-	f.ok = true
-	return f
+	sc.metricsDone = true
+	ne := sc.net
+	bands, idx := ne.netBands(sc.st, false)
+	sc.metricsIdx = idx
+	if len(bands) == 0 {
+		return sc.metricsRes, idx, nil
+	}
+	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.built)
+	return sc.metricsRes, idx, sc.metricsErr
+}
+
+// metricRow is one band's figures as the panel and the report show them.
+func metricRow(name string, r match.BandResult) web.NetMetricRow {
+	row := web.NetMetricRow{
+		Band:        name,
+		Before:      units.FormatDB(r.Unmatched.WorstRLdB),
+		Worst:       units.FormatDB(r.WorstRLdB),
+		Mean:        units.FormatDB(r.MeanRLdB),
+		PowerBefore: units.FormatShare(r.Unmatched.WorstPowerToLoad),
+		PowerWorst:  units.FormatShare(r.WorstPowerToLoad),
+		PowerMean:   units.FormatPercent(r.MeanPowerToLoad, 1),
+		ML:          units.FormatDB(r.MismatchLossDB),
+		NetLoss:     units.FormatDB(r.NetworkLossDB),
+		Over:        r.OverDissipating(),
+		Worse:       r.WorseThanNone(),
+		Notes:       r.LossNotes(),
+	}
+	if r.Requirement().Any() {
+		row.HasReq = true
+		row.Pass = r.MarginDB >= 0
+		row.Margin = signedDB(r.MarginDB)
+		row.Req = requirementText(r.Band)
+	}
+	return row
+}
+
+// requirementText writes what a band asks: "RL ≥ 10 dB, ≥ 80 % to the load".
+func requirementText(b match.Band) string {
+	var s []string
+	if b.MinReturnLossDB > 0 {
+		s = append(s, "RL ≥ "+strconv.FormatFloat(b.MinReturnLossDB, 'g', 4, 64)+" dB")
+	}
+	if b.MinPowerToLoad > 0 {
+		s = append(s, "≥ "+strconv.FormatFloat(100*b.MinPowerToLoad, 'g', 4, 64)+" % to the load")
+	}
+	return strings.Join(s, ", ")
+}
+
+// signedDB writes a margin with its sign: "+4.69 dB", "−1.20 dB".
+func signedDB(v float64) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "+∞ dB"
+	case v < 0:
+		return "−" + units.FormatDB(-v)
+	}
+	return "+" + units.FormatDB(v)
 }
 
 // networkView builds the network panel's view model.
@@ -312,7 +272,7 @@ func (sc *scene) networkView() web.NetworkView {
 		v.Networks = append(v.Networks, web.Option{Value: n.ID, Label: n.Name, Selected: n.ID == sc.st.ActiveNetwork})
 	}
 	for _, k := range sessions.PartKinds {
-		v.Kinds = append(v.Kinds, web.Option{Value: k, Label: "+ " + kindLabels[k]})
+		v.Kinds = append(v.Kinds, web.Option{Value: string(k), Label: "+ " + kindLabels[k]})
 	}
 	ne := sc.net
 	if ne == nil {
@@ -331,43 +291,33 @@ func (sc *scene) networkView() web.NetworkView {
 		return v
 	}
 	for i, p := range n.Parts {
-		lo, hi := sliderRange(p, n.DesignHz, ne.z0)
-		unit := unitOf(p.Kind)
+		d := ne.design[i]
+		lo, hi := match.SliderRange(d, n.DesignHz, ne.z0)
+		unit := p.Kind.Unit()
 		row := web.PartRow{
 			ID: p.ID, Index: i, Designator: designator(n.Parts, i), Kind: kindLabels[p.Kind], Color: partColours[i%len(partColours)],
-			Value: units.Format(p.Value, unit, 4), Model: p.Model, Series: p.ESeries, Lumped: p.LumpedKind() != "",
+			Value: units.Format(p.Value, unit, 4), Model: p.Model, Series: p.ESeries, Lumped: p.Kind.Component() != "",
 			SliderMin: strconv.FormatFloat(math.Log10(lo), 'f', 4, 64), SliderMax: strconv.FormatFloat(math.Log10(hi), 'f', 4, 64),
 			SliderVal: strconv.FormatFloat(math.Log10(p.Value), 'f', 4, 64), First: i == 0, Last: i == len(n.Parts)-1,
 		}
 		if p.ESeries != "" {
-			row.Buy = units.Format(p.BuyValue(), unit, 3)
+			row.Buy = units.Format(d.BuyValue(), unit, 3)
 		}
-		if p.LumpedKind() != "" {
-			fillPartFigures(&row, p, n.DesignHz)
+		if row.Lumped {
+			fillPartFigures(&row, p, ne.built[i], n.DesignHz)
 		}
 		v.Parts = append(v.Parts, row)
 	}
-	res := ne.result()
-	for _, b := range sc.st.Bands {
-		before := figuresIn(ne.sweep.FreqHz, ne.gLoad, b.LoHz, b.HiHz)
-		after := figuresIn(ne.sweep.FreqHz, res, b.LoHz, b.HiHz)
-		row := web.NetMetricRow{Band: b.Name}
-		if !after.ok {
-			row.Note = "outside the load's sweep"
-			v.Metrics = append(v.Metrics, row)
+	m, idx, err := sc.metrics()
+	if err != nil {
+		v.Error = err.Error()
+	}
+	for i, b := range sc.st.Bands {
+		if idx[i] < 0 || err != nil {
+			v.Metrics = append(v.Metrics, web.NetMetricRow{Band: b.Name, Note: "outside the load's sweep"})
 			continue
 		}
-		row.Before = fmtDB(before.worstRL)
-		row.Worst = fmtDB(after.worstRL)
-		row.Mean = fmtDB(after.meanRL)
-		row.ML = fmtDB(after.worstML)
-		row.Delivered = strconv.FormatFloat(100*after.meanDelivered, 'f', 1, 64) + " %"
-		if b.MinReturnLossDB > 0 {
-			row.HasReq = true
-			row.Pass = after.worstRL >= b.MinReturnLossDB
-			row.Margin = fmt.Sprintf("%+.2f dB", after.worstRL-b.MinReturnLossDB)
-		}
-		v.Metrics = append(v.Metrics, row)
+		v.Metrics = append(v.Metrics, metricRow(b.Name, m.Bands[idx[i]]))
 	}
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
@@ -426,11 +376,11 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 		if ne == nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
 		}
-		kind := f["kind"]
+		kind := rfmath.PartKind(f["kind"])
 		if _, ok := kindLabels[kind]; !ok {
 			return sessions.Change{}, fe("kind", "Part", fmt.Errorf("unknown part kind %q", kind))
 		}
-		v := defaultValue(kind, ne.n.DesignHz, ne.z0)
+		v := match.DefaultValue(kind, ne.n.DesignHz, ne.z0)
 		return sessions.Change{Op: sessions.OpPartAdd, NetworkID: ne.n.ID, Kind: kind, Value: &v}, nil
 	case "part.params":
 		if ne == nil {
@@ -496,7 +446,7 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 			return ch, fe("partId", "Part", fmt.Errorf("no part %q in the active network", ch.PartID))
 		}
 		if s, ok := f["value"]; ok {
-			v, err := units.ParseValue(s, unitOf(part.Kind))
+			v, err := units.ParseValue(s, part.Kind.Unit())
 			if err != nil {
 				return ch, fe("value", designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID)), err)
 			}
@@ -531,26 +481,16 @@ func indexOf(ps []sessions.Part, id string) int {
 }
 
 // dragValue returns the value that puts part id's design-frequency point
-// nearest to target along its arc (see rfmath.SeriesReactanceTo).
+// nearest to target along its arc (match.Network.DragValue).
 func (ne *netEval) dragValue(id string, target complex128) (float64, error) {
 	i := indexOf(ne.n.Parts, id)
 	if i < 0 {
 		return 0, fmt.Errorf("no part %q in the active network", id)
 	}
-	p := ne.n.Parts[i]
 	fd := ne.n.DesignHz
-	buy := ne.buyL != nil
-	before := ne.loadAt(fd)
-	if i > 0 {
-		pv := ne.n.Parts[i-1].Value
-		if buy {
-			pv = ne.n.Parts[i-1].BuyValue()
-		}
-		before = stepGamma(ne.n.Parts, buy, i-1, pv, fd, ne.loadAt(fd), ne.z0)
-	}
-	v, ok := rfmath.ValueAlongArc(rfmath.ArcKind(p.Kind), before, target, ne.z0, fd, p.Value)
-	if !ok {
-		return 0, fmt.Errorf("a %s cannot be dragged on the chart; type its value", kindLabels[p.Kind])
+	v, err := ne.built.DragValue(i, fd, ne.loadAt(fd), ne.z0, target)
+	if err != nil {
+		return 0, fmt.Errorf("a %s cannot be dragged on the chart; type its value", kindLabels[ne.n.Parts[i].Kind])
 	}
 	return v, nil
 }
@@ -568,27 +508,21 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 	if i < 0 {
 		return nil
 	}
-	p := ne.n.Parts[i]
+	p := ne.built[i]
 	to := p.Value
-	if ne.buyL != nil {
-		to = p.BuyValue()
-	}
 	var from float64 // 0: the part grows in from nothing
 	switch ev.Op {
 	case sessions.OpPartAdd:
 	case sessions.OpPartSet:
-		if prev.net == nil || prev.net.n.ID != ne.n.ID {
+		if prev.net == nil || prev.net.err != nil || prev.net.n.ID != ne.n.ID {
 			return nil
 		}
-		j := indexOf(prev.net.n.Parts, p.ID)
+		j := indexOf(prev.net.n.Parts, ev.PartID)
 		if j < 0 || j != i {
 			return nil
 		}
-		q := prev.net.n.Parts[j]
+		q := prev.net.built[j]
 		from = q.Value
-		if prev.net.buyL != nil {
-			from = q.BuyValue()
-		}
 		if q.Kind != p.Kind || from == to {
 			return nil
 		}
@@ -604,35 +538,23 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 		fs = append(fs, freq[k])
 		gl = append(gl, ne.gLoad[k])
 	}
-	buy := ne.buyL != nil
 	a := &anim{MS: 700}
+	resp := make([]complex128, len(fs))
 	for f := 1; f <= animFrames; f++ {
 		t := float64(f) / animFrames
 		t = t * t * (3 - 2*t) // ease in and out
 		var v float64
 		if from == 0 {
-			v = scaledValue(p, to, math.Max(t, 1e-4))
+			v = match.ScaledValue(p.Kind, to, math.Max(t, 1e-4))
 		} else {
 			v = from * math.Pow(to/from, t)
 		}
 		segs, _ := ne.path(i, v, 1)
-		resp := make([]complex128, len(fs))
-		for k, fk := range fs {
-			g := stepGamma(ne.n.Parts, buy, i, v, fk, gl[k], ne.z0)
-			for j := i + 1; j < len(ne.n.Parts); j++ {
-				vj := ne.n.Parts[j].Value
-				if buy {
-					vj = ne.n.Parts[j].BuyValue()
-				}
-				e, err := ne.n.Parts[j].ElementAt(vj)
-				if err != nil {
-					break
-				}
-				g = e.ABCD(fk).InputGamma(g, ne.z0)
-			}
-			resp[k] = g
+		if _, err := ne.built.MorphTo(resp, i, v, fs, gl, ne.z0); err != nil {
+			return nil
 		}
-		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: resp, From: resp[0], To: resp[len(resp)-1], Color: netColour})
+		pts := append([]complex128(nil), resp...)
+		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: netColour})
 		var b strings.Builder
 		sc.chart.RenderPath(&b, segs)
 		a.Frames = append(a.Frames, []frag{{ID: "match-path", HTML: b.String(), SVG: true}})
@@ -643,8 +565,9 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 func fmtF4(f float64) string { return units.FormatFrequency(f, 4) }
 
 // fillPartFigures shows a lumped part's own figures and, in words, what
-// its model gives at the design frequency.
-func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
+// its model (with those figures) gives at the design frequency; d is the
+// part as built.
+func fillPartFigures(row *web.PartRow, p sessions.Part, d match.Part, fHz float64) {
 	g := func(name string, f func(float64) string) string {
 		if v, ok := p.Params[name]; ok {
 			return f(v)
@@ -656,19 +579,35 @@ func fillPartFigures(row *web.PartRow, p sessions.Part, fHz float64) {
 	row.Q, row.QRef, row.SRF, row.ESR = g("q", num), g("qRefHz", freq), g("srfHz", freq), g("esrOhm", num)
 	row.Tol = g("tolRel", func(v float64) string { return num(100 * v) })
 	row.MaxV, row.MaxA = g("maxV", num), g("maxA", num)
-	c := p.Component(p.BuyValue())
+	c := d.Component(d.Value)
 	z := c.ImpedanceAt(fHz)
-	model := "ideal"
-	if p.Model != "" {
-		model = "typical " + p.Model
-	}
+	model := modelText(p.Model)
+	q := rfmath.Q(z)
 	switch m := c.(type) {
 	case parts.Inductor:
-		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %s", model, m.Q, fmtF4(m.QRefHz), fmtF4(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4))
+		row.ModelNote = fmt.Sprintf("%s: Q %.3g at %s, self-resonance %s; at %s it is %s (Q %.3g)", model, m.Q, fmtF4(m.QRefHz), srfText(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4), q)
 	case parts.Capacitor:
-		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %s", model, m.ESROhm, fmtF4(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4))
+		row.ModelNote = fmt.Sprintf("%s: ESR %.3g Ω, self-resonance %s; at %s it is %s (Q %.3g)", model, m.ESR(), srfText(m.SRFHz), fmtF4(fHz), fmtZ(z, 'g', 4), q)
 	default:
 		row.ModelNote = fmt.Sprintf("%s: at %s it is %s", model, fmtF4(fHz), fmtZ(z, 'g', 4))
 	}
 	row.ModelNote += " (set the part's own figures)"
+}
+
+// modelText names a part model as the panel shows it.
+func modelText(name string) string {
+	switch name {
+	case "", "ideal":
+		return "ideal"
+	case parts.ConstantQName:
+		return "constant Q"
+	}
+	return "typical " + name
+}
+
+func srfText(f float64) string {
+	if !(f > 0) {
+		return "none"
+	}
+	return fmtF4(f)
 }

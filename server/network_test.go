@@ -312,7 +312,10 @@ func TestPartFigures(t *testing.T) {
 		t.Fatalf("params %+v", p.Params)
 	}
 	sc = f.srv.scene(f.sess.ID, st)
-	l, _ := sc.net.n.Ladder(false)
+	l, err := sc.net.built.Ladder()
+	if err != nil {
+		t.Fatal(err)
+	}
 	if z := l.InputZ(100e6, 200); math.Abs(real(z)-(50+2*math.Pi*100e6*137.83e-9/20)) > 0.01 {
 		t.Errorf("Zin with Q 20: %v, want R ≈ 54.33 Ω", z)
 	}
@@ -328,5 +331,64 @@ func TestPartFigures(t *testing.T) {
 	}
 	if _, err := sc.partChange("part.params", map[string]string{"partId": pid, "tol": "150"}); err == nil {
 		t.Error("a 150 % tolerance was accepted")
+	}
+}
+
+// The stored network evaluates, through the one adapter (designOf), as the
+// ladder it describes: the low-pass L section of REFERENCE-CHECKS §6c L-3
+// (50 Ω to 200 Ω at 100 MHz; shunt C = 13.783 pF across the 200 Ω side,
+// series L = 137.83 nH; values C) brings 200 Ω to 50 Ω.
+func TestDesignOf(t *testing.T) {
+	t.Parallel()
+	n := sessions.Network{Parts: []sessions.Part{{Kind: sessions.PartShuntC, Value: 13.783e-12}, {Kind: sessions.PartSeriesL, Value: 137.83e-9}}}
+	ladder := func() rfmath.Ladder {
+		t.Helper()
+		d, err := designOf(&n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		l, err := d.Built().Ladder()
+		if err != nil {
+			t.Fatal(err)
+		}
+		return l
+	}
+	if z := ladder().InputZ(100e6, 200); cmplx.Abs(z-50) > 0.01 {
+		t.Errorf("Zin = %v, want 50 Ω", z)
+	}
+	// Snapped to E24 by ratio (REFERENCE-CHECKS §14's rule): 13.783 pF lies
+	// below √(13·15) = 13.96, so 13 pF; 137.83 nH lies below √(130·150) =
+	// 139.6, so 130 nH. The match is then off, but not far.
+	n.Parts[0].ESeries, n.Parts[1].ESeries = "E24", "E24"
+	d, _ := designOf(&n)
+	if got := d[0].BuyValue(); math.Abs(got-13e-12) > 1e-18 {
+		t.Errorf("E24 value of 13.783 pF = %g, want 13 pF", got)
+	}
+	if got := d[1].BuyValue(); math.Abs(got-130e-9) > 1e-15 {
+		t.Errorf("E24 value of 137.83 nH = %g, want 130 nH", got)
+	}
+	zb := ladder().InputZ(100e6, 200)
+	if cmplx.Abs(zb-50) < 0.5 || cmplx.Abs(zb-50) > 20 {
+		t.Errorf("standard-value Zin = %v: should be off 50 Ω, but not far", zb)
+	}
+	n.Parts[0].ESeries, n.Parts[1].ESeries = "", ""
+	// A model adds loss: Re(Zin) moves, and Q from Params is honoured.
+	n.Parts[1].Model = "0603"
+	if z := ladder().InputZ(100e6, 200); cmplx.Abs(z-50) < 1e-3 {
+		t.Errorf("a modelled inductor left Zin at exactly %v", z)
+	}
+	n.Parts[1].Model, n.Parts[1].Params = "", map[string]float64{"q": 1e5, "qRefHz": 100e6}
+	if z := ladder().InputZ(100e6, 200); cmplx.Abs(z-50) > 0.05 {
+		t.Errorf("Q = 1e5 should be nearly ideal: Zin %v", z)
+	}
+	// A constant-Q part: the series L with Q 20 adds ωL/20 at every
+	// frequency (LS-2 of REFERENCE-CHECKS: R = |X|/Q).
+	n.Parts[1].Model, n.Parts[1].Params = "constq", map[string]float64{"q": 20}
+	if z := ladder().InputZ(100e6, 200); math.Abs(real(z)-(50+2*math.Pi*100e6*137.83e-9/20)) > 0.01 {
+		t.Errorf("constant Q 20: Zin %v, want R ≈ 54.33 Ω", z)
+	}
+	n.Parts[1].Model = "0805"
+	if _, err := designOf(&n); err == nil || !strings.Contains(err.Error(), "L1") {
+		t.Errorf("unknown model: %v", err)
 	}
 }

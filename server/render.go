@@ -51,6 +51,11 @@ type scene struct {
 	raw    map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
 	errs   map[string]string        // sweeps whose plane could not be applied
 
+	metricsDone bool // metricsRes, metricsIdx and metricsErr hold the network's band figures
+	metricsRes  match.Metrics
+	metricsIdx  []int
+	metricsErr  error
+
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
 	yieldMsg  string
@@ -388,15 +393,7 @@ func fmtZ(z complex128, fmt byte, prec int) string {
 	return strconv.FormatFloat(real(z), fmt, prec, 64) + " " + sign + " j" + strconv.FormatFloat(math.Abs(imag(z)), fmt, prec, 64) + " Ω"
 }
 
-func fmtDB(v float64) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "∞ dB"
-	case math.IsNaN(v):
-		return "—"
-	}
-	return strconv.FormatFloat(v, 'f', 2, 64) + " dB"
-}
+func fmtDB(v float64) string { return units.FormatDB(v) }
 
 func fmtNum(v float64, prec int) string {
 	switch {

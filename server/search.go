@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"math/cmplx"
 	"strconv"
 	"strings"
@@ -66,14 +67,9 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 	if ne == nil || ne.err != nil {
 		return errors.New("start a matching network on the load first: the search matches its load")
 	}
-	var bands []match.Band
-	for _, b := range sc.st.Bands {
-		if b.MinReturnLossDB > 0 {
-			bands = append(bands, match.Band{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB})
-		}
-	}
+	bands, _ := ne.netBands(sc.st, true)
 	if len(bands) == 0 {
-		return errors.New("add a band with a return-loss requirement first: the search is judged on the bands")
+		return errors.New("add a band with a requirement (return loss or power to the load) inside the load's sweep first: the search is judged on the bands")
 	}
 	n, err := strconv.Atoi(f["parts"])
 	if err != nil || n < 1 || n > 4 {
@@ -85,19 +81,35 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			return &FieldError{"search.start", "series", "Series", err}
 		}
 	}
-	model := f["model"]
-	if model != "" {
+	if set.Objective, err = match.ParseObjective(f["objective"]); err != nil {
+		return &FieldError{"search.start", "objective", "Best by", err}
+	}
+	model := strings.TrimSpace(f["model"])
+	var qL, qC float64
+	switch model {
+	case "", "ideal":
+		model = ""
+	case parts.ConstantQName:
+		for _, q := range []struct {
+			field, label string
+			v            *float64
+		}{{"qL", "Q of L", &qL}, {"qC", "Q of C", &qC}} {
+			x, err := strconv.ParseFloat(strings.TrimSpace(f[q.field]), 64)
+			if err != nil || !(x > 0) || x > 1e6 {
+				return &FieldError{"search.start", q.field, q.label, fmt.Errorf("%q is not a Q from 0 to a million", f[q.field])}
+			}
+			*q.v = x
+		}
+		set.Model = parts.ConstantQ{QL: qL, QC: qC}
+	default:
 		fam, err := parts.LookupFamily(model)
 		if err != nil {
 			return &FieldError{"search.start", "model", "Model", err}
 		}
 		set.Model = fam
 	}
-	load, err := match.LoadFromSweep(ne.sweep, ne.port-1)
-	if err != nil {
-		return err
-	}
-	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts", n, set.LSeries, set.CSeries, map[bool]string{true: "typical " + model, false: "ideal"}[model != ""])
+	load := ne.load
+	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
 
 	s.search.mu.Lock()
 	if s.search.jobs == nil {
@@ -140,14 +152,22 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact}
+		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
 		for _, d := range res.Designs {
-			sd := sessions.Design{WorstRLdB: d.WorstRLdB, MarginDB: d.MarginDB}
+			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
-				sd.Parts = append(sd.Parts, sessions.Part{Kind: string(p.Kind), Value: p.Value, ESeries: p.Series, Model: model})
+				sp := sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: model}
+				if model == parts.ConstantQName {
+					q := qC
+					if p.Kind.Component() == rfmath.ComponentL {
+						q = qL
+					}
+					sp.Params = map[string]float64{"q": q}
+				}
+				sd.Parts = append(sd.Parts, sp)
 			}
 			for _, b := range d.Bands {
-				sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: b.WorstRLdB, MeanRLdB: b.MeanRLdB})
+				sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: storable(b.WorstRLdB), MeanRLdB: storable(b.MeanRLdB)})
 			}
 			out.Designs = append(out.Designs, sd)
 		}
@@ -187,18 +207,7 @@ func (sc *scene) searchView() web.SearchView {
 		v.Note = r.Note
 		v.Exact = r.Exact
 		for i, d := range r.Designs {
-			row := web.DesignRow{Index: i, Worst: fmtDB(d.WorstRLdB), Margin: fmt.Sprintf("%+.2f dB", d.MarginDB), Pass: d.MarginDB >= 0}
-			var ps []string
-			for _, p := range d.Parts {
-				ps = append(ps, kindLabels[p.Kind]+" "+units.Format(p.Value, unitOf(p.Kind), 3))
-			}
-			row.Parts = strings.Join(ps, " → ")
-			var bs []string
-			for _, b := range d.Bands {
-				bs = append(bs, fmt.Sprintf("%s–%s: worst %s, mean %s", fmtF(b.LoHz), fmtF(b.HiHz), fmtDB(b.WorstRLdB), fmtDB(b.MeanRLdB)))
-			}
-			row.Bands = strings.Join(bs, "; ")
-			v.Designs = append(v.Designs, row)
+			v.Designs = append(v.Designs, sc.designRow(r, i, d))
 		}
 	}
 	ne := sc.net
@@ -220,7 +229,7 @@ func (sc *scene) searchView() web.SearchView {
 	for i, l := range syn.LNetworks {
 		var ps []string
 		for _, p := range l.Parts {
-			ps = append(ps, kindLabels[string(p.Kind)]+" "+units.Format(p.Value, p.Kind.Unit(), 4))
+			ps = append(ps, kindLabels[p.Kind]+" "+units.Format(p.Value, p.Kind.Unit(), 4))
 		}
 		if len(ps) == 0 {
 			ps = []string{"nothing: already matched"}
@@ -278,7 +287,7 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			l := syn.LNetworks[idx]
 			ch.Name = "L-network, " + orientationText[l.Orientation]
 			for _, p := range l.Parts {
-				ch.Parts = append(ch.Parts, sessions.Part{Kind: string(p.Kind), Value: p.Value})
+				ch.Parts = append(ch.Parts, sessions.Part{Kind: p.Kind, Value: p.Value})
 			}
 		case form == "stub.use" && idx < len(syn.Stubs):
 			st := syn.Stubs[idx]
@@ -314,4 +323,80 @@ func designHz(sc *scene, sweepID string) float64 {
 		}
 	}
 	return 0
+}
+
+var objectiveText = map[match.Objective]string{
+	match.PowerToLoad: "power to the load",
+	match.ReturnLoss:  "return loss only",
+}
+
+// searchModelText names the search's part model in its settings line.
+func searchModelText(model string, qL, qC float64) string {
+	switch model {
+	case "":
+		return "ideal"
+	case parts.ConstantQName:
+		return parts.ConstantQ{QL: qL, QC: qC}.String()
+	}
+	return "typical " + model
+}
+
+// designRow shows design i of the stored search r, judged now by
+// match.Evaluate on the searched sweep as it is now corrected and on the
+// session's current bands: the same evaluator, load and bands as the
+// network panel, so a design used as a network shows the same figures
+// there.
+func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) web.DesignRow {
+	row := web.DesignRow{Index: i}
+	var ps []string
+	for _, p := range d.Parts {
+		ps = append(ps, kindLabels[p.Kind]+" "+units.Format(p.Value, p.Kind.Unit(), 3))
+	}
+	row.Parts = strings.Join(ps, " → ")
+	sw := sc.all[r.SweepID]
+	if sw == nil {
+		row.Bands = "the searched sweep is gone"
+		return row
+	}
+	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts}, sw)
+	bands, _ := ne.netBands(sc.st, true)
+	if ne.err != nil || len(bands) == 0 {
+		row.Bands = "no band with a requirement inside the sweep"
+		if ne.err != nil {
+			row.Bands = ne.err.Error()
+		}
+		return row
+	}
+	m, err := match.Evaluate(ne.load, bands, ne.built)
+	if err != nil {
+		row.Bands = err.Error()
+		return row
+	}
+	row.Worst, row.Margin, row.Pass = units.FormatDB(m.WorstRLdB), signedDB(m.MarginDB), m.Meets()
+	row.Power = units.FormatShare(m.WorstPowerToLoad)
+	before := math.Inf(1)
+	var bs []string
+	for _, b := range m.Bands {
+		before = math.Min(before, b.Unmatched.WorstPowerToLoad)
+		bs = append(bs, fmt.Sprintf("%s–%s: RL worst %s, mean %s; power to the load worst %s (alone %s)",
+			fmtF(b.LoHz), fmtF(b.HiHz), units.FormatDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB), units.FormatShare(b.WorstPowerToLoad), units.FormatShare(b.Unmatched.WorstPowerToLoad)))
+	}
+	row.PowerBefore = units.FormatShare(before)
+	row.Bands = strings.Join(bs, "; ")
+	row.Over, row.Worse = m.OverDissipating(), m.WorseThanNone()
+	return row
+}
+
+// storable returns v as JSON can hold it: a perfect match's +Inf return
+// loss as 999 dB (the page judges designs again and never shows it).
+func storable(v float64) float64 {
+	switch {
+	case math.IsInf(v, 1):
+		return 999
+	case math.IsInf(v, -1):
+		return -999
+	case math.IsNaN(v):
+		return 0
+	}
+	return v
 }

@@ -10,6 +10,7 @@ import (
 
 	"github.com/gorilla/websocket"
 
+	"matchbench/rfmath/units"
 	"matchbench/sessions"
 )
 
@@ -58,11 +59,14 @@ func TestSearchOverWebsocket(t *testing.T) {
 	if len(st.Networks) != nbefore+1 || len(st.Active().Parts) != len(best.Parts) {
 		t.Fatalf("search.use: networks %d → %d", nbefore, len(st.Networks))
 	}
-	// The network built from the design has the design's worst return loss.
+	// The network built from the design shows, in the network panel, the
+	// figures the search table shows for it and the search stored, to the
+	// last printed digit: one evaluator (match.Evaluate) for both.
 	sc := f.srv.scene(f.sess.ID, st)
-	fig := figuresIn(sc.net.sweep.FreqHz, sc.net.result(), 95e6, 105e6)
-	if math.Abs(fig.worstRL-best.WorstRLdB) > 0.05 {
-		t.Errorf("the used design's worst RL %.3f dB, the search said %.3f dB", fig.worstRL, best.WorstRLdB)
+	row := sc.networkView().Metrics[0]
+	d := sc.searchView().Designs[0]
+	if row.Worst != d.Worst || row.Worst != units.FormatDB(best.WorstRLdB) || row.PowerWorst != d.Power || !strings.Contains(d.Bands, "RL worst "+row.Worst+", mean "+row.Mean) {
+		t.Errorf("panel %q / %q, search table %q / %q (%s), stored %v dB", row.Worst, row.PowerWorst, d.Worst, d.Power, d.Bands, best.WorstRLdB)
 	}
 }
 

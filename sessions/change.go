@@ -151,6 +151,7 @@ type Change struct {
 	LoHz            float64 `json:"loHz,omitempty"`
 	HiHz            float64 `json:"hiHz,omitempty"`
 	MinReturnLossDB float64 `json:"minReturnLossDB,omitempty"`
+	MinPowerToLoad  float64 `json:"minPowerToLoad,omitempty"`
 
 	Chart *ChartPatch `json:"chart,omitempty"`
 
@@ -158,7 +159,7 @@ type Change struct {
 	// zero for the fields part.set and network.set may leave alone.
 	NetworkID string             `json:"networkId,omitempty"`
 	PartID    string             `json:"partId,omitempty"`
-	Kind      string             `json:"kind,omitempty"`
+	Kind      rfmath.PartKind    `json:"kind,omitempty"`
 	Value     *float64           `json:"value,omitempty"`
 	Model     *string            `json:"model,omitempty"`
 	ESeries   *string            `json:"series,omitempty"`

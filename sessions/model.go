@@ -4,6 +4,8 @@ import (
 	"maps"
 	"slices"
 	"time"
+
+	"matchbench/rfmath"
 )
 
 // Session describes a session as listed. The tokens are filled only by
@@ -76,15 +78,20 @@ type Marker struct {
 	Label   string  `json:"label,omitempty"`
 }
 
-// Band is a frequency range of interest with a return-loss requirement.
-// MinReturnLossDB = 0 means no requirement.
+// Band is a frequency range of interest with its requirements: a least
+// return loss in dB and a least share of the available power at the load
+// (0 < MinPowerToLoad ≤ 1). Zero means no requirement.
 type Band struct {
 	ID              string  `json:"id"`
 	Name            string  `json:"name"`
 	LoHz            float64 `json:"loHz"`
 	HiHz            float64 `json:"hiHz"`
 	MinReturnLossDB float64 `json:"minReturnLossDB"`
+	MinPowerToLoad  float64 `json:"minPowerToLoad,omitempty"`
 }
+
+// HasRequirement reports whether the band asks anything of a match.
+func (b Band) HasRequirement() bool { return b.MinReturnLossDB > 0 || b.MinPowerToLoad > 0 }
 
 // ChartSettings are the chart's grids, overlays and zoom.
 type ChartSettings struct {
@@ -143,41 +150,43 @@ type Network struct {
 	ChuRadiusM float64 `json:"chuRadiusM,omitempty"`
 }
 
-// Part kinds. Lumped parts sit in series with the line or shunt across it.
+// Part kinds, as [rfmath.PartKind] spells them. Lumped parts sit in series
+// with the line or shunt across it.
 const (
-	PartSeriesL = "series_L"
-	PartSeriesC = "series_C"
-	PartSeriesR = "series_R"
-	PartShuntL  = "shunt_L"
-	PartShuntC  = "shunt_C"
-	PartShuntR  = "shunt_R"
+	PartSeriesL = rfmath.PartSeriesL
+	PartSeriesC = rfmath.PartSeriesC
+	PartSeriesR = rfmath.PartSeriesR
+	PartShuntL  = rfmath.PartShuntL
+	PartShuntC  = rfmath.PartShuntC
+	PartShuntR  = rfmath.PartShuntR
 	// PartLine is a section of transmission line in series: Value is its
 	// length in metres; Params "z0Ohm", "vf", "lossDBPerM", "lossRefHz".
-	PartLine = "line"
+	PartLine = rfmath.PartLine
 	// PartStubOpen and PartStubShort are shunt stubs: Value is the length in
-	// metres; Params "z0Ohm", "vf".
-	PartStubOpen  = "stub_open"
-	PartStubShort = "stub_short"
+	// metres; Params "z0Ohm", "vf", "lossDBPerM", "lossRefHz".
+	PartStubOpen  = rfmath.PartStubOpen
+	PartStubShort = rfmath.PartStubShort
 	// PartTransformer is an ideal transformer: Value is the turns ratio n,
 	// so an impedance Z on the load side is seen as n²·Z.
-	PartTransformer = "transformer"
+	PartTransformer = rfmath.PartTransformer
 )
 
 // PartKinds lists the kinds a part may have, in the order the page offers
 // them.
-var PartKinds = []string{PartSeriesL, PartSeriesC, PartShuntL, PartShuntC, PartSeriesR, PartShuntR, PartLine, PartStubOpen, PartStubShort, PartTransformer}
+var PartKinds = rfmath.PartKinds
 
 // Part is one part of a [Network]. Value is in SI units: henries, farads,
 // ohms, metres (lines and stubs) or a plain ratio (transformer). Model names
-// the part model of a lumped part: "" or "ideal", or a typical chip family
-// such as "0402" or "0603" (rfmath/parts); Params may override a model's
+// the part model of a lumped part: "" or "ideal", a typical chip family
+// such as "0402" or "0603", or "constq" for what-if parts of a constant Q
+// (rfmath/parts.LookupModel); Params may override a model's
 // figures ("q", "qRefHz", "srfHz", "esrOhm") and hold a line's figures.
 // ESeries names the IEC 60063 series the value is snapped to ("" for none).
 // Tolerance overrides (relative "tolRel", absolute "tolAbs") and ratings
 // ("maxV", "maxA") also go in Params.
 type Part struct {
 	ID      string             `json:"id"`
-	Kind    string             `json:"kind"`
+	Kind    rfmath.PartKind    `json:"kind"`
 	Value   float64            `json:"value"`
 	Model   string             `json:"model,omitempty"`
 	ESeries string             `json:"series,omitempty"`
@@ -187,20 +196,25 @@ type Part struct {
 // SearchResult is what a broadband search of standard values found for a
 // load: the settings it ran with and its best designs, best first.
 type SearchResult struct {
-	SweepID  string   `json:"sweepId"`
-	Port     int      `json:"port"`
-	Settings string   `json:"settings"` // as the engineer chose them, in words
-	Exact    bool     `json:"exact"`    // every combination in the ranges was searched
-	Designs  []Design `json:"designs"`
-	Note     string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+	SweepID  string `json:"sweepId"`
+	Port     int    `json:"port"`
+	Settings string `json:"settings"` // as the engineer chose them, in words
+	Exact    bool   `json:"exact"`    // every combination in the ranges was searched
+	// Objective is what the designs are best by: "power" (power to the
+	// load) or "rl" (return loss only); "" for results stored before it.
+	Objective string   `json:"objective,omitempty"`
+	Designs   []Design `json:"designs"`
+	Note      string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
 }
 
-// Design is one network a search found, with its figures.
+// Design is one network a search found, with its figures when it was
+// found (the page judges it again on the current load and bands).
 type Design struct {
-	Parts     []Part        `json:"parts"`
-	WorstRLdB float64       `json:"worstRLdB"`
-	MarginDB  float64       `json:"marginDB"`
-	Bands     []BandFigures `json:"bands"`
+	Parts            []Part        `json:"parts"`
+	WorstRLdB        float64       `json:"worstRLdB"`
+	MarginDB         float64       `json:"marginDB"`
+	WorstPowerToLoad float64       `json:"worstPowerToLoad,omitempty"`
+	Bands            []BandFigures `json:"bands"`
 }
 
 // BandFigures are a design's worst and mean return loss in one band.

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 )
 
@@ -322,8 +323,12 @@ var partParams = map[string]func(v float64) bool{
 // checkPart validates a part in place (normalising its model and series
 // names). The error names the field.
 func checkPart(op string, p *Part) error {
-	if !slices.Contains(PartKinds, p.Kind) {
-		return invalid(op, "kind", "unknown part kind %q (want one of %s)", p.Kind, strings.Join(PartKinds, ", "))
+	if !p.Kind.Valid() {
+		var names []string
+		for _, k := range PartKinds {
+			names = append(names, string(k))
+		}
+		return invalid(op, "kind", "unknown part kind %q (want one of %s)", p.Kind, strings.Join(names, ", "))
 	}
 	if !finite(p.Value) || p.Value <= 0 {
 		return invalid(op, "value", "%g: a part's value must be a positive number", p.Value)
@@ -339,7 +344,7 @@ func checkPart(op string, p *Part) error {
 		if !isLumped(p.Kind) {
 			return invalid(op, "model", "a %s has no part model", p.Kind)
 		}
-		if _, err := parts.LookupFamily(m); err != nil {
+		if _, err := parts.LookupModel(m); err != nil {
 			return invalid(op, "model", "%v", err)
 		}
 	}
@@ -369,10 +374,4 @@ func checkPart(op string, p *Part) error {
 	return nil
 }
 
-func isLumped(kind string) bool {
-	switch kind {
-	case PartSeriesL, PartSeriesC, PartSeriesR, PartShuntL, PartShuntC, PartShuntR:
-		return true
-	}
-	return false
-}
+func isLumped(kind rfmath.PartKind) bool { return kind.Component() != "" }

@@ -290,11 +290,14 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		if rl := ch.MinReturnLossDB; !finite(rl) || rl < 0 || rl > 200 {
 			return r, invalid(op, "minReturnLossDB", "%g dB is not within 0–200 dB", rl)
 		}
+		if p := ch.MinPowerToLoad; !finite(p) || p < 0 || p > 1 {
+			return r, invalid(op, "minPowerToLoad", "%g is not a share of the power from 0 to 1 (100 %%)", p)
+		}
 		name, err := text(op, "name", ch.Name, false, lim.TextRunes)
 		if err != nil {
 			return r, err
 		}
-		b := Band{Name: name, LoHz: ch.LoHz, HiHz: ch.HiHz, MinReturnLossDB: ch.MinReturnLossDB}
+		b := Band{Name: name, LoHz: ch.LoHz, HiHz: ch.HiHz, MinReturnLossDB: ch.MinReturnLossDB, MinPowerToLoad: ch.MinPowerToLoad}
 		if i >= 0 {
 			b.ID = ch.BandID
 			if b.Name == "" {

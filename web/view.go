@@ -186,18 +186,28 @@ type PartRow struct {
 	ModelNote                          string // what the model gives, in words
 }
 
-// NetMetricRow is one band's figures before and after the network.
+// NetMetricRow is one band's figures with the network (parts as built) and
+// with the load alone. Power figures are shares of the power the source
+// makes available that reach the load (the antenna terminals), not what
+// the network accepts.
 type NetMetricRow struct {
 	Band                    string
-	Before, Worst, Mean, ML string
-	Delivered, Margin, Note string
+	Req                     string // what the band asks, in words
+	Before, Worst, Mean     string // worst RL alone, worst and mean RL with the network
+	PowerBefore, PowerWorst string // worst power to the load alone and with the network
+	PowerMean               string
+	ML, NetLoss             string // the split of the loss at the worst-power point
+	Margin, Note            string
 	HasReq, Pass            bool
+	Over, Worse             bool     // most accepted power burnt; less power than no network
+	Notes                   []string // the loss warnings in words
 }
 
-// PowerRow is one part's worst voltage and current over the bands.
+// PowerRow is one part's worst voltage, current and dissipation over the
+// bands at the network's input power.
 type PowerRow struct {
-	Designator, VPeak, IRMS, Rating, At string
-	Over                                bool
+	Designator, VPeak, IRMS, Heat, Rating, At string
+	Over                                      bool
 }
 
 // ReportView is the printable report of a matching network.
@@ -246,11 +256,12 @@ type SearchView struct {
 	SynthNote      string
 }
 
-// DesignRow is one design a search found.
+// DesignRow is one design a search found, judged on the current load.
 type DesignRow struct {
 	Index                       int
 	Parts, Bands, Worst, Margin string
-	Pass                        bool
+	Power, PowerBefore          string // worst power to the load with the design and with no network
+	Pass, Over, Worse           bool
 }
 
 // SynthRow is one single-frequency solution.

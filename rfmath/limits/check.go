@@ -2,8 +2,6 @@ package limits
 
 import (
 	"math"
-	"math/cmplx"
-	"sort"
 
 	"matchbench/rfmath"
 )
@@ -18,69 +16,59 @@ type Result struct {
 	// Pass reports that the band is covered and its margin is not negative.
 	Pass bool
 	// WorstHz is the frequency of least margin, WorstReturnLossDB the
-	// return loss measured there and MarginDB that return loss less the
-	// band's MinReturnLossDB (negative fails). A point whose Γ is NaN has
-	// a margin of −Inf.
+	// return loss measured there, WorstPowerToLoad the share of the
+	// available power the load takes there (1 − |Γ|²), and MarginDB the
+	// margin over the band's limit in dB (negative fails): the return loss
+	// less the required one, or for a power limit 10·log10(share/least).
+	// A point whose Γ is NaN has a margin of −Inf.
 	WorstHz           float64
 	WorstReturnLossDB float64
+	WorstPowerToLoad  float64
 	MarginDB          float64
-	// Points is the number of values checked: the measured points in the
-	// band and the interpolated values at LO and HI where they fall
-	// between points.
+	// Points is the number of values checked: the band's points as
+	// [rfmath.BandFreqs] gives them.
 	Points int
 }
 
 // Check checks the reflection sweep gamma at freqHz (increasing) against
-// each band and returns one Result per band, in order. Between measured
-// points, at a band's LO and HI, Γ is interpolated linearly in the complex
-// plane, as [rfmath.Sweep.InterpAt] does. A gamma whose length differs from
-// freqHz panics.
+// each band and returns one Result per band, in order. A band is judged at
+// its points ([rfmath.BandFreqs]: the measured points in it and its edges,
+// where Γ is interpolated linearly in the complex plane) by
+// [rfmath.BandSummary], the evaluator every band figure of matchbench
+// comes from; the load's share of the power is 1 − |Γ|². A gamma whose
+// length differs from freqHz panics.
 func Check(freqHz []float64, gamma []complex128, bands []Band) []Result {
 	if len(gamma) != len(freqHz) {
 		panic("limits: gamma and frequency lengths differ")
 	}
 	out := make([]Result, len(bands))
-	n := len(freqHz)
+	var fs []float64
 	for i, b := range bands {
 		r := Result{Band: b, MarginDB: math.NaN()}
-		if n == 0 || b.LoHz < freqHz[0] || b.HiHz > freqHz[n-1] {
+		var err error
+		fs, err = rfmath.BandFreqs(fs[:0], freqHz, b.LoHz, b.HiHz)
+		if err != nil {
 			out[i] = r
 			continue
 		}
 		r.Covered = true
-		need := b.MinReturnLossDB()
-		r.MarginDB = math.Inf(1)
-		consider := func(f float64, g complex128) {
-			r.Points++
-			rl := rfmath.ReturnLossDB(cmplx.Abs(g))
-			m := rl - need
-			if math.IsNaN(m) {
-				m = math.Inf(-1)
-			}
-			if r.Points == 1 || m < r.MarginDB {
-				r.WorstHz, r.WorstReturnLossDB, r.MarginDB = f, rl, m
-			}
+		var s rfmath.BandSummary
+		for _, f := range fs {
+			g, _ := rfmath.InterpGamma(freqHz, gamma, f)
+			gin, toLoad := rfmath.Circuit{}.PowerAt(f, g, 1)
+			s.Add(f, gin, toLoad)
 		}
-		k := sort.SearchFloat64s(freqHz, b.LoHz) // first point ≥ LO
-		if freqHz[k] != b.LoHz {
-			consider(b.LoHz, interp(freqHz, gamma, k-1, b.LoHz))
-		}
-		for ; k < n && freqHz[k] <= b.HiHz; k++ {
-			consider(freqHz[k], gamma[k])
-		}
-		if freqHz[k-1] != b.HiHz && b.HiHz != b.LoHz {
-			consider(b.HiHz, interp(freqHz, gamma, k-1, b.HiHz))
+		fig := s.Figures()
+		r.Points = fig.Points
+		r.MarginDB = b.Requirement().MarginDB(fig)
+		r.WorstHz, r.WorstReturnLossDB, r.WorstPowerToLoad = fig.WorstRLHz, fig.WorstRLdB, fig.WorstPowerToLoad
+		if math.IsNaN(r.MarginDB) {
+			r.MarginDB = math.Inf(-1)
 		}
 		r.Pass = r.MarginDB >= 0
 		out[i] = r
 	}
 	return out
-}
-
-// interp interpolates between points k and k+1 at f.
-func interp(freqHz []float64, gamma []complex128, k int, f float64) complex128 {
-	t := (f - freqHz[k]) / (freqHz[k+1] - freqHz[k])
-	return gamma[k] + complex(t, 0)*(gamma[k+1]-gamma[k])
 }
 
 // Worst returns the index of the result of least margin, a band that is

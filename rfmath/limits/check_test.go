@@ -104,3 +104,30 @@ func TestCheck(t *testing.T) {
 	}()
 	Check(f, g[:3], bands)
 }
+
+// TestCheckPower checks a power limit on a measured load: the share of the
+// available power a load of reflection Γ takes is 1 − |Γ|² (REFERENCE-CHECKS
+// §2a: VSWR 2 delivers 88.889 %), so with the series RLC of TestCheck a
+// limit of 88.889 % is the VSWR-2 limit, and the margin is
+// 10·log10(share/least) dB.
+func TestCheckPower(t *testing.T) {
+	t.Parallel()
+	f := make([]float64, 151)
+	for k := range f {
+		f[k] = 100e6 + 1e6*float64(k)
+	}
+	g := seriesRLC(f, 50, 100e-9, 10e-12)
+	least := 1 - 1.0/9 // VSWR 2: |Γ| = 1/3
+	res := Check(f, g, []Band{
+		{LoHz: 150.5e6, HiHz: 160.5e6, Kind: Power, Value: least},
+		{LoHz: 150.5e6, HiHz: 160.5e6, Kind: VSWR, Value: 2},
+	})
+	p, v := res[0], res[1]
+	if p.Pass != v.Pass || p.WorstHz != v.WorstHz || p.Points != v.Points {
+		t.Errorf("power %+v, VSWR %+v", p, v)
+	}
+	gw := math.Pow(10, -p.WorstReturnLossDB/20)
+	if share := 1 - gw*gw; math.Abs(p.WorstPowerToLoad-share) > 1e-12 || math.Abs(p.MarginDB-10*math.Log10(share/least)) > 1e-12 {
+		t.Errorf("power margin %v at %v of the power, want %v", p.MarginDB, p.WorstPowerToLoad, 10*math.Log10(share/least))
+	}
+}

@@ -23,15 +23,20 @@ const (
 	ReturnLoss Kind = iota
 	// VSWR limits are a greatest VSWR.
 	VSWR
+	// Power limits are a least share of the available power that reaches
+	// the load.
+	Power
 )
 
-// String returns "rl" or "vswr", the keyword of the file format.
+// String returns "rl", "vswr" or "power", the keyword of the file format.
 func (k Kind) String() string {
 	switch k {
 	case ReturnLoss:
 		return "rl"
 	case VSWR:
 		return "vswr"
+	case Power:
+		return "power"
 	}
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
@@ -40,8 +45,9 @@ func (k Kind) String() string {
 type Band struct {
 	LoHz, HiHz float64
 	Kind       Kind
-	// Value is the least return loss in dB (ReturnLoss) or the greatest
-	// VSWR (VSWR).
+	// Value is the least return loss in dB (ReturnLoss), the greatest
+	// VSWR (VSWR) or the least share of the available power at the load,
+	// in (0, 1] (Power).
 	Value float64
 	// Label names the band; it may be empty.
 	Label string
@@ -53,18 +59,34 @@ type Band struct {
 // maxRL is the largest return-loss limit accepted, in dB.
 const maxRL = 100
 
-// MinReturnLossDB returns the least return loss the band allows, in dB.
+// MinReturnLossDB returns the least return loss the band allows, in dB; 0
+// for a power limit.
 func (b Band) MinReturnLossDB() float64 {
-	if b.Kind == VSWR {
+	switch b.Kind {
+	case VSWR:
 		return rfmath.ReturnLossDB(rfmath.GammaMagFromVSWR(b.Value))
+	case Power:
+		return 0
 	}
 	return b.Value
 }
 
-// MaxGammaMag returns the greatest |Γ| the band allows.
+// Requirement returns what the band asks, as [rfmath.Requirement].
+func (b Band) Requirement() rfmath.Requirement {
+	if b.Kind == Power {
+		return rfmath.Requirement{MinPowerToLoad: b.Value}
+	}
+	return rfmath.Requirement{MinReturnLossDB: b.MinReturnLossDB()}
+}
+
+// MaxGammaMag returns the greatest |Γ| the band allows; for a power limit,
+// the |Γ| of a load that takes exactly that share, √(1 − share).
 func (b Band) MaxGammaMag() float64 {
-	if b.Kind == VSWR {
+	switch b.Kind {
+	case VSWR:
 		return rfmath.GammaMagFromVSWR(b.Value)
+	case Power:
+		return math.Sqrt(1 - b.Value)
 	}
 	return rfmath.GammaMagFromReturnLossDB(b.Value)
 }
@@ -72,9 +94,12 @@ func (b Band) MaxGammaMag() float64 {
 // String describes the band: "863 MHz–870 MHz: RL ≥ 10 dB (EU SRD)".
 func (b Band) String() string {
 	var lim string
-	if b.Kind == VSWR {
+	switch b.Kind {
+	case VSWR:
 		lim = "VSWR ≤ " + strconv.FormatFloat(b.Value, 'g', -1, 64)
-	} else {
+	case Power:
+		lim = "power to the load ≥ " + formatShare(b.Value)
+	default:
 		lim = "RL ≥ " + strconv.FormatFloat(b.Value, 'g', -1, 64) + " dB"
 	}
 	s := units.FormatFrequency(b.LoHz, 6) + "–" + units.FormatFrequency(b.HiHz, 6) + ": " + lim
@@ -114,6 +139,10 @@ func checkValue(k Kind, v float64) error {
 	case VSWR:
 		if !(v > 1) || math.IsInf(v, 1) {
 			return fmt.Errorf("%w: VSWR %g; want a finite ratio above 1, such as 2 or 1.5", ErrValue, v)
+		}
+	case Power:
+		if !(v > 0 && v <= 1) {
+			return fmt.Errorf("%w: power to the load %g%%; want more than 0 and at most 100 %% (or a loss in dB, such as 1dB)", ErrValue, 100*v)
 		}
 	default:
 		return fmt.Errorf("%w: unknown kind %d", ErrValue, int(k))
@@ -287,11 +316,17 @@ func parseLine(text string, line int) (b Band, ok bool, perr *ParseError) {
 		b.Kind = ReturnLoss
 	case "vswr":
 		b.Kind = VSWR
+	case "power":
+		b.Kind = Power
 	default:
-		return errAt(f[3].col, fmt.Errorf("%w: %q: the limit is rl (return loss in dB) or vswr", ErrSyntax, f[3].s))
+		return errAt(f[3].col, fmt.Errorf("%w: %q: the limit is rl (return loss in dB), vswr, or power (share of the power at the load)", ErrSyntax, f[3].s))
 	}
-	b.Value, err = strconv.ParseFloat(f[4].s, 64)
-	if err != nil {
+	if b.Kind == Power {
+		b.Value, err = ParseShare(f[4].s)
+		if err != nil {
+			return errAt(f[4].col, err)
+		}
+	} else if b.Value, err = strconv.ParseFloat(f[4].s, 64); err != nil {
 		return errAt(f[4].col, fmt.Errorf("%w: %q is not a number", ErrSyntax, f[4].s))
 	}
 	if err := checkValue(b.Kind, b.Value); err != nil {
@@ -321,7 +356,7 @@ func Write(w io.Writer, bands []Band) error {
 		}
 	}
 	bw := bufio.NewWriter(w)
-	bw.WriteString("# matchbench limit file: band LO HI rl DB | band LO HI vswr X [label]\n")
+	bw.WriteString("# matchbench limit file: band LO HI rl DB | band LO HI vswr X | band LO HI power P% [label]\n")
 	for _, b := range bands {
 		bw.WriteString("band ")
 		bw.WriteString(formatHz(b.LoHz))
@@ -330,7 +365,11 @@ func Write(w io.Writer, bands []Band) error {
 		bw.WriteByte(' ')
 		bw.WriteString(b.Kind.String())
 		bw.WriteByte(' ')
-		bw.WriteString(strconv.FormatFloat(b.Value, 'g', -1, 64))
+		if b.Kind == Power {
+			bw.WriteString(formatShare(b.Value))
+		} else {
+			bw.WriteString(strconv.FormatFloat(b.Value, 'g', -1, 64))
+		}
 		if b.Label != "" {
 			bw.WriteByte(' ')
 			bw.WriteString(b.Label)
@@ -355,4 +394,43 @@ func formatHz(f float64) string {
 		}
 	}
 	return strconv.FormatFloat(f, 'g', -1, 64)
+}
+
+// ParseShare reads a least share of the available power at the load, as a
+// limit file and the command line write it: a percentage ("80%", "80 %")
+// or a loss in dB ("1dB", "1 dB", the share 10^(−loss/10)). The share must
+// be more than 0 and at most 100 %; the loss must not be negative. Errors
+// wrap [ErrSyntax] or [ErrValue].
+func ParseShare(s string) (float64, error) {
+	t := strings.TrimSpace(s)
+	lower := strings.ToLower(t)
+	var v float64
+	switch {
+	case strings.HasSuffix(lower, "%"):
+		x, err := strconv.ParseFloat(strings.TrimSpace(t[:len(t)-1]), 64)
+		if err != nil {
+			return 0, fmt.Errorf("%w: %q is not a percentage such as 80%%", ErrSyntax, s)
+		}
+		v = x / 100
+	case strings.HasSuffix(lower, "db"):
+		x, err := strconv.ParseFloat(strings.TrimSpace(t[:len(t)-2]), 64)
+		if err != nil {
+			return 0, fmt.Errorf("%w: %q is not a loss such as 1dB", ErrSyntax, s)
+		}
+		if !(x >= 0) || math.IsInf(x, 1) {
+			return 0, fmt.Errorf("%w: loss %q; want a finite loss of at least 0 dB", ErrValue, s)
+		}
+		v = math.Pow(10, -x/10)
+	default:
+		return 0, fmt.Errorf("%w: %q: write the power to the load as a percentage (80%%) or a loss in dB (1dB)", ErrSyntax, s)
+	}
+	if err := checkValue(Power, v); err != nil {
+		return 0, err
+	}
+	return v, nil
+}
+
+// formatShare writes a share as the percentage that reads back exactly.
+func formatShare(v float64) string {
+	return strconv.FormatFloat(100*v, 'g', -1, 64) + "%"
 }

@@ -182,3 +182,38 @@ func TestBandConversions(t *testing.T) {
 		t.Error("Kind.String")
 	}
 }
+
+// TestParsePower reads power limits as a percentage and as a loss in dB
+// (1 dB of loss is 10^(−0.1) = 79.43 % of the power, arithmetic) and
+// refuses a share out of range or without its unit.
+func TestParsePower(t *testing.T) {
+	t.Parallel()
+	bands, err := Parse(strings.NewReader("band 902M 928M power 80% US ISM\nband 863M 870M power 1dB\n"), "p.lim")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bands[0].Kind != Power || bands[0].Value != 0.8 || bands[0].Label != "US ISM" {
+		t.Errorf("band 0: %+v", bands[0])
+	}
+	if math.Abs(bands[1].Value-0.7943282347242815) > 1e-15 {
+		t.Errorf("1 dB: %v", bands[1].Value)
+	}
+	if r := bands[0].Requirement(); r.MinPowerToLoad != 0.8 || r.MinReturnLossDB != 0 {
+		t.Errorf("requirement %+v", r)
+	}
+	var b strings.Builder
+	if err := Write(&b, bands); err != nil {
+		t.Fatal(err)
+	}
+	back, err := Parse(strings.NewReader(b.String()), "back")
+	if err != nil || back[0].Value != bands[0].Value || back[1].Value != bands[1].Value {
+		t.Errorf("round trip %q: %v, %v", b.String(), back, err)
+	}
+	for _, line := range []string{"band 1G 2G power 0", "band 1G 2G power 0%", "band 1G 2G power 120%", "band 1G 2G power 80", "band 1G 2G power -1dB", "band 1G 2G power x%"} {
+		_, err := Parse(strings.NewReader(line), "bad")
+		var pe *ParseError
+		if !errors.As(err, &pe) || pe.Column != 18 {
+			t.Errorf("%q: %v", line, err)
+		}
+	}
+}

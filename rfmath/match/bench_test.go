@@ -13,13 +13,13 @@ import (
 // over 10,001 frequencies; it reports the time per part × frequency.
 func BenchmarkCircuit4Part(b *testing.B) {
 	l := loadOf(grid(1e9, 3e9, 10001), 50, smallAntenna)
-	n := Network{{ShuntL, 2.2e-9, ""}, {SeriesC, 1.5e-12, ""}, {ShuntC, 1e-12, ""}, {SeriesL, 3.3e-9, ""}}
+	n := Network{{Kind: ShuntL, Value: 2.2e-9, Series: ""}, {Kind: SeriesC, Value: 1.5e-12, Series: ""}, {Kind: ShuntC, Value: 1e-12, Series: ""}, {Kind: SeriesL, Value: 3.3e-9, Series: ""}}
 	for _, tc := range []struct {
 		name  string
 		model parts.Model
 	}{{"ideal", nil}, {"0402", parts.Typical0402}} {
 		b.Run(tc.name, func(b *testing.B) {
-			c := n.Circuit(tc.model)
+			c := compiled(b, n, tc.model)
 			dst := make([]complex128, len(l.FreqHz))
 			b.ReportAllocs()
 			for b.Loop() {
@@ -36,7 +36,7 @@ func BenchmarkCircuit4Part(b *testing.B) {
 // and their ratio.
 func BenchmarkSearchVsExhaustive(b *testing.B) {
 	l := loadOf(grid(2.4e9, 2.4835e9, 401), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
 	for _, parts3 := range []int{2, 3} {
 		for _, m := range []struct {
 			name  string
@@ -76,9 +76,9 @@ func BenchmarkSearchVsExhaustive(b *testing.B) {
 // network with 0402 models on a 401-point band.
 func BenchmarkYield10000(b *testing.B) {
 	l := loadOf(grid(2.4e9, 2.4835e9, 401), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
-	n := Network{{ShuntL, 1.8e-9, "E24"}, {SeriesL, 1.1e-9, "E24"}, {ShuntC, 1.3e-12, "E24"}}
-	set := &YieldSettings{Builds: 10000, Model: parts.Typical0402}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
+	n := Network{{Kind: ShuntL, Value: 1.8e-9, Series: "E24"}, {Kind: SeriesL, Value: 1.1e-9, Series: "E24"}, {Kind: ShuntC, Value: 1.3e-12, Series: "E24"}}.WithModel(parts.Typical0402)
+	set := &YieldSettings{Builds: 10000}
 	for b.Loop() {
 		if _, err := Yield(context.Background(), l, bands, n, set); err != nil {
 			b.Fatal(err)

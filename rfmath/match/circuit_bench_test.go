@@ -31,9 +31,9 @@ type fixedModel map[float64]rfmath.Part
 
 func (m fixedModel) Part(_ parts.Kind, v float64) rfmath.Part { return m[v] }
 
-// benchCircuit returns the network compiled as the search compiles it, and
-// the same parts as an rfmath ladder.
-func benchCircuit() (match.Circuit, rfmath.Ladder) {
+// benchCircuit returns the network compiled as the search compiles it
+// (rfmath.Circuit), and the same parts as an rfmath ladder.
+func benchCircuit() (rfmath.Circuit, rfmath.Ladder) {
 	m := fixedModel{}
 	var n match.Network
 	var l rfmath.Ladder
@@ -46,14 +46,18 @@ func benchCircuit() (match.Circuit, rfmath.Ladder) {
 			v = q.CF
 		}
 		m[v] = p.part
-		n = append(n, match.Part{Kind: p.kind, Value: v})
+		n = append(n, match.Part{Kind: p.kind, Value: v, Model: m})
 		if p.kind.Shunt() {
 			l = append(l, rfmath.Shunt{Part: p.part})
 		} else {
 			l = append(l, rfmath.Series{Part: p.part})
 		}
 	}
-	return n.Circuit(m), l
+	c, err := n.Circuit()
+	if err != nil {
+		panic(err)
+	}
+	return c, l
 }
 
 // benchSweep returns n frequencies from 1.5 to 3.5 GHz and the load's Γ in

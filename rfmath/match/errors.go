@@ -22,6 +22,10 @@ var (
 	// ErrRange reports a part value range that holds no standard value.
 	ErrRange = errors.New("match: no standard value in the part range")
 
+	// ErrPart reports a part that cannot be built: a value that is not
+	// positive and finite, or an unknown kind.
+	ErrPart = errors.New("match: part cannot be built")
+
 	// ErrFit reports a load that the RLC fit cannot describe.
 	ErrFit = errors.New("match: cannot fit an RC, RL or RLC model to the load")
 )

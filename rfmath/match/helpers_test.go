@@ -2,8 +2,10 @@ package match
 
 import (
 	"math"
+	"testing"
 
 	"matchbench/rfmath"
+	"matchbench/rfmath/parts"
 )
 
 // grid returns n frequencies evenly spaced from lo to hi.
@@ -42,4 +44,26 @@ func lowBandAntenna(f float64) complex128 {
 	r := 3 + 10*(f/950e6)*(f/950e6)
 	z := complex(r, w*l-1/(w*c))
 	return 1 / (1/z + complex(0, w*pad))
+}
+
+// compiled returns n with its parts made by the model m, compiled; a part
+// that cannot be built fails the test.
+func compiled(t testing.TB, n Network, m parts.Model) rfmath.Circuit {
+	t.Helper()
+	c, err := n.WithModel(m).Circuit()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}
+
+// ladderOf returns n with its parts made by the model m as an rfmath
+// ladder.
+func ladderOf(t testing.TB, n Network, m parts.Model) rfmath.Ladder {
+	t.Helper()
+	l, err := n.WithModel(m).Ladder()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return l
 }

@@ -2,8 +2,8 @@ package match
 
 import (
 	"fmt"
+	"maps"
 	"math"
-	"sort"
 	"strings"
 
 	"matchbench/rfmath"
@@ -11,46 +11,46 @@ import (
 	"matchbench/rfmath/units"
 )
 
-// Kind is the kind and place of a lumped part in a ladder.
-type Kind string
+// Kind is the kind and place of a part in a ladder: [rfmath.PartKind].
+type Kind = rfmath.PartKind
 
-// Kinds of part. The strings are part of the command line's JSON.
+// Kinds of part, as [rfmath.PartKind] spells them. The strings are part of
+// the command line's JSON and of the stored sessions.
 const (
-	SeriesL Kind = "series_L"
-	SeriesC Kind = "series_C"
-	ShuntL  Kind = "shunt_L"
-	ShuntC  Kind = "shunt_C"
+	SeriesL     = rfmath.PartSeriesL
+	SeriesC     = rfmath.PartSeriesC
+	SeriesR     = rfmath.PartSeriesR
+	ShuntL      = rfmath.PartShuntL
+	ShuntC      = rfmath.PartShuntC
+	ShuntR      = rfmath.PartShuntR
+	Line        = rfmath.PartLine
+	StubOpen    = rfmath.PartStubOpen
+	StubShort   = rfmath.PartStubShort
+	Transformer = rfmath.PartTransformer
 )
 
-// Shunt reports whether the part is connected to ground (across the line)
-// rather than in series.
-func (k Kind) Shunt() bool { return k == ShuntL || k == ShuntC }
-
-// Part returns the part's kind without its place: parts.KindL or
-// parts.KindC. An unknown kind panics.
-func (k Kind) Part() parts.Kind {
-	switch k {
-	case SeriesL, ShuntL:
-		return parts.KindL
-	case SeriesC, ShuntC:
-		return parts.KindC
-	}
-	panic(badKind)
-}
-
-// Unit returns "H" or "F".
-func (k Kind) Unit() string {
-	if k.Part() == parts.KindL {
-		return "H"
-	}
-	return "F"
-}
-
-// Part is one lumped part of a [Network].
+// Part is one part of a matching network under design: what it is, its
+// value, the standard series it is bought from, the model of the real part
+// and the part's own figures. The search, the yield, the network panel, the
+// exports and the command line all build and judge a network from these.
+//
+// Value is in SI units: henries, farads, ohms, metres (lines and stubs) or
+// a plain ratio (a transformer, source side : load side).
+//
+// Params holds the part's own figures, which override its model's:
+//
+//	"q", "qRefHz"   Q at a frequency (default 1 GHz); for a constant-Q model the Q itself
+//	"srfHz"         self-resonant frequency
+//	"esrOhm"        a capacitor's series resistance
+//	"tolRel", "tolAbs"  tolerance, relative (0.02 for ±2 %) and absolute
+//	"maxV", "maxA"  rated peak voltage and RMS current
+//	"z0Ohm", "vf", "lossDBPerM", "lossRefHz"  a line's or stub's figures
 type Part struct {
 	Kind   Kind
-	Value  float64 // henries or farads
-	Series string  // the E-series the value was taken from; "" if computed
+	Value  float64
+	Series string      // the E-series the value snaps to; "" for none
+	Model  parts.Model // makes the real part; nil means ideal
+	Params map[string]float64
 }
 
 // String returns e.g. "shunt_C 1 pF (E12)".
@@ -62,9 +62,131 @@ func (p Part) String() string {
 	return s
 }
 
-// Network is a ladder of lumped parts listed from the LOAD toward the
-// SOURCE: Network[0] is connected to the load. The empty network is a
-// through connection.
+// Param returns the part's own figure name, or def when it has none.
+func (p Part) Param(name string, def float64) float64 {
+	if v, ok := p.Params[name]; ok {
+		return v
+	}
+	return def
+}
+
+// BuyValue is the value the part is built with: Value snapped to the
+// nearest value of its E-series (by ratio, see [parts.Nearest]), or Value
+// itself when it has none or is not a lumped part.
+func (p Part) BuyValue() float64 {
+	if p.Series == "" || p.Kind.Component() == "" {
+		return p.Value
+	}
+	return parts.Nearest(p.Value, p.Series)
+}
+
+// qRefDefaultHz is where a part's own Q holds when no frequency is given.
+const qRefDefaultHz = 1e9
+
+// Component returns the lumped part at value v: the model's part (ideal
+// without a model) with the part's own figures put in. It returns nil for
+// lines, stubs and transformers.
+func (p Part) Component(v float64) rfmath.Part {
+	k := p.Kind.Component()
+	if k == "" {
+		return nil
+	}
+	m := p.Model
+	if m == nil {
+		m = parts.Ideal
+	}
+	if cq, ok := m.(parts.ConstantQ); ok {
+		// A constant-Q part's own Q replaces the model's Q of its kind.
+		if q, ok := p.Params["q"]; ok {
+			cq.QL, cq.QC = q, q
+		}
+		return cq.Part(k, v)
+	}
+	c := m.Part(k, v)
+	switch c := c.(type) {
+	case parts.Inductor:
+		c.Q, c.QRefHz, c.SRFHz = p.Param("q", c.Q), p.Param("qRefHz", c.QRefHz), p.Param("srfHz", c.SRFHz)
+		return c
+	case parts.IdealInductor:
+		_, hasQ := p.Params["q"]
+		_, hasSRF := p.Params["srfHz"]
+		if hasQ || hasSRF {
+			return parts.Inductor{LH: v, Q: p.Param("q", 0), QRefHz: p.Param("qRefHz", qRefDefaultHz), SRFHz: p.Param("srfHz", 0)}
+		}
+	case parts.Capacitor:
+		c.ESROhm, c.SRFHz = p.Param("esrOhm", c.ESROhm), p.Param("srfHz", c.SRFHz)
+		if q, ok := p.Params["q"]; ok {
+			c.ESROhm, c.Q, c.QRefHz = 0, q, p.Param("qRefHz", qRefDefaultHz)
+		}
+		return c
+	case parts.IdealCapacitor:
+		_, hasQ := p.Params["q"]
+		_, hasESR := p.Params["esrOhm"]
+		_, hasSRF := p.Params["srfHz"]
+		if hasQ || hasESR || hasSRF {
+			return parts.Capacitor{CF: v, ESROhm: p.Param("esrOhm", 0), Q: p.Param("q", 0), QRefHz: p.Param("qRefHz", qRefDefaultHz), SRFHz: p.Param("srfHz", 0)}
+		}
+	}
+	return c
+}
+
+// LineOf returns the line of a line or stub part of length lengthM: its
+// "z0Ohm" (default 50 Ω), "vf" (default 1), "lossDBPerM" and "lossRefHz"
+// (default 1 GHz).
+func (p Part) LineOf(lengthM float64) rfmath.Line {
+	return rfmath.Line{Z0Ohm: p.Param("z0Ohm", 50), LengthM: lengthM, VelocityFactor: p.Param("vf", 1),
+		LossDBPerM: p.Param("lossDBPerM", 0), LossRefHz: p.Param("lossRefHz", qRefDefaultHz)}
+}
+
+// Element returns the part as a two-port element with value v.
+func (p Part) Element(v float64) (rfmath.Element, error) {
+	if !(v > 0) || math.IsInf(v, 0) {
+		return nil, fmt.Errorf("%w: %s of value %g", ErrPart, p.Kind, v)
+	}
+	if c := p.Component(v); c != nil {
+		if p.Kind.Shunt() {
+			return rfmath.Shunt{Part: c}, nil
+		}
+		return rfmath.Series{Part: c}, nil
+	}
+	switch p.Kind {
+	case Line:
+		return p.LineOf(v), nil
+	case StubOpen, StubShort:
+		return rfmath.ShuntStub{Line: p.LineOf(v), Open: p.Kind == StubOpen}, nil
+	case Transformer:
+		return rfmath.Transformer{Ratio: v}, nil
+	}
+	return nil, fmt.Errorf("%w: unknown kind %q", ErrPart, p.Kind)
+}
+
+// Tolerance returns the part's tolerance: its own "tolRel" and "tolAbs"
+// over the typical tolerance of its kind ([parts.DefaultTolerance]). Parts
+// that are not lumped have none.
+func (p Part) Tolerance() parts.Tolerance {
+	k := p.Kind.Component()
+	if k == "" {
+		return parts.Tolerance{}
+	}
+	t := parts.DefaultTolerance(k)
+	t.Rel, t.Abs = p.Param("tolRel", t.Rel), p.Param("tolAbs", t.Abs)
+	return t
+}
+
+// Rating returns the part's rating at value v: its own "maxV" and "maxA"
+// over the model's rating, where the model rates its parts.
+func (p Part) Rating(v float64) parts.Rating {
+	var r parts.Rating
+	if rt, ok := p.Model.(Rater); ok && p.Kind.Component() != "" {
+		r = rt.Rating(p.Kind.Component(), v)
+	}
+	r.MaxVoltageV, r.MaxCurrentA = p.Param("maxV", r.MaxVoltageV), p.Param("maxA", r.MaxCurrentA)
+	return r
+}
+
+// Network is a ladder of parts listed from the LOAD toward the SOURCE:
+// Network[0] is connected to the load. The empty network is a through
+// connection.
 type Network []Part
 
 // String lists the parts from the load, separated by ", ".
@@ -76,19 +198,65 @@ func (n Network) String() string {
 	return strings.Join(s, ", ")
 }
 
-// Ladder returns the network as an rfmath ladder of parts made by the model
-// m (nil means ideal parts), in the same order.
-func (n Network) Ladder(m parts.Model) rfmath.Ladder {
-	c := n.Circuit(m)
-	l := make(rfmath.Ladder, len(n))
-	for i, e := range c.els {
-		if e.shunt {
-			l[i] = rfmath.Shunt{Part: e.part}
-		} else {
-			l[i] = rfmath.Series{Part: e.part}
+// Clone returns a copy of n that shares nothing with it.
+func (n Network) Clone() Network {
+	c := append(Network(nil), n...)
+	for i := range c {
+		c[i].Params = maps.Clone(c[i].Params)
+	}
+	return c
+}
+
+// Built returns the network as it is built: each part at its standard
+// value ([Part.BuyValue]).
+func (n Network) Built() Network {
+	c := append(Network(nil), n...)
+	for i := range c {
+		c[i].Value = c[i].BuyValue()
+	}
+	return c
+}
+
+// HasSnaps reports whether some part's standard value differs from its
+// value as typed.
+func (n Network) HasSnaps() bool {
+	for _, p := range n {
+		if p.BuyValue() != p.Value {
+			return true
 		}
 	}
-	return l
+	return false
+}
+
+// Ladder returns the network as an rfmath ladder, in the same order.
+func (n Network) Ladder() (rfmath.Ladder, error) {
+	l := make(rfmath.Ladder, len(n))
+	for i, p := range n {
+		e, err := p.Element(p.Value)
+		if err != nil {
+			return nil, fmt.Errorf("part %d: %w", i+1, err)
+		}
+		l[i] = e
+	}
+	return l, nil
+}
+
+// Circuit returns the network compiled for evaluation ([rfmath.Circuit]).
+func (n Network) Circuit() (rfmath.Circuit, error) {
+	l, err := n.Ladder()
+	if err != nil {
+		return rfmath.Circuit{}, err
+	}
+	return l.Circuit(), nil
+}
+
+// WithModel returns a copy of n whose parts are all made by the model m.
+func (n Network) WithModel(m parts.Model) Network {
+	c := n.Clone()
+	for i := range c {
+		c[i].Model = m
+	}
+	return c
 }
 
 // Load is a one-port load as measured: its reflection coefficient Gamma[k]
@@ -131,19 +299,10 @@ func (l Load) validate() error {
 }
 
 // GammaAt returns Γ at fHz, interpolated linearly in the complex plane
-// between measured points as [rfmath.Sweep.InterpAt] does, and whether fHz
-// lies within the sweep.
+// between measured points ([rfmath.InterpGamma]), and whether fHz lies
+// within the sweep.
 func (l Load) GammaAt(fHz float64) (complex128, bool) {
-	n := len(l.FreqHz)
-	if n == 0 || !(fHz >= l.FreqHz[0] && fHz <= l.FreqHz[n-1]) {
-		return 0, false
-	}
-	k := sort.SearchFloat64s(l.FreqHz, fHz)
-	if l.FreqHz[k] == fHz {
-		return l.Gamma[k], true
-	}
-	t := (fHz - l.FreqHz[k-1]) / (l.FreqHz[k] - l.FreqHz[k-1])
-	return l.Gamma[k-1] + complex(t, 0)*(l.Gamma[k]-l.Gamma[k-1]), true
+	return rfmath.InterpGamma(l.FreqHz, l.Gamma, fHz)
 }
 
 // ZAt returns the load impedance in ohms at fHz, interpolated as GammaAt.
@@ -152,133 +311,30 @@ func (l Load) ZAt(fHz float64) (complex128, bool) {
 	return rfmath.ZFromGamma(g, complex(l.Z0Ohm, 0)), ok
 }
 
-// Band is a frequency band that a match must cover, with its requirement.
-type Band struct {
-	LoHz, HiHz      float64
-	MinReturnLossDB float64 // required return loss, positive dB; 0 for none
-}
-
-// String returns e.g. "2.4–2.4835 GHz ≥ 10 dB".
-func (b Band) String() string {
-	return fmt.Sprintf("%s–%s ≥ %g dB", units.FormatFrequency(b.LoHz, 6), units.FormatFrequency(b.HiHz, 6), b.MinReturnLossDB)
-}
-
-// BandResult is how a design does in one band.
-type BandResult struct {
-	Band
-	WorstRLdB float64 // lowest return loss over the band's points
-	MeanRLdB  float64 // mean of the return loss in dB over the band's points
-	Points    int     // number of points judged
-}
-
-// Metrics is how a design does across all bands.
-type Metrics struct {
-	WorstRLdB float64 // lowest return loss over all band points
-	// MarginDB is the least, over the band points, of the return loss less
-	// the band's requirement: negative when a requirement is missed.
-	MarginDB float64
-	Bands    []BandResult
-}
-
-// Meets reports whether every band's requirement is met.
-func (m Metrics) Meets() bool { return m.MarginDB >= 0 }
-
-// points is the set of frequencies at which bands are judged, with the
-// load's Γ there and, per point, the band it is judged in (the most
-// demanding if bands overlap).
-type points struct {
-	freqHz []float64
-	gamma  []complex128
-	band   []int // index into the bands
-}
-
-// bandPoints returns the points at which bands are judged: the load's
-// measured frequencies within each band and each band's two edges (Γ
-// interpolated as [Load.GammaAt]), sorted, each once.
-func bandPoints(l Load, bands []Band) (points, error) {
+// Response fills gamma and toLoad (each nil, allocated, or of the load's
+// length) with the reflection seen from the source and the share of the
+// available power that reaches the load ([rfmath.Circuit.PowerAt]) at
+// every frequency of the load, through the network n as it stands (use
+// [Network.Built] for the standard values).
+func Response(l Load, n Network, gamma []complex128, toLoad []float64) ([]complex128, []float64, error) {
 	if err := l.validate(); err != nil {
-		return points{}, err
+		return nil, nil, err
 	}
-	if len(bands) == 0 {
-		return points{}, fmt.Errorf("%w: no band given", ErrBand)
-	}
-	type pt struct {
-		f    float64
-		band int
-	}
-	var ps []pt
-	for b, bd := range bands {
-		if !(bd.LoHz > 0 && bd.HiHz >= bd.LoHz) || math.IsInf(bd.HiHz, 0) || math.IsNaN(bd.MinReturnLossDB) || math.IsInf(bd.MinReturnLossDB, 0) {
-			return points{}, fmt.Errorf("%w: %g–%g Hz, %g dB", ErrBand, bd.LoHz, bd.HiHz, bd.MinReturnLossDB)
-		}
-		if bd.LoHz < l.FreqHz[0] || bd.HiHz > l.FreqHz[len(l.FreqHz)-1] {
-			return points{}, fmt.Errorf("%w: %s lies outside the sweep (%s–%s)", ErrBand, bd,
-				units.FormatFrequency(l.FreqHz[0], 6), units.FormatFrequency(l.FreqHz[len(l.FreqHz)-1], 6))
-		}
-		ps = append(ps, pt{bd.LoHz, b}, pt{bd.HiHz, b})
-		for _, f := range l.FreqHz {
-			if f > bd.LoHz && f < bd.HiHz {
-				ps = append(ps, pt{f, b})
-			}
-		}
-	}
-	sort.Slice(ps, func(i, j int) bool { return ps[i].f < ps[j].f })
-	var p points
-	for _, q := range ps {
-		n := len(p.freqHz)
-		if n > 0 && p.freqHz[n-1] == q.f {
-			if bands[q.band].MinReturnLossDB > bands[p.band[n-1]].MinReturnLossDB {
-				p.band[n-1] = q.band
-			}
-			continue
-		}
-		g, _ := l.GammaAt(q.f)
-		p.freqHz = append(p.freqHz, q.f)
-		p.gamma = append(p.gamma, g)
-		p.band = append(p.band, q.band)
-	}
-	return p, nil
-}
-
-// Evaluate returns how the network n, made of parts by the model m (nil
-// means ideal), does on the load across the bands. Each band is judged at
-// the load's measured frequencies inside it and at its two edges, where Γ
-// of the load is interpolated linearly.
-//
-// Evaluate is the reference the search is checked against: it computes Γ
-// with [rfmath.Ladder], independently of the search's own arithmetic.
-func Evaluate(l Load, bands []Band, n Network, m parts.Model) (Metrics, error) {
-	p, err := bandPoints(l, bands)
+	c, err := n.Circuit()
 	if err != nil {
-		return Metrics{}, err
+		return nil, nil, err
 	}
-	g := n.Ladder(m).InputGammaTo(nil, p.freqHz, p.gamma, l.Z0Ohm)
-	return metricsOf(p, bands, g), nil
-}
-
-// metricsOf returns the metrics of the reflection g at the points p.
-func metricsOf(p points, bands []Band, g []complex128) Metrics {
-	m := Metrics{WorstRLdB: math.Inf(1), MarginDB: math.Inf(1), Bands: make([]BandResult, len(bands))}
-	for b := range bands {
-		m.Bands[b] = BandResult{Band: bands[b], WorstRLdB: math.Inf(1)}
+	if gamma == nil {
+		gamma = make([]complex128, len(l.FreqHz))
 	}
-	for k, f := range p.freqHz {
-		rl := rfmath.ReturnLossDB(math.Hypot(real(g[k]), imag(g[k])))
-		m.WorstRLdB = math.Min(m.WorstRLdB, rl)
-		// A point on an overlap counts in every band that holds it.
-		for b := range bands {
-			if f < bands[b].LoHz || f > bands[b].HiHz {
-				continue
-			}
-			r := &m.Bands[b]
-			r.WorstRLdB = math.Min(r.WorstRLdB, rl)
-			r.MeanRLdB += rl
-			r.Points++
-			m.MarginDB = math.Min(m.MarginDB, rl-bands[b].MinReturnLossDB)
-		}
+	if toLoad == nil {
+		toLoad = make([]float64, len(l.FreqHz))
 	}
-	for b := range m.Bands {
-		m.Bands[b].MeanRLdB /= float64(m.Bands[b].Points)
+	if len(gamma) != len(l.FreqHz) || len(toLoad) != len(l.FreqHz) {
+		panic(badLength)
 	}
-	return m
+	for k, f := range l.FreqHz {
+		gamma[k], toLoad[k] = c.PowerAt(f, l.Gamma[k], l.Z0Ohm)
+	}
+	return gamma, toLoad, nil
 }

@@ -20,11 +20,6 @@ type StressSettings struct {
 	// PowerW is the power the source offers: the power it would deliver
 	// into a matched load (its available power), in watts.
 	PowerW float64
-	// Model makes the parts; nil means ideal parts.
-	Model parts.Model
-	// Ratings gives each part's rating. Nil means the model's ratings if
-	// the model is a Rater, else none (no warnings).
-	Ratings Rater
 }
 
 // PartStress is what one part carries at one frequency, as peak and RMS
@@ -33,7 +28,7 @@ type PartStress struct {
 	FreqHz       float64
 	VPeak, VRMS  float64 // across the part
 	IPeak, IRMS  float64 // through the part
-	DissipationW float64 // ½·|I|²·Re Z, the power turned to heat
+	DissipationW float64 // the power turned to heat in the part ([rfmath.Circuit.BalanceTo])
 }
 
 // PartReport is the stress on one part over the band points.
@@ -42,24 +37,25 @@ type PartReport struct {
 	Rating parts.Rating
 	// PerFreq is the stress at each band point, in frequency order.
 	PerFreq []PartStress
-	// WorstV and WorstI are the points of highest voltage and highest
-	// current.
-	WorstV, WorstI PartStress
+	// WorstV, WorstI and WorstP are the points of highest voltage, highest
+	// current and most dissipation.
+	WorstV, WorstI, WorstP PartStress
 	// Warnings say where a rating is exceeded.
 	Warnings []string
 }
 
-// Stress returns, for an input power, the voltage across and the current
-// through each part of the network n at each band point, the worst case of
-// each, and a warning wherever a part's rating is exceeded (peak voltage
-// against the voltage rating, RMS current against the current rating,
-// dissipation against the power rating; no derating is applied).
+// Stress returns, for an input power, the voltage across, the current
+// through and the power dissipated in each part of the network n at each
+// band point, the worst case of each, and a warning wherever a part's
+// rating ([Part.Rating]) is exceeded (peak voltage against the voltage
+// rating, RMS current against the current rating, dissipation against the
+// power rating; no derating is applied).
 //
 // The source is a generator of the load's reference impedance Z0 with
 // available power P; the voltages and currents are those of
 // [rfmath.Ladder.StressTo], which walks the source's voltage and current
-// through the ladder toward the load. The dissipation of a part is
-// ½·|I|²·Re Z.
+// through the ladder toward the load, and the dissipation that of
+// [rfmath.Circuit.BalanceTo].
 //
 // CAUTION: high RF power can burn and can shock. These are estimates from
 // ideal circuit theory and typical ratings, not a rated design review.
@@ -71,32 +67,29 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 	if err != nil {
 		return nil, err
 	}
-	if s.Model == nil {
-		s.Model = parts.Ideal
+	lad, err := n.Ladder()
+	if err != nil {
+		return nil, err
 	}
-	rater := s.Ratings
-	if rater == nil {
-		rater, _ = s.Model.(Rater)
-	}
-	lad := n.Ladder(s.Model)
+	circ := lad.Circuit()
 	rep := make([]PartReport, len(n))
 	for j, p := range n {
 		rep[j].Part = p
-		if rater != nil {
-			rep[j].Rating = rater.Rating(p.Kind.Part(), p.Value)
-		}
+		rep[j].Rating = p.Rating(p.Value)
 	}
 	z0 := complex(l.Z0Ohm, 0)
 	st := make([]rfmath.Stress, len(n))
+	heat := make([]float64, len(n))
 	for k, f := range pts.freqHz {
 		lad.StressTo(st, f, rfmath.ZFromGamma(pts.gamma[k], z0), l.Z0Ohm, s.PowerW)
+		circ.BalanceTo(heat, f, pts.gamma[k], l.Z0Ohm, s.PowerW)
 		for j := range n {
 			vp, ip := st[j].VPeakV, st[j].IPeakA
 			ps := PartStress{
 				FreqHz: f,
 				VPeak:  vp, VRMS: vp / math.Sqrt2,
 				IPeak: ip, IRMS: ip / math.Sqrt2,
-				DissipationW: 0.5 * ip * ip * math.Max(real(partZ(lad[j], f)), 0),
+				DissipationW: math.Max(heat[j], 0),
 			}
 			r := &rep[j]
 			r.PerFreq = append(r.PerFreq, ps)
@@ -105,6 +98,9 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 			}
 			if ps.IRMS > r.WorstI.IRMS || len(r.PerFreq) == 1 {
 				r.WorstI = ps
+			}
+			if ps.DissipationW > r.WorstP.DissipationW || len(r.PerFreq) == 1 {
+				r.WorstP = ps
 			}
 		}
 	}
@@ -130,16 +126,4 @@ func Stress(l Load, bands []Band, n Network, s StressSettings) ([]PartReport, er
 		}
 	}
 	return rep, nil
-}
-
-// partZ returns the impedance of the part of a ladder element made by
-// [Network.Ladder].
-func partZ(e rfmath.Element, fHz float64) complex128 {
-	switch p := e.(type) {
-	case rfmath.Series:
-		return p.Part.ImpedanceAt(fHz)
-	case rfmath.Shunt:
-		return p.Part.ImpedanceAt(fHz)
-	}
-	return 0
 }

@@ -8,8 +8,12 @@ import (
 
 	"gonum.org/v1/gonum/optimize"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 )
+
+// realDot returns Re(a·b*).
+func realDot(a, b complex128) float64 { return real(a)*real(b) + imag(a)*imag(b) }
 
 // Settings tune [Search] and [Exhaustive]. A nil *Settings, and every zero
 // field, means the default.
@@ -20,6 +24,10 @@ type Settings struct {
 
 	// Model makes the part of each value; nil means ideal parts.
 	Model parts.Model
+
+	// Objective is what the search maximises; the zero value is
+	// [PowerToLoad].
+	Objective Objective
 
 	// MinParts and MaxParts bound the number of parts in a ladder, from 1
 	// to 4; zero means 1 and 3.
@@ -57,6 +65,43 @@ type Settings struct {
 	Progress func(done, total int)
 }
 
+// Objective is what [Search] and [Exhaustive] rank networks by.
+type Objective int
+
+const (
+	// PowerToLoad ranks the networks that meet every band's requirement
+	// (return loss and power to the load) by the least share of the
+	// available power that reaches the load over all band points, most
+	// first; below them, the networks that miss by their margin over the
+	// requirements, least miss first. The zero value and the default: a
+	// match is judged by the power it delivers, so a network that matches
+	// by burning power in its own parts loses to one that delivers it.
+	PowerToLoad Objective = iota
+	// ReturnLoss ranks every network by its margin over the requirements
+	// alone (return loss and any power requirement), largest first, as a
+	// search of return loss does.
+	ReturnLoss
+)
+
+// String returns "power" or "rl", as the command line spells them.
+func (o Objective) String() string {
+	if o == ReturnLoss {
+		return "rl"
+	}
+	return "power"
+}
+
+// ParseObjective reads "power" or "rl".
+func ParseObjective(s string) (Objective, error) {
+	switch s {
+	case "power", "":
+		return PowerToLoad, nil
+	case "rl":
+		return ReturnLoss, nil
+	}
+	return 0, fmt.Errorf("match: objective %q: want power or rl", s)
+}
+
 // Design is a network found by [Search], with how it does.
 type Design struct {
 	Network Network
@@ -66,8 +111,9 @@ type Design struct {
 // Result is what [Search] and [Exhaustive] return.
 type Result struct {
 	// Designs are the best network of each of the best topologies, best
-	// (largest MarginDB) first; at most Settings.Top of them.
-	Designs []Design
+	// first by the Objective; at most Settings.Top of them.
+	Designs   []Design
+	Objective Objective
 	// Exact is true when every topology was searched over every
 	// combination of standard values in the ranges; false when only
 	// windows around the continuous optima were (then Window is their
@@ -116,46 +162,62 @@ func (s *Settings) defaults() Settings {
 	return d
 }
 
-// Search finds the ladder networks of standard-value parts that hold the
-// best return loss across the bands on the load: for every ladder shape of
+// Search finds the ladder networks of standard-value parts that do best
+// across the bands on the load by the Objective: for every ladder shape of
 // MinParts to MaxParts parts (series and shunt alternating, each an L or a
-// C), the network whose worst margin over the band points (return loss less
-// the band's requirement, MarginDB) is largest. It returns the best network
-// of each of the Top best shapes. Bands are judged at the load's measured
-// frequencies within them and at their edges, as [Evaluate] does, and the
-// returned metrics are computed by Evaluate.
+// C), the best network, and of those the Top best shapes. Bands are judged
+// at their points ([rfmath.BandFreqs]) and the returned figures are
+// computed by [Evaluate], the one evaluator of a design.
+//
+// The objective is a single key per network, least best. With Q the worst
+// over the band points of wt·|Γ|² (wt = 10^(RL/10) of the point's return-loss
+// requirement) and of MinPowerToLoad/G_T (G_T the share of the available
+// power that reaches the load), a network meets every requirement when
+// Q ≤ 1, with a margin of −10·log10(Q) dB. For [PowerToLoad] the key is
+// −min G_T when Q ≤ 1 and Q otherwise; for [ReturnLoss] it is Q.
 //
 // Shapes are searched by number of parts, fewest first, each in two
 // phases.
 //
-//  1. Continuous: Nelder–Mead (gonum/optimize) minimises the worst
-//     weighted |Γ|² over a subset of the band points, on the logarithms of
-//     the part values, from several starts: the L-networks that match the
-//     load at the centre of each band and of the whole span (any further
-//     part at its least disturbing end of the range) and the middle of the
-//     ranges. Each optimum is rounded to standard values; so is the best
-//     network of one part fewer with a part added at either end (that part
-//     over its whole range). The standard values within ±2 steps of these
-//     give the shape's first incumbent.
+//  1. Continuous: Nelder–Mead (gonum/optimize) minimises the key over a
+//     subset of the band points, on the logarithms of the part values, from
+//     several starts: the L-networks that match the load at the centre of
+//     each band and of the whole span (any further part at its least
+//     disturbing end of the range) and the middle of the ranges. Each
+//     optimum is rounded to standard values; so is the best network of one
+//     part fewer with a part added at either end (that part over its whole
+//     range). The standard values within ±2 steps of these give the shape's
+//     first incumbent.
 //  2. Exact: every combination of standard values (in window mode, every
 //     one within ±Window steps of the points of phase 1) is enumerated
 //     from the load outward. It is exact because it only skips what cannot
-//     win. A whole network is dropped at the first band point where its
-//     weighted |Γ|² reaches the incumbent's; the points that dropped the
-//     last networks are tried first. At the first of them, the last part's
-//     values that could pass form one range of its values sorted by
-//     reactance: after the part the impedance must lie in a circle
-//     (|Γ|² ≤ incumbent), and a passive part moves it by its own reactance
-//     with a resistance in a known range; only that range is tried. A
-//     network lacking its last two parts is dropped when no passive pair
-//     can bring it below the incumbent (after a shunt part the resistance is
-//     at most 1/G, after a series part the conductance at most 1/R). A
-//     shape is dropped when it cannot beat Top other shapes' incumbents.
-//     The voltage and current at each partial network's source end are
-//     computed once per point and shared by every network that extends it.
+//     beat the incumbent's key. A whole network is dropped at the first band
+//     point where it provably cannot (its weighted |Γ|², its power ratio or
+//     its G_T there already decide it); the points that dropped the last
+//     networks are tried first. At the first of them, the last part's values
+//     that could pass form one range of its values sorted by reactance:
+//     after the part the impedance must lie in a circle (|Γ|² below the
+//     bound the incumbent sets: for a network that must meet the
+//     requirements and beat a G_T of P, |Γ|² ≤ 1/wt and |Γ|² < 1 − P, since
+//     G_T ≤ 1 − |Γ|²), and a passive part moves it by its own reactance with
+//     a resistance in a known range; only that range is tried. A network
+//     lacking its last two parts is dropped when no passive pair can bring
+//     |Γ|² below that bound (after a shunt part the resistance is at most
+//     1/G, after a series part the conductance at most 1/R). A partial
+//     network (the parts nearest the load) is dropped when its own
+//     efficiency η = P_load/P_in at a point is below the least G_T that
+//     could still win: the parts added on the source side can only lose
+//     power, so G_T ≤ η. A shape is dropped when it cannot beat Top other
+//     shapes' incumbents. The voltage and current at each partial network's
+//     source end are computed once per point and shared by every network
+//     that extends it.
 //
-// In every mode the result equals that of [Exhaustive] over the same
-// combinations (in window mode: within the windows); the tests check it.
+// Every cut holds for passive parts (Re Z ≥ 0 at every frequency, as the
+// models of package parts are), for both objectives, so whenever the whole
+// ranges are searched (Window < 0, or Window = 0 within the Budget) the
+// result equals that of [Exhaustive] and Result.Exact is true; the tests
+// check it. In window mode the result is the best found within the
+// windows, not a proven optimum, and Result.Exact is false.
 //
 // The search stops and returns ctx.Err() when ctx is done. Other errors
 // are about the load, the bands or the settings.
@@ -170,8 +232,8 @@ func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, er
 
 // Exhaustive is the plain search that [Search] is checked against: it
 // computes every combination of standard values in the ranges at every
-// band point, and keeps the best of each shape. Settings.Window, Budget and
-// Progress are ignored. It is slow by design.
+// band point, and keeps the best of each shape by the same key. Settings.Window, Budget
+// and Progress are ignored. It is slow by design.
 func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
 	set := s.defaults()
 	e, err := newEngine(l, bands, &set)
@@ -203,7 +265,7 @@ func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result
 				idx[p] = r % cnt[p]
 				r /= cnt[p]
 			}
-			worst := 0.0
+			var sc score
 			for k := range e.K {
 				v, i := e.v0[k], e.i0[k]
 				for p := range n {
@@ -214,17 +276,102 @@ func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result
 						v += x * i
 					}
 				}
-				d, s := v-i, v+i
-				q := (real(d)*real(d) + imag(d)*imag(d)) * e.wt[k] / (real(s)*real(s) + imag(s)*imag(s))
-				worst = math.Max(worst, q)
+				e.addPoint(&sc, k, v, i)
 			}
 			res.Checked++
-			if worst < best[t].ratio {
-				best[t] = candidate{ratio: worst, idx: append([]int(nil), idx...)}
+			if key := e.key(sc); key < best[t].ratio {
+				best[t] = candidate{ratio: key, idx: append([]int(nil), idx...)}
 			}
 		}
 	}
 	return e.result(res, tops, best, &set)
+}
+
+// score is a whole network's worst figures over the band points so far:
+// q the worst of wt·|Γ|² and MinPowerToLoad/G_T, g the least G_T.
+type score struct {
+	q, g float64
+	n    int
+}
+
+// addPoint adds point k, where the walk from the load ended at (v, i), to
+// sc. Exhaustive and the walker's survivors share it, so their keys are
+// the same bits.
+func (e *engine) addPoint(sc *score, k int, v, i complex128) {
+	d, s := v-i, v+i
+	dn := real(d)*real(d) + imag(d)*imag(d)
+	sn := real(s)*real(s) + imag(s)*imag(s)
+	q := dn * e.wt[k] / sn
+	if pm := e.pmin[k]; pm > 0 {
+		if e.acc[k] > 0 {
+			q = math.Max(q, pm*sn/(4*e.acc[k]))
+		} else {
+			q = math.Inf(1)
+		}
+	}
+	sc.add(q, 4*e.acc[k]/sn)
+}
+
+// add adds a point's power ratio q and G_T g to sc.
+func (sc *score) add(q, g float64) {
+	if math.IsNaN(q) {
+		q = math.Inf(1)
+	}
+	if math.IsNaN(g) {
+		g = math.Inf(-1)
+	}
+	if sc.n == 0 {
+		sc.q, sc.g = q, g
+	} else {
+		sc.q, sc.g = math.Max(sc.q, q), math.Min(sc.g, g)
+	}
+	sc.n++
+}
+
+// key returns the objective's key of a whole network's score: least best.
+func (e *engine) key(sc score) float64 {
+	if e.obj == PowerToLoad && sc.q <= 1 {
+		return -sc.g
+	}
+	return sc.q
+}
+
+// feasibleMode reports whether a key threshold thr asks a network to meet
+// every requirement (and then to beat a G_T of −thr).
+func (e *engine) feasibleMode(thr float64) bool {
+	return e.obj == PowerToLoad && thr <= 1
+}
+
+// fails reports whether a whole network whose walk ends at (v, i) at
+// point k provably has a key of at least thr (see [Search]).
+func (e *engine) fails(k int, v, i complex128, thr float64) bool {
+	d, s := v-i, v+i
+	dn := real(d)*real(d) + imag(d)*imag(d)
+	sn := real(s)*real(s) + imag(s)*imag(s)
+	pm, acc4 := e.pmin[k], 4*e.acc[k]
+	if e.feasibleMode(thr) {
+		return dn*e.wt[k] > sn || (pm > 0 && pm*sn > acc4) || acc4 <= -thr*sn || !(sn > 0)
+	}
+	return dn*e.wt[k] >= thr*sn || (pm > 0 && pm*sn >= thr*acc4)
+}
+
+// gammaCap returns the bound on |Γ|² at point k that a network must stay
+// below to beat thr, and whether the bound itself is allowed (≤ rather
+// than <).
+func (e *engine) gammaCap(k int, thr float64) (c float64, allowed bool) {
+	if e.feasibleMode(thr) {
+		return math.Min(1/e.wt[k], 1+thr), true
+	}
+	return thr / e.wt[k], false
+}
+
+// powerFloor returns the least G_T at point k a network must exceed (or
+// reach) to beat thr; 0 when the power does not bound it.
+func (e *engine) powerFloor(k int, thr float64) float64 {
+	if e.feasibleMode(thr) {
+		return math.Max(e.pmin[k], -thr)
+	}
+	return e.pmin[k] / thr
 }
 
 // kinds of part value tables
@@ -234,7 +381,7 @@ const (
 )
 
 func kindTab(k Kind) int {
-	if k.Part() == parts.KindL {
+	if k.Component() == rfmath.ComponentL {
 		return tabL
 	}
 	return tabC
@@ -248,7 +395,10 @@ type engine struct {
 	pts    points
 	K      int
 	v0, i0 []complex128 // at the load: 1 + Γ, 1 − Γ
-	wt     []float64    // per point: 10^(requirement/10), so wt·|Γ|² < 1 meets it
+	wt     []float64    // per point: 10^(requirement/10), so wt·|Γ|² ≤ 1 meets it
+	pmin   []float64    // per point: the least share of the power at the load asked
+	acc    []float64    // per point: Re(v0·i0*) = 1 − |Γ|², the load's power in the walk's units (at least 0)
+	obj    Objective
 	ser    [2]*parts.Series
 	first  [2]int // series index of table row 0
 	count  [2]int
@@ -274,7 +424,7 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 	if set.Top < 1 {
 		return nil, fmt.Errorf("match: top %d; want at least 1", set.Top)
 	}
-	e := &engine{l: l, bands: bands, pts: pts, K: len(pts.freqHz)}
+	e := &engine{l: l, bands: bands, pts: pts, K: len(pts.freqHz), obj: set.Objective}
 	for j, name := range []string{set.LSeries, set.CSeries} {
 		if e.ser[j], err = parts.Lookup(name); err != nil {
 			return nil, err
@@ -283,9 +433,14 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 	e.v0 = make([]complex128, e.K)
 	e.i0 = make([]complex128, e.K)
 	e.wt = make([]float64, e.K)
+	e.pmin = make([]float64, e.K)
+	e.acc = make([]float64, e.K)
 	for k, g := range pts.gamma {
 		e.v0[k], e.i0[k] = 1+g, 1-g
-		e.wt[k] = math.Pow(10, bands[pts.band[k]].MinReturnLossDB/10)
+		e.wt[k] = math.Pow(10, pts.minRLdB[k]/10)
+		e.pmin[k] = pts.minPower[k]
+		// A point where noise makes the load look active takes no power.
+		e.acc[k] = math.Max(realDot(e.v0[k], e.i0[k]), 0)
 	}
 
 	// Value ranges.
@@ -322,19 +477,17 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 		e.first[j], e.count[j] = first, last-first+1
 	}
 
-	// Tables of part impedances, by the closed forms of Circuit.
-	for j, pk := range []parts.Kind{parts.KindL, parts.KindC} {
+	// Tables of part impedances, by the compiled forms of rfmath.Circuit.
+	for j, pk := range []Kind{SeriesL, SeriesC} {
 		n := e.count[j]
 		e.z[j] = make([]complex128, n*e.K)
 		e.y[j] = make([]complex128, n*e.K)
 		for r := range n {
-			p := set.Model.Part(pk, e.ser[j].Value(e.first[j]+r))
-			ser, sh := compile(p, false), compile(p, true)
+			c := (Part{Kind: pk, Model: set.Model}).Component(e.ser[j].Value(e.first[j] + r))
+			pair := rfmath.Ladder{rfmath.Series{Part: c}, rfmath.Shunt{Part: c}}.Circuit()
 			for k, f := range pts.freqHz {
-				w := 2 * math.Pi * f
-				zz, yy := ser.step(f, w), sh.step(f, w)
-				e.z[j][r*e.K+k] = complex(real(zz)/z0, imag(zz)/z0)
-				e.y[j][r*e.K+k] = complex(real(yy)*z0, imag(yy)*z0)
+				e.z[j][r*e.K+k], _, _ = pair.Step(0, f, z0)
+				e.y[j][r*e.K+k], _, _ = pair.Step(1, f, z0)
 			}
 		}
 	}
@@ -695,9 +848,10 @@ func (e *engine) result(res *Result, tops [][]Kind, best []candidate, set *Setti
 			res.CRange = lim
 		}
 	}
+	res.Objective = set.Objective
 	for _, t := range order {
-		n := e.network(tops[t], best[t].idx)
-		m, err := Evaluate(e.l, e.bands, n, set.Model)
+		n := e.network(tops[t], best[t].idx, set.Model)
+		m, err := Evaluate(e.l, e.bands, n)
 		if err != nil {
 			return nil, err
 		}
@@ -706,12 +860,13 @@ func (e *engine) result(res *Result, tops [][]Kind, best []candidate, set *Setti
 	return res, nil
 }
 
-// network returns the parts of shape top at table rows idx.
-func (e *engine) network(top []Kind, idx []int) Network {
+// network returns the parts of shape top at table rows idx, made by the
+// model m.
+func (e *engine) network(top []Kind, idx []int, m parts.Model) Network {
 	n := make(Network, len(top))
 	for p, k := range top {
 		j := kindTab(k)
-		n[p] = Part{Kind: k, Value: e.ser[j].Value(e.first[j] + idx[p]), Series: e.ser[j].Name()}
+		n[p] = Part{Kind: k, Value: e.ser[j].Value(e.first[j] + idx[p]), Series: e.ser[j].Name(), Model: m}
 	}
 	return n
 }
@@ -760,7 +915,7 @@ func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
 		lo[p] = math.Log(e.ser[j].Value(e.first[j]))
 		hi[p] = math.Log(e.ser[j].Value(e.first[j] + e.count[j] - 1))
 	}
-	net := e.network(top, make([]int, n))
+	net := e.network(top, make([]int, n), model)
 	obj := func(x []float64) float64 {
 		pen := 0.0
 		for p := range n {
@@ -768,13 +923,24 @@ func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
 			pen += (x[p] - v) * (x[p] - v)
 			net[p].Value = math.Exp(v)
 		}
-		c := net.Circuit(model)
-		worst := 0.0
-		for _, k := range sub {
-			g := c.GammaAt(e.pts.freqHz[k], e.pts.gamma[k], e.l.Z0Ohm)
-			worst = math.Max(worst, (real(g)*real(g)+imag(g)*imag(g))*e.wt[k])
+		c, err := net.Circuit()
+		if err != nil {
+			return math.Inf(1)
 		}
-		return math.Log(worst+1e-300) + 10*pen
+		var sc score
+		for _, k := range sub {
+			g, gt := c.PowerAt(e.pts.freqHz[k], e.pts.gamma[k], e.l.Z0Ohm)
+			q := (real(g)*real(g) + imag(g)*imag(g)) * e.wt[k]
+			if pm := e.pmin[k]; pm > 0 {
+				q = math.Max(q, pm/math.Max(gt, 1e-300))
+			}
+			sc.add(q, gt)
+		}
+		key := e.key(sc)
+		if key > 1 || e.obj == ReturnLoss {
+			key = math.Log(key + 1e-300) // infeasible: log of the worst ratio, above 0
+		}
+		return key + 10*pen
 	}
 	var out [][]int
 	seen := map[string]bool{}

@@ -24,8 +24,24 @@ func shapeKey(n Network) string {
 }
 
 type bruteBest struct {
-	net    Network
-	margin float64
+	net Network
+	m   Metrics
+}
+
+// objValue returns how good the metrics m are by the objective obj, as the
+// test reads the objective's definition (Search's doc): larger is better.
+// Under PowerToLoad a network that meets every requirement is worth
+// 1 + its least share of power at the load (at least 1), one that misses
+// is worth its margin in dB made negative-definite (below 1); under
+// ReturnLoss a network is worth its margin. Ties are within 1e-9.
+func objValue(m Metrics, obj Objective) float64 {
+	if obj == PowerToLoad {
+		if m.Meets() {
+			return 1 + m.WorstPowerToLoad
+		}
+		return 1 - math.Pow(10, -m.MarginDB/10) // Q > 1 maps below 0
+	}
+	return m.MarginDB
 }
 
 // bruteForce is the test's own oracle: every network of every shape of
@@ -54,18 +70,18 @@ func bruteForce(t *testing.T, l Load, bands []Band, set *Settings) map[string]br
 			var rec func(p int)
 			rec = func(p int) {
 				if p == n {
-					m, err := Evaluate(l, bands, net, set.Model)
+					m, err := Evaluate(l, bands, net.WithModel(set.Model))
 					if err != nil {
 						t.Fatal(err)
 					}
 					k := shapeKey(net)
-					if b, ok := out[k]; !ok || m.MarginDB > b.margin {
-						out[k] = bruteBest{append(Network(nil), net...), m.MarginDB}
+					if b, ok := out[k]; !ok || objValue(m, set.Objective) > objValue(b.m, set.Objective) {
+						out[k] = bruteBest{append(Network(nil), net...), m}
 					}
 					return
 				}
 				vs, ser := lv, set.LSeries
-				if top[p].Part() == parts.KindC {
+				if top[p].Component() == parts.KindC {
 					vs, ser = cv, set.CSeries
 				}
 				for _, v := range vs {
@@ -81,8 +97,9 @@ func bruteForce(t *testing.T, l Load, bands []Band, set *Settings) map[string]br
 
 // TestSearchAgainstBruteForce checks that the search returns, for every
 // shape, the same best network as the test's plain exhaustive search over
-// the same standard values, with ideal and modelled parts, one band and two
-// bands of different requirements.
+// the same standard values, judged by Evaluate and the objective as its
+// doc defines it, with ideal and modelled parts, one band, two bands of
+// different requirements, a power requirement, and both objectives.
 func TestSearchAgainstBruteForce(t *testing.T) {
 	t.Parallel()
 	hi := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
@@ -94,54 +111,63 @@ func TestSearchAgainstBruteForce(t *testing.T) {
 		set   Settings
 		long  bool
 	}{
-		{"one band, ideal, E12", hi, []Band{{2.4e9, 2.4835e9, 10}},
+		{"one band, ideal, E12", hi, []Band{{2.4e9, 2.4835e9, 10, 0}},
 			Settings{LSeries: "E12", CSeries: "E12", MinParts: 1, MaxParts: 3,
 				LRange: [2]float64{0.5e-9, 15e-9}, CRange: [2]float64{0.3e-12, 12e-12}}, false},
-		{"one band, 0402 models, E12", hi, []Band{{2.4e9, 2.4835e9, 10}},
+		{"one band, 0402 models, E12", hi, []Band{{2.4e9, 2.4835e9, 10, 0}},
 			Settings{LSeries: "E12", CSeries: "E12", MinParts: 1, MaxParts: 3, Model: parts.Typical0402,
 				LRange: [2]float64{1e-9, 15e-9}, CRange: [2]float64{0.3e-12, 12e-12}}, false},
-		{"two bands 12 and 10 dB, 0603 models, E12 L, E6 C", lo, []Band{{863e6, 870e6, 12}, {902e6, 928e6, 10}},
+		{"two bands 12 and 10 dB, 0603 models, E12 L, E6 C", lo, []Band{{863e6, 870e6, 12, 0}, {902e6, 928e6, 10, 0}},
 			Settings{LSeries: "E12", CSeries: "E6", MinParts: 2, MaxParts: 3, Model: parts.Typical0603,
 				LRange: [2]float64{1e-9, 100e-9}, CRange: [2]float64{0.5e-12, 47e-12}}, false},
-		{"four parts, E6", hi, []Band{{2.4e9, 2.4835e9, 10}},
+		{"two bands, power required, 0402 models, E12", lo, []Band{{863e6, 870e6, 6, 0.7}, {902e6, 928e6, 8, 0.6}},
+			Settings{LSeries: "E12", CSeries: "E12", MinParts: 2, MaxParts: 3, Model: parts.Typical0402,
+				LRange: [2]float64{1e-9, 100e-9}, CRange: [2]float64{0.5e-12, 47e-12}}, false},
+		{"constant Q 20/200, E12", hi, []Band{{2.4e9, 2.4835e9, 10, 0}},
+			Settings{LSeries: "E12", CSeries: "E12", MinParts: 1, MaxParts: 3, Model: parts.ConstantQ{QL: 20, QC: 200},
+				LRange: [2]float64{0.5e-9, 15e-9}, CRange: [2]float64{0.3e-12, 12e-12}}, false},
+		{"four parts, E6", hi, []Band{{2.4e9, 2.4835e9, 10, 0}},
 			Settings{LSeries: "E6", CSeries: "E6", MinParts: 4, MaxParts: 4,
 				LRange: [2]float64{0.68e-9, 10e-9}, CRange: [2]float64{0.47e-12, 10e-12}}, true},
 	} {
-		t.Run(tc.name, func(t *testing.T) {
-			t.Parallel()
-			if tc.long && testing.Short() {
-				t.Skip("long")
-			}
-			set := tc.set
-			set.Top = 1000
-			set.Window = -1
-			res, err := Search(context.Background(), tc.l, tc.bands, &set)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !res.Exact {
-				t.Errorf("not exact")
-			}
-			want := bruteForce(t, tc.l, tc.bands, &set)
-			if len(res.Designs) != len(want) {
-				t.Fatalf("%d designs, brute force has %d shapes", len(res.Designs), len(want))
-			}
-			prev := math.Inf(1)
-			for _, d := range res.Designs {
-				b, ok := want[shapeKey(d.Network)]
-				if !ok {
-					t.Fatalf("shape %s not in the brute force", shapeKey(d.Network))
+		for _, obj := range []Objective{PowerToLoad, ReturnLoss} {
+			t.Run(tc.name+"/"+obj.String(), func(t *testing.T) {
+				t.Parallel()
+				if tc.long && testing.Short() {
+					t.Skip("long")
 				}
-				same := d.Network.String() == b.net.String()
-				if !same && math.Abs(d.MarginDB-b.margin) > 1e-9 || math.Abs(d.MarginDB-b.margin) > 1e-9 {
-					t.Errorf("%s: search %v (%.12g dB), brute force %v (%.12g dB)", shapeKey(d.Network), d.Network, d.MarginDB, b.net, b.margin)
+				set := tc.set
+				set.Objective = obj
+				set.Top = 1000
+				set.Window = -1
+				res, err := Search(context.Background(), tc.l, tc.bands, &set)
+				if err != nil {
+					t.Fatal(err)
 				}
-				if d.MarginDB > prev+1e-9 {
-					t.Errorf("designs not sorted: %v after %v", d.MarginDB, prev)
+				if !res.Exact {
+					t.Errorf("not exact")
 				}
-				prev = d.MarginDB
-			}
-		})
+				want := bruteForce(t, tc.l, tc.bands, &set)
+				if len(res.Designs) != len(want) {
+					t.Fatalf("%d designs, brute force has %d shapes", len(res.Designs), len(want))
+				}
+				prev := math.Inf(1)
+				for _, d := range res.Designs {
+					b, ok := want[shapeKey(d.Network)]
+					if !ok {
+						t.Fatalf("shape %s not in the brute force", shapeKey(d.Network))
+					}
+					got, exp := objValue(d.Metrics, obj), objValue(b.m, obj)
+					if d.Network.String() != b.net.String() && math.Abs(got-exp) > 1e-9 {
+						t.Errorf("%s: search %v (%.12g), brute force %v (%.12g)", shapeKey(d.Network), d.Network, got, b.net, exp)
+					}
+					if got > prev+1e-9 {
+						t.Errorf("designs not sorted: %v after %v", got, prev)
+					}
+					prev = got
+				}
+			})
+		}
 	}
 }
 
@@ -155,7 +181,7 @@ func TestSearchAgainstExhaustive(t *testing.T) {
 	}
 	t.Parallel()
 	l := loadOf(grid(2.4e9, 2.4835e9, 41), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
 	for _, m := range []parts.Model{nil, parts.Typical0402} {
 		set := &Settings{MaxParts: 3, Model: m}
 		a, err := Search(context.Background(), l, bands, set)
@@ -191,13 +217,13 @@ func TestSearchBeatsSnappedL(t *testing.T) {
 		bands []Band
 		set   Settings
 	}{
-		{"2.4 GHz antenna, E12 ideal", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10}},
+		{"2.4 GHz antenna, E12 ideal", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10, 0}},
 			Settings{LSeries: "E12", CSeries: "E12", MaxParts: 2}},
-		{"2.4 GHz antenna, E24 0402", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10}},
+		{"2.4 GHz antenna, E24 0402", loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna), []Band{{2.4e9, 2.4835e9, 10, 0}},
 			Settings{MaxParts: 3, Model: parts.Typical0402}},
 		{"Pozar 5.1 load, 480–520 MHz", loadOf(grid(400e6, 600e6, 81), 100, func(float64) complex128 { return complex(200, -100) }),
-			[]Band{{480e6, 520e6, 15}}, Settings{MaxParts: 2}},
-		{"two bands, E24 0603", loadOf(grid(800e6, 1000e6, 201), 50, lowBandAntenna), []Band{{863e6, 870e6, 10}, {902e6, 928e6, 10}},
+			[]Band{{480e6, 520e6, 15, 0}}, Settings{MaxParts: 2}},
+		{"two bands, E24 0603", loadOf(grid(800e6, 1000e6, 201), 50, lowBandAntenna), []Band{{863e6, 870e6, 10, 0}, {902e6, 928e6, 10, 0}},
 			Settings{MaxParts: 3, Model: parts.Typical0603}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -220,7 +246,7 @@ func TestSearchBeatsSnappedL(t *testing.T) {
 				inRange := len(n) > 0
 				for i, p := range n {
 					ser, r := set.LSeries, res.LRange
-					if p.Kind.Part() == parts.KindC {
+					if p.Kind.Component() == parts.KindC {
 						ser, r = set.CSeries, res.CRange
 					}
 					n[i].Value = parts.Nearest(p.Value, ser)
@@ -230,7 +256,7 @@ func TestSearchBeatsSnappedL(t *testing.T) {
 					continue
 				}
 				tried++
-				m, err := Evaluate(tc.l, tc.bands, n, set.Model)
+				m, err := Evaluate(tc.l, tc.bands, n.WithModel(set.Model))
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -251,7 +277,7 @@ func TestSearchBeatsSnappedL(t *testing.T) {
 func TestSearchWindow(t *testing.T) {
 	t.Parallel()
 	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
 	base := Settings{LSeries: "E12", CSeries: "E12", MaxParts: 3, Top: 1}
 	whole := base
 	whole.Window = -1
@@ -288,7 +314,7 @@ func TestSearchWindow(t *testing.T) {
 func TestSearchProgressCancel(t *testing.T) {
 	t.Parallel()
 	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
 	var calls, last, total int
 	set := &Settings{MaxParts: 3, Progress: func(done, tot int) {
 		if done < last || tot != total && total != 0 {
@@ -320,7 +346,7 @@ func TestSearchProgressCancel(t *testing.T) {
 func TestSearchErrors(t *testing.T) {
 	t.Parallel()
 	l := loadOf(grid(2.3e9, 2.6e9, 61), 50, smallAntenna)
-	ok := []Band{{2.4e9, 2.5e9, 10}}
+	ok := []Band{{2.4e9, 2.5e9, 10, 0}}
 	for _, tc := range []struct {
 		name  string
 		l     Load
@@ -329,8 +355,8 @@ func TestSearchErrors(t *testing.T) {
 		want  error
 	}{
 		{"no band", l, nil, Settings{}, ErrBand},
-		{"band outside", l, []Band{{2.5e9, 2.7e9, 10}}, Settings{}, ErrBand},
-		{"reversed band", l, []Band{{2.5e9, 2.4e9, 10}}, Settings{}, ErrBand},
+		{"band outside", l, []Band{{2.5e9, 2.7e9, 10, 0}}, Settings{}, ErrBand},
+		{"reversed band", l, []Band{{2.5e9, 2.4e9, 10, 0}}, Settings{}, ErrBand},
 		{"empty load", Load{Z0Ohm: 50}, ok, Settings{}, ErrNoLoad},
 		{"bad series", l, ok, Settings{LSeries: "E7"}, parts.ErrUnknownSeries},
 		{"empty range", l, ok, Settings{LRange: [2]float64{1.3e-9, 1.4e-9}, LSeries: "E12"}, ErrRange},
@@ -376,14 +402,14 @@ func TestTopologies(t *testing.T) {
 // space allocate nothing per frequency.
 func TestZeroAlloc(t *testing.T) {
 	l := loadOf(grid(2.4e9, 2.5e9, 201), 50, smallAntenna)
-	n := Network{{ShuntL, 2.2e-9, ""}, {SeriesC, 1.5e-12, ""}, {ShuntC, 1e-12, ""}, {SeriesL, 3.3e-9, ""}}
-	c := n.Circuit(parts.Typical0402)
+	n := Network{{Kind: ShuntL, Value: 2.2e-9, Series: ""}, {Kind: SeriesC, Value: 1.5e-12, Series: ""}, {Kind: ShuntC, Value: 1e-12, Series: ""}, {Kind: SeriesL, Value: 3.3e-9, Series: ""}}
+	c := compiled(t, n, parts.Typical0402)
 	dst := make([]complex128, len(l.FreqHz))
 	if a := testing.AllocsPerRun(10, func() { c.GammaTo(dst, l.FreqHz, l.Gamma, 50) }); a != 0 {
 		t.Errorf("GammaTo allocates %v times", a)
 	}
 	set := (&Settings{MaxParts: 3}).defaults()
-	e, err := newEngine(l, []Band{{2.4e9, 2.5e9, 10}}, &set)
+	e, err := newEngine(l, []Band{{2.4e9, 2.5e9, 10, 0}}, &set)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -412,14 +438,14 @@ func TestCircuitAgainstLadder(t *testing.T) {
 		for i := range n {
 			k := kinds[rnd.IntN(4)]
 			v := math.Pow(10, -9.5+2*rnd.Float64()) // 0.3 to 30 nH
-			if k.Part() == parts.KindC {
+			if k.Component() == parts.KindC {
 				v = math.Pow(10, -12.5+2*rnd.Float64()) // 0.3 to 30 pF
 			}
 			n[i] = Part{Kind: k, Value: v}
 		}
 		m := models[trial%len(models)]
-		c := n.Circuit(m)
-		lad := n.Ladder(m)
+		c := compiled(t, n, m)
+		lad := ladderOf(t, n, m)
 		for k, f := range l.FreqHz {
 			got := c.GammaAt(f, l.Gamma[k], 50)
 			want := lad.InputGamma(f, l.Gamma[k], 50)

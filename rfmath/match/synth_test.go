@@ -21,7 +21,11 @@ func relClose(a, b, tol float64) bool {
 // inputZ returns the input impedance of n (ideal parts) on zLoad at fHz,
 // computed by rfmath's ABCD cascade: independent of the synthesis formulas.
 func inputZ(n Network, zLoad complex128, fHz float64) complex128 {
-	return n.Ladder(nil).InputZ(fHz, zLoad)
+	l, err := n.Ladder()
+	if err != nil {
+		panic(err)
+	}
+	return l.InputZ(fHz, zLoad)
 }
 
 // findL returns the solution of the given orientation whose shunt

@@ -28,7 +28,7 @@ type walker struct {
 	gen   []uint64
 	clock uint64
 
-	thr     float64 // drop a network whose worst weighted |Γ|² reaches thr
+	thr     float64 // drop a network whose key provably reaches thr
 	best    float64
 	bestIdx []int
 	checked int64
@@ -111,6 +111,9 @@ func (w *walker) level(ctx context.Context, prog *progress, p int) error {
 				prog.add(1)
 			}
 		}
+		if w.inefficient(p) {
+			continue
+		}
 		if p == w.n-2 {
 			w.leaves()
 			continue
@@ -187,7 +190,39 @@ func (w *walker) hopeless2() bool {
 			continue
 		}
 		r := 1/g + b.rmax[k]
-		if r < 1 && (1-r)*(1-r)*w.e.wt[k] >= w.thr*(1+r)*(1+r) {
+		if r >= 1 {
+			continue
+		}
+		c, allowed := w.e.gammaCap(k, w.thr)
+		lo, hi := (1-r)*(1-r), c*(1+r)*(1+r) // |Γ|² ≥ lo/(1+r)², the cap is hi/(1+r)²
+		if lo > hi || (!allowed && lo >= hi) {
+			return true
+		}
+	}
+	return false
+}
+
+// efficiencyPoints is how many of the first points in the order the
+// efficiency bound of inefficient is tried at.
+const efficiencyPoints = 2
+
+// inefficient reports whether the partial network of levels 0 … p is
+// already too lossy to win: its efficiency η = P_load/P_in at a point is
+// below the least G_T a winner needs there (the parts still to come can
+// only lose power, so the whole network's G_T ≤ η). In the walk's units
+// η = acc/Re(v·i*). The bound is widened by 1e-9 so that rounding never
+// drops a network the full check would keep.
+func (w *walker) inefficient(p int) bool {
+	e := w.e
+	for q := 0; q < efficiencyPoints && q < len(e.ord); q++ {
+		k := e.ord[q]
+		floor := e.powerFloor(k, w.thr)
+		if !(floor > 0) {
+			continue
+		}
+		v, i := w.state(p, k)
+		in := realDot(v, i)
+		if in > 0 && e.acc[k]*(1+1e-9) < floor*in {
 			return true
 		}
 	}
@@ -203,7 +238,6 @@ func (w *walker) leaves() {
 	p := w.n - 1
 	shunt := w.shunt[p]
 	ord := e.ord
-	wt := e.wt
 	var sv, si []complex128
 	var stamp []uint64
 	var gen uint64
@@ -235,10 +269,7 @@ func (w *walker) leaves() {
 			} else {
 				v += x * i
 			}
-			d, s := v-i, v+i
-			num := real(d)*real(d) + imag(d)*imag(d)
-			den := real(s)*real(s) + imag(s)*imag(s)
-			if num*wt[k] >= w.thr*den {
+			if e.fails(k, v, i, w.thr) {
 				if q > 0 {
 					copy(ord[1:q+1], ord[:q])
 					ord[0] = k
@@ -250,8 +281,8 @@ func (w *walker) leaves() {
 		if !ok {
 			continue
 		}
-		// A survivor: its exact worst ratio, in the order of Exhaustive.
-		worst := 0.0
+		// A survivor: its exact key, in the order of Exhaustive.
+		var sc score
 		for k := range K {
 			var v, i complex128
 			if p == 0 {
@@ -265,9 +296,9 @@ func (w *walker) leaves() {
 			} else {
 				v += x * i
 			}
-			d, s := v-i, v+i
-			worst = math.Max(worst, (real(d)*real(d)+imag(d)*imag(d))*wt[k]/(real(s)*real(s)+imag(s)*imag(s)))
+			e.addPoint(&sc, k, v, i)
 		}
+		worst := e.key(sc)
 		w.idx[p] = j
 		if worst < w.best {
 			w.best = worst
@@ -285,8 +316,9 @@ func (w *walker) leaves() {
 //
 // With u the normalised impedance after the last part (series: u = v/i +
 // z; shunt: the admittance u = i/v + y, where Γ changes only its sign), a
-// network survives at k0 when |u − 1|²·wt < thr·|u + 1|², that is, with
-// c = thr/wt < 1, when u lies inside the Apollonius circle
+// network survives at k0 only when |Γ|² = |u − 1|²/|u + 1|² stays within
+// the cap c < 1 the incumbent sets there ([engine.gammaCap]), that is,
+// when u lies inside the Apollonius circle
 //
 //	|u − a|² < a² − 1,   a = (1 + c)/(1 − c)
 //
@@ -301,7 +333,7 @@ func (w *walker) rows(p int) []int32 {
 	k := e.ord[0]
 	st := w.srt[p]
 	all := st.perm[k*st.n : (k+1)*st.n]
-	c := w.thr / e.wt[k]
+	c, _ := e.gammaCap(k, w.thr)
 	if !(c < 1) {
 		return all
 	}

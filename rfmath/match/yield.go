@@ -38,11 +38,9 @@ type YieldSettings struct {
 	// Dist is the spread of each part within its tolerance.
 	Dist Distribution
 	// Tolerances gives each part's tolerance, in the network's order; nil
-	// means [parts.DefaultTolerance] of each part's kind. A wrong length
-	// is an error.
+	// means each part's own ([Part.Tolerance]: its own figures, else the
+	// typical tolerance of its kind). A wrong length is an error.
 	Tolerances []parts.Tolerance
-	// Model makes the parts; nil means ideal parts.
-	Model parts.Model
 	// Traces is the number of builds (the first ones) whose reflection at
 	// every frequency of the load is returned, for drawing the spread.
 	Traces int
@@ -92,7 +90,10 @@ type Sensitivity struct {
 // Yield builds the network n many times with each part's value drawn at
 // random within its tolerance (Settings.Dist, with gonum's distuv
 // distributions) and reports the share of builds that meet every band's
-// requirement on the load, judged as [Evaluate] does. It also reports the
+// requirement on the load (return loss and power to the load), judged by
+// [Evaluate]'s own evaluator. Each build keeps every part's model and own
+// figures; only the values move. Pass n.Built() to draw about the standard
+// values. It also reports the
 // worst corner (all 2ⁿ builds with every part at one end of its tolerance;
 // a corner is the usual worst case but not always the worst build) and,
 // for each part alone, how much margin its tolerance can cost.
@@ -117,14 +118,14 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 	if set.Seed == 0 {
 		set.Seed = 1
 	}
-	if set.Model == nil {
-		set.Model = parts.Ideal
-	}
 	tol := make([]float64, len(n))
 	switch {
 	case set.Tolerances == nil:
 		for i, p := range n {
-			tol[i] = parts.DefaultTolerance(p.Kind.Part()).Of(p.Value)
+			tol[i] = p.Tolerance().Of(p.Value)
+			if tol[i] >= p.Value {
+				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+			}
 		}
 	case len(set.Tolerances) != len(n):
 		return nil, fmt.Errorf("match: %d tolerances for %d parts", len(set.Tolerances), len(n))
@@ -136,14 +137,20 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			}
 		}
 	}
-	pts, err := bandPoints(l, bands)
+	j, err := newJudge(l, bands)
 	if err != nil {
 		return nil, err
 	}
-	g := make([]complex128, len(pts.freqHz))
+	if _, err := n.Circuit(); err != nil {
+		return nil, err
+	}
+	// A build's parts: every value drawn is positive, so it always builds.
 	margin := func(b Network) Metrics {
-		b.Circuit(set.Model).GammaTo(g, pts.freqHz, pts.gamma, l.Z0Ohm)
-		return metricsOf(pts, bands, g)
+		c, err := b.Circuit()
+		if err != nil {
+			return Metrics{MarginDB: math.Inf(-1)}
+		}
+		return j.metrics(c)
 	}
 	res := &YieldResult{Builds: set.Builds, Nominal: margin(n)}
 
@@ -167,7 +174,7 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			draw[i] = d.Rand
 		}
 	}
-	b := append(Network(nil), n...)
+	b := n.Clone()
 	margins := make([]float64, set.Builds)
 	for k := range set.Builds {
 		if k%256 == 0 {
@@ -184,7 +191,8 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			res.Passed++
 		}
 		if k < set.Traces {
-			res.Traces = append(res.Traces, b.Circuit(set.Model).GammaTo(nil, l.FreqHz, l.Gamma, l.Z0Ohm))
+			c, _ := b.Circuit()
+			res.Traces = append(res.Traces, c.GammaTo(nil, l.FreqHz, l.Gamma, l.Z0Ohm))
 		}
 	}
 	if set.Builds > 0 {

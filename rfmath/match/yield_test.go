@@ -16,7 +16,7 @@ import (
 func yieldCase(t *testing.T) (Load, []Band, Network) {
 	t.Helper()
 	l := loadOf(grid(2.3e9, 2.6e9, 121), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.4835e9, 10}}
+	bands := []Band{{2.4e9, 2.4835e9, 10, 0}}
 	res, err := Search(context.Background(), l, bands, &Settings{MaxParts: 3, Top: 1})
 	if err != nil {
 		t.Fatal(err)
@@ -72,12 +72,12 @@ func TestYieldZeroTolerance(t *testing.T) {
 	t.Parallel()
 	l, bands, n := yieldCase(t)
 	zero := make([]parts.Tolerance, len(n))
-	nom, err := Evaluate(l, bands, n, nil)
+	nom, err := Evaluate(l, bands, n)
 	if err != nil {
 		t.Fatal(err)
 	}
 	for _, req := range []float64{nom.Bands[0].WorstRLdB - 0.5, nom.Bands[0].WorstRLdB + 0.5} {
-		b := []Band{{bands[0].LoHz, bands[0].HiHz, req}}
+		b := []Band{{bands[0].LoHz, bands[0].HiHz, req, 0}}
 		r, err := Yield(context.Background(), l, b, n, &YieldSettings{Builds: 200, Tolerances: zero, Dist: Normal})
 		if err != nil {
 			t.Fatal(err)
@@ -135,12 +135,12 @@ func TestYieldSensitivity(t *testing.T) {
 func TestYieldDefaults(t *testing.T) {
 	t.Parallel()
 	l, bands, n := yieldCase(t)
-	r, err := Yield(context.Background(), l, bands, n, &YieldSettings{Builds: 10, Model: parts.Typical0402})
+	r, err := Yield(context.Background(), l, bands, n.WithModel(parts.Typical0402), &YieldSettings{Builds: 10})
 	if err != nil {
 		t.Fatal(err)
 	}
 	for i, s := range r.Sensitivity {
-		if want := parts.DefaultTolerance(n[i].Kind.Part()).Of(n[i].Value); s.Tolerance != want {
+		if want := parts.DefaultTolerance(n[i].Kind.Component()).Of(n[i].Value); s.Tolerance != want {
 			t.Errorf("part %d tolerance %v, want %v", i, s.Tolerance, want)
 		}
 	}
@@ -158,7 +158,7 @@ func TestStress(t *testing.T) {
 	zl := complex(200, -100)
 	l := loadOf(grid(490e6, 510e6, 3), 100, func(float64) complex128 { return zl })
 	sols, _, _ := LNetworks(zl, 100, 500e6)
-	bands := []Band{{500e6, 500e6, 0}}
+	bands := []Band{{500e6, 500e6, 0, 0}}
 	for _, s := range sols {
 		rep, err := Stress(l, bands, s.Parts, StressSettings{PowerW: 1})
 		if err != nil {
@@ -189,17 +189,18 @@ func TestStress(t *testing.T) {
 func TestStressRandom(t *testing.T) {
 	t.Parallel()
 	l := loadOf(grid(2.3e9, 2.6e9, 31), 50, smallAntenna)
-	bands := []Band{{2.4e9, 2.5e9, 10}}
-	n := Network{{ShuntC, 1.2e-12, ""}, {SeriesL, 3.3e-9, ""}, {ShuntL, 4.7e-9, ""}, {SeriesC, 2.2e-12, ""}}
-	r1, err := Stress(l, bands, n, StressSettings{PowerW: 1, Model: parts.Typical0402})
+	bands := []Band{{2.4e9, 2.5e9, 10, 0}}
+	n := Network{{Kind: ShuntC, Value: 1.2e-12, Series: ""}, {Kind: SeriesL, Value: 3.3e-9, Series: ""}, {Kind: ShuntL, Value: 4.7e-9, Series: ""}, {Kind: SeriesC, Value: 2.2e-12, Series: ""}}
+	n = n.WithModel(parts.Typical0402)
+	r1, err := Stress(l, bands, n, StressSettings{PowerW: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
-	r4, err := Stress(l, bands, n, StressSettings{PowerW: 4, Model: parts.Typical0402})
+	r4, err := Stress(l, bands, n, StressSettings{PowerW: 4})
 	if err != nil {
 		t.Fatal(err)
 	}
-	lad := n.Ladder(parts.Typical0402)
+	lad := ladderOf(t, n, parts.Typical0402)
 	for k, st := range r1[3].PerFreq {
 		f := st.FreqHz
 		zl, _ := l.ZAt(f)
@@ -230,7 +231,8 @@ func TestStressRandom(t *testing.T) {
 func TestStressWarnings(t *testing.T) {
 	t.Parallel()
 	l, bands, n := yieldCase(t)
-	rep, err := Stress(l, bands, n, StressSettings{PowerW: 0.01, Model: parts.Typical0402})
+	n = n.WithModel(parts.Typical0402)
+	rep, err := Stress(l, bands, n, StressSettings{PowerW: 0.01})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -242,7 +244,7 @@ func TestStressWarnings(t *testing.T) {
 			t.Errorf("no rating from the 0402 family for %v", r.Part)
 		}
 	}
-	rep, err = Stress(l, bands, n, StressSettings{PowerW: 200, Model: parts.Typical0402})
+	rep, err = Stress(l, bands, n, StressSettings{PowerW: 200})
 	if err != nil {
 		t.Fatal(err)
 	}
