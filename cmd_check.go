@@ -31,7 +31,7 @@ type checkReport struct {
 type bandJSON struct {
 	LoHz            float64 `json:"lo_hz"`
 	HiHz            float64 `json:"hi_hz"`
-	Kind            string  `json:"kind"` // "rl" or "vswr"
+	Kind            string  `json:"kind"` // "rl", "vswr" or "power"
 	Value           float64 `json:"value"`
 	MinReturnLossDB float64 `json:"min_return_loss_db"`
 	Label           string  `json:"label,omitempty"`
@@ -53,7 +53,8 @@ type bandResultJSON struct {
 	Pass         bool    `json:"pass"`
 	FreqHz       float64 `json:"worst_hz"`
 	ReturnLossDB jsonNum `json:"worst_return_loss_db"`
-	MarginDB     jsonNum `json:"margin_db"` // null when not covered
+	PowerToLoad  jsonNum `json:"worst_power_to_load"` // share of the available power the load takes there, 1 − |Γ|²
+	MarginDB     jsonNum `json:"margin_db"`           // null when not covered
 }
 
 type checkDipJSON struct {
@@ -94,6 +95,14 @@ type limitFlag struct {
 func (l limitFlag) String() string { return "" }
 
 func (l limitFlag) Set(s string) error {
+	if l.kind == limits.Power {
+		v, err := limits.ParseShare(s)
+		if err != nil {
+			return err
+		}
+		*l.list = append(*l.list, limits.Band{Kind: l.kind, Value: v})
+		return nil
+	}
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
 	if err != nil {
 		return fmt.Errorf("%q is not a number", s)
@@ -105,7 +114,7 @@ func (l limitFlag) Set(s string) error {
 	return nil
 }
 
-const checkUsage = "FILE... --band LO:HI --rl DB [--band LO:HI --rl DB ...] [--limits FILE] [--port N] [--json]"
+const checkUsage = "FILE... --band LO:HI --rl DB|--vswr X|--min-power P [--band ...] [--limits FILE] [--port N] [--json]"
 
 func runCheck(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("check", checkUsage, stderr)
@@ -114,12 +123,13 @@ func runCheck(_ context.Context, args []string, stdout, stderr io.Writer) error 
 	fs.Var(&bandArgs, "band", "a band `LO:HI` to check, SI prefixes allowed (902M:928M); repeatable, each paired with the --rl or --vswr in the same place, or all with a single one")
 	fs.Var(limitFlag{limits.ReturnLoss, &lims}, "rl", "least return loss in `dB` over the band (repeatable)")
 	fs.Var(limitFlag{limits.VSWR, &lims}, "vswr", "greatest VSWR over the band, a `ratio` above 1 (repeatable)")
+	fs.Var(limitFlag{limits.Power, &lims}, "min-power", "least share of the available power the load takes over the band: a `percentage` (80%) or a loss (1dB) (repeatable)")
 	limitFile := fs.String("limits", "", "read bands and limits from this limit `file` (see the README for its format)")
 	port := fs.Int("port", 1, "check the reflection S(N,N) of this `port` of multi-port files")
 	asJSON := fs.Bool("json", false, "print one JSON object")
 	fs.Usage = func() {
 		fmt.Fprintf(stderr, "usage: matchbench check %s\n\n", checkUsage)
-		fmt.Fprintln(stderr, "Checks each sweep against return-loss or VSWR limits over bands. Exit code 0 when")
+		fmt.Fprintln(stderr, "Checks each sweep against return-loss, VSWR or power limits over bands. Exit code 0 when")
 		fmt.Fprintln(stderr, "every file passes, 1 when any fails or cannot be read, 2 for bad usage.")
 		fmt.Fprintln(stderr, "\nflags:")
 		fs.PrintDefaults()
@@ -159,9 +169,9 @@ func checkBands(bandArgs []string, lims []limits.Band, limitFile string) ([]limi
 	var bands []limits.Band
 	switch {
 	case len(bandArgs) == 0 && len(lims) > 0:
-		return nil, usagef("--rl and --vswr need a --band")
+		return nil, usagef("--rl, --vswr and --min-power need a --band")
 	case len(bandArgs) > 0 && len(lims) == 0:
-		return nil, usagef("--band needs a limit: --rl DB or --vswr X")
+		return nil, usagef("--band needs a limit: --rl DB, --vswr X or --min-power P")
 	case len(bandArgs) > 0 && len(lims) != 1 && len(lims) != len(bandArgs):
 		return nil, usagef("%d bands and %d limits: give one limit for all bands or one for each", len(bandArgs), len(lims))
 	}
@@ -293,7 +303,8 @@ func checkFile(path string, bands []limits.Band, port int) (checkFileJSON, []lim
 	res := limits.Check(s.FreqHz, g, bands)
 	out.Pass = true
 	for i, r := range res {
-		out.Bands = append(out.Bands, bandResultJSON{Band: i, Covered: r.Covered, Pass: r.Pass, FreqHz: r.WorstHz, ReturnLossDB: jsonNum(r.WorstReturnLossDB), MarginDB: jsonNum(r.MarginDB)})
+		out.Bands = append(out.Bands, bandResultJSON{Band: i, Covered: r.Covered, Pass: r.Pass, FreqHz: r.WorstHz, ReturnLossDB: jsonNum(r.WorstReturnLossDB),
+			PowerToLoad: jsonNum(r.WorstPowerToLoad), MarginDB: jsonNum(r.MarginDB)})
 		out.Pass = out.Pass && r.Pass
 	}
 	w := out.Bands[limits.Worst(res)]
@@ -318,8 +329,8 @@ func printCheck(w io.Writer, rep *checkReport, bands []limits.Band) {
 			if !f.Pass {
 				verdict = "FAIL"
 			}
-			fmt.Fprintf(w, "%-6s %s: margin %s dB at %s (RL %s dB; %s)\n", verdict, f.File,
-				signed(float64(f.Worst.MarginDB)), ff(f.Worst.FreqHz), fmtDB(float64(f.Worst.ReturnLossDB)), bands[f.Worst.Band])
+			fmt.Fprintf(w, "%-6s %s: margin %s dB at %s (RL %s dB, %s of the power to the load; %s)\n", verdict, f.File,
+				signed(float64(f.Worst.MarginDB)), ff(f.Worst.FreqHz), fmtDB(float64(f.Worst.ReturnLossDB)), units.FormatPercent(float64(f.Worst.PowerToLoad), 1), bands[f.Worst.Band])
 		}
 	}
 	s := rep.Summary

@@ -383,7 +383,7 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 		}
 		fmt.Fprintf(tw, "%d\t%s%s\t%s\t%s\t%s dB\t", i+1, strings.Join(ps, ", "), flag, units.FormatDB(d.WorstRLdB), units.FormatPercent(d.WorstPowerToLoad, 1), signed(d.MarginDB))
 		for _, b := range d.Bands {
-			fmt.Fprintf(tw, "%s / %s, %s / %s\t", fmtDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB), units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.MeanPowerToLoad, 1))
+			fmt.Fprintf(tw, "%s / %s, %s / %s\t", units.FormatDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB), units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.MeanPowerToLoad, 1))
 		}
 		if y := designs[i].Yield; y != nil {
 			fmt.Fprintf(tw, "%s\t", units.FormatPercent(*y, 1))

@@ -14,6 +14,10 @@ import (
 	"time"
 
 	"matchbench/internal/demo"
+	"matchbench/rfmath"
+	"matchbench/rfmath/deembed"
+	"matchbench/rfmath/match"
+	"matchbench/rfmath/parts"
 	"matchbench/rfmath/touchstone"
 	"matchbench/server"
 	"matchbench/sessions"
@@ -140,7 +144,12 @@ func shareHosts(addr *net.TCPAddr) []string {
 }
 
 // seedDemo creates the demo sessions when the store has none, and returns
-// the edit token of the first demo session ("" when none was made).
+// the edit token of the first demo session ("" when none was made). Each
+// demo shows the whole loop on invented data: the sweep as measured (for
+// the Fieldnode, through its cable, with the cable's fixture removed as a
+// reference-plane step), the bands, markers, and a network of standard
+// 0402 values chosen by the loss-aware search, with the search's designs
+// in the panel.
 func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 	list, err := st.List(ctx)
 	if err != nil || len(list) > 0 {
@@ -154,15 +163,17 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		name    string
 		visible []string
 		hidden  []string
+		fixture string // a 2-port file among hidden to remove from the first sweep, port 1 at the analyser
 		bands   []demo.Band
 		markers []float64
+		parts   int
 	}
 	plans := []plan{
 		{"Demo · Fieldnode trace antenna (invented data)",
-			[]string{"fieldnode-antenna.s1p"}, []string{"fieldnode-via-cable.s1p", "cable-open-end.s1p", "cable-fixture.s2p"},
-			demo.FieldnodeBands, []float64{866.5e6, 915e6}},
+			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p"}, "cable-fixture.s2p",
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3},
 		{"Demo · Wristtag chip antenna (invented data)",
-			[]string{"wristtag-antenna.s1p"}, nil, demo.WristtagBands, []float64{2.44e9}},
+			[]string{"wristtag-antenna.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3},
 	}
 	first := ""
 	for _, p := range plans {
@@ -173,7 +184,7 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		if first == "" {
 			first = se.EditToken
 		}
-		var firstSweep string
+		ids := map[string]string{}
 		for i, name := range append(append([]string{}, p.visible...), p.hidden...) {
 			f := files[name]
 			var b bytes.Buffer
@@ -188,25 +199,69 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 			if err != nil {
 				return "", err
 			}
-			if i == 0 {
-				firstSweep = ev.SweepID
-			}
+			ids[name] = ev.SweepID
 			if i >= len(p.visible) {
 				if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSweepVisible, SweepID: ev.SweepID, Visible: false}); err != nil {
 					return "", err
 				}
 			}
 		}
+		loadName := p.visible[0]
+		load := files[loadName].Sweep
+		if p.fixture != "" {
+			rp := &sessions.RefPlane{FixtureSweepID: ids[p.fixture], FixturePortFacingAnalyser: 1}
+			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: ids[loadName], RefPlane: rp}); err != nil {
+				return "", err
+			}
+			// The same removal the server applies to show the corrected sweep.
+			if load, err = deembed.Remove(load, []deembed.Fixture{{S: files[p.fixture].Sweep, AnalyserPort: 1}}); err != nil {
+				return "", err
+			}
+		}
+		var bands []match.Band
 		for _, b := range p.bands {
 			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB}); err != nil {
 				return "", err
 			}
+			bands = append(bands, match.Band{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: b.MinReturnLossDB})
 		}
 		for _, f := range p.markers {
-			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpMarkerAdd, SweepID: firstSweep, Port: 1, FreqHz: f}); err != nil {
+			if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpMarkerAdd, SweepID: ids[loadName], Port: 1, FreqHz: f}); err != nil {
 				return "", err
 			}
 		}
+		if err := seedSearch(ctx, st, se.ID, ids[loadName], load, bands, p.parts, p.markers[0]); err != nil {
+			return "", err
+		}
 	}
 	return first, nil
+}
+
+// seedSearch runs the loss-aware search of standard E24 values with
+// typical 0402 models on the demo's load, stores its designs in the
+// session as the panel's search would, and makes the best one the active
+// network.
+func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID string, sw *rfmath.Sweep, bands []match.Band, nParts int, designHz float64) error {
+	load, err := match.LoadFromSweep(sw, 0)
+	if err != nil {
+		return err
+	}
+	res, err := match.Search(ctx, load, bands, &match.Settings{Model: parts.Typical0402, MaxParts: nParts, Top: 6})
+	if err != nil {
+		return err
+	}
+	out := &sessions.SearchResult{SweepID: sweepID, Port: 1, Exact: res.Exact, Objective: res.Objective.String(),
+		Settings: fmt.Sprintf("up to %d parts, L from E24, C from E24, typical 0402 parts, best by power to the load", nParts)}
+	for _, d := range res.Designs {
+		sd := sessions.Design{WorstRLdB: d.WorstRLdB, MarginDB: d.MarginDB, WorstPowerToLoad: d.WorstPowerToLoad}
+		for _, p := range d.Network {
+			sd.Parts = append(sd.Parts, sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: "0402"})
+		}
+		out.Designs = append(out.Designs, sd)
+	}
+	if _, err := st.Apply(ctx, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
+		return err
+	}
+	_, err = st.Apply(ctx, sid, sessions.Change{Op: sessions.OpNetworkAdd, Name: "Search 1", SweepID: sweepID, Port: 1, DesignHz: designHz, Parts: out.Designs[0].Parts})
+	return err
 }

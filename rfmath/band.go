@@ -198,3 +198,27 @@ func (r Requirement) MarginDB(f BandFigures) float64 {
 	}
 	return m
 }
+
+// TraceBandFigures returns the figures of a load measured as the trace
+// gamma (at the increasing frequencies freqHz) over the band [loHz, hiHz],
+// with no network: at each of the band's points ([BandFreqs]) the load takes
+// 1 − |Γ|² of the available power. A band the trace does not cover returns
+// an error wrapping [ErrOutOfRange]. A gamma whose length differs from
+// freqHz panics.
+func TraceBandFigures(freqHz []float64, gamma []complex128, loHz, hiHz float64) (BandFigures, error) {
+	if len(gamma) != len(freqHz) {
+		panic(badSweepLength)
+	}
+	var buf [64]float64
+	fs, err := BandFreqs(buf[:0], freqHz, loHz, hiHz)
+	if err != nil {
+		return BandSummary{}.Figures(), err
+	}
+	var s BandSummary
+	for _, f := range fs {
+		g, _ := InterpGamma(freqHz, gamma, f)
+		gin, toLoad := Circuit{}.PowerAt(f, g, 1)
+		s.Add(f, gin, toLoad)
+	}
+	return s.Figures(), nil
+}

@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 
+	"matchbench/rfmath/limits"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
 )
@@ -69,11 +70,17 @@ func formChange(form string, f map[string]string) (sessions.Change, error) {
 		if err != nil {
 			return sessions.Change{}, err
 		}
+		var share float64
+		if t := strings.TrimSpace(f["minPower"]); t != "" {
+			if share, err = limits.ParseShare(t); err != nil {
+				return sessions.Change{}, &FieldError{form, "minPower", "Power to the load", err}
+			}
+		}
 		name := strings.TrimSpace(f["name"])
 		if name == "" {
 			name = units.FormatFrequency(lo, 5) + " – " + units.FormatFrequency(hi, 5)
 		}
-		return sessions.Change{Op: sessions.OpBandSet, BandID: f["bandId"], Name: name, LoHz: lo, HiHz: hi, MinReturnLossDB: math.Abs(rl)}, nil
+		return sessions.Change{Op: sessions.OpBandSet, BandID: f["bandId"], Name: name, LoHz: lo, HiHz: hi, MinReturnLossDB: math.Abs(rl), MinPowerToLoad: share}, nil
 	case "chart.set":
 		p := &sessions.ChartPatch{}
 		b := func(field string) *bool { v := f[field] == "true" || f[field] == "on"; return &v }

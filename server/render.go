@@ -323,9 +323,10 @@ func (sc *scene) plots() []plot {
 		}
 		rl = append(rl, chartsvg.Series{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: db(ne.result())})
 	}
-	var bands []chartsvg.Band
+	var bands, powerBands []chartsvg.Band
 	for _, b := range sc.st.Bands {
 		bands = append(bands, chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, Limit: -b.MinReturnLossDB, HasLimit: b.MinReturnLossDB > 0})
+		powerBands = append(powerBands, chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, Limit: 100 * b.MinPowerToLoad, HasLimit: b.MinPowerToLoad > 0})
 	}
 	mk := func(id, title, ylabel, yunit string, series []chartsvg.Series, bands []chartsvg.Band) plot {
 		p := chartsvg.Plot{Width: plotWidth, Height: plotHeight, Title: title, YLabel: ylabel, YUnit: yunit, IDPrefix: id + "-"}
@@ -338,6 +339,21 @@ func (sc *scene) plots() []plot {
 	sc.plotsC = []plot{
 		mk("refl", "Reflection |S11|", "|S11|", "dB", rl, bands),
 		mk("zx", "Impedance: R solid, X dashed", "R, X", "Ω", zx, nil),
+	}
+	if ne := sc.net; ne != nil && ne.err == nil && len(ne.n.Parts) > 0 {
+		// The power that reaches the load, with the network as built and
+		// with the load alone (1 − |Γ|²), in % of the available power.
+		with := make([]float64, len(ne.toLoad))
+		alone := make([]float64, len(ne.gLoad))
+		for k := range with {
+			with[k] = 100 * ne.toLoad[k]
+			alone[k] = 100 * rfmath.PowerDeliveredFraction(cmplx.Abs(ne.gLoad[k]))
+		}
+		series := []chartsvg.Series{
+			thinSeries(chartsvg.Series{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true}),
+			thinSeries(chartsvg.Series{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with}),
+		}
+		sc.plotsC = append(sc.plotsC, mk("power", "Power to the load, % of the available power", "to the load", "%", series, powerBands))
 	}
 	if p, _ := sc.tdrPlot(); p != nil {
 		sc.plotsC = append(sc.plotsC, *p)
@@ -437,42 +453,27 @@ func (sc *scene) readoutRows() []web.ReadoutRow {
 	return rows
 }
 
-// worstInBand returns the worst (least) return loss of trace t over
-// [lo, hi], using the measured points inside and the interpolated edges.
-func worstInBand(t *trace, lo, hi float64) (float64, bool) {
-	f := t.sweep.FreqHz
-	if lo < f[0] || hi > f[len(f)-1] {
-		return 0, false
-	}
-	worst := math.Inf(1)
-	for _, e := range []float64{lo, hi} {
-		if g, ok := t.at(e); ok {
-			worst = math.Min(worst, rfmath.ReturnLossDB(cmplx.Abs(g)))
-		}
-	}
-	for k, fk := range f {
-		if fk > lo && fk < hi {
-			worst = math.Min(worst, rfmath.ReturnLossDB(cmplx.Abs(t.gamma[k])))
-		}
-	}
-	return worst, true
-}
-
 func (sc *scene) bandRows() []web.BandRow {
 	var rows []web.BandRow
 	for _, b := range sc.st.Bands {
-		row := web.BandRow{ID: b.ID, Name: b.Name, Lo: fmtF(b.LoHz), Hi: fmtF(b.HiHz), LoHz: b.LoHz, HiHz: b.HiHz, MinRL: "—"}
+		row := web.BandRow{ID: b.ID, Name: b.Name, Lo: fmtF(b.LoHz), Hi: fmtF(b.HiHz), LoHz: b.LoHz, HiHz: b.HiHz, MinRL: "—", MinPower: "—"}
 		if b.MinReturnLossDB > 0 {
 			row.MinRL = fmtNum(b.MinReturnLossDB, 1) + " dB"
+			row.MinRLValue = strconv.FormatFloat(b.MinReturnLossDB, 'g', -1, 64)
 		}
+		if b.MinPowerToLoad > 0 {
+			row.MinPower = strconv.FormatFloat(100*b.MinPowerToLoad, 'g', 4, 64) + " %"
+			row.MinPowerValue = strconv.FormatFloat(100*b.MinPowerToLoad, 'g', -1, 64) + "%"
+		}
+		req := rfmath.Requirement{MinReturnLossDB: b.MinReturnLossDB, MinPowerToLoad: b.MinPowerToLoad}
 		for _, t := range sc.traces {
-			w, ok := worstInBand(t, b.LoHz, b.HiHz)
-			if !ok {
+			fig, err := rfmath.TraceBandFigures(t.sweep.FreqHz, t.gamma, b.LoHz, b.HiHz)
+			if err != nil {
 				continue
 			}
 			row.Worst = append(row.Worst, web.BandResult{
-				Sweep: t.ref.Name, Color: t.ref.Color, Worst: fmtDB(w),
-				Has: b.MinReturnLossDB > 0, Pass: w >= b.MinReturnLossDB,
+				Sweep: t.ref.Name, Color: t.ref.Color, Worst: fmtDB(fig.WorstRLdB), Power: units.FormatPercent(fig.WorstPowerToLoad, 1),
+				Has: req.Any(), Pass: req.MarginDB(fig) >= 0,
 			})
 		}
 		rows = append(rows, row)

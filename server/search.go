@@ -378,8 +378,9 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 	var bs []string
 	for _, b := range m.Bands {
 		before = math.Min(before, b.Unmatched.WorstPowerToLoad)
-		bs = append(bs, fmt.Sprintf("%s–%s: RL worst %s, mean %s; power to the load worst %s (alone %s)",
-			fmtF(b.LoHz), fmtF(b.HiHz), units.FormatDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB), units.FormatShare(b.WorstPowerToLoad), units.FormatShare(b.Unmatched.WorstPowerToLoad)))
+		bs = append(bs, fmt.Sprintf("%s–%s: RL %s (mean %s), power %s (alone %s)",
+			units.FormatFrequency(b.LoHz, 5), units.FormatFrequency(b.HiHz, 5), units.FormatDB(b.WorstRLdB), units.FormatDB(b.MeanRLdB),
+			units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.Unmatched.WorstPowerToLoad, 1)))
 	}
 	row.PowerBefore = units.FormatShare(before)
 	row.Bands = strings.Join(bs, "; ")

@@ -65,7 +65,7 @@ func TestSearchOverWebsocket(t *testing.T) {
 	sc := f.srv.scene(f.sess.ID, st)
 	row := sc.networkView().Metrics[0]
 	d := sc.searchView().Designs[0]
-	if row.Worst != d.Worst || row.Worst != units.FormatDB(best.WorstRLdB) || row.PowerWorst != d.Power || !strings.Contains(d.Bands, "RL worst "+row.Worst+", mean "+row.Mean) {
+	if row.Worst != d.Worst || row.Worst != units.FormatDB(best.WorstRLdB) || row.PowerWorst != d.Power || !strings.Contains(d.Bands, "RL "+row.Worst+" (mean "+row.Mean+")") {
 		t.Errorf("panel %q / %q, search table %q / %q (%s), stored %v dB", row.Worst, row.PowerWorst, d.Worst, d.Power, d.Bands, best.WorstRLdB)
 	}
 }

@@ -120,18 +120,25 @@ type BandRow struct {
 	LoHz  float64
 	HiHz  float64
 	MinRL string
-	// Worst is the worst return loss of each visible sweep in the band,
-	// with a pass/fail mark against the requirement.
+	// MinPower is the least share of the power at the load asked, "—" for
+	// none; MinRLValue and MinPowerValue are the requirements as the band
+	// form takes them back ("" for none).
+	MinPower                  string
+	MinRLValue, MinPowerValue string
+	// Worst is the worst return loss and power to the load of each visible
+	// sweep in the band (the load alone, no network), with a pass/fail mark
+	// against the requirements.
 	Worst []BandResult
 }
 
-// BandResult is one sweep's figure in one band.
+// BandResult is one sweep's figures in one band.
 type BandResult struct {
 	Sweep string
 	Color string
-	Worst string
+	Worst string // worst return loss
+	Power string // worst share of the available power the load takes
 	Pass  bool
-	Has   bool // the requirement is set and the sweep covers the band
+	Has   bool // a requirement is set and the sweep covers the band
 }
 
 // ChartOptions are the chart settings as the settings panel shows them.

@@ -175,7 +175,7 @@ func (rp *report) ladder() {
 	npNs, okNp := rp.med(pkgNumpy, "BenchmarkNumpyLadder4Models", "ns/op")
 	for _, ev := range []struct{ pkg, name, what string }{
 		{pkgRF, "BenchmarkLadder4Models/points=10001", "rfmath.Ladder (parts behind interfaces)"},
-		{pkgMatch, "BenchmarkCircuit4Models/points=10001", "match.Circuit (compiled, as the search uses it)"},
+		{pkgMatch, "BenchmarkCircuit4Models/points=10001", "rfmath.Circuit (compiled, as the search uses it)"},
 	} {
 		goNs, okGo := rp.med(ev.pkg, ev.name, "ns/op")
 		fig := ev.what + ": speed ÷ numpy"
@@ -208,7 +208,7 @@ func (rp *report) ladder() {
 			if okNp {
 				ctx += fmt.Sprintf("; numpy above: %.1f ns", npNs/perPF)
 			}
-			rp.add(row{group: g, figure: "match.Circuit, its own network (" + strings.TrimPrefix(n, "BenchmarkCircuit4Part/") + "): ns per part × frequency", value: fmt.Sprintf("%.1f ns", v), verdict: info, from: ctx})
+			rp.add(row{group: g, figure: "rfmath.Circuit, its own network (" + strings.TrimPrefix(n, "BenchmarkCircuit4Part/") + "): ns per part × frequency", value: fmt.Sprintf("%.1f ns", v), verdict: info, from: ctx})
 		}
 	}
 }
@@ -256,7 +256,7 @@ func (rp *report) chart() {
 // search finds the broadband-search benchmarks by name, as their package
 // may not have them yet.
 func (rp *report) search() {
-	const g = "Broadband search (3-part E24, 401 points)"
+	const g = "Broadband search by power to the load (3-part E24, 401 points)"
 	fig := "exhaustive ÷ search, same run"
 	found := false
 	for _, n := range rp.r.Names(pkgMatch) {
@@ -275,6 +275,12 @@ func (rp *report) search() {
 			from: fmt.Sprintf("search %.4g ms, exhaustive %.4g ms (medians; speedup is the median of each run's ratio)", ts, te)})
 		rp.add(row{group: g, figure: "same best design (" + variant + ")", value: "same", target: "equal", verdict: pass,
 			from: "the benchmark stops with an error when the two searches' designs differ"})
+	}
+	if ms, ok := rp.med(pkgMatch, "BenchmarkSearchFieldnode4", "search-ms"); ok {
+		rp.add(row{group: "Loss-aware search of the Fieldnode demo (2 bands, up to 4 parts, E24, typical 0402)", figure: "time on this machine",
+			value: fmt.Sprintf("%.3g s", ms/1000), target: "< 2 s", verdict: atMost(ms/1000, 2), from: "BenchmarkSearchFieldnode4 search-ms (median)"})
+	} else {
+		rp.missing("Loss-aware search of the Fieldnode demo (2 bands, up to 4 parts, E24, typical 0402)", "time on this machine", "< 2 s", false, "BenchmarkSearchFieldnode4")
 	}
 	if found {
 		return
@@ -353,7 +359,7 @@ func (rp *report) scale() {
 	}
 	perPoint(pkgTouchstone, "BenchmarkReadScale", "reading a 2-port file")
 	perPoint(pkgRF, "BenchmarkLadder4Models", "evaluating the 4-part ladder (rfmath.Ladder)")
-	perPoint(pkgMatch, "BenchmarkCircuit4Models", "evaluating the 4-part ladder (match.Circuit)")
+	perPoint(pkgMatch, "BenchmarkCircuit4Models", "evaluating the 4-part ladder (rfmath.Circuit)")
 	lo, ok1 := rp.med(pkgServer, "BenchmarkDrag/points=1001", "ns/op")
 	mid, ok2 := rp.med(pkgServer, "BenchmarkDrag/points=10001", "ns/op")
 	hi, ok3 := rp.med(pkgServer, "BenchmarkDrag/points=100001", "ns/op")

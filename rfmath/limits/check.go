@@ -34,31 +34,23 @@ type Result struct {
 // each band and returns one Result per band, in order. A band is judged at
 // its points ([rfmath.BandFreqs]: the measured points in it and its edges,
 // where Γ is interpolated linearly in the complex plane) by
-// [rfmath.BandSummary], the evaluator every band figure of matchbench
-// comes from; the load's share of the power is 1 − |Γ|². A gamma whose
+// [rfmath.TraceBandFigures] ([rfmath.BandSummary]), the evaluator every
+// band figure of matchbench comes from; the load's share of the power is
+// 1 − |Γ|². A gamma whose
 // length differs from freqHz panics.
 func Check(freqHz []float64, gamma []complex128, bands []Band) []Result {
 	if len(gamma) != len(freqHz) {
 		panic("limits: gamma and frequency lengths differ")
 	}
 	out := make([]Result, len(bands))
-	var fs []float64
 	for i, b := range bands {
 		r := Result{Band: b, MarginDB: math.NaN()}
-		var err error
-		fs, err = rfmath.BandFreqs(fs[:0], freqHz, b.LoHz, b.HiHz)
+		fig, err := rfmath.TraceBandFigures(freqHz, gamma, b.LoHz, b.HiHz)
 		if err != nil {
 			out[i] = r
 			continue
 		}
 		r.Covered = true
-		var s rfmath.BandSummary
-		for _, f := range fs {
-			g, _ := rfmath.InterpGamma(freqHz, gamma, f)
-			gin, toLoad := rfmath.Circuit{}.PowerAt(f, g, 1)
-			s.Add(f, gin, toLoad)
-		}
-		fig := s.Figures()
 		r.Points = fig.Points
 		r.MarginDB = b.Requirement().MarginDB(fig)
 		r.WorstHz, r.WorstReturnLossDB, r.WorstPowerToLoad = fig.WorstRLHz, fig.WorstRLdB, fig.WorstPowerToLoad

@@ -481,3 +481,90 @@ func (genericModel) Part(k parts.Kind, v float64) rfmath.Part {
 	}
 	return parts.Resistor{ROhm: 1 / (2 * math.Pi * 1e9 * v * 10), ESLH: 1e-9}
 }
+
+// TestObjectivesAgreeLossless: with lossless parts the power that reaches
+// the load is 1 − |Γ|² (REFERENCE-CHECKS LS-1: P_load = P_in for a lossless
+// network), a falling function of |Γ|, so with one return-loss requirement
+// in every band the best network by power to the load is the best by
+// return loss: both objectives give the same designs. With lossy parts
+// they part: the return-loss objective's best delivers no more power than
+// the power objective's best.
+func TestObjectivesAgreeLossless(t *testing.T) {
+	t.Parallel()
+	l := loadOf(grid(800e6, 1000e6, 101), 50, lowBandAntenna)
+	bands := []Band{{863e6, 870e6, 10, 0}, {902e6, 928e6, 10, 0}}
+	run := func(m parts.Model, o Objective) *Result {
+		res, err := Search(context.Background(), l, bands, &Settings{MaxParts: 3, Model: m, Objective: o, Top: 4})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+	p, r := run(nil, PowerToLoad), run(nil, ReturnLoss)
+	for i := range p.Designs {
+		if p.Designs[i].Network.String() != r.Designs[i].Network.String() {
+			t.Errorf("lossless, design %d: by power %v, by return loss %v", i, p.Designs[i].Network, r.Designs[i].Network)
+		}
+	}
+	p, r = run(parts.Typical0402, PowerToLoad), run(parts.Typical0402, ReturnLoss)
+	if r.Designs[0].WorstPowerToLoad > p.Designs[0].WorstPowerToLoad {
+		t.Errorf("0402: the return-loss best delivers %v, more than the power best's %v", r.Designs[0].WorstPowerToLoad, p.Designs[0].WorstPowerToLoad)
+	}
+	t.Logf("0402 parts: best by power %v delivers %.3f; best by return loss %v delivers %.3f", p.Designs[0].Network, p.Designs[0].WorstPowerToLoad, r.Designs[0].Network, r.Designs[0].WorstPowerToLoad)
+}
+
+// TestEvaluateBandPoints checks Evaluate's band figures against a
+// computation written here from the definitions: the band's points are its
+// edges, interpolated linearly in the complex plane between the measured
+// points, and the measured points strictly inside (rfmath.BandFreqs); the
+// power to the load is computed by a separate ABCD walk (rfmath.Ladder's
+// StressTo voltages and currents, P = ½·Re(V·I*)) on a non-flat load with
+// edges off the grid.
+func TestEvaluateBandPoints(t *testing.T) {
+	t.Parallel()
+	l := loadOf(grid(800e6, 1000e6, 21), 50, lowBandAntenna) // 10 MHz steps
+	bands := []Band{{863.3e6, 869.9e6, 10, 0}, {902.5e6, 927.3e6, 10, 0.5}}
+	n := Network{{Kind: ShuntL, Value: 2.2e-9, Series: "E24"}, {Kind: SeriesL, Value: 1.8e-9, Series: "E24"}, {Kind: ShuntC, Value: 6.8e-12, Series: "E24"}}.WithModel(parts.Typical0402)
+	m, err := Evaluate(l, bands, n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lad := ladderOf(t, n, parts.Typical0402)
+	for b, bd := range bands {
+		fs := []float64{bd.LoHz}
+		for _, f := range l.FreqHz {
+			if f > bd.LoHz && f < bd.HiHz {
+				fs = append(fs, f)
+			}
+		}
+		fs = append(fs, bd.HiHz)
+		worstRL, worstP := math.Inf(1), math.Inf(1)
+		for _, f := range fs {
+			k := 0
+			for k+1 < len(l.FreqHz) && l.FreqHz[k+1] < f {
+				k++
+			}
+			tt := (f - l.FreqHz[k]) / (l.FreqHz[k+1] - l.FreqHz[k])
+			gl := l.Gamma[k] + complex(tt, 0)*(l.Gamma[k+1]-l.Gamma[k])
+			zl := rfmath.ZFromGamma(gl, 50)
+			g := lad.InputGamma(f, gl, 50)
+			worstRL = math.Min(worstRL, -20*math.Log10(cmplx.Abs(g)))
+			// Power to the load from the voltage and current at the load
+			// side of part 0 (a shunt part: its voltage is the load's).
+			st := lad.StressTo(nil, f, zl, 50, 1)
+			v := st[0].VPeakV
+			worstP = math.Min(worstP, 0.5*v*v*real(1/zl))
+		}
+		r := m.Bands[b]
+		if r.Points != len(fs) || math.Abs(r.WorstRLdB-worstRL) > 1e-9 || math.Abs(r.WorstPowerToLoad-worstP) > 1e-9 {
+			t.Errorf("band %d: %d points, worst RL %v, power %v; want %d, %v, %v", b, r.Points, r.WorstRLdB, r.WorstPowerToLoad, len(fs), worstRL, worstP)
+		}
+		wantMargin := worstRL - 10
+		if bd.MinPowerToLoad > 0 {
+			wantMargin = math.Min(wantMargin, 10*math.Log10(worstP/bd.MinPowerToLoad))
+		}
+		if math.Abs(r.MarginDB-wantMargin) > 1e-9 {
+			t.Errorf("band %d: margin %v, want %v", b, r.MarginDB, wantMargin)
+		}
+	}
+}

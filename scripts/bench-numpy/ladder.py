@@ -9,7 +9,7 @@ the two in one run.
 It prints COUNT lines in the format of go test -bench under "pkg: numpy".
 Given GO_GAMMA_FILEs (Γin at every 1000th frequency, written by the Go
 benchmarks when MATCHBENCH_LADDER_GAMMA (rfmath.Ladder) and
-MATCHBENCH_CIRCUIT_GAMMA (match.Circuit, the search's evaluator) are set),
+MATCHBENCH_CIRCUIT_GAMMA (rfmath.Circuit, the search's evaluator) are set),
 it first checks that numpy's Γin agrees with each to 1e-12 and exits with
 status 1 if it does not.
 
