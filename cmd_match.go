@@ -95,7 +95,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	var bandArgs listFlag
 	fs.Var(&bandArgs, "band", "a band to match, `LO:HI[:RL]` (SI prefixes: 2.40G:2.4835G, or 863M:870M:12 with its own return loss); repeatable")
 	rl := fs.Float64("rl", 10, "required return `loss` in dB for bands that do not give their own")
-	series := fs.String("series", "E24", "E-`series` of the part values (E6, E12, E24, E48, E96), or one per kind: L=E12,C=E24")
+	series := fs.String("series", "E24", "E-`series` of the part values (E6, E12, E24, E48, E96, E192), or one per kind: L=E12,C=E24")
 	nParts := fs.Int("parts", 3, "largest `number` of parts in a ladder (1 to 4); smaller ladders are searched too")
 	ideal := fs.Bool("ideal", false, "lossless parts without parasitics (to compare with hand calculations)")
 	size := fs.String("size", "0402", "case `size` whose typical part models to use (0402, 0603; typical values from memory, not a vendor's data)")

@@ -19,7 +19,7 @@ func realDot(a, b complex128) float64 { return real(a)*real(b) + imag(a)*imag(b)
 // field, means the default.
 type Settings struct {
 	// LSeries and CSeries name the E-series of the inductors and the
-	// capacitors ("E6" … "E96"); "" means "E24".
+	// capacitors ("E6" … "E192"); "" means "E24".
 	LSeries, CSeries string
 
 	// Model makes the part of each value; nil means ideal parts.
