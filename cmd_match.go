@@ -267,6 +267,9 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintf(stdout, "Bode–Fano: no RC, RL or RLC model fits the load near the bands (%v).\n", limErr)
 	} else {
 		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %.3f in Γ).\n", fit, fit.RMSGammaError)
+		if !fit.Trusted() {
+			fmt.Fprintf(stdout, "  The fit misses the load by more than %.2g in Γ: too poor to trust the limit below.\n", match.FitTrustRMSGamma)
+		}
 		fmt.Fprintf(stdout, "  No lossless network of any order can hold more than %s dB across all the bands at once", fmtDB(lim.BestRLdB))
 		fmt.Fprintf(stdout, " (largest common margin over the requirements: %s dB)", signed(lim.MaxMarginDB))
 		if lim.BestRLdB >= 60 {
@@ -294,7 +297,11 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		} else {
 			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %.3f, so Q ≥ %.3g.\n",
 				units.Format(*radius, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), chu.KA, chu.ChuQ)
-			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %.3g (%.2f × the limit%s).\n", chu.Measured.Q, chu.Ratio, belowChu(chu.Ratio))
+			how := ""
+			if chu.SlopeQ {
+				how = ", from the impedance's slope as a half-power edge lies beyond the sweep"
+			}
+			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %.3g%s (%.2f × the limit%s).\n", chu.Measured.Q, how, chu.Ratio, belowChu(chu.Ratio))
 		}
 	}
 	if *power > 0 {
