@@ -23,9 +23,12 @@
 //	x = K·Re Γ,  y = −K·Im Γ
 //
 // where K = Chart.Scale(), also written on the root <svg> element as
-// data-gamma-scale. A page turns a pointer position in user units (from
-// getScreenCTM().inverse()) back into Γ = (x, −y)/K. The legend strip lies
-// below the square y ∈ [−SizePx/2, SizePx/2].
+// data-gamma-scale. A zoomed chart may be centred elsewhere than Γ = 0
+// (Chart.Centre): a point Γ is then drawn at (K·Re(Γ − C), −K·Im(Γ − C)),
+// C = Chart.ShownCentre(), written as data-gamma-centre="re im". A page
+// turns a pointer position in user units (from getScreenCTM().inverse())
+// back into Γ = C + (x, −y)/K. The legend strip lies below the square
+// y ∈ [−SizePx/2, SizePx/2].
 //
 // The impedance grid's circles and arcs are exact SVG arcs whose centres and
 // radii come from the bilinear map Γ = (z − 1)/(z + 1):
@@ -56,6 +59,8 @@
 // and for a Plot with Plot.IDPrefix P:
 //
 //	P+"axes", P+"bands", P+"plegend"
+//	P+"area"        the clip path of the plot area
+//	P+"bandnames"   the bands' names and the limits' labels, on top
 //	P+"series"      all series; P+"series-"+Series.ID for each
 //	P+"pmarkers"    all markers; P+"pmk-"+PlotMarker.ID for each
 //

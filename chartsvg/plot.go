@@ -33,6 +33,12 @@ type Plot struct {
 	XMin, XMax, YMin, YMax float64
 	// LogY draws y on a base-10 logarithmic scale (values ≤ 0 are left out).
 	LogY bool
+	// Robust makes an automatic y range ignore a few extreme points that
+	// lie far beyond the rest (see [Plot.Resolve]); they are then drawn cut
+	// at the frame with a mark. Use it for quantities whose extremes are
+	// artefacts (R and X of a sweep that starts near DC, noisy group
+	// delay), not for those whose extremes are the feature (a dip in dB).
+	Robust bool
 	// XUnit, when set, makes x a quantity in that unit ("m", "s") rather
 	// than a frequency: tick labels take an SI prefix and that unit. The
 	// fields and data attributes named for Hz then hold that quantity.
@@ -93,7 +99,18 @@ type plotLayout struct {
 
 // Resolve returns a copy of p with its automatic ranges fixed from the data,
 // so that layers rendered one at a time (RenderSeries, RenderMarker) line up
-// with a whole Render. It reads every point once.
+// with a whole Render. It reads every point once (sorting the values in
+// range when Robust is set).
+//
+// An automatic y range is that of the points whose x lies within the x
+// range (fixed or automatic) and of the bands' limits. With Robust set (and
+// at least 20 points in range), the values are sorted and the m-th lowest
+// and highest found, p1 and p99, with m the larger of 3 and 2 % of the
+// points; a tail whose extreme lies more than (p99 − p1) beyond its
+// percentile is cut at that percentile plus 5 % of (p99 − p1), so that a
+// handful of points (the first points of a sweep from near DC, say) cannot
+// squeeze the rest into a line, while a tail that merely continues the
+// curve is kept.
 func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 	q := *p
 	if q.XMin == q.XMax {
@@ -113,13 +130,25 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 	}
 	if q.YMin == q.YMax {
 		lo, hi := math.Inf(1), math.Inf(-1)
+		var vals []float64
+		xlo, xhi := math.Min(q.XMin, q.XMax), math.Max(q.XMin, q.XMax)
 		for i := range series {
-			for _, v := range series[i].Y {
+			s := &series[i]
+			for k, v := range s.Y {
 				if math.IsNaN(v) || math.IsInf(v, 0) || q.LogY && v <= 0 {
 					continue
 				}
+				if k < len(s.FreqHz) && (s.FreqHz[k] < xlo || s.FreqHz[k] > xhi) {
+					continue
+				}
 				lo, hi = math.Min(lo, v), math.Max(hi, v)
+				if q.Robust {
+					vals = append(vals, v)
+				}
 			}
+		}
+		if q.Robust && len(vals) >= 20 {
+			lo, hi = robustRange(vals, lo, hi)
 		}
 		for _, b := range bands {
 			if b.HasLimit && !(q.LogY && b.Limit <= 0) {
@@ -148,6 +177,26 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 	return q
 }
 
+// robustRange returns the range of vals with far outlying tails cut (see
+// [Plot.Resolve]); lo and hi are the full range. vals is sorted in place.
+func robustRange(vals []float64, lo, hi float64) (float64, float64) {
+	sort.Float64s(vals)
+	n := len(vals)
+	m := max(3, n/50)
+	p1, p99 := vals[m], vals[n-1-m]
+	w := p99 - p1
+	if !(w > 0) {
+		return lo, hi
+	}
+	if hi-p99 > w {
+		hi = p99 + 0.05*w
+	}
+	if p1-lo > w {
+		lo = p1 - 0.05*w
+	}
+	return lo, hi
+}
+
 // Plot layout, top to bottom: the title row, the legend rows, a row for the
 // markers' numbers, the plot area, the tick labels and the x-axis name.
 const (
@@ -173,7 +222,14 @@ func (p *Plot) layout(series []Series) plotLayout {
 		top += plotRowPx + 2
 	}
 	if !p.NoLegend && len(series) > 1 {
-		top += plotRowPx * float64(p.placeLegend(&l, series, nil))
+		rows := p.placeLegend(&l, series, nil)
+		top += plotRowPx * float64(rows)
+		// Beyond two rows the drawing grows instead of the plot area
+		// shrinking, so that many traces keep a readable plot.
+		if rows > 2 {
+			l.h += plotRowPx * float64(rows-2)
+			l.y1 = l.h - plotBottomPx
+		}
 	}
 	l.y0 = top + plotRowPx + 4 // the markers' numbers
 	if l.y1-l.y0 < 40 {
@@ -188,7 +244,22 @@ func (p *Plot) layout(series []Series) plotLayout {
 	if !(l.ymax > l.ymin) {
 		l.ymin, l.ymax = l.ymin-0.5, l.ymin+0.5
 	}
+	// The left margin holds the widest y tick label and the rotated axis
+	// name beside it, so that neither is cut.
+	wide := 0.0
+	for _, s := range p.yTicks(&l).labels {
+		wide = math.Max(wide, textWidth(s, plotFontPx))
+	}
+	if need := 28 + 6 + wide; need > l.x0 {
+		l.x0 = need
+	}
 	return l
+}
+
+// textWidth estimates the width of s in user units at a font size of px
+// (the mean advance of Liberation Sans, as the legends use).
+func textWidth(s string, px float64) float64 {
+	return float64(utf8.RuneCountInString(s)) * 0.56 * px
 }
 
 func (l *plotLayout) px(f float64) float64 {
@@ -243,11 +314,19 @@ func (p *Plot) Render(w io.Writer, series []Series, bands []Band, markers []Plot
 	sw.num(l.w)
 	sw.s(`" height="`)
 	sw.num(l.h)
-	sw.s(`" fill="#fff"/>`)
+	sw.s(`" fill="#fff"/><defs><clipPath`)
+	q.id(sw, "area", "")
+	sw.s(`><rect`)
+	sw.numAttr("x", l.x0)
+	sw.numAttr("y", l.y0)
+	sw.numAttr("width", l.x1-l.x0)
+	sw.numAttr("height", l.y1-l.y0)
+	sw.s(`/></clipPath></defs>`)
 	q.bands(sw, &l, bands)
 	q.axes(sw, &l)
 	q.series(sw, &l, series)
 	q.markers(sw, &l, markers, series)
+	q.bandLabels(sw, &l, bands)
 	if !q.NoLegend {
 		q.legend(sw, &l, series)
 	}
@@ -430,19 +509,13 @@ func (p *Plot) yTicks(l *plotLayout) yTicks {
 	return t
 }
 
-// bands writes the shaded bands and their limit lines.
+// bands writes the shaded bands and their limit lines; their names and
+// the limits' labels are written on top of everything by bandLabels.
 func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 	sw.s(`<g`)
 	p.id(sw, "bands", "")
 	sw.s(`>`)
 	clampX := func(f float64) float64 { return math.Max(l.x0, math.Min(l.x1, l.px(f))) }
-	// Band names go on the first of two rows where they do not run into an
-	// earlier name (about 5.8 units a character at this size); a name that
-	// fits on neither is left out.
-	var rowEnd [2]float64
-	rowEnd[0], rowEnd[1] = math.Inf(-1), math.Inf(-1)
-	// Every band's shade first, then the names, so that no shade covers
-	// a name.
 	for _, b := range bands {
 		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
 		if !(x1 > x0) {
@@ -455,39 +528,14 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 		sw.numAttr("height", l.y1-l.y0)
 		sw.s(`/>`)
 	}
-	for _, b := range bands {
-		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
-		if !(x1 > x0) {
-			continue
-		}
-		if b.Name != "" {
-			w := 5.8 * float64(utf8.RuneCountInString(b.Name))
-			for r := range rowEnd {
-				if x0+4 < rowEnd[r]+6 {
-					continue
-				}
-				sw.s(`<text fill="#3b6b52" font-size="10.5"` + haloStyle)
-				sw.numAttr("x", x0+4)
-				sw.numAttr("y", l.y0+13+12*float64(r))
-				sw.s(`>`)
-				sw.text(b.Name)
-				sw.s(`</text>`)
-				rowEnd[r] = x0 + 4 + w
-				break
-			}
-		}
-	}
 	// Limit lines: bands in order of frequency; a band that starts where
 	// the previous one ends continues the same step line.
-	order := make([]int, 0, len(bands))
-	for i, b := range bands {
-		if b.HasLimit && b.HiHz > b.LoHz && !math.IsNaN(l.py(b.Limit)) {
-			order = append(order, i)
-		}
-	}
-	sort.Slice(order, func(i, j int) bool { return bands[order[i]].LoHz < bands[order[j]].LoHz })
+	order := limitOrder(l, bands)
 	if len(order) > 0 {
-		sw.s(`<path fill="none" stroke="` + colLimit + `" stroke-width="1.8" d="`)
+		sw.s(`<path fill="none" stroke="` + colLimit + `" stroke-width="1.8"`)
+		sw.s(` clip-path="url(#`)
+		sw.text(p.IDPrefix)
+		sw.s(`area)" d="`)
 		prevHi := math.NaN()
 		for _, i := range order {
 			b := bands[i]
@@ -503,30 +551,100 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 			sw.buf = appendTenths(sw.buf, x1)
 			prevHi = b.HiHz
 		}
-		sw.s(`"/><g fill="` + colLimit + `" font-size="10.5"` + haloStyle + `>`)
-		labelEnd, prevLimit := math.Inf(-1), math.NaN()
-		prevHi = math.NaN()
-		for _, i := range order {
-			b := bands[i]
-			joined := b.LoHz == prevHi && b.Limit == prevLimit
-			prevHi, prevLimit = b.HiHz, b.Limit
-			x := clampX(b.LoHz) + 3
-			if joined || x < labelEnd+6 {
-				continue // the same level goes on, or the label would overlap
-			}
-			labelEnd = x + 5.8*float64(len("limit ")+len(strconv.FormatFloat(b.Limit, 'g', 4, 64))+1+utf8.RuneCountInString(p.YUnit))
-			sw.s(`<text`)
-			sw.numAttr("x", clampX(b.LoHz)+3)
-			sw.numAttr("y", l.py(b.Limit)-4)
-			sw.s(`>limit `)
-			sw.text(strconv.FormatFloat(b.Limit, 'g', 4, 64))
-			if p.YUnit != "" {
-				sw.b(' ')
-				sw.text(p.YUnit)
-			}
-			sw.s(`</text>`)
+		sw.s(`"/>`)
+	}
+	sw.s(`</g>`)
+}
+
+// limitOrder returns the indices of the bands with a limit line inside the
+// y range, in order of frequency.
+func limitOrder(l *plotLayout, bands []Band) []int {
+	order := make([]int, 0, len(bands))
+	for i, b := range bands {
+		if y := l.py(b.Limit); b.HasLimit && b.HiHz > b.LoHz && !math.IsNaN(y) && y >= l.y0-0.5 && y <= l.y1+0.5 {
+			order = append(order, i)
 		}
-		sw.s(`</g>`)
+	}
+	sort.Slice(order, func(i, j int) bool { return bands[order[i]].LoHz < bands[order[j]].LoHz })
+	return order
+}
+
+// bandLabels writes the bands' names and the limits' labels, last so that
+// no line or marker covers them (they carry a white halo), each placed
+// where it meets no other: band names on the first of two rows at the top
+// of the plot area where they fit within their band's reach, a limit label
+// above its line at the band's start, else below it, else at the band's
+// end; a label with no free place is left out.
+func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
+	sw.s(`<g`)
+	p.id(sw, "bandnames", "")
+	sw.s(` font-size="10.5"` + haloStyle + `>`)
+	clampX := func(f float64) float64 { return math.Max(l.x0, math.Min(l.x1, l.px(f))) }
+	var placed []box
+	const fh = 10.5
+	fits := func(b box) bool {
+		return b.x0 >= l.x0+1 && b.x1 <= l.x1-1 && b.y0 >= l.y0+1 && b.y1 <= l.y1-1 && !b.hits(placed)
+	}
+	for _, b := range bands {
+		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
+		if !(x1 > x0) || b.Name == "" {
+			continue
+		}
+		w := textWidth(b.Name, fh) + 2
+		for r := 0; r < 2; r++ {
+			y := l.y0 + 13 + 12*float64(r)
+			bx := box{x0 + 4, y - fh + 1, x0 + 4 + w, y + 2}
+			if !fits(bx) {
+				continue
+			}
+			placed = append(placed, bx)
+			sw.s(`<text fill="#3b6b52"`)
+			sw.numAttr("x", x0+4)
+			sw.numAttr("y", y)
+			sw.s(`>`)
+			sw.text(b.Name)
+			sw.s(`</text>`)
+			break
+		}
+	}
+	prevHi, prevLimit := math.NaN(), math.NaN()
+	for _, i := range limitOrder(l, bands) {
+		b := bands[i]
+		joined := b.LoHz == prevHi && b.Limit == prevLimit
+		prevHi, prevLimit = b.HiHz, b.Limit
+		if joined {
+			continue // the same level goes on
+		}
+		label := "limit " + strconv.FormatFloat(b.Limit, 'g', 4, 64)
+		if p.YUnit != "" {
+			label += " " + p.YUnit
+		}
+		w := textWidth(label, fh) + 2
+		y := l.py(b.Limit)
+		xs, xe := clampX(b.LoHz)+3, clampX(b.HiHz)-3
+		for _, c := range []struct {
+			x, y float64
+			end  bool
+		}{{xs, y - 4, false}, {xs, y + fh + 2, false}, {xe, y - 4, true}, {xe, y + fh + 2, true}} {
+			bx := box{c.x, c.y - fh + 1, c.x + w, c.y + 2}
+			if c.end {
+				bx.x0, bx.x1 = c.x-w, c.x
+			}
+			if !fits(bx) {
+				continue
+			}
+			placed = append(placed, bx)
+			sw.s(`<text fill="` + colLimit + `"`)
+			if c.end {
+				sw.s(` text-anchor="end"`)
+			}
+			sw.numAttr("x", c.x)
+			sw.numAttr("y", c.y)
+			sw.s(`>`)
+			sw.text(label)
+			sw.s(`</text>`)
+			break
+		}
 	}
 	sw.s(`</g>`)
 }
@@ -535,29 +653,55 @@ func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
 // show: within each pixel column the first, lowest, highest and last points
 // stay (so every extreme is drawn), and the rest are reduced to within
 // DefaultTolerancePx of the curve (the series stroke is 1.8 units wide).
+//
+// The curves are clipped to the plot area. Where a curve leaves it above or
+// below, a small triangle of the series' colour at the frame marks the
+// most extreme point of each such stretch (stretches closer than 8 units
+// share one), and the series' group carries data-clipped, the number of
+// its points beyond the y range; a note at the bottom right explains the
+// marks.
 func (p *Plot) series(sw *writer, l *plotLayout, series []Series) {
 	sw.s(`<g`)
 	p.id(sw, "series", "")
 	sw.s(` fill="none" stroke-width="1.8" stroke-linejoin="round">`)
+	anyClipped := false
 	for i := range series {
 		s := &series[i]
 		if len(s.FreqHz) != len(s.Y) {
 			panic(badSeriesLength)
 		}
+		n := len(s.Y)
+		pts, _ := sw.scratch(n)
+		clipped := 0
+		for j := range n {
+			pts[j] = pt{l.px(s.FreqHz[j]), l.py(s.Y[j])}
+			if q := pts[j]; q.x >= l.x0 && q.x <= l.x1 && (q.y < l.y0-0.5 || q.y > l.y1+0.5) {
+				clipped++
+			}
+		}
+		col := traceColour(s.Color, i)
 		sw.s(`<g`)
 		p.id(sw, "series-", s.ID)
 		sw.s(` stroke="`)
-		sw.text(traceColour(s.Color, i))
-		sw.s(`"><path`)
+		sw.text(col)
+		sw.b('"')
+		if clipped > 0 {
+			sw.s(` data-clipped="`)
+			sw.buf = strconv.AppendInt(sw.buf, int64(clipped), 10)
+			sw.b('"')
+			anyClipped = true
+		}
+		sw.s(`>`)
+		if clipped > 0 {
+			clipMarks(sw, l, pts, col)
+		}
+		sw.s(`<path clip-path="url(#`)
+		sw.text(p.IDPrefix)
+		sw.s(`area)"`)
 		if s.Dashed {
 			sw.s(` stroke-dasharray="7 4"`)
 		}
 		sw.s(` d="`)
-		n := len(s.Y)
-		pts, _ := sw.scratch(n)
-		for j := range n {
-			pts[j] = pt{l.px(s.FreqHz[j]), l.py(s.Y[j])}
-		}
 		for a := 0; a < n; {
 			if !finitePt(pts[a]) {
 				a++
@@ -577,7 +721,61 @@ func (p *Plot) series(sw *writer, l *plotLayout, series []Series) {
 		sw.s(`"/></g>`)
 		sw.maybeFlush()
 	}
+	if anyClipped {
+		sw.s(`<text stroke="none" fill="` + colMuted + `" font-size="10" text-anchor="end"`)
+		sw.numAttr("x", l.x1)
+		sw.numAttr("y", l.h-8)
+		sw.s(`>▲▼ beyond the scale</text>`)
+	}
 	sw.s(`</g>`)
+}
+
+// clipMarks writes, for each stretch of pts above or below the plot area
+// (within its x range), a triangle at the frame at the stretch's most
+// extreme point, pointing out of the area.
+func clipMarks(sw *writer, l *plotLayout, pts []pt, col string) {
+	sw.s(`<path stroke="none" fill="`)
+	sw.text(col)
+	sw.s(`" d="`)
+	lastUp, lastDown := math.Inf(-1), math.Inf(-1)
+	mark := func(x float64, up bool) {
+		if up {
+			if x-lastUp < 8 {
+				return
+			}
+			lastUp = x
+			sw.b('M')
+			sw.xy(tenths(x), tenths(l.y0+1))
+			sw.s(`l4 7h-8z`)
+			return
+		}
+		if x-lastDown < 8 {
+			return
+		}
+		lastDown = x
+		sw.b('M')
+		sw.xy(tenths(x), tenths(l.y1-1))
+		sw.s(`l4-7h-8z`)
+	}
+	for a := 0; a < len(pts); {
+		q := pts[a]
+		up, down := q.y < l.y0-0.5, q.y > l.y1+0.5
+		if !(q.x >= l.x0 && q.x <= l.x1) || !up && !down {
+			a++
+			continue
+		}
+		ext := a
+		b := a + 1
+		for b < len(pts) && pts[b].x <= l.x1 && (up && pts[b].y < l.y0-0.5 || down && pts[b].y > l.y1+0.5) {
+			if up && pts[b].y < pts[ext].y || down && pts[b].y > pts[ext].y {
+				ext = b
+			}
+			b++
+		}
+		mark(pts[ext].x, up)
+		a = b
+	}
+	sw.s(`"/>`)
 }
 
 func finitePt(q pt) bool {
