@@ -66,6 +66,10 @@ type Chart struct {
 
 	// NoLegend leaves out the legend strip below the chart.
 	NoLegend bool
+
+	// Tag, when set, is written on the root element as data-tag, so that a
+	// page can tell which of its requests a drawing answers.
+	Tag string
 }
 
 // layout is the geometry derived from the options.
@@ -163,7 +167,13 @@ func (c *Chart) Render(w io.Writer, traces []Trace, markers []Marker, path []Pat
 	sw.g(real(l.c), 8)
 	sw.b(' ')
 	sw.g(imag(l.c), 8)
-	sw.s(`" role="img"`)
+	sw.s(`" data-gamma-radius="`)
+	sw.g(l.zoom, 8)
+	sw.s(`"`)
+	if c.Tag != "" {
+		sw.attr("data-tag", c.Tag)
+	}
+	sw.s(` role="img"`)
 	title := c.Title
 	if title == "" {
 		title = "Reflection coefficient chart"

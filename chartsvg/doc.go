@@ -25,7 +25,8 @@
 // where K = Chart.Scale(), also written on the root <svg> element as
 // data-gamma-scale. A zoomed chart may be centred elsewhere than Γ = 0
 // (Chart.Centre): a point Γ is then drawn at (K·Re(Γ − C), −K·Im(Γ − C)),
-// C = Chart.ShownCentre(), written as data-gamma-centre="re im". A page
+// C = Chart.ShownCentre(), written as data-gamma-centre="re im", and the
+// shown disc's radius in Γ (Zoom, or 1) as data-gamma-radius. A page
 // turns a pointer position in user units (from getScreenCTM().inverse())
 // back into Γ = C + (x, −y)/K. The legend strip lies below the square
 // y ∈ [−SizePx/2, SizePx/2].

@@ -493,7 +493,11 @@ func (p *Plot) yTicks(l *plotLayout) yTicks {
 					continue
 				}
 				t.vals = append(t.vals, v)
-				t.labels = append(t.labels, strconv.FormatFloat(v, 'g', 3, 64))
+				lab := strconv.FormatFloat(v, 'g', 3, 64)
+				if v >= 1e-3 && v < 1e6 {
+					lab = strconv.FormatFloat(v, 'f', -1, 64)
+				}
+				t.labels = append(t.labels, lab)
 			}
 		}
 		return t
@@ -574,7 +578,8 @@ func limitOrder(l *plotLayout, bands []Band) []int {
 // where it meets no other: band names on the first of two rows at the top
 // of the plot area where they fit within their band's reach, a limit label
 // above its line at the band's start, else below it, else at the band's
-// end; a label with no free place is left out.
+// end; a label with no free place is left out, as is one that repeats
+// the level of a label just to its left.
 func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 	sw.s(`<g`)
 	p.id(sw, "bandnames", "")
@@ -592,7 +597,7 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 		}
 		w := textWidth(b.Name, fh) + 2
 		for r := 0; r < 2; r++ {
-			y := l.y0 + 13 + 12*float64(r)
+			y := l.y0 + 13 + 14*float64(r)
 			bx := box{x0 + 4, y - fh + 1, x0 + 4 + w, y + 2}
 			if !fits(bx) {
 				continue
@@ -608,6 +613,7 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 		}
 	}
 	prevHi, prevLimit := math.NaN(), math.NaN()
+	lastLimit, lastLabelX := math.NaN(), math.Inf(-1)
 	for _, i := range limitOrder(l, bands) {
 		b := bands[i]
 		joined := b.LoHz == prevHi && b.Limit == prevLimit
@@ -621,6 +627,11 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 		}
 		w := textWidth(label, fh) + 2
 		y := l.py(b.Limit)
+		// The same level labelled just before, a little to the left, says
+		// it already.
+		if b.Limit == lastLimit && clampX(b.LoHz)-lastLabelX < 3*w {
+			continue
+		}
 		xs, xe := clampX(b.LoHz)+3, clampX(b.HiHz)-3
 		for _, c := range []struct {
 			x, y float64
@@ -634,6 +645,7 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 				continue
 			}
 			placed = append(placed, bx)
+			lastLimit, lastLabelX = b.Limit, clampX(b.LoHz)
 			sw.s(`<text fill="` + colLimit + `"`)
 			if c.end {
 				sw.s(` text-anchor="end"`)

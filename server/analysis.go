@@ -118,15 +118,16 @@ func (sc *scene) yieldView() web.YieldView {
 	return v
 }
 
-// cloudTraces are the first Monte Carlo builds, drawn thin and grey.
-func (sc *scene) cloudTraces() []chartsvg.Trace {
+// cloudTraces are the first Monte Carlo builds, drawn thin and grey, as a
+// chart at reference chartZ0 draws them.
+func (sc *scene) cloudTraces(chartZ0 float64) []chartsvg.Trace {
 	res, _ := sc.yield()
 	if res == nil {
 		return nil
 	}
 	out := make([]chartsvg.Trace, 0, len(res.Traces))
 	for i, g := range res.Traces {
-		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, NoLegend: i > 0})
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: toChart(g, sc.net.z0, chartZ0), Ticks: -1, NoLegend: i > 0})
 	}
 	return out
 }

@@ -36,7 +36,7 @@ func TestLimitsAndYield(t *testing.T) {
 	if ya.Summary == "" || ya.Summary != yb.Summary || len(ya.Parts) != 2 {
 		t.Fatalf("yield views %+v / %+v", ya, yb)
 	}
-	if n := len(a.cloudTraces()); n != cloudTraces {
+	if n := len(a.cloudTraces(50)); n != cloudTraces {
 		t.Errorf("%d cloud traces, want %d", n, cloudTraces)
 	}
 	var svg strings.Builder

@@ -285,6 +285,8 @@ func TestBrowserMatching(t *testing.T) {
 		z := zStart + complex(0, 2*math.Pi*100e6*l)
 		path = append(path, rfmath.GammaFromZ(z, 50))
 	}
+	// Typing scrolled the part's field into view: back to the chart.
+	must(chromedp.Do(ectx, chromedp.Evaluate[chromedp.Void](`document.activeElement.blur(); window.scrollTo(0, 0)`)))
 	p0, err := screenOf(ectx, from)
 	must(err)
 	acts := []chromedp.Action[chromedp.Void]{chromedp.MouseEvent(chromedp.MousePressed, p0[0], p0[1], chromedp.ButtonLeft)}

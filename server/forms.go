@@ -95,14 +95,17 @@ func formChange(form string, f map[string]string) (sessions.Change, error) {
 			return sessions.Change{}, err
 		}
 		rl = math.Abs(rl)
-		zoom, err := num("zoom", "Zoom", true)
-		if err != nil {
-			return sessions.Change{}, err
+		p.VSWRCircle, p.ReturnLossCircleDB = &vswr, &rl
+		if _, ok := f["zoom"]; ok { // the page zooms its own view now; older pages still send it
+			zoom, err := num("zoom", "Zoom", true)
+			if err != nil {
+				return sessions.Change{}, err
+			}
+			if zoom == 0 {
+				zoom = 1
+			}
+			p.Zoom = &zoom
 		}
-		if zoom == 0 {
-			zoom = 1
-		}
-		p.VSWRCircle, p.ReturnLossCircleDB, p.Zoom = &vswr, &rl, &zoom
 		q := []float64{} // no arcs: [] clears them; a nil slice would encode as null, "leave as is"
 		for _, part := range strings.FieldsFunc(f["qArcs"], func(r rune) bool { return r == ',' || r == ';' || r == ' ' }) {
 			v, err := strconv.ParseFloat(part, 64)

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"net/http"
 	"slices"
+	"strconv"
 	"sync"
 
 	"github.com/a-h/templ"
@@ -138,23 +139,27 @@ func (rm *room) closeAll(reason string) {
 }
 
 // broadcast renders a batch of events (one update, at the last event's
-// version) once for editors and once for viewers (only when the room has
-// them) and queues it on every connection.
+// version) once per capability and page view in the room (editors and
+// viewers of the default view share one rendering) and queues it on every
+// connection.
 func (rm *room) broadcast(batch []sessions.Event) {
 	ev := batch[len(batch)-1]
 	conns := rm.snapshot()
-	var msgs [3][]byte // by capability
+	msgs := map[string][]byte{} // by capability and view
 	for _, c := range conns {
-		if msgs[c.cap] == nil {
-			m := rm.render(batch, c.cap, c.token)
-			b, err := json.Marshal(m)
-			if err != nil {
+		v := c.currentView()
+		key := strconv.Itoa(int(c.cap)) + "/" + v.key()
+		b, ok := msgs[key]
+		if !ok {
+			m := rm.render(batch, c.cap, c.token, v)
+			var err error
+			if b, err = json.Marshal(m); err != nil {
 				rm.s.log.Error("encode update", "err", err)
 				return
 			}
-			msgs[c.cap] = b
+			msgs[key] = b
 		}
-		c.queueUpdate(ev.Version, msgs[c.cap])
+		c.queueUpdate(ev.Version, b)
 	}
 }
 
@@ -167,11 +172,11 @@ var markerOps = map[string]bool{
 // render builds the update for a batch of events as seen with capability
 // cap: the last event's state; only the moved markers' fragments when every
 // event only moved markers; the animation of the last event's step.
-func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string) outMsg {
+func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string, v *pageView) outMsg {
 	ev := batch[len(batch)-1]
 	sc, prev := rm.sceneFor(ev.State)
 	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
-	msg.Anim = stepAnimation(prev, sc, ev) // from the state before the batch
+	msg.Anim = stepAnimation(prev, sc, ev, v) // from the state before the batch
 	var moved []string
 	onlyMarkers := true
 	for _, e := range batch {
@@ -185,7 +190,7 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 	}
 	if onlyMarkers {
 		for i, id := range moved {
-			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit)
+			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit, v)
 			if i < len(moved)-1 {
 				frags = frags[:len(frags)-1] // the readout table once, at the end
 			}
@@ -193,7 +198,7 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 		}
 		return msg
 	}
-	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version)
+	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version, v)
 	return msg
 }
 
@@ -232,18 +237,19 @@ func structureKey(st *sessions.State) string {
 	return string(b)
 }
 
-// markerFrags draws the groups of one marker (chart and plots) and the
-// readout table.
-func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool) []frag {
+// markerFrags draws the groups of one marker (chart and plots) as view v
+// shows them, and the readout table.
+func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool, v *pageView) []frag {
 	var out []frag
 	i := sc.st.MarkerIndex(markerID)
 	if i >= 0 {
-		if cm, ok := sc.chartMarker(i); ok {
+		if cm, ok := sc.chartMarker(i, v); ok {
 			var b bytes.Buffer
-			sc.chart.RenderMarker(&b, cm)
+			c := sc.chartFor(v)
+			c.RenderMarker(&b, cm)
 			out = append(out, frag{ID: "mk-" + markerID, HTML: b.String(), SVG: true})
 		}
-		for _, p := range sc.plots() {
+		for _, p := range sc.plotsFor(v) {
 			for _, pm := range sc.plotMarkers() {
 				if pm.ID != markerID {
 					continue
@@ -258,19 +264,11 @@ func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool) []frag {
 	return out
 }
 
-// fullFrags redraws the chart, the plots and every panel.
-func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
-	v := s.panelsView(a, sc, ver)
-	var b bytes.Buffer
-	sc.renderChart(&b)
-	out := []frag{{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true}}
-	var pv []web.PlotView
-	for _, p := range sc.plots() {
-		var pb bytes.Buffer
-		p.render(&pb, sc.plotMarkers())
-		pv = append(pv, web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()})
-	}
-	out = append(out, frag{ID: "plots-pane", HTML: renderString(web.PlotsPane(pv))})
+// fullFrags redraws the chart, the plots and every panel as view pv shows
+// them.
+func (s *Server) fullFrags(sc *scene, a access, ver int64, pv *pageView) []frag {
+	v := s.panelsView(a, sc, ver, pv)
+	out := s.viewFrags(sc, v, pv)
 	out = append(out,
 		frag{ID: "markers-panel", HTML: renderString(web.MarkersPanel(v))},
 		frag{ID: "sweeps-panel", HTML: renderString(web.SweepsPanel(v))},
@@ -281,6 +279,22 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)
 	return out
+}
+
+// viewFrags draws what depends on a page's view: the chart, its bar, the
+// plots with the span, and the resonance table.
+func (s *Server) viewFrags(sc *scene, v web.SessionView, pv *pageView) []frag {
+	var b bytes.Buffer
+	if err := sc.renderChartView(&b, pv); err != nil {
+		s.log.Error("render chart", "err", err)
+	}
+	v.Plots = sc.plotViews(pv)
+	return []frag{
+		{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true},
+		{ID: "chart-bar", HTML: renderString(web.ChartBarView(v))},
+		{ID: "plots-pane", HTML: renderString(web.PlotsPane(v))},
+		{ID: "resonance-panel", HTML: renderString(web.ResonancePanel(v))},
+	}
 }
 
 func renderString(c templ.Component) string {

@@ -112,11 +112,17 @@ func (ne *netEval) loadAt(fHz float64) complex128 {
 	return g
 }
 
-// path returns the matching path at the design frequency: one segment per
-// part, each the track of Γ as that part grows in. override, when ≥ 0,
-// draws part override at value ov and stops the path at fraction frac of
-// its step (animation frames).
+// path returns the matching path at the design frequency against the
+// load's own reference (see pathAt).
 func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment, []chartsvg.Marker) {
+	return ne.pathAt(override, ov, frac, ne.z0)
+}
+
+// pathAt returns the matching path at the design frequency as a chart at
+// reference chartZ0 draws it: one segment per part, each the track of Γ as
+// that part grows in. override, when ≥ 0, draws part override at value ov
+// and stops the path at fraction frac of its step (animation frames).
+func (ne *netEval) pathAt(override int, ov, frac, chartZ0 float64) ([]chartsvg.PathSegment, []chartsvg.Marker) {
 	if ne.err != nil {
 		return nil, nil
 	}
@@ -124,6 +130,7 @@ func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment,
 	segs := make([]chartsvg.PathSegment, 0, len(tracks))
 	var handles []chartsvg.Marker
 	for i, pts := range tracks {
+		pts = toChart(pts, ne.z0, chartZ0)
 		p := ne.n.Parts[i]
 		col := partColours[i%len(partColours)]
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col})
@@ -155,18 +162,28 @@ func designator(parts []sessions.Part, i int) string {
 	return want + strconv.Itoa(n)
 }
 
-// netTraces are the chart traces of the active network.
+// netTraces are the chart traces of the active network against its load's
+// own reference.
 func (sc *scene) netTraces() []chartsvg.Trace {
+	if sc.net == nil {
+		return nil
+	}
+	return sc.netTracesAt(sc.net.z0)
+}
+
+// netTracesAt are the chart traces of the active network as a chart at
+// reference chartZ0 draws them.
+func (sc *scene) netTracesAt(chartZ0 float64) []chartsvg.Trace {
 	ne := sc.net
 	if ne == nil || ne.err != nil || len(ne.n.Parts) == 0 {
 		return nil
 	}
-	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.ideal, Dashed: ne.buy != nil, Ticks: -1}}
+	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: toChart(ne.ideal, ne.z0, chartZ0), Dashed: ne.buy != nil, Ticks: -1}}
 	if ne.buy != nil {
 		out[0].Name += " (as typed)"
 	}
 	if ne.buy != nil {
-		out = append(out, chartsvg.Trace{ID: "netbuy-" + ne.n.ID, Name: ne.n.Name + " (standard values)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.buy, Ticks: -1})
+		out = append(out, chartsvg.Trace{ID: "netbuy-" + ne.n.ID, Name: ne.n.Name + " (standard values)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: toChart(ne.buy, ne.z0, chartZ0), Ticks: -1})
 	}
 	return out
 }
@@ -499,7 +516,7 @@ func (ne *netEval) dragValue(id string, target complex128) (float64, error) {
 // to the active network or changed a part's value by a jump (not a drag,
 // whose moves are their own animation): the design point runs along the
 // part's arc while the whole response morphs with it.
-func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
+func stepAnimation(prev, sc *scene, ev sessions.Event, v *pageView) *anim {
 	if prev == nil || sc.net == nil || sc.net.err != nil || ev.PartID == "" || ev.Gesture != "" {
 		return nil
 	}
@@ -540,23 +557,24 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 	}
 	a := &anim{MS: 700}
 	resp := make([]complex128, len(fs))
+	z0, chart := v.z0(), sc.chartFor(v)
 	for f := 1; f <= animFrames; f++ {
 		t := float64(f) / animFrames
 		t = t * t * (3 - 2*t) // ease in and out
-		var v float64
+		var val float64
 		if from == 0 {
-			v = match.ScaledValue(p.Kind, to, math.Max(t, 1e-4))
+			val = match.ScaledValue(p.Kind, to, math.Max(t, 1e-4))
 		} else {
-			v = from * math.Pow(to/from, t)
+			val = from * math.Pow(to/from, t)
 		}
-		segs, _ := ne.path(i, v, 1)
-		if _, err := ne.built.MorphTo(resp, i, v, fs, gl, ne.z0); err != nil {
+		segs, _ := ne.pathAt(i, val, 1, z0)
+		if _, err := ne.built.MorphTo(resp, i, val, fs, gl, ne.z0); err != nil {
 			return nil
 		}
-		pts := append([]complex128(nil), resp...)
+		pts := toChart(append([]complex128(nil), resp...), ne.z0, z0)
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: netColour})
 		var b strings.Builder
-		sc.chart.RenderPath(&b, segs)
+		chart.RenderPath(&b, segs)
 		a.Frames = append(a.Frames, []frag{{ID: "match-path", HTML: b.String(), SVG: true}})
 	}
 	return a

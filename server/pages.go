@@ -258,7 +258,7 @@ func (s *Server) exportChart(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	attachment(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml")
-	if err := sc.renderChart(w); err != nil {
+	if err := sc.renderChartView(w, viewFromQuery(r.URL.Query())); err != nil {
 		s.log.Error("export chart", "err", err)
 	}
 }
@@ -269,7 +269,7 @@ func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	id := chi.URLParam(r, "plot")
-	for _, p := range sc.plots() {
+	for _, p := range sc.plotsFor(viewFromQuery(r.URL.Query())) {
 		if p.id == id {
 			attachment(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml")
 			if err := p.render(w, sc.plotMarkers()); err != nil {

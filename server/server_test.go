@@ -521,7 +521,7 @@ func BenchmarkDrag(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				out := rm.render([]sessions.Event{ev}, sessions.Edit, f.sess.EditToken)
+				out := rm.render([]sessions.Event{ev}, sessions.Edit, f.sess.EditToken, nil)
 				if _, err := json.Marshal(out); err != nil {
 					b.Fatal(err)
 				}
@@ -545,7 +545,7 @@ func TestRenderBatch(t *testing.T) {
 	a, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: f.mk, FreqHz: 160e6})
 	b, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: ev2.MarkerID, FreqHz: 210e6})
 	rm := &room{s: f.srv, sid: f.sess.ID}
-	msg := rm.render([]sessions.Event{a, b}, sessions.View, f.sess.ViewToken)
+	msg := rm.render([]sessions.Event{a, b}, sessions.View, f.sess.ViewToken, nil)
 	count := map[string]int{}
 	for _, fr := range msg.Frags {
 		count[fr.ID]++
@@ -554,7 +554,7 @@ func TestRenderBatch(t *testing.T) {
 		t.Errorf("batched marker update: version %d (want %d), frags %v", msg.V, b.Version, count)
 	}
 	c, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 120e6, HiHz: 130e6})
-	msg = rm.render([]sessions.Event{a, c}, sessions.View, f.sess.ViewToken)
+	msg = rm.render([]sessions.Event{a, c}, sessions.View, f.sess.ViewToken, nil)
 	if msg.V != c.Version || !hasFrag(msg, "chart") || !hasFrag(msg, "bands-panel") || msg.Anim != nil {
 		t.Errorf("mixed batch: version %d, anim %v", msg.V, msg.Anim != nil)
 	}

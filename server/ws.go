@@ -67,6 +67,9 @@ type conn struct {
 
 	sendMu sync.Mutex // orders updates; see queueUpdate
 	sentV  int64      // the version of the newest update queued
+
+	viewMu sync.Mutex
+	view   *pageView // how this page looks at the session (view.go); nil: the default
 }
 
 func (s *Server) upgrader() *websocket.Upgrader {
@@ -220,6 +223,8 @@ func (c *conn) reader() {
 		case "ping":
 		case "hello":
 			c.catchUp(m.V)
+		case "view": // any link may look at the session its own way
+			c.setView(m)
 		case "change", "form", "partdrag", "action":
 			if c.cap != sessions.Edit {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "this is a view-only link: changes are refused"})
@@ -269,11 +274,15 @@ func (c *conn) push(m inMsg) bool {
 
 func isDrag(m inMsg) bool {
 	return (m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove) ||
-		(m.Type == "partdrag" && m.Change != nil)
+		(m.Type == "partdrag" && m.Change != nil) || m.Type == "view"
 }
 
-// dragKey is what a drag moves: one marker or one part.
+// dragKey is what a drag moves: one marker or one part, or the page's view
+// (a wheel zoom or a pan sends many; only the latest is drawn).
 func dragKey(m inMsg) string {
+	if m.Type == "view" {
+		return "v"
+	}
 	if m.Type == "partdrag" {
 		return "p:" + m.Change.PartID
 	}
@@ -315,6 +324,9 @@ func (c *conn) applier(ctx context.Context) {
 func (c *conn) apply(ctx context.Context, m inMsg) {
 	var ch sessions.Change
 	switch {
+	case m.Type == "view":
+		c.sendView(ctx, m.ID)
+		return
 	case m.Type == "action":
 		switch m.Action {
 		case "search-cancel":
@@ -372,7 +384,9 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			err = errors.New("a part drag needs a \"gamma\" point")
 		}
 		if err == nil {
-			v, err = ne.dragValue(m.Change.PartID, complex(m.Change.Gamma.Re, m.Change.Gamma.Im))
+			// The page's chart may be at another reference than the load's.
+			g := pointToChart(complex(m.Change.Gamma.Re, m.Change.Gamma.Im), c.currentView().z0(), ne.z0)
+			v, err = ne.dragValue(m.Change.PartID, g)
 		}
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
@@ -384,6 +398,10 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 		ch.Raw, ch.Sweep = nil, nil
 		if ch.Op == sessions.OpSweepAdd {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "sweeps are added by uploading a file"})
+			return
+		}
+		if err := c.snapToShown(ctx, &ch); err != nil { // view.go: a chart point to a frequency
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
 			return
 		}
 	}
@@ -466,7 +484,7 @@ func (c *conn) catchUp(v int64) {
 		return
 	}
 	sc := c.s.scene(c.sid, cu.State)
-	c.reply(outMsg{Type: "update", V: cu.Version, Op: "catchup", Frags: c.s.fullFrags(sc, access{SessionID: c.sid, Cap: c.cap, Token: c.token}, cu.Version)})
+	c.reply(outMsg{Type: "update", V: cu.Version, Op: "catchup", Frags: c.s.fullFrags(sc, access{SessionID: c.sid, Cap: c.cap, Token: c.token}, cu.Version, c.currentView())})
 }
 
 // bucket is a token bucket: rate tokens per second up to burst.

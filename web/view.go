@@ -59,6 +59,60 @@ type SessionView struct {
 	RefPlane RefPlaneView
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
+	// What the page's own view shows (the page changes it without
+	// changing the session): the plots' span, the chart's controls and
+	// the resonance table.
+	Span       SpanView
+	ChartBar   ChartBar
+	Resonances ResonanceView
+}
+
+// SpanView is the plots' shared frequency span.
+type SpanView struct {
+	Lo, Hi   string // as shown, with SI prefixes
+	Zoomed   bool   // narrower than the sweeps
+	Fit      bool   // fitted to the bands
+	HasBands bool
+}
+
+// ChartBar holds the chart's view controls.
+type ChartBar struct {
+	Z0       string // the chart's reference impedance, ohms
+	Param    string // "", "S11" or "S22"
+	Has2Port bool
+	Zoomed   bool
+}
+
+// OptGroup is a labelled group of a select's choices.
+type OptGroup struct {
+	Label   string
+	Options []Option
+}
+
+// ResonanceView is the table of dips, bands and resonances of each
+// visible trace.
+type ResonanceView struct {
+	Threshold string // dB
+	Traces    []ResonanceTrace
+}
+
+// ResonanceTrace is one trace's rows.
+type ResonanceTrace struct {
+	Name, Color string
+	Rows        []ResonanceRow
+	More        []string // notes: rows left out, nothing found
+}
+
+// ResonanceRow is one dip, band or resonance; clicking it places a marker
+// at FreqHz on the trace (SweepID, Port).
+type ResonanceRow struct {
+	Kind, What                 string
+	Freq                       string
+	FreqHz                     float64
+	SweepID                    string
+	Port                       int
+	RL, Lo, Hi, BW, Frac, R, Q string
+	Note                       string
 }
 
 // ShareView holds the links a colleague can open.
@@ -78,6 +132,14 @@ type PlotView struct {
 	ID    string
 	Title string
 	SVG   string // trusted: written by chartsvg from numbers
+	// Selectable plots have a selector of what they show (Groups) and a y
+	// range, fixed or as scaled (YMin, YMax); GD marks a group delay,
+	// which has an aperture.
+	Selectable bool
+	Groups     []OptGroup
+	Fixed      bool
+	YMin, YMax string
+	GD         bool
 }
 
 // SweepRow is one sweep in the sweeps panel.
