@@ -43,7 +43,7 @@ type scene struct {
 	st     *sessions.State
 	traces []*trace
 	all    map[string]*rfmath.Sweep // every listed sweep, visible or not
-	chart  chartsvg.Chart // the session's chart settings; chartFor adds a page's view
+	chart  chartsvg.Chart           // the session's chart settings; chartFor adds a page's view
 	fmin   float64
 	fmax   float64
 	net    *netEval // the active matching network, or nil
@@ -56,8 +56,8 @@ type scene struct {
 	seriesNote map[string]string
 	disp       map[string][]complex128
 
-	raw    map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
-	errs   map[string]string        // sweeps whose plane could not be applied
+	raw  map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
+	errs map[string]string        // sweeps whose plane could not be applied
 
 	metricsDone bool // metricsRes, metricsIdx and metricsErr hold the network's band figures
 	metricsRes  match.Metrics
