@@ -35,7 +35,7 @@ func (sc *scene) limitsView() web.LimitsView {
 	if len(bands) > 0 {
 		lim, fit, err := match.BodeFanoOf(l, bands)
 		if err != nil {
-			v.BodeFano = "Bode–Fano: " + err.Error()
+			v.BodeFano = "Bode–Fano: " + plainWords(err.Error())
 		} else {
 			kind := "series"
 			if fit.Parallel {
@@ -48,15 +48,34 @@ func (sc *scene) limitsView() web.LimitsView {
 			v.BodeFano = fmt.Sprintf("Bode–Fano: near the bands the load behaves as a %s RLC (%s; fit error %.3f in Γ). No lossless network of any order can hold more than %s across all the bands at once; the largest common margin over the requirements is %+.1f dB.",
 				kind, fit.RLC, fit.RMSGammaError, best, lim.MaxMarginDB)
 			v.Feasible = lim.Feasible()
+			if !fit.Trusted() {
+				v.FitPoor = fmt.Sprintf("The RLC misses the load by %.3f in Γ (RMS), more than the %.2g this page trusts: the limit describes the model, not the load, so read it as a rough guide only. A narrower band, or one band at a time, fits better.",
+					fit.RMSGammaError, match.FitTrustRMSGamma)
+			}
 		}
 	}
 	if r := ne.n.ChuRadiusM; r > 0 {
-		c, err := match.ChuCompare(l, ne.n.DesignHz, r)
+		// The resonance nearest the middle of the bands, as the command
+		// line's match --radius finds it; without bands, the design
+		// frequency.
+		fHz := ne.n.DesignHz
+		if len(bands) > 0 {
+			lo, hi := bands[0].LoHz, bands[0].HiHz
+			for _, b := range bands {
+				lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
+			}
+			fHz = math.Sqrt(lo * hi)
+		}
+		c, err := match.ChuCompare(l, fHz, r)
 		if err != nil {
-			v.Chu = "Chu limit: " + err.Error()
+			v.Chu = "Chu limit: no comparison, because " + plainWords(err.Error()) + "."
 		} else {
-			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance near %s, so Q ≥ %.1f; the sweep shows Q = %.1f (%.2f × the limit%s).",
-				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, c.Ratio,
+			how := ""
+			if c.SlopeQ {
+				how = ", from the slope of its impedance (a half-power edge lies beyond the sweep)"
+			}
+			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance at %s, so Q ≥ %.1f; the sweep shows Q = %.1f%s: %.2f × the limit%s.",
+				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, how, c.Ratio,
 				map[bool]string{true: "; below 1 means loss, or a radiator larger than the sphere such as the ground plane", false: ""}[c.Ratio < 1])
 		}
 		v.Radius = units.Format(r, "m", 3)
@@ -85,7 +104,7 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	defer cancel()
 	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
 	if err != nil {
-		sc.yieldMsg = "Yield: " + err.Error()
+		sc.yieldMsg = "Yield: " + plainWords(err.Error())
 		return nil, sc.yieldMsg
 	}
 	sc.yieldRes = res

@@ -283,7 +283,14 @@ func signedDB(v float64) string {
 func (sc *scene) networkView() web.NetworkView {
 	v := web.NetworkView{}
 	for _, ref := range sc.st.Sweeps {
-		v.Loads = append(v.Loads, web.Option{Value: ref.ID, Label: ref.Name})
+		label := ref.Name
+		if ref.RefPlane != nil && sc.errs[ref.ID] == "" {
+			label += " (corrected)"
+		}
+		v.Loads = append(v.Loads, web.Option{Value: ref.ID, Label: label})
+	}
+	if pick := sc.defaultLoad(); pick >= 0 {
+		v.Loads[pick].Selected = true
 	}
 	for _, n := range sc.st.Networks {
 		v.Networks = append(v.Networks, web.Option{Value: n.ID, Label: n.Name, Selected: n.ID == sc.st.ActiveNetwork})
@@ -304,7 +311,7 @@ func (sc *scene) networkView() web.NetworkView {
 		v.Loads[i].Selected = v.Loads[i].Value == n.SweepID
 	}
 	if ne.err != nil {
-		v.Error = ne.err.Error()
+		v.Error = plainWords(ne.err.Error())
 		return v
 	}
 	for i, p := range n.Parts {
@@ -323,11 +330,14 @@ func (sc *scene) networkView() web.NetworkView {
 		if row.Lumped {
 			fillPartFigures(&row, p, ne.built[i], n.DesignHz)
 		}
+		if p.Kind == sessions.PartLine || p.Kind == sessions.PartStubOpen || p.Kind == sessions.PartStubShort {
+			fillLineFigures(&row, ne.built[i], n.DesignHz)
+		}
 		v.Parts = append(v.Parts, row)
 	}
 	m, idx, err := sc.metrics()
 	if err != nil {
-		v.Error = err.Error()
+		v.Error = plainWords(err.Error())
 	}
 	for i, b := range sc.st.Bands {
 		if idx[i] < 0 || err != nil {
@@ -342,6 +352,34 @@ func (sc *scene) networkView() web.NetworkView {
 	v.Limits = sc.limitsView()
 	v.Yield = sc.yieldView()
 	return v
+}
+
+// defaultLoad is the sweep a new network is offered to match, by its index:
+// the first shown sweep with its reference plane applied (the corrected
+// measurement of the load, not the cable or fixture it was measured
+// through), else the first shown 1-port sweep that is no other sweep's
+// fixture, else the first sweep; −1 for none.
+func (sc *scene) defaultLoad() int {
+	fixture := map[string]bool{}
+	for _, ref := range sc.st.Sweeps {
+		if ref.RefPlane != nil && ref.RefPlane.FixtureSweepID != "" {
+			fixture[ref.RefPlane.FixtureSweepID] = true
+		}
+	}
+	for i, ref := range sc.st.Sweeps {
+		if ref.Visible && ref.RefPlane != nil && sc.errs[ref.ID] == "" {
+			return i
+		}
+	}
+	for i, ref := range sc.st.Sweeps {
+		if ref.Visible && ref.Ports == 1 && !fixture[ref.ID] {
+			return i
+		}
+	}
+	if len(sc.st.Sweeps) > 0 {
+		return 0
+	}
+	return -1
 }
 
 // partChange turns a network form into a change; fields as typed.
@@ -436,6 +474,46 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 			}
 			ch.Params[fd.param] = v
 		}
+		// A line's or stub's figures.
+		if t, ok := f["z0"]; ok {
+			v, err := units.ParseValue(t, "Ω")
+			if err != nil || !(v > 0) {
+				return ch, fe("z0", "Line impedance", fmt.Errorf("%q is not an impedance in ohms", t))
+			}
+			ch.Params["z0Ohm"] = v
+		}
+		if t, ok := f["vfValue"]; ok && strings.TrimSpace(t) != "" {
+			x, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+			switch {
+			case f["vfKind"] == "eeff" && (err != nil || !(x >= 1) || math.IsInf(x, 0)):
+				return ch, fe("vfValue", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", t))
+			case f["vfKind"] == "eeff":
+				ch.Params["vf"] = 1 / math.Sqrt(x)
+			case err != nil || !(x > 0 && x <= 1):
+				return ch, fe("vfValue", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", t))
+			default:
+				ch.Params["vf"] = x
+			}
+		}
+		if t, ok := f["loss"]; ok {
+			s := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(t), "dB/m"))
+			if s == "" || s == "0" {
+				ch.Params["lossDBPerM"] = math.NaN()
+			} else {
+				x, err := strconv.ParseFloat(s, 64)
+				if err != nil || !(x >= 0) || x >= 1e4 {
+					return ch, fe("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", t))
+				}
+				ch.Params["lossDBPerM"] = x
+			}
+		}
+		if t, ok := f["lossRef"]; ok && strings.TrimSpace(t) != "" {
+			x, err := units.ParseFrequency(t)
+			if err != nil || !(x > 0) {
+				return ch, fe("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", t))
+			}
+			ch.Params["lossRefHz"] = x
+		}
 		if t, ok := f["tol"]; ok {
 			if strings.TrimSpace(t) == "" {
 				ch.Params["tolRel"] = math.NaN()
@@ -463,9 +541,16 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 			return ch, fe("partId", "Part", fmt.Errorf("no part %q in the active network", ch.PartID))
 		}
 		if s, ok := f["value"]; ok {
-			v, err := units.ParseValue(s, part.Kind.Unit())
+			name := designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID))
+			v, inWL, err := wavelengthValue(s, match.Part{Kind: part.Kind, Params: part.Params}, ne.n.DesignHz)
+			if inWL && part.Kind.Unit() != "m" {
+				return ch, fe("value", name, fmt.Errorf("only a line or a stub has a length in wavelengths"))
+			}
+			if !inWL {
+				v, err = units.ParseValue(s, part.Kind.Unit())
+			}
 			if err != nil {
-				return ch, fe("value", designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID)), err)
+				return ch, fe("value", name, err)
 			}
 			ch.Value = &v
 		}
@@ -610,6 +695,49 @@ func fillPartFigures(row *web.PartRow, p sessions.Part, d match.Part, fHz float6
 		row.ModelNote = fmt.Sprintf("%s: at %s it is %s", model, fmtF4(fHz), fmtZ(z, 'g', 4))
 	}
 	row.ModelNote += " (set the part's own figures)"
+}
+
+// fillLineFigures shows a line section's or stub's figures: impedance,
+// velocity factor and the effective permittivity 1/VF² it means, loss in
+// dB/m at its frequency, and its length in mm and in wavelengths on the
+// line at the design frequency fHz, with its loss there.
+func fillLineFigures(row *web.PartRow, d match.Part, fHz float64) {
+	l := d.LineOf(d.Value)
+	vf := l.VelocityFactor
+	if vf == 0 {
+		vf = 1
+	}
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
+	row.Line = true
+	row.Z0 = units.Format(l.Z0Ohm, "Ω", 4)
+	row.VF, row.EEff = num(vf), num(1/(vf*vf))
+	row.Loss, row.LossRef = num(l.LossDBPerM), fmtF4(l.LossRefHz)
+	row.LengthMM = units.Format(l.LengthM, "m", 4)
+	row.LengthWL = strconv.FormatFloat(l.ElectricalDeg(fHz)/360, 'f', 4, 64)
+	row.DesignAt = fmtF4(fHz)
+	if l.LossDBPerM > 0 {
+		row.LineDB = fmt.Sprintf(", losing %s there", units.FormatDB(l.LossDB(fHz)))
+	}
+}
+
+// wavelengthValue reads a length typed in wavelengths on the line ("0.25λ",
+// "0.25 wl") at the design frequency fHz; ok is false for anything else.
+func wavelengthValue(s string, d match.Part, fHz float64) (float64, bool, error) {
+	t := strings.TrimSpace(s)
+	for _, suf := range []string{"λ", "wl", "WL"} {
+		if n, found := strings.CutSuffix(t, suf); found {
+			x, err := strconv.ParseFloat(strings.TrimSpace(n), 64)
+			if err != nil || !(x > 0) || math.IsInf(x, 0) {
+				return 0, true, fmt.Errorf("%q is not a number of wavelengths", s)
+			}
+			vf := d.LineOf(1).VelocityFactor
+			if vf == 0 {
+				vf = 1
+			}
+			return x * vf * rfmath.SpeedOfLight / fHz, true, nil
+		}
+	}
+	return 0, false, nil
 }
 
 // modelText names a part model as the panel shows it.

@@ -189,7 +189,7 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	name := path.Base(strings.ReplaceAll(hdr.Filename, "\\", "/"))
 	sw, err := parseSweep(name, raw, s.cfg.FileLimits)
 	if err != nil {
-		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: err.Error()})
+		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: plainWords(err.Error())})
 		return
 	}
 	ev, err := s.store.ApplyAs(r.Context(), a.Cap, a.SessionID, sessions.Change{
@@ -200,7 +200,7 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 		if status == http.StatusInternalServerError {
 			s.log.Error("upload", "err", err)
 		}
-		writeJSON(w, status, uploadReply{Error: msg})
+		writeJSON(w, status, uploadReply{Error: plainWords(msg)})
 		return
 	}
 	writeJSON(w, http.StatusOK, uploadReply{SweepID: ev.SweepID, Version: ev.Version})

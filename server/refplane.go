@@ -305,29 +305,38 @@ func (sc *scene) computeTDR() (*plot, string) {
 	return &plot{id: "tdr", title: "Time domain", p: rp, series: series, bands: bands}, note
 }
 
+// planeSummary says what a sweep's reference plane does, "" for none.
+func (sc *scene) planeSummary(ref sessions.SweepRef) string {
+	rp := ref.RefPlane
+	if rp == nil {
+		return ""
+	}
+	var parts []string
+	if rp.FixtureSweepID != "" {
+		parts = append(parts, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(sc.st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
+	}
+	if rp.DelayS != 0 {
+		parts = append(parts, "delay "+units.Format(rp.DelayS, "s", 4))
+	}
+	if rp.LossDB != 0 {
+		parts = append(parts, fmt.Sprintf("loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
+	}
+	if rp.FlatLossDB != 0 {
+		parts = append(parts, fmt.Sprintf("flat loss %.3g dB", rp.FlatLossDB))
+	}
+	if rp.RenormOhm > 0 {
+		parts = append(parts, "shown in "+units.Format(rp.RenormOhm, "Ω", 4))
+	}
+	return strings.Join(parts, "; ")
+}
+
 // refPlaneView builds the reference-plane and time-domain panels.
 func (sc *scene) refPlaneView() web.RefPlaneView {
 	v := web.RefPlaneView{}
 	for _, ref := range sc.st.Sweeps {
 		o := web.RefPlaneRow{ID: ref.ID, Name: ref.Name, Ports: ref.Ports}
 		if rp := ref.RefPlane; rp != nil {
-			var parts []string
-			if rp.FixtureSweepID != "" {
-				parts = append(parts, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(sc.st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
-			}
-			if rp.DelayS != 0 {
-				parts = append(parts, "delay "+units.Format(rp.DelayS, "s", 4))
-			}
-			if rp.LossDB != 0 {
-				parts = append(parts, fmt.Sprintf("loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
-			}
-			if rp.FlatLossDB != 0 {
-				parts = append(parts, fmt.Sprintf("flat loss %.3g dB", rp.FlatLossDB))
-			}
-			if rp.RenormOhm > 0 {
-				parts = append(parts, "shown in "+units.Format(rp.RenormOhm, "Ω", 4))
-			}
-			o.Summary = strings.Join(parts, "; ")
+			o.Summary = sc.planeSummary(ref)
 			o.Delay = units.Format(rp.DelayS, "s", 5)
 			o.Loss = strconv.FormatFloat(rp.LossDB, 'g', 5, 64)
 			o.LossRef = fmtF(rp.LossRefHz)
@@ -337,7 +346,7 @@ func (sc *scene) refPlaneView() web.RefPlaneView {
 				o.Renorm = strconv.FormatFloat(rp.RenormOhm, 'g', 6, 64)
 			}
 			if sc.errs[ref.ID] != "" {
-				o.Error = sc.errs[ref.ID]
+				o.Error = plainWords(sc.errs[ref.ID])
 			}
 		}
 		v.Sweeps = append(v.Sweeps, o)

@@ -465,6 +465,7 @@ func (sc *scene) sweepRows(token string) []web.SweepRow {
 			ID: ref.ID, Name: ref.Name, FileName: ref.FileName, Color: ref.Color, Visible: ref.Visible,
 			Summary: fmt.Sprintf("%d-port, %d points, %s – %s", ref.Ports, ref.Points, fmtF(ref.FminHz), fmtF(ref.FmaxHz)),
 			RawHref: "/s/" + token + "/sweeps/" + ref.ID + "/file",
+			Plane:   sc.planeSummary(ref),
 		})
 	}
 	return rows

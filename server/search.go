@@ -143,7 +143,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
 		res, err := match.Search(ctx, load, bands, set)
 		if err != nil {
-			msg := "the search failed: " + err.Error()
+			msg := "the search failed: " + plainWords(err.Error())
 			if errors.Is(err, context.Canceled) {
 				msg = "the search was cancelled"
 			} else if errors.Is(err, context.DeadlineExceeded) {
@@ -221,7 +221,7 @@ func (sc *scene) searchView() web.SearchView {
 	}
 	syn, err := match.Synthesize(zl, complex(ne.z0, 0), fd)
 	if err != nil {
-		v.SynthNote = err.Error()
+		v.SynthNote = plainWords(err.Error())
 		return v
 	}
 	v.SynthAt = fmtF(fd)
@@ -239,15 +239,88 @@ func (sc *scene) searchView() web.SearchView {
 	for _, no := range syn.NoL {
 		v.NoL = append(v.NoL, fmt.Sprintf("No L-network with the %s: %s", orientationText[no.Orientation], no.Reason))
 	}
+	ls := sc.lineSettings()
+	v.Line = web.LineSettings{Z0: units.Format(ne.z0, "Ω", 4), VF: strconv.FormatFloat(ls.vf, 'g', 4, 64),
+		Loss: strconv.FormatFloat(ls.lossDBPerM, 'g', 4, 64), LossRef: units.FormatFrequency(ls.lossRefHz, 4)}
+	wl := ls.vf * rfmath.SpeedOfLight / fd // a wavelength on the line, m
+	mm := func(w float64) string { return units.Format(w*wl, "m", 4) }
 	for i, st := range syn.Stubs {
 		v.Stubs = append(v.Stubs, web.SynthRow{Index: i, Label: string(st.Type) + " stub",
-			Parts: fmt.Sprintf("line %.4f λ from the load, then a %s stub %.4f λ long", st.DWavelengths, st.Type, st.LWavelengths), CanUse: true})
+			Parts: fmt.Sprintf("line %.4f λ (%s) from the load, then a %s stub %.4f λ (%s) long", st.DWavelengths, mm(st.DWavelengths), st.Type, st.LWavelengths, mm(st.LWavelengths)), CanUse: true})
 	}
-	for _, q := range syn.QuarterWaves {
-		v.Quarter = append(v.Quarter, fmt.Sprintf("%.4f λ of %s line, then λ/4 of %.2f Ω (sees %.2f Ω)", q.DWavelengths, units.Format(ne.z0, "Ω", 3), q.Z1Ohm, q.ROhm))
+	for i, q := range syn.QuarterWaves {
+		v.Quarters = append(v.Quarters, web.SynthRow{Index: i, Label: "quarter-wave",
+			Parts: fmt.Sprintf("%.4f λ (%s) of %s line, then λ/4 (%s) of %.2f Ω (sees %.2f Ω)", q.DWavelengths, mm(q.DWavelengths), units.Format(ne.z0, "Ω", 3), mm(0.25), q.Z1Ohm, q.ROhm), CanUse: true})
 	}
 	v.SynthNote = strings.Join(syn.Notes, "; ")
 	return v
+}
+
+// lineFigures are the figures of a line section or stub other than its
+// length (match.Part's "vf", "lossDBPerM", "lossRefHz").
+type lineFigures struct{ vf, lossDBPerM, lossRefHz float64 }
+
+// lineSettings are the line figures the stub and quarter-wave solutions
+// are built with by default: those of the active network's first line or
+// stub, else an air line without loss (the page's fields change them).
+func (sc *scene) lineSettings() lineFigures {
+	ls := lineFigures{vf: 1, lossRefHz: 1e9}
+	if ne := sc.net; ne != nil {
+		for _, p := range ne.n.Parts {
+			if p.Kind == sessions.PartLine || p.Kind == sessions.PartStubOpen || p.Kind == sessions.PartStubShort {
+				d := match.Part{Kind: p.Kind, Params: p.Params}
+				l := d.LineOf(1)
+				return lineFigures{vf: l.VelocityFactor, lossDBPerM: l.LossDBPerM, lossRefHz: l.LossRefHz}
+			}
+		}
+	}
+	return ls
+}
+
+// lineFields reads the stub and quarter-wave forms' line figures: a
+// velocity factor (or an effective permittivity, "eeff"), a loss in dB/m
+// and the frequency it holds at; empty fields take the defaults.
+func (sc *scene) lineFields(form string, f map[string]string) (lineFigures, error) {
+	ls := sc.lineSettings()
+	fe := func(field, label string, err error) error { return &FieldError{form, field, label, err} }
+	if s := strings.TrimSpace(f["vf"]); s != "" {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(x > 0 && x <= 1) {
+			return ls, fe("vf", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", s))
+		}
+		ls.vf = x
+	}
+	if s := strings.TrimSpace(f["eeff"]); s != "" {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(x >= 1) || math.IsInf(x, 0) {
+			return ls, fe("eeff", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", s))
+		}
+		ls.vf = 1 / math.Sqrt(x)
+	}
+	if s := strings.TrimSpace(f["loss"]); s != "" {
+		x, err := strconv.ParseFloat(strings.TrimSuffix(strings.TrimSpace(strings.TrimSuffix(s, "dB/m")), "dB"), 64)
+		if err != nil || !(x >= 0) || x >= 1e4 {
+			return ls, fe("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", s))
+		}
+		ls.lossDBPerM = x
+	}
+	if s := strings.TrimSpace(f["lossRef"]); s != "" {
+		x, err := units.ParseFrequency(s)
+		if err != nil || !(x > 0) {
+			return ls, fe("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", s))
+		}
+		ls.lossRefHz = x
+	}
+	return ls, nil
+}
+
+// params returns the line figures as a part's params, with impedance z0.
+func (ls lineFigures) params(z0 float64) map[string]float64 {
+	p := map[string]float64{"z0Ohm": z0, "vf": ls.vf}
+	if ls.lossDBPerM > 0 {
+		p["lossDBPerM"], p["lossRefHz"] = ls.lossDBPerM, ls.lossRefHz
+	}
+	return p
 }
 
 var orientationText = map[match.Orientation]string{
@@ -270,7 +343,7 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
 			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts}, nil
-	case "synth.use", "stub.use":
+	case "synth.use", "stub.use", "qw.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
 		}
@@ -281,7 +354,13 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			return sessions.Change{}, err
 		}
 		ch := sessions.Change{Op: sessions.OpNetworkAdd, SweepID: ne.n.SweepID, Port: ne.port, DesignHz: fd}
-		lambda := rfmath.SpeedOfLight / fd
+		ls, err := sc.lineFields(form, f)
+		if err != nil {
+			return ch, err
+		}
+		// Lengths are wavelengths on the line: its velocity factor
+		// shortens them.
+		lambda := ls.vf * rfmath.SpeedOfLight / fd
 		switch {
 		case form == "synth.use" && idx < len(syn.LNetworks):
 			l := syn.LNetworks[idx]
@@ -296,11 +375,17 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			if st.Type == match.ShortStub {
 				kind = sessions.PartStubShort
 			}
-			params := map[string]float64{"z0Ohm": ne.z0, "vf": 1}
 			if st.DWavelengths > 0 {
-				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: st.DWavelengths * lambda, Params: params})
+				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: st.DWavelengths * lambda, Params: ls.params(ne.z0)})
 			}
-			ch.Parts = append(ch.Parts, sessions.Part{Kind: kind, Value: max(st.LWavelengths, 1e-6) * lambda, Params: params})
+			ch.Parts = append(ch.Parts, sessions.Part{Kind: kind, Value: max(st.LWavelengths, 1e-6) * lambda, Params: ls.params(ne.z0)})
+		case form == "qw.use" && idx < len(syn.QuarterWaves):
+			q := syn.QuarterWaves[idx]
+			ch.Name = fmt.Sprintf("quarter-wave, %.4g Ω", q.Z1Ohm)
+			if q.DWavelengths > 0 {
+				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: q.DWavelengths * lambda, Params: ls.params(ne.z0)})
+			}
+			ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: q.LWavelengths * lambda, Params: ls.params(q.Z1Ohm)})
 		default:
 			return sessions.Change{}, fmt.Errorf("no such solution")
 		}

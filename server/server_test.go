@@ -464,11 +464,11 @@ func TestWebsocketBadMessages(t *testing.T) {
 		want string
 	}{
 		{`{not json`, "not JSON"},
-		{`{"type":"dance","id":3}`, "unknown message type"},
+		{`{"type":"dance","id":3}`, "Unknown message type"},
 		{`{"type":"change","id":4}`, "needs a \"change\""},
 		{`{"type":"change","id":5,"change":{"op":"marker.move","markerId":"nope","freqHz":1}}`, "nope"},
 		{`{"type":"change","id":6,"change":{"op":"sweep.add"}}`, "uploading"},
-		{`{"type":"form","id":8,"form":"band.set","fields":{"lo":"9G","hi":"1G"}}`, "band"},
+		{`{"type":"form","id":8,"form":"band.set","fields":{"lo":"9G","hi":"1G"}}`, "To: the range 9 GHz – 1 GHz is empty"},
 	}
 	for _, tc := range cases {
 		c.WriteMessage(websocket.TextMessage, []byte(tc.raw))

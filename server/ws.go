@@ -141,6 +141,9 @@ func (c *conn) isDone() bool {
 }
 
 func (c *conn) reply(m outMsg) {
+	if m.Type == "error" {
+		m.Msg = plainWords(m.Msg) // words.go: the engineer's words, SI frequencies
+	}
 	b, _ := json.Marshal(m)
 	c.queue(b)
 }
@@ -422,7 +425,7 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true, "part.params": true}
 
 // searchForms turn a found design or solution into a network.
-var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true}
+var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true, "qw.use": true}
 
 // planeForms are the reference-plane and time-domain forms; they too need
 // the scene (the sweeps, corrected or raw).

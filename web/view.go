@@ -151,6 +151,7 @@ type SweepRow struct {
 	Visible  bool
 	Summary  string // "1-port, 401 points, 700 MHz – 1.1 GHz"
 	RawHref  string
+	Plane    string // what its reference plane does, "" as measured
 }
 
 // ReadoutRow is one marker's readout.
@@ -253,6 +254,13 @@ type PartRow struct {
 	// The part's own figures, overriding its model's ("" = the model's).
 	Q, QRef, SRF, ESR, Tol, MaxV, MaxA string
 	ModelNote                          string // what the model gives, in words
+	// A line section's or stub's figures: its characteristic impedance,
+	// velocity factor (VF, with the effective permittivity it means), loss
+	// in dB/m at a frequency (growing as √f), and its length in mm and in
+	// wavelengths on the line at the design frequency.
+	Line                                 bool
+	Z0, VF, EEff, Loss, LossRef          string
+	LengthMM, LengthWL, DesignAt, LineDB string
 }
 
 // NetMetricRow is one band's figures with the network (parts as built) and
@@ -321,8 +329,10 @@ type SearchView struct {
 	SynthAt        string
 	SynthLoad      string
 	LNets, Stubs   []SynthRow
-	NoL, Quarter   []string
+	Quarters       []SynthRow
+	NoL            []string
 	SynthNote      string
+	Line           LineSettings
 }
 
 // DesignRow is one design a search found, judged on the current load.
@@ -340,9 +350,17 @@ type SynthRow struct {
 	CanUse       bool
 }
 
-// LimitsView holds the limits no network can beat, in words.
+// LineSettings are the figures of the line that the stub and quarter-wave
+// solutions are built from when used (their impedance is the reference's).
+type LineSettings struct {
+	Z0, VF, Loss, LossRef string
+}
+
+// LimitsView holds the limits no network can beat, in words. FitPoor,
+// when set, says why the Bode–Fano limit's RLC fit is too poor to trust.
 type LimitsView struct {
 	BodeFano, Chu, Radius string
+	FitPoor               string
 	Feasible              bool
 }
 

@@ -142,6 +142,7 @@ function nextUpdate() {
 // page's asks for the page's own again.
 function afterFrags() {
 	showUploadLog();
+	restoreKept();
 	updateExportLinks();
 	const svg = chartSVG();
 	if (svg && !isDefaultView() && (svg.dataset.tag || "") !== view.vid && !viewInFlight) sendView();
@@ -275,7 +276,7 @@ function restoreSelection() {
 let drag = null;
 
 function startDrag(kind, id, ev, svg) {
-	drag = { kind, id, svg, gesture: `g${Date.now().toString(36)}${Math.random().toString(36).slice(2, 6)}`, pending: null, raf: 0 };
+	drag = { kind, id, svg, figID: (svg.closest("figure") || {}).id, gesture: `g${Date.now().toString(36)}${Math.random().toString(36).slice(2, 6)}`, pending: null, raf: 0 };
 	svg.setPointerCapture(ev.pointerId);
 	$("#chart")?.classList.toggle("dragging", kind === "chart");
 	ev.preventDefault();
@@ -357,12 +358,15 @@ document.addEventListener("pointermove", (ev) => {
 	if (pan) { movePan(ev); return; }
 	if (spanDrag) { moveSpanDrag(ev); return; }
 	if (!drag) return;
+	// The chart and plots are drawn again as the drag goes on: map the
+	// pointer with the drawing on the page now, not the one the drag began on.
 	if (drag.kind === "chart") {
-		queueMove({ op: "marker.move", markerId: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+		queueMove({ op: "marker.move", markerId: drag.id, gamma: toGamma(chartSVG() || drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
 	} else if (drag.kind === "part") {
-		queueMove({ partdrag: true, partId: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+		queueMove({ partdrag: true, partId: drag.id, gamma: toGamma(chartSVG() || drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
 	} else {
-		const f = plotFreq(drag.svg, ev.clientX, ev.clientY);
+		const fig = drag.svg.isConnected ? null : document.getElementById(drag.figID);
+		const f = plotFreq((fig && fig.querySelector("svg")) || drag.svg, ev.clientX, ev.clientY);
 		if (f > 0) queueMove({ op: "marker.move", markerId: drag.id, freqHz: f, gesture: drag.gesture });
 	}
 });
@@ -429,7 +433,8 @@ document.addEventListener("click", (ev) => {
 	case "part-remove": change({ op: "part.remove", partId: d.part }); break;
 	case "search-use": send({ type: "form", form: "search.use", fields: { index: d.index } }); break;
 	case "synth-use": send({ type: "form", form: "synth.use", fields: { index: d.index } }); break;
-	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index } }); break;
+	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index, ...lineSettings() } }); break;
+	case "qw-use": send({ type: "form", form: "qw.use", fields: { index: d.index, ...lineSettings() } }); break;
 	case "search-cancel": send({ type: "action", action: "search-cancel" }); break;
 	default: send({ type: "action", action: d.action, fields: { ...d } });
 	}
@@ -484,6 +489,33 @@ document.addEventListener("submit", (ev) => {
 	}
 	send({ type: "form", form: form.dataset.form, fields });
 });
+
+// lineSettings are the line figures typed for the stub and quarter-wave
+// solutions.
+function lineSettings() {
+	const f = $("#line-settings");
+	const out = {};
+	if (!f) return out;
+	for (const n of ["vf", "loss", "lossRef"]) {
+		const e = f.elements.namedItem(n);
+		if (e) out[n] = e.value;
+	}
+	return out;
+}
+
+// Fields marked data-keep keep what was typed in them when their panel is
+// drawn again.
+const kept = {};
+document.addEventListener("input", (ev) => {
+	const k = ev.target.dataset && ev.target.dataset.keep;
+	if (k) kept[k] = ev.target.value;
+});
+
+function restoreKept() {
+	document.querySelectorAll("[data-keep]").forEach((e) => {
+		if (kept[e.dataset.keep] !== undefined && document.activeElement !== e) e.value = kept[e.dataset.keep];
+	});
+}
 
 function partSet(partId, fields) {
 	send({ type: "form", form: "part.set", fields: { partId, ...fields } });
@@ -566,6 +598,14 @@ function showUploadLog() {
 		list.append(li);
 	}
 }
+
+// The sweeps' "plane…" links open that sweep's reference-plane settings.
+document.addEventListener("click", (ev) => {
+	const a = ev.target.closest && ev.target.closest("a[data-open-plane]");
+	if (!a) return;
+	const d = document.getElementById(`plane-${a.dataset.openPlane}`);
+	if (d) { d.open = true; d.scrollIntoView({ block: "center" }); ev.preventDefault(); }
+});
 
 document.addEventListener("click", (ev) => {
 	const x = ev.target.closest("button[data-dismiss-upload]");
