@@ -107,7 +107,7 @@ var fieldWords = map[string]string{
 	"params.q": "Q", "params.qRefHz": "Q frequency", "params.srfHz": "Self-resonance", "params.esrOhm": "ESR",
 	"params.tolRel": "Tolerance", "params.maxV": "Rated voltage", "params.maxA": "Rated current",
 	"params.z0Ohm": "Line impedance", "params.vf": "Velocity factor", "params.lossDBPerM": "Line loss",
-	"params.lossRefHz": "Loss frequency",
+	"params.lossRefHz":   "Loss frequency",
 	"refPlane.lossRefHz": "Loss frequency", "refPlane.fixtureSweepId": "Fixture", "refPlane.fixturePortFacingAnalyser": "Fixture port",
 	"chart.qArcs": "Q arcs", "chart.vswrCircle": "VSWR circle", "chart.returnLossCircleDB": "Return-loss circle", "chart.zoom": "Zoom",
 	"timeDomain.beta": "Kaiser β", "timeDomain.vf": "Velocity factor", "timeDomain.gateSpanS": "Gate",
