@@ -62,6 +62,9 @@ type Series struct {
 	// lengths. Non-finite values break the curve.
 	FreqHz, Y []float64
 	Dashed    bool
+	// NoLegend leaves the series out of the legend (the X of an R and X
+	// pair, whose dashing the title explains).
+	NoLegend bool
 }
 
 // Band is a frequency band of interest, shaded, with an optional limit drawn
@@ -85,6 +88,10 @@ type PlotMarker struct {
 	FreqHz float64
 	Color  string
 	Shape  Shape
+	// Anchor places the marker's number above the plot: 0 centred on its
+	// line, −1 ending just left of it, +1 starting just right of it (see
+	// [Plot.SpreadLabels]).
+	Anchor int
 }
 
 const badSeriesLength = "chartsvg: series FreqHz and Y lengths differ"
@@ -166,8 +173,15 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 		case !(hi >= lo):
 			lo, hi = 0, 1
 		default:
-			if hi == lo {
-				lo, hi = lo-1, hi+1
+			// A constant series (within rounding, such as a line's group
+			// delay) gets a range of ±10 % about its value, ±1 about 0.
+			mag := math.Max(math.Abs(lo), math.Abs(hi))
+			switch {
+			case mag == 0:
+				lo, hi = -1, 1
+			case hi-lo <= 1e-9*mag:
+				mid := (lo + hi) / 2
+				lo, hi = mid-0.1*mag, mid+0.1*mag
 			}
 			step := niceStep(hi-lo, 5)
 			lo, hi = math.Floor(lo/step+1e-9)*step, math.Ceil(hi/step-1e-9)*step
@@ -221,7 +235,7 @@ func (p *Plot) layout(series []Series) plotLayout {
 	if p.Title != "" {
 		top += plotRowPx + 2
 	}
-	if !p.NoLegend && len(series) > 1 {
+	if !p.NoLegend && legendCount(series) > 1 {
 		rows := p.placeLegend(&l, series, nil)
 		top += plotRowPx * float64(rows)
 		// Beyond two rows the drawing grows instead of the plot area
@@ -411,11 +425,23 @@ func (p *Plot) axes(sw *writer, l *plotLayout) {
 	sw.s(`<g fill="` + colMuted + `" text-anchor="middle">`)
 	for i := 0; i < nx; i++ {
 		f := xfirst + float64(i)*xstep
+		label := formatHzStep(f, xstep, div, unit)
+		x, half := l.px(f), textWidth(label, plotFontPx)/2
 		sw.s(`<text`)
-		sw.numAttr("x", l.px(f))
+		// A label at the end of the axis that would run off the drawing
+		// is set to end at its edge instead.
+		switch {
+		case x+half > l.w-2:
+			sw.s(` text-anchor="end"`)
+			x = l.w - 2
+		case x-half < 2:
+			sw.s(` text-anchor="start"`)
+			x = 2
+		}
+		sw.numAttr("x", x)
 		sw.numAttr("y", l.y1+15)
 		sw.b('>')
-		sw.text(formatHzStep(f, xstep, div, unit))
+		sw.text(label)
 		sw.s(`</text>`)
 	}
 	sw.s(`</g><g fill="` + colMuted + `" text-anchor="end">`)
@@ -908,8 +934,18 @@ func (p *Plot) marker(sw *writer, l *plotLayout, m *PlotMarker, series []Series)
 	}
 	sw.s(`<text stroke="#fff" stroke-width="3" paint-order="stroke" fill="`)
 	sw.text(col)
-	sw.s(`" text-anchor="middle"`)
-	sw.numAttr("x", x)
+	lx := x
+	switch {
+	case m.Anchor < 0:
+		sw.s(`" text-anchor="end"`)
+		lx -= 3
+	case m.Anchor > 0:
+		sw.s(`" text-anchor="start"`)
+		lx += 3
+	default:
+		sw.s(`" text-anchor="middle"`)
+	}
+	sw.numAttr("x", lx)
 	sw.numAttr("y", l.y0-5)
 	sw.s(`>`)
 	sw.buf = strconv.AppendInt(sw.buf, int64(m.Num), 10)
@@ -918,6 +954,62 @@ func (p *Plot) marker(sw *writer, l *plotLayout, m *PlotMarker, series []Series)
 		sw.text(m.Label)
 	}
 	sw.s(`</text></g>`)
+}
+
+// markerLabelWidth estimates the width of a marker's number and label.
+func markerLabelWidth(m *PlotMarker) float64 {
+	n := len(strconv.Itoa(m.Num))
+	if m.Label != "" {
+		n += 1 + utf8.RuneCountInString(m.Label)
+	}
+	return float64(n) * 0.62 * 11.5
+}
+
+// SpreadLabels sets the Anchor of each marker so that the numbers written
+// above the plot do not overlap: in order of frequency, a number is
+// centred on its line where it clears the one before; else, when the one
+// before is centred and the two fit side by side, that one ends left of
+// its line and this one starts right of it; else this one starts right of
+// its line where that clears; a number that still overlaps keeps its place
+// (three or more markers closer than their numbers). Call it on a resolved
+// Plot with all the markers it draws.
+func (p *Plot) SpreadLabels(markers []PlotMarker, series []Series) {
+	l := p.layout(series)
+	idx := make([]int, 0, len(markers))
+	for i := range markers {
+		markers[i].Anchor = 0
+		if x := l.px(markers[i].FreqHz); x >= l.x0 && x <= l.x1 {
+			idx = append(idx, i)
+		}
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return markers[idx[a]].FreqHz < markers[idx[b]].FreqHz })
+	span := func(m *PlotMarker) (float64, float64) {
+		x, w := l.px(m.FreqHz), markerLabelWidth(m)
+		switch {
+		case m.Anchor < 0:
+			return x - 3 - w, x - 3
+		case m.Anchor > 0:
+			return x + 3, x + 3 + w
+		}
+		return x - w/2, x + w/2
+	}
+	const gap = 3
+	for k := 1; k < len(idx); k++ {
+		prev, cur := &markers[idx[k-1]], &markers[idx[k]]
+		_, pe := span(prev)
+		if cs, _ := span(cur); cs >= pe+gap {
+			continue
+		}
+		if prev.Anchor == 0 {
+			prev.Anchor, cur.Anchor = -1, 1
+			_, pe = span(prev)
+			if cs, _ := span(cur); cs >= pe+gap {
+				continue
+			}
+			prev.Anchor = 0
+		}
+		cur.Anchor = 1
+	}
 }
 
 // seriesAt interpolates a series linearly at frequency f.
@@ -944,6 +1036,9 @@ func seriesAt(s *Series, f float64) (float64, bool) {
 func (p *Plot) placeLegend(l *plotLayout, series []Series, put func(i int, x float64, row int)) int {
 	x, row := l.x0, 0
 	for i := range series {
+		if series[i].NoLegend {
+			continue
+		}
 		w := 24 + float64(utf8.RuneCountInString(seriesName(&series[i])))*0.56*plotFontPx + 16
 		if x > l.x0 && x+w > l.x1 {
 			x, row = l.x0, row+1
@@ -956,6 +1051,17 @@ func (p *Plot) placeLegend(l *plotLayout, series []Series, put func(i int, x flo
 	return row + 1
 }
 
+// legendCount is the number of series in the legend.
+func legendCount(series []Series) int {
+	n := 0
+	for i := range series {
+		if !series[i].NoLegend {
+			n++
+		}
+	}
+	return n
+}
+
 func seriesName(s *Series) string {
 	if s.Name != "" {
 		return s.Name
@@ -965,7 +1071,7 @@ func seriesName(s *Series) string {
 
 // legend writes the series names under the title, when there are two or more.
 func (p *Plot) legend(sw *writer, l *plotLayout, series []Series) {
-	if len(series) < 2 {
+	if legendCount(series) < 2 {
 		return
 	}
 	sw.s(`<g`)

@@ -96,8 +96,9 @@ func TestPlotResolve(t *testing.T) {
 		{"auto", Plot{}, 1e9, 3e9, 2, 20},
 		{"manual y", Plot{YMin: -5, YMax: 40}, 1e9, 3e9, -5, 40},
 		// Only the points inside the x range count: none here (the one
-		// at 2 GHz is NaN), so y spans the limit alone, widened by ±1.
-		{"manual x", Plot{XMin: 1.2e9, XMax: 2.8e9}, 1.2e9, 2.8e9, 19, 21},
+		// at 2 GHz is NaN), so y spans the limit alone, 20, widened by
+		// ±10 % (a constant's range) to 18–22.
+		{"manual x", Plot{XMin: 1.2e9, XMax: 2.8e9}, 1.2e9, 2.8e9, 18, 22},
 		// Log: decades around 3.2 and 20.
 		{"log", Plot{LogY: true}, 1e9, 3e9, 1, 100},
 	} {

@@ -35,7 +35,7 @@ func (sc *scene) limitsView() web.LimitsView {
 	if len(bands) > 0 {
 		lim, fit, err := match.BodeFanoOf(l, bands)
 		if err != nil {
-			v.BodeFano = "Bode–Fano: " + plainWords(err.Error())
+			v.BodeFano = "Bode–Fano: " + plainDetail(err.Error())
 		} else {
 			kind := "series"
 			if fit.Parallel {
@@ -68,7 +68,7 @@ func (sc *scene) limitsView() web.LimitsView {
 		}
 		c, err := match.ChuCompare(l, fHz, r)
 		if err != nil {
-			v.Chu = "Chu limit: no comparison, because " + plainWords(err.Error()) + "."
+			v.Chu = "Chu limit: no comparison, because " + plainDetail(err.Error()) + "."
 		} else {
 			how := ""
 			if c.SlopeQ {
@@ -104,7 +104,7 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	defer cancel()
 	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
 	if err != nil {
-		sc.yieldMsg = "Yield: " + plainWords(err.Error())
+		sc.yieldMsg = "Yield: " + plainDetail(err.Error())
 		return nil, sc.yieldMsg
 	}
 	sc.yieldRes = res

@@ -249,14 +249,13 @@ func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool, v *pageVi
 			c.RenderMarker(&b, cm)
 			out = append(out, frag{ID: "mk-" + markerID, HTML: b.String(), SVG: true})
 		}
+		// Every marker's group of each plot: a moved marker's number may
+		// make another's move aside (chartsvg.Plot.SpreadLabels).
 		for _, p := range sc.plotsFor(v) {
-			for _, pm := range sc.plotMarkers() {
-				if pm.ID != markerID {
-					continue
-				}
+			for _, pm := range sc.markersOf(&p) {
 				var b bytes.Buffer
 				p.p.RenderMarker(&b, pm, p.series)
-				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + markerID, HTML: b.String(), SVG: true})
+				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + pm.ID, HTML: b.String(), SVG: true})
 			}
 		}
 	}

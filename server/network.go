@@ -323,6 +323,7 @@ func (sc *scene) networkView() web.NetworkView {
 			Value: units.Format(p.Value, unit, 4), Model: p.Model, Series: p.ESeries, Lumped: p.Kind.Component() != "",
 			SliderMin: strconv.FormatFloat(math.Log10(lo), 'f', 4, 64), SliderMax: strconv.FormatFloat(math.Log10(hi), 'f', 4, 64),
 			SliderVal: strconv.FormatFloat(math.Log10(p.Value), 'f', 4, 64), First: i == 0, Last: i == len(n.Parts)-1,
+			LogValue: strconv.FormatFloat(math.Log10(p.Value), 'g', 15, 64),
 		}
 		if p.ESeries != "" {
 			row.Buy = units.Format(d.BuyValue(), unit, 3)

@@ -275,7 +275,10 @@ func reflSeries(q quantity, id, name, color string, freq []float64, gamma []comp
 			zk := z(g)
 			y[k], x[k] = real(zk), imag(zk)
 		}
-		return []chartsvg.Series{mk("-r", " R", y, false), mk("-x", " X", x, true)}
+		// One legend entry per trace: the title says R solid, X dashed.
+		xs := mk("-x", " X", x, true)
+		xs.NoLegend = true
+		return []chartsvg.Series{mk("-r", "", y, false), xs}
 	case "zmag":
 		for k, g := range gamma {
 			y[k] = cmplx.Abs(z(g))
@@ -358,8 +361,8 @@ func (sc *scene) plotViews(v *pageView) []web.PlotView {
 	return out
 }
 
-// fmtRange writes a y range's end for its input.
-func fmtRange(v float64) string { return strconv.FormatFloat(v, 'g', 5, 64) }
+// fmtRange writes a y range's end for its input ("0", never "-0").
+func fmtRange(v float64) string { return strconv.FormatFloat(v+0, 'g', 5, 64) }
 
 // quantityGroups are the choices of a plot's selector: the reflections of
 // S11 (and S22 with a 2-port sweep shown), the transmissions with a 2-port

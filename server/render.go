@@ -170,9 +170,27 @@ func onChart(v *pageView, t *trace) bool {
 func (sc *scene) chartTraces(v *pageView) []chartsvg.Trace {
 	out := make([]chartsvg.Trace, 0, len(sc.traces))
 	z0 := v.z0()
+	shown := 0
+	for _, t := range sc.traces {
+		if onChart(v, t) {
+			shown++
+		}
+	}
+	n := 0
 	for _, t := range sc.traces {
 		if !onChart(v, t) {
 			continue
+		}
+		n++
+		// Frequency labels along every trace crowd a chart of many: with
+		// three or four, every other tick is labelled; with more, only
+		// the first two traces' ticks are.
+		every := 0
+		switch {
+		case shown > 4 && n > 2:
+			every = 1 << 30
+		case shown > 2:
+			every = 2
 		}
 		name := t.ref.Name
 		if t.sweep.Ports > 1 {
@@ -189,7 +207,7 @@ func (sc *scene) chartTraces(v *pageView) []chartsvg.Trace {
 		}
 		out = append(out, chartsvg.Trace{
 			ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Gamma: sc.dispGamma(t, z0),
-			Dashed: t.port == 2, KeepHz: keep,
+			Dashed: t.port == 2, KeepHz: keep, LabelEvery: every,
 		})
 		if raw := sc.raw[t.ref.ID]; raw != nil && t.port == 1 {
 			out = append(out, chartsvg.Trace{
@@ -332,6 +350,9 @@ type plot struct {
 }
 
 func (p *plot) render(w io.Writer, markers []chartsvg.PlotMarker) error {
+	if len(markers) > 1 {
+		p.p.SpreadLabels(markers, p.series)
+	}
 	return p.p.Render(w, p.series, p.bands, markers)
 }
 
@@ -346,6 +367,14 @@ func (sc *scene) plotMarkers() []chartsvg.PlotMarker {
 		}
 	}
 	return out
+}
+
+// markersOf returns the markers as plot p draws them, their numbers
+// spread so that none covers another (chartsvg.Plot.SpreadLabels).
+func (sc *scene) markersOf(p *plot) []chartsvg.PlotMarker {
+	ms := sc.plotMarkers()
+	p.p.SpreadLabels(ms, p.series)
+	return ms
 }
 
 // readout is one marker's figures.

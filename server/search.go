@@ -143,7 +143,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
 		res, err := match.Search(ctx, load, bands, set)
 		if err != nil {
-			msg := "the search failed: " + plainWords(err.Error())
+			msg := "the search failed: " + plainDetail(err.Error())
 			if errors.Is(err, context.Canceled) {
 				msg = "the search was cancelled"
 			} else if errors.Is(err, context.DeadlineExceeded) {

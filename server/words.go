@@ -16,6 +16,16 @@ import (
 // ("2.9 GHz", "2 GHz – 3 GHz"). The detail after them is kept: it says
 // what is wrong and where. A reader's position ("bad.s1p:4: ") is kept.
 func plainWords(msg string) string {
+	msg = plainDetail(msg)
+	if first, _, _ := strings.Cut(msg, " "); msg != "" && !strings.ContainsAny(first, ".:/") {
+		msg = strings.ToUpper(msg[:1]) + msg[1:] // not a file's name and line
+	}
+	return msg
+}
+
+// plainDetail is plainWords for a message that goes on within a sentence
+// ("Bode–Fano: cannot fit …"): the same words, not capitalised.
+func plainDetail(msg string) string {
 	if msg == "" {
 		return msg
 	}
@@ -57,9 +67,6 @@ func plainWords(msg string) string {
 		}
 		return units.FormatFrequency(v, 6)
 	})
-	if first, _, _ := strings.Cut(msg, " "); msg != "" && !strings.ContainsAny(first, ".:/") {
-		msg = strings.ToUpper(msg[:1]) + msg[1:] // not a file's name and line
-	}
 	return msg
 }
 

@@ -250,6 +250,7 @@ type PartRow struct {
 	Lumped                      bool
 	SliderMin, SliderMax        string // log10 of the value
 	SliderVal                   string
+	LogValue                    string // log10 of the value, in full, for the fine slider
 	First, Last                 bool
 	// The part's own figures, overriding its model's ("" = the model's).
 	Q, QRef, SRF, ESR, Tol, MaxV, MaxA string

@@ -446,7 +446,16 @@ document.addEventListener("change", (ev) => {
 	if (viewChange(el)) return;
 	if (!canEdit) return;
 	const d = el.dataset;
-	if (d.partValue) { clearTimeout(typeTimer); partSet(d.partValue, { value: el.value, gesture: typeGesture(d.partValue) }); return; }
+	if (d.partValue) {
+		clearTimeout(typeTimer);
+		if (lastTyped[d.partValue] === el.value.trim() && !el.classList.contains("invalid")) {
+			// Sent as it was typed: show it as the server wrote it back.
+			el.value = el.getAttribute("value");
+			return;
+		}
+		partSet(d.partValue, { value: el.value, gesture: typeGesture(d.partValue) });
+		return;
+	}
 	if (d.partFine) {
 		sliding = false;
 		fineSlide = null;
@@ -905,6 +914,7 @@ function endSpanDrag(ev) {
 // refuses is marked on the field, not announced.
 
 const typing = new Map(); // message id → field
+const lastTyped = {}; // part → the text last sent while typing
 let typeTimer = 0;
 let typeGestures = {};
 
@@ -917,6 +927,17 @@ document.addEventListener("focusin", (ev) => {
 	if (ev.target.dataset && ev.target.dataset.partValue) typeGestures = {};
 });
 
+// Leaving a field whose typing was applied shows the value as the server
+// wrote it back ("160n" becomes "160 nH"). A field refocused after its
+// panel was redrawn fires no change event, so this is done on focusout.
+document.addEventListener("focusout", (ev) => {
+	const el = ev.target;
+	const id = el.dataset && el.dataset.partValue;
+	if (!id || lastTyped[id] !== el.value.trim() || el.classList.contains("invalid")) return;
+	clearTimeout(typeTimer);
+	el.value = el.getAttribute("value");
+});
+
 function typed(el) {
 	clearTimeout(typeTimer);
 	const text = el.value.trim();
@@ -925,6 +946,7 @@ function typed(el) {
 		const id = nextID;
 		if (send({ type: "form", form: "part.set", fields: { partId: el.dataset.partValue, value: text, gesture: typeGesture(el.dataset.partValue) } })) {
 			typing.set(id, el.dataset.partValue);
+			lastTyped[el.dataset.partValue] = text;
 		}
 	}, 500);
 }
@@ -953,8 +975,7 @@ function fine(el) {
 	const id = el.dataset.partFine;
 	sliding = true;
 	if (!fineSlide || fineSlide.el !== el) {
-		const coarse = document.querySelector(`[data-part-slider="${CSS.escape(id)}"]`);
-		fineSlide = { el, base: Number(coarse ? coarse.value : 0), gesture: `f${Date.now().toString(36)}`, raf: 0 };
+		fineSlide = { el, base: Number(el.dataset.partBase), gesture: `f${Date.now().toString(36)}`, raf: 0 };
 	}
 	if (fineSlide.raf) return;
 	fineSlide.raf = requestAnimationFrame(() => {
