@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -344,5 +345,57 @@ func TestPlotScalesToSpanAndRobust(t *testing.T) {
 	}
 	if !strings.Contains(b.String(), "beyond the scale") || !strings.Contains(b.String(), `clip-path="url(#area)"`) {
 		t.Errorf("no clip note or clip path in %s", b.String()[:300])
+	}
+}
+
+// TestSpreadLabels checks that marker numbers that would overlap centred
+// are moved aside: two markers 2 MHz apart on a 1 GHz span (about a pixel)
+// get the lower one's number ending left of its line and the other's
+// starting right of it; a lone marker stays centred.
+func TestSpreadLabels(t *testing.T) {
+	t.Parallel()
+	s := []Series{{ID: "a", FreqHz: []float64{1e9, 2e9}, Y: []float64{0, 1}}}
+	p := (&Plot{}).Resolve(s, nil)
+	ms := []PlotMarker{{ID: "b", Num: 2, FreqHz: 1.502e9}, {ID: "a", Num: 1, FreqHz: 1.5e9}, {ID: "c", Num: 3, FreqHz: 1.9e9}}
+	p.SpreadLabels(ms, s)
+	if ms[1].Anchor != -1 || ms[0].Anchor != 1 || ms[2].Anchor != 0 {
+		t.Errorf("anchors %d %d %d, want −1 for 1.5 GHz, +1 for 1.502 GHz, 0 for 1.9 GHz", ms[1].Anchor, ms[0].Anchor, ms[2].Anchor)
+	}
+	var b strings.Builder
+	p.Render(&b, s, nil, ms)
+	root := parseSVG(t, b.String())
+	for id, want := range map[string]string{"pmk-a": "end", "pmk-b": "start", "pmk-c": "middle"} {
+		var got string
+		root.byID(id).walk(func(e *element) {
+			if e.name == "text" {
+				got = e.attr["text-anchor"]
+			}
+		})
+		if got != want {
+			t.Errorf("%s's number anchored %q, want %q", id, got, want)
+		}
+	}
+}
+
+// TestPlotEdgeLabels checks that no x tick label runs off the drawing: the
+// last label of 0.8–1.0 GHz, "1.00 GHz", is set to end at the right edge.
+func TestPlotEdgeLabels(t *testing.T) {
+	t.Parallel()
+	s := []Series{{ID: "a", FreqHz: []float64{0.8e9, 1e9}, Y: []float64{0, 1}}}
+	var b strings.Builder
+	(&Plot{Width: 640, Height: 260}).Render(&b, s, nil, nil)
+	root := parseSVG(t, b.String())
+	found := false
+	root.walk(func(e *element) {
+		if e.name == "text" && strings.TrimSpace(e.text) == "1.00 GHz" {
+			found = true
+			x, _ := strconv.ParseFloat(e.attr["x"], 64)
+			if e.attr["text-anchor"] != "end" || x > 640 {
+				t.Errorf("last tick label at x %v anchored %q", x, e.attr["text-anchor"])
+			}
+		}
+	})
+	if !found {
+		t.Error("no 1.00 GHz tick label")
 	}
 }
