@@ -340,7 +340,7 @@ func (p *Plot) Render(w io.Writer, series []Series, bands []Band, markers []Plot
 	q.axes(sw, &l)
 	q.series(sw, &l, series)
 	q.markers(sw, &l, markers, series)
-	q.bandLabels(sw, &l, bands)
+	q.bandLabels(sw, &l, bands, markers)
 	if !q.NoLegend {
 		q.legend(sw, &l, series)
 	}
@@ -364,6 +364,17 @@ func (p *Plot) RenderMarkers(w io.Writer, markers []PlotMarker, series []Series)
 	sw := getWriter(w)
 	l := p.layout(series)
 	p.markers(sw, &l, markers, series)
+	return sw.done()
+}
+
+// RenderBandLabels writes the layer of the bands' names and limit labels
+// alone, <g id="bandnames">, placed clear of the markers given (all the
+// plot draws), to replace that element when markers move. Call it on a
+// resolved Plot.
+func (p *Plot) RenderBandLabels(w io.Writer, bands []Band, markers []PlotMarker, series []Series) error {
+	sw := getWriter(w)
+	l := p.layout(series)
+	p.bandLabels(sw, &l, bands, markers)
 	return sw.done()
 }
 
@@ -605,16 +616,46 @@ func limitOrder(l *plotLayout, bands []Band) []int {
 // of the plot area where they fit within their band's reach, a limit label
 // above its line at the band's start, else below it, else at the band's
 // end; a label with no free place is left out, as is one that repeats
-// the level of a label just to its left.
-func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
+// the level of a label just to its left. No label crosses a marker's line
+// (or its shapes on it): where one would, the label moves just right (or,
+// at a band's end, left) of the line.
+func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band, markers []PlotMarker) {
 	sw.s(`<g`)
 	p.id(sw, "bandnames", "")
 	sw.s(` font-size="10.5"` + haloStyle + `>`)
 	clampX := func(f float64) float64 { return math.Max(l.x0, math.Min(l.x1, l.px(f))) }
-	var placed []box
+	var placed, lines []box
+	var mxs []float64
+	for i := range markers {
+		if x := l.px(markers[i].FreqHz); x >= l.x0 && x <= l.x1 {
+			lines = append(lines, box{x - 6, l.y0, x + 6, l.y1})
+			mxs = append(mxs, x)
+		}
+	}
+	sort.Float64s(mxs)
 	const fh = 10.5
 	fits := func(b box) bool {
-		return b.x0 >= l.x0+1 && b.x1 <= l.x1-1 && b.y0 >= l.y0+1 && b.y1 <= l.y1-1 && !b.hits(placed)
+		return b.x0 >= l.x0+1 && b.x1 <= l.x1-1 && b.y0 >= l.y0+1 && b.y1 <= l.y1-1 && !b.hits(placed) && !b.hits(lines)
+	}
+	// starts returns where a label of width w may start: at x, else just
+	// right of each marker line from x on; ends the same leftward.
+	starts := func(x, w float64) []float64 {
+		out := []float64{x}
+		for _, m := range mxs {
+			if m+8 > x && m-8 < x+w+8*float64(len(mxs)) {
+				out = append(out, m+8)
+			}
+		}
+		return out
+	}
+	ends := func(x, w float64) []float64 {
+		out := []float64{x}
+		for i := len(mxs) - 1; i >= 0; i-- {
+			if m := mxs[i]; m-8 < x && m+8 > x-w-8*float64(len(mxs)) {
+				out = append(out, m-8)
+			}
+		}
+		return out
 	}
 	for _, b := range bands {
 		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
@@ -622,20 +663,23 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 			continue
 		}
 		w := textWidth(b.Name, fh) + 2
+	name:
 		for r := 0; r < 2; r++ {
 			y := l.y0 + 13 + 14*float64(r)
-			bx := box{x0 + 4, y - fh + 1, x0 + 4 + w, y + 2}
-			if !fits(bx) {
-				continue
+			for _, x := range starts(x0+4, w) {
+				bx := box{x, y - fh + 1, x + w, y + 2}
+				if !fits(bx) {
+					continue
+				}
+				placed = append(placed, bx)
+				sw.s(`<text fill="#3b6b52"`)
+				sw.numAttr("x", x)
+				sw.numAttr("y", y)
+				sw.s(`>`)
+				sw.text(b.Name)
+				sw.s(`</text>`)
+				break name
 			}
-			placed = append(placed, bx)
-			sw.s(`<text fill="#3b6b52"`)
-			sw.numAttr("x", x0+4)
-			sw.numAttr("y", y)
-			sw.s(`>`)
-			sw.text(b.Name)
-			sw.s(`</text>`)
-			break
 		}
 	}
 	prevHi, prevLimit := math.NaN(), math.NaN()
@@ -659,10 +703,22 @@ func (p *Plot) bandLabels(sw *writer, l *plotLayout, bands []Band) {
 			continue
 		}
 		xs, xe := clampX(b.LoHz)+3, clampX(b.HiHz)-3
-		for _, c := range []struct {
+		type spot struct {
 			x, y float64
 			end  bool
-		}{{xs, y - 4, false}, {xs, y + fh + 2, false}, {xe, y - 4, true}, {xe, y + fh + 2, true}} {
+		}
+		var cands []spot
+		for _, yy := range []float64{y - 4, y + fh + 2} {
+			for _, x := range starts(xs, w) {
+				cands = append(cands, spot{x, yy, false})
+			}
+		}
+		for _, yy := range []float64{y - 4, y + fh + 2} {
+			for _, x := range ends(xe, w) {
+				cands = append(cands, spot{x, yy, true})
+			}
+		}
+		for _, c := range cands {
 			bx := box{c.x, c.y - fh + 1, c.x + w, c.y + 2}
 			if c.end {
 				bx.x0, bx.x1 = c.x-w, c.x

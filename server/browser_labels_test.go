@@ -26,6 +26,12 @@ const labelCheckJS = `(() => {
 			...pick("[id$='plegend'] text").map(e => ["legend", e]),
 			...pick("[id$='axes'] > text").map(e => ["axis", e]),
 		];
+		// Band names and limit labels clear the markers' lines and shapes.
+		for (const [kind, e] of labels.filter(l => l[0] === "band/limit")) {
+			for (const m of svg.querySelectorAll("[id*='pmk-'] path")) {
+				if (hit(rect(e), rect(m))) out.push(name + ": " + kind + " " + JSON.stringify(e.textContent) + " crosses marker " + m.closest("g").id);
+			}
+		}
 		for (let i = 0; i < labels.length; i++) for (let j = i + 1; j < labels.length; j++) {
 			if (hit(rect(labels[i][1]), rect(labels[j][1]))) out.push(name + ": " + labels[i][0] + " " + JSON.stringify(labels[i][1].textContent) + " overlaps " + labels[j][0] + " " + JSON.stringify(labels[j][1].textContent));
 		}

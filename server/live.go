@@ -251,11 +251,18 @@ func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool, v *pageVi
 		}
 		// Every marker's group of each plot: a moved marker's number may
 		// make another's move aside (chartsvg.Plot.SpreadLabels).
+		// The bands' names and limits move out of the markers' way too.
 		for _, p := range sc.plotsFor(v) {
-			for _, pm := range sc.markersOf(&p) {
+			ms := sc.markersOf(&p)
+			for _, pm := range ms {
 				var b bytes.Buffer
 				p.p.RenderMarker(&b, pm, p.series)
 				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + pm.ID, HTML: b.String(), SVG: true})
+			}
+			if len(p.bands) > 0 {
+				var b bytes.Buffer
+				p.p.RenderBandLabels(&b, p.bands, ms, p.series)
+				out = append(out, frag{ID: p.p.IDPrefix + "bandnames", HTML: b.String(), SVG: true})
 			}
 		}
 	}
