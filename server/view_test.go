@@ -220,3 +220,19 @@ func TestLineForms(t *testing.T) {
 		}
 	}
 }
+
+// TestExportCarriesView checks that the chart and plot exports draw the
+// view their links carry: the chart at 75 Ω says so, a plot slot shows the
+// quantity asked, over the span asked.
+func TestExportCarriesView(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 101)
+	_, svg := get(t, f.ts.URL+"/s/"+f.sess.EditToken+"/export/chart.svg?z0=75&zoom=2&cre=0.1&cim=0")
+	if !strings.Contains(svg, "Z₀ = 75 Ω") || !strings.Contains(svg, `data-gamma-radius="0.5"`) {
+		t.Errorf("exported chart does not carry the view: %.300s", svg)
+	}
+	_, plot := get(t, f.ts.URL+"/s/"+f.sess.EditToken+"/export/plot-refl.svg?plot.refl=S11:vswr&spanLo=150M&spanHi=170M")
+	if !strings.Contains(plot, "VSWR from S11") || !strings.Contains(plot, `data-f0="150000000"`) {
+		t.Errorf("exported plot does not carry the view: %.400s", plot)
+	}
+}
