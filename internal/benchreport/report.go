@@ -276,6 +276,21 @@ func (rp *report) search() {
 		rp.add(row{group: g, figure: "same best design (" + variant + ")", value: "same", target: "equal", verdict: pass,
 			from: "the benchmark stops with an error when the two searches' designs differ"})
 	}
+	const gs = "Search across a set of 5 loads (3-part E24, typical 0402)"
+	if r, ok := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "set-ratio"); ok {
+		one, _ := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "one-ms")
+		five, _ := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "set-ms")
+		rp.add(row{group: gs, figure: "5 members ÷ 1 member, 401 points each, same run", value: fmt.Sprintf("%.2f×", r), target: "≤ 6×", verdict: atMost(r, 6),
+			from: fmt.Sprintf("one member %.4g ms, five %.4g ms (medians)", one, five)})
+	} else {
+		rp.missing(gs, "5 members ÷ 1 member, 401 points each, same run", "≤ 6×", false, "BenchmarkSearchSet/members=5/vs=1")
+	}
+	if sp, ok := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs-exhaustive", "speedup"); ok {
+		rp.add(row{group: gs, figure: "across the set: exhaustive ÷ search, 41 points each, same run", value: fmt.Sprintf("%.1f×", sp), target: "≥ 20×, same design", verdict: atLeast(sp, 20),
+			from: "BenchmarkSearchSet/members=5/vs-exhaustive (stops with an error when the designs differ)"})
+	} else {
+		rp.missing(gs, "across the set: exhaustive ÷ search, 41 points each, same run", "≥ 20×, same design", false, "BenchmarkSearchSet/members=5/vs-exhaustive")
+	}
 	if ms, ok := rp.med(pkgMatch, "BenchmarkSearchFieldnode4", "search-ms"); ok {
 		rp.add(row{group: "Loss-aware search of the Fieldnode demo (2 bands, up to 4 parts, E24, typical 0402)", figure: "time on this machine",
 			value: fmt.Sprintf("%.3g s", ms/1000), target: "< 2 s", verdict: atMost(ms/1000, 2), from: "BenchmarkSearchFieldnode4 search-ms (median)"})

@@ -172,6 +172,8 @@ func TestBuildFull(t *testing.T) {
 	line("BenchmarkExhaustive/parts=3", "ns/op", 30e6, "worst-rl-dB", 12.5)
 	line("BenchmarkBroadband/parts=2", "ns/op", 1e3)
 	line("BenchmarkSearchFieldnode4", "ns/op", 380e6, "search-ms", 380)
+	line("BenchmarkSearchSet/members=5/vs=1", "ns/op", 70e6, "one-ms", 18, "set-ms", 50, "set-ratio", 2.7)
+	line("BenchmarkSearchSet/members=5/vs-exhaustive", "ns/op", 6e9, "search-ms", 15, "exhaustive-ms", 6000, "speedup", 400)
 
 	r, err := Parse(strings.NewReader(in.String()))
 	if err != nil {
@@ -197,6 +199,8 @@ func TestBuildFull(t *testing.T) {
 		{"exhaustive ÷ search", "30.0×", pass},
 		{"same best design", "12.5 vs 12.5 dB", pass},
 		{"time on this machine", "0.38 s", pass},
+		{"5 members ÷ 1 member", "2.70×", pass},
+		{"across the set: exhaustive ÷ search", "400.0×", pass},
 		{"resident memory above", "2.00×", pass},
 		{"reading a 2-port file", "2.00", miss},
 		{"evaluating the 4-part ladder (rfmath.Ladder)", "1.00", pass},

@@ -409,7 +409,7 @@ func TestZeroAlloc(t *testing.T) {
 		t.Errorf("GammaTo allocates %v times", a)
 	}
 	set := (&Settings{MaxParts: 3}).defaults()
-	e, err := newEngine(l, []Band{{2.4e9, 2.5e9, 10, 0}}, &set)
+	e, err := newEngine([]Member{{Load: l}}, []Band{{2.4e9, 2.5e9, 10, 0}}, &set)
 	if err != nil {
 		t.Fatal(err)
 	}
