@@ -25,11 +25,20 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	for _, f := range demo.Generate() {
-		if err := writeDemoFile(filepath.Join(dir, f.Name), f); err != nil {
+		path := filepath.Join(dir, filepath.FromSlash(f.Name))
+		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 			return err
 		}
-		fmt.Fprintf(stdout, "wrote %s\n", filepath.Join(dir, f.Name))
+		if err := writeDemoFile(path, f); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "wrote %s\n", path)
 	}
+	name, text := demo.LimitFile()
+	if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote %s\n", filepath.Join(dir, name))
 	return nil
 }
 

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -33,6 +35,12 @@ type matchDesignJSON struct {
 	Stress           []stressJSON    `json:"stress,omitempty"`
 	Model            string          `json:"model"`
 	Search           *searchInfoJSON `json:"search,omitempty"`
+	// A search across several files: each member's figures, and the member
+	// and band of least margin.
+	Members     []memberJSON `json:"members,omitempty"`
+	WorstMember string       `json:"worst_member,omitempty"`
+	WorstBand   *int         `json:"worst_band,omitempty"`
+	MeanPower   *jsonNum     `json:"weighted_mean_power_to_load,omitempty"`
 }
 
 type matchBandJSON struct {
@@ -66,6 +74,17 @@ func bandJSONOf(b match.BandResult) matchBandJSON {
 	}
 }
 
+type memberJSON struct {
+	File             string          `json:"file"`
+	Advisory         bool            `json:"advisory,omitempty"`
+	Weight           float64         `json:"weight"`
+	WorstRLdB        jsonNum         `json:"worst_rl_db"`
+	WorstPowerToLoad jsonNum         `json:"worst_power_to_load"`
+	MarginDB         jsonNum         `json:"margin_db"`
+	Meets            bool            `json:"meets"`
+	Bands            []matchBandJSON `json:"bands"`
+}
+
 type limitJSON struct {
 	Fit           string  `json:"fit"`
 	FitErrorGamma float64 `json:"fit_error_gamma"`
@@ -91,7 +110,7 @@ type searchInfoJSON struct {
 }
 
 func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("match", "FILE --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--top 5] [--json]", stderr)
+	fs := newFlagSet("match", "FILE [FILE ...] | --set DIR --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--lot] [--top 5] [--json]", stderr)
 	var bandArgs listFlag
 	fs.Var(&bandArgs, "band", "a band to match, `LO:HI[:RL]` (SI prefixes: 2.40G:2.4835G, or 863M:870M:12 with its own return loss); repeatable")
 	rl := fs.Float64("rl", 10, "required return `loss` in dB for bands that do not give their own")
@@ -108,12 +127,24 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	power := fs.Float64("power", 0, "input `watts`: print each part's peak voltage and RMS current in the best design and warn above its rating")
 	radius := fs.Float64("radius", 0, "radius in `metres` of the sphere around the antenna: compare the sweep's Q with the Chu limit")
 	asJSON := fs.Bool("json", false, "print a JSON array of designs")
+	setDir := fs.String("set", "", "match every sweep file in this `folder` at once (a set of conditions or a lot), as if each were given")
+	lot := fs.Bool("lot", false, "the files are boards of a lot: the yield judges each build on one board drawn at random (by weight), not on every file")
+	var advisory, weights listFlag
+	fs.Var(&advisory, "advisory", "a `FILE` of the set that is judged and shown but does not bind the design (repeatable)")
+	fs.Var(&weights, "weight", "`FILE=W`: the weight of one file of the set in a lot's draws and the weighted mean (default 1; repeatable)")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
-	if len(pos) != 1 {
-		return usagef("want one sweep file, got %d arguments", len(pos))
+	if *setDir != "" {
+		more, err := setFiles(*setDir)
+		if err != nil {
+			return err
+		}
+		pos = append(pos, more...)
+	}
+	if len(pos) == 0 {
+		return usagef("want a sweep file (or several, or --set DIR)")
 	}
 	if math.IsNaN(*rl) || math.IsInf(*rl, 0) {
 		return usagef("--rl %g: not a number of dB", *rl)
@@ -175,29 +206,25 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		model, modelName = fam, "typical "+fam.Name
 	}
 
-	ls, err := loadSweep(pos[0])
+	members, err := loadMembers(pos, advisory, weights, bands)
 	if err != nil {
 		return err
 	}
-	load, err := match.LoadFromSweep(ls.Sweep, 0)
-	if err != nil {
-		return err
-	}
-	for _, b := range bands {
-		if b.LoHz < load.FreqHz[0] || b.HiHz > load.FreqHz[len(load.FreqHz)-1] {
-			return usagef("--band %s lies outside the sweep (%s to %s)", b,
-				units.FormatFrequency(load.FreqHz[0], 6), units.FormatFrequency(load.FreqHz[len(load.FreqHz)-1], 6))
-		}
+	load := members[0].Load
+	isSet := len(members) > 1
+	kind := match.Conditions
+	if *lot {
+		kind = match.Lot
 	}
 
 	set := &match.Settings{LSeries: lSer, CSeries: cSer, Model: model, MaxParts: *nParts, Top: *top, Window: *window, Objective: obj}
 	t0 := time.Now()
-	res, err := match.Search(ctx, load, bands, set)
+	res, err := match.SearchSet(ctx, members, bands, set)
 	if err != nil {
 		return err
 	}
 	took := time.Since(t0)
-	lim, fit, limErr := match.BodeFanoOf(load, bands)
+	lim, fit, limErr := bodeFanoOfSet(members, bands)
 
 	designs := make([]matchDesignJSON, len(res.Designs))
 	for i, d := range res.Designs {
@@ -214,8 +241,26 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		for _, b := range d.Bands {
 			j.Bands = append(j.Bands, bandJSONOf(b))
 		}
+		if isSet {
+			for mi, mm := range d.Members {
+				mj := memberJSON{File: members[mi].Name, Advisory: members[mi].Advisory, Weight: members[mi].Weight,
+					WorstRLdB: jsonNum(mm.WorstRLdB), WorstPowerToLoad: jsonNum(mm.WorstPowerToLoad), MarginDB: jsonNum(mm.MarginDB), Meets: mm.Meets()}
+				if mj.Weight == 0 {
+					mj.Weight = 1
+				}
+				for _, b := range mm.Bands {
+					mj.Bands = append(mj.Bands, bandJSONOf(b))
+				}
+				j.Members = append(j.Members, mj)
+			}
+			if d.WorstMember >= 0 {
+				wb := d.WorstBand
+				mp := jsonNum(d.MeanPowerToLoad)
+				j.WorstMember, j.WorstBand, j.MeanPower = members[d.WorstMember].Name, &wb, &mp
+			}
+		}
 		if *builds > 0 {
-			y, err := match.Yield(ctx, load, bands, d.Network, &match.YieldSettings{Builds: *builds})
+			y, err := match.YieldSet(ctx, members, kind, bands, d.Network, &match.YieldSettings{Builds: *builds})
 			if err != nil {
 				return err
 			}
@@ -261,7 +306,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		return nil
 	}
-	printMatch(stdout, ls.Path, load, bands, res, designs, modelName, lSer, cSer, took)
+	printMatch(stdout, members, bands, res, designs, modelName, lSer, cSer, took)
 	fmt.Fprintln(stdout)
 	if limErr != nil {
 		fmt.Fprintf(stdout, "Bode–Fano: no RC, RL or RLC model fits the load near the bands (%v).\n", limErr)
@@ -328,10 +373,20 @@ func unmetNote(best match.Design, lim match.Limit, limErr error) string {
 	return s
 }
 
-func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, res *match.Result, designs []matchDesignJSON, model, lSer, cSer string, took time.Duration) {
+func printMatch(w io.Writer, members []match.Member, bands []match.Band, res *match.Result, designs []matchDesignJSON, model, lSer, cSer string, took time.Duration) {
 	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
-	fmt.Fprintf(w, "%s: S11, %d points, %s to %s, reference %s\n", path, len(load.FreqHz),
-		ff(load.FreqHz[0]), ff(load.FreqHz[len(load.FreqHz)-1]), units.Format(load.Z0Ohm, "Ω", 4))
+	for _, m := range members {
+		load := m.Load
+		role := ""
+		if m.Advisory {
+			role = " (advisory: judged, does not bind)"
+		}
+		fmt.Fprintf(w, "%s: S11, %d points, %s to %s, reference %s%s\n", m.Name, len(load.FreqHz),
+			ff(load.FreqHz[0]), ff(load.FreqHz[len(load.FreqHz)-1]), units.Format(load.Z0Ohm, "Ω", 4), role)
+	}
+	if len(members) > 1 {
+		fmt.Fprintf(w, "A set of %d loads: every figure below is the worst over the binding loads, each judged on its own points\n", len(members))
+	}
 	var bs []string
 	for _, b := range bands {
 		bs = append(bs, b.String())
@@ -354,7 +409,7 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 	}
 	fmt.Fprintf(w, "Best by: %s\n", goal)
 	fmt.Fprintf(w, "Searched %d ladder shapes, %.3g networks, %s, in %s\n", res.Topologies, res.Combinations, mode, took.Round(time.Millisecond))
-	if len(res.Designs) > 0 {
+	if len(res.Designs) > 0 && len(members) == 1 {
 		fmt.Fprint(w, "No network:")
 		for _, b := range res.Designs[0].Bands {
 			fmt.Fprintf(w, "  %s–%s worst RL %s, worst power to the load %s;", ff(b.LoHz), ff(b.HiHz), units.FormatDB(b.Unmatched.WorstRLdB), units.FormatShare(b.Unmatched.WorstPowerToLoad))
@@ -402,6 +457,105 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 	if designs[0].Yield != nil {
 		fmt.Fprintln(w, "(yield: share of random builds meeting every requirement, with typical tolerances ±2 % or ±0.1 nH, ±2 % or ±0.05 pF — from memory)")
 	}
+	if len(members) > 1 && len(res.Designs) > 0 {
+		printMembers(w, members, bands, res.Designs[0])
+	}
+}
+
+// printMembers shows design 1 on every member of a set.
+func printMembers(w io.Writer, members []match.Member, bands []match.Band, d match.Design) {
+	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
+	fmt.Fprintf(w, "\nDesign 1 on each load (the least margin is on %s, %s–%s):\n", members[d.WorstMember].Name, ff(bands[d.WorstBand].LoHz), ff(bands[d.WorstBand].HiHz))
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+	fmt.Fprint(tw, "  load\tmargin\t")
+	for _, b := range bands {
+		fmt.Fprintf(tw, "%s–%s RL worst, power worst (alone)\t", ff(b.LoHz), ff(b.HiHz))
+	}
+	fmt.Fprintln(tw)
+	for i, m := range d.Members {
+		name := members[i].Name
+		if members[i].Advisory {
+			name += " (advisory)"
+		}
+		verdict := "meets"
+		if !m.Meets() {
+			verdict = "misses"
+		}
+		fmt.Fprintf(tw, "  %s\t%s dB %s\t", name, signed(m.MarginDB), verdict)
+		for _, b := range m.Bands {
+			fmt.Fprintf(tw, "%s, %s (%s)\t", units.FormatDB(b.WorstRLdB), units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.Unmatched.WorstPowerToLoad, 1))
+		}
+		fmt.Fprintln(tw)
+	}
+	tw.Flush()
+}
+
+// setFiles lists the sweep files of a folder, sorted.
+func setFiles(dir string) ([]string, error) {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return nil, usagef("--set %s: %v", dir, err)
+	}
+	var out []string
+	for _, e := range entries {
+		if e.IsDir() {
+			continue
+		}
+		switch ext := strings.ToLower(filepath.Ext(e.Name())); {
+		case ext == ".csv", ext == ".ts", len(ext) >= 4 && ext[:2] == ".s" && ext[len(ext)-1] == 'p':
+			out = append(out, filepath.Join(dir, e.Name()))
+		}
+	}
+	if len(out) == 0 {
+		return nil, usagef("--set %s: no sweep files (.sNp, .ts or .csv) in the folder", dir)
+	}
+	return out, nil
+}
+
+// loadMembers reads the files as the members of a set (one file is a set
+// of one), with their advisory marks and weights, and checks that each
+// covers every band.
+func loadMembers(paths, advisory, weights []string, bands []match.Band) ([]match.Member, error) {
+	w := map[string]float64{}
+	for _, s := range weights {
+		f, v, ok := strings.Cut(s, "=")
+		x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+		if !ok || err != nil || !(x > 0) || math.IsInf(x, 0) {
+			return nil, usagef("--weight %q: want FILE=W with a positive weight", s)
+		}
+		w[f] = x
+	}
+	adv := map[string]bool{}
+	for _, a := range advisory {
+		adv[a] = true
+	}
+	var ms []match.Member
+	for _, p := range paths {
+		ls, err := loadSweep(p)
+		if err != nil {
+			return nil, err
+		}
+		load, err := match.LoadFromSweep(ls.Sweep, 0)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", p, err)
+		}
+		for _, b := range bands {
+			if b.LoHz < load.FreqHz[0] || b.HiHz > load.FreqHz[len(load.FreqHz)-1] {
+				return nil, usagef("--band %s lies outside the sweep of %s (%s to %s)", b, p,
+					units.FormatFrequency(load.FreqHz[0], 6), units.FormatFrequency(load.FreqHz[len(load.FreqHz)-1], 6))
+			}
+		}
+		ms = append(ms, match.Member{Name: p, Load: load, Weight: w[p], Advisory: adv[p]})
+		delete(w, p)
+		delete(adv, p)
+	}
+	for f := range w {
+		return nil, usagef("--weight %s: not one of the files", f)
+	}
+	for f := range adv {
+		return nil, usagef("--advisory %s: not one of the files", f)
+	}
+	return ms, nil
 }
 
 func printStress(w io.Writer, d matchDesignJSON, powerW float64) {
@@ -480,4 +634,29 @@ func parseSeries(s string) (lSer, cSer string, err error) {
 		}
 	}
 	return lSer, cSer, nil
+}
+
+// bodeFanoOfSet returns the Bode–Fano limit of the binding member whose
+// limit leaves the least margin: no lossless network can hold the set
+// better than that member alone.
+func bodeFanoOfSet(members []match.Member, bands []match.Band) (match.Limit, match.Fit, error) {
+	var lim match.Limit
+	var fit match.Fit
+	err := fmt.Errorf("no binding member")
+	for _, m := range members {
+		if m.Advisory {
+			continue
+		}
+		l, f, e := match.BodeFanoOf(m.Load, bands)
+		if e != nil {
+			if err != nil {
+				err = e
+			}
+			continue
+		}
+		if err != nil || l.MaxMarginDB < lim.MaxMarginDB {
+			lim, fit, err = l, f, nil
+		}
+	}
+	return lim, fit, err
 }

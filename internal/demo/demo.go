@@ -176,11 +176,11 @@ func Generate() []File {
 		copy(fixture.Matrix(k), s[:])
 	}
 
-	return []File{
+	return append([]File{
 		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn},
 		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt},
 		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable},
 		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open},
 		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture},
-	}
+	}, append(conditions(invented), ProductionLot()...)...)
 }
