@@ -224,7 +224,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	took := time.Since(t0)
-	lim, fit, limErr := bodeFanoOfSet(members, bands)
+	lim, fit, limErr := match.BodeFanoOfSet(members, bands)
 
 	designs := make([]matchDesignJSON, len(res.Designs))
 	for i, d := range res.Designs {
@@ -634,29 +634,4 @@ func parseSeries(s string) (lSer, cSer string, err error) {
 		}
 	}
 	return lSer, cSer, nil
-}
-
-// bodeFanoOfSet returns the Bode–Fano limit of the binding member whose
-// limit leaves the least margin: no lossless network can hold the set
-// better than that member alone.
-func bodeFanoOfSet(members []match.Member, bands []match.Band) (match.Limit, match.Fit, error) {
-	var lim match.Limit
-	var fit match.Fit
-	err := fmt.Errorf("no binding member")
-	for _, m := range members {
-		if m.Advisory {
-			continue
-		}
-		l, f, e := match.BodeFanoOf(m.Load, bands)
-		if e != nil {
-			if err != nil {
-				err = e
-			}
-			continue
-		}
-		if err != nil || l.MaxMarginDB < lim.MaxMarginDB {
-			lim, fit, err = l, f, nil
-		}
-	}
-	return lim, fit, err
 }

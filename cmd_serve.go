@@ -167,13 +167,16 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		bands   []demo.Band
 		markers []float64
 		parts   int
+		set     []string // sweeps of a load set of conditions, when the demo has one
+		setName string
 	}
 	plans := []plan{
 		{"Demo · Fieldnode trace antenna (invented data)",
 			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p"}, "cable-fixture.s2p",
-			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3},
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3, nil, ""},
 		{"Demo · Wristtag chip antenna (invented data)",
-			[]string{"wristtag-antenna.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3},
+			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3,
+			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, "Wristtag in free space, on a wrist, in its enclosure"},
 	}
 	first := ""
 	for _, p := range plans {
@@ -230,28 +233,60 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 				return "", err
 			}
 		}
-		if err := seedSearch(ctx, st, se.ID, ids[loadName], load, bands, p.parts, p.markers[0]); err != nil {
+		if p.set == nil {
+			if err := seedSearch(ctx, st, se.ID, ids[loadName], "", []match.Member{{Load: mustLoad(load)}}, bands, p.parts, p.markers[0], "Search 1"); err != nil {
+				return "", err
+			}
+			continue
+		}
+		// A set of conditions: the best network in free space alone and the
+		// best across the set, both judged across it, the second active.
+		var ms []match.Member
+		var members []sessions.SetMember
+		for _, name := range p.set {
+			ms = append(ms, match.Member{Name: name, Load: mustLoad(files[name].Sweep)})
+			members = append(members, sessions.SetMember{SweepID: ids[name]})
+		}
+		ev, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSetSave, Name: p.setName, SetKind: sessions.SetConditions, Members: members})
+		if err != nil {
+			return "", err
+		}
+		if err := seedSearch(ctx, st, se.ID, ids[loadName], ev.SetID, ms[:1], bands, p.parts, p.markers[0], "Best in free space alone"); err != nil {
+			return "", err
+		}
+		if err := seedSearch(ctx, st, se.ID, ids[loadName], ev.SetID, ms, bands, p.parts, p.markers[0], "Best across the three conditions"); err != nil {
 			return "", err
 		}
 	}
 	return first, nil
 }
 
+// mustLoad returns port 1 of a demo sweep as a load; the demo's own sweeps
+// are valid.
+func mustLoad(s *rfmath.Sweep) match.Load {
+	l, err := match.LoadFromSweep(s, 0)
+	if err != nil {
+		panic("demo: " + err.Error())
+	}
+	return l
+}
+
 // seedSearch runs the loss-aware search of standard E24 values with
-// typical 0402 models on the demo's load, stores its designs in the
-// session as the panel's search would, and makes the best one the active
-// network.
-func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID string, sw *rfmath.Sweep, bands []match.Band, nParts int, designHz float64) error {
-	load, err := match.LoadFromSweep(sw, 0)
+// typical 0402 models on the demo's members (one load, or a set), stores
+// its designs in the session as the panel's search would, and makes the
+// best one the active network, judged across set setID when it is not "".
+func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID, setID string, members []match.Member, bands []match.Band, nParts int, designHz float64, name string) error {
+	res, err := match.SearchSet(ctx, members, bands, &match.Settings{Model: parts.Typical0402, MaxParts: nParts, Top: 6})
 	if err != nil {
 		return err
 	}
-	res, err := match.Search(ctx, load, bands, &match.Settings{Model: parts.Typical0402, MaxParts: nParts, Top: 6})
-	if err != nil {
-		return err
+	across := ""
+	storeSet := ""
+	if len(members) > 1 {
+		across, storeSet = fmt.Sprintf(" across %d conditions", len(members)), setID
 	}
-	out := &sessions.SearchResult{SweepID: sweepID, Port: 1, Exact: res.Exact, Objective: res.Objective.String(),
-		Settings: fmt.Sprintf("up to %d parts, L from E24, C from E24, typical 0402 parts, best by power to the load", nParts)}
+	out := &sessions.SearchResult{SweepID: sweepID, SetID: storeSet, Port: 1, Exact: res.Exact, Objective: res.Objective.String(),
+		Settings: fmt.Sprintf("up to %d parts, L from E24, C from E24, typical 0402 parts, best by power to the load%s", nParts, across)}
 	for _, d := range res.Designs {
 		sd := sessions.Design{WorstRLdB: d.WorstRLdB, MarginDB: d.MarginDB, WorstPowerToLoad: d.WorstPowerToLoad}
 		for _, p := range d.Network {
@@ -262,6 +297,6 @@ func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID string, sw
 	if _, err := st.Apply(ctx, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
 		return err
 	}
-	_, err = st.Apply(ctx, sid, sessions.Change{Op: sessions.OpNetworkAdd, Name: "Search 1", SweepID: sweepID, Port: 1, DesignHz: designHz, Parts: out.Designs[0].Parts})
+	_, err = st.Apply(ctx, sid, sessions.Change{Op: sessions.OpNetworkAdd, Name: name, SweepID: sweepID, SetID: setID, Port: 1, DesignHz: designHz, Parts: out.Designs[0].Parts})
 	return err
 }

@@ -33,7 +33,11 @@ func (sc *scene) limitsView() web.LimitsView {
 	}
 	l, bands := ne.matchLoad(sc.st)
 	if len(bands) > 0 {
-		lim, fit, err := match.BodeFanoOf(l, bands)
+		members := []match.Member{{Load: l}}
+		if ne.set != nil {
+			members = ne.set.members
+		}
+		lim, fit, err := match.BodeFanoOfSet(members, bands)
 		if err != nil {
 			v.BodeFano = "Bode–Fano: " + err.Error()
 		} else {
@@ -83,7 +87,14 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()
-	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
+	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces}
+	var res *match.YieldResult
+	var err error
+	if ne.set != nil {
+		res, err = match.YieldSet(ctx, ne.set.members, ne.set.kind(), bands, ne.built, ys)
+	} else {
+		res, err = match.Yield(ctx, l, bands, ne.built, ys)
+	}
 	if err != nil {
 		sc.yieldMsg = "Yield: " + err.Error()
 		return nil, sc.yieldMsg
@@ -126,7 +137,11 @@ func (sc *scene) cloudTraces() []chartsvg.Trace {
 	}
 	out := make([]chartsvg.Trace, 0, len(res.Traces))
 	for i, g := range res.Traces {
-		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, NoLegend: i > 0})
+		freq := sc.net.sweep.FreqHz
+		if sc.net.set != nil {
+			freq = sc.net.set.members[res.TraceMembers[i]].Load.FreqHz
+		}
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: freq, Gamma: g, Ticks: -1, NoLegend: i > 0})
 	}
 	return out
 }

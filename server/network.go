@@ -40,6 +40,7 @@ type netEval struct {
 	ideal  []complex128 // Γ with the values as typed
 	buy    []complex128 // Γ with standard values; nil when no part snaps
 	toLoad []float64    // share of the available power at the load, as built
+	set    *setEval     // the load set the network is judged across, or nil
 	err    error
 }
 
@@ -59,6 +60,7 @@ func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 			ne.err = err
 		}
 	}
+	sc.evalSet(ne)
 	return ne
 }
 
@@ -210,6 +212,12 @@ func (sc *scene) metrics() (match.Metrics, []int, error) {
 	if len(bands) == 0 {
 		return sc.metricsRes, idx, nil
 	}
+	if ne.set != nil {
+		var sm match.SetMetrics
+		sm, sc.metricsErr = match.EvaluateSet(ne.set.members, bands, ne.built)
+		sc.metricsRes, sc.setRes = sm.Metrics, &sm
+		return sc.metricsRes, idx, sc.metricsErr
+	}
 	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.built)
 	return sc.metricsRes, idx, sc.metricsErr
 }
@@ -317,7 +325,24 @@ func (sc *scene) networkView() web.NetworkView {
 			v.Metrics = append(v.Metrics, web.NetMetricRow{Band: b.Name, Note: "outside the load's sweep"})
 			continue
 		}
-		v.Metrics = append(v.Metrics, metricRow(b.Name, m.Bands[idx[i]]))
+		row := metricRow(b.Name, m.Bands[idx[i]])
+		if sm := sc.setRes; sm != nil && ne.set != nil {
+			// The worst binding member in this band.
+			for k, mm := range sm.Members {
+				if !ne.set.members[k].Advisory && mm.Bands[idx[i]].MarginDB == m.Bands[idx[i]].MarginDB {
+					row.Req += " · worst: " + ne.set.refs[k].Name
+					break
+				}
+			}
+		}
+		v.Metrics = append(v.Metrics, row)
+	}
+	if ne.set != nil && sc.setRes != nil {
+		bands, _ := ne.netBands(sc.st, false)
+		v.Set = web.NetSetView{Name: ne.set.set.Name, Kind: ne.set.set.Kind, Members: memberRows(ne.set, *sc.setRes, bands)}
+	}
+	for _, s := range sc.st.LoadSets {
+		v.Sets = append(v.Sets, web.Option{Value: s.ID, Label: s.Name, Selected: s.ID == n.SetID})
 	}
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
@@ -335,7 +360,7 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 	case "network.add":
 		return sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f["sweepId"]}, nil
 	case "network.set":
-		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"]}
+		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"], SetID: f["setId"]}
 		if s := strings.TrimSpace(f["design"]); s != "" {
 			v, err := units.ParseFrequency(s)
 			if err != nil {

@@ -55,6 +55,7 @@ type scene struct {
 	metricsRes  match.Metrics
 	metricsIdx  []int
 	metricsErr  error
+	setRes      *match.SetMetrics // the figures on each member, when the network is judged across a set
 
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
@@ -265,6 +266,7 @@ func (t *trace) at(fHz float64) (complex128, bool) {
 func (sc *scene) renderChart(w io.Writer) error {
 	traces := append(sc.cloudTraces(), sc.chartTraces()...)
 	traces = append(traces, sc.netTraces()...)
+	traces = append(traces, sc.setTraces()...)
 	markers := sc.chartMarkers()
 	var path []chartsvg.PathSegment
 	if sc.net != nil {
@@ -542,6 +544,7 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
 		Network:  sc.networkView(),
+		Sets:     sc.setsView(),
 		RefPlane: sc.refPlaneView(),
 	}
 }

@@ -108,7 +108,11 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 		}
 		set.Model = fam
 	}
-	load := ne.load
+	members := []match.Member{{Name: sweepName(sc.st, ne.n.SweepID), Load: ne.load}}
+	setID := ""
+	if f["target"] == "set" && ne.set != nil {
+		members, setID = ne.set.members, ne.set.set.ID
+	}
 	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
 
 	s.search.mu.Lock()
@@ -141,7 +145,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.Search(ctx, load, bands, set)
+		res, err := match.SearchSet(ctx, members, bands, set)
 		if err != nil {
 			msg := "the search failed: " + err.Error()
 			if errors.Is(err, context.Canceled) {
@@ -152,7 +156,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
+		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
 		for _, d := range res.Designs {
 			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
@@ -268,8 +272,12 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		if r == nil || idx >= len(r.Designs) {
 			return sessions.Change{}, fmt.Errorf("no such design")
 		}
+		setID := r.SetID
+		if setID != "" && sc.st.LoadSetIndex(setID) < 0 {
+			setID = "" // the set is gone: the design lands on its sweep alone
+		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
-			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts}, nil
+			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID}, nil
 	case "synth.use", "stub.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
@@ -367,7 +375,23 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		}
 		return row
 	}
-	m, err := match.Evaluate(ne.load, bands, ne.built)
+	var m match.Metrics
+	var err error
+	if r.SetID != "" {
+		se, serr := sc.loadSetOf(r.SetID)
+		if serr != nil {
+			row.Bands = serr.Error()
+			return row
+		}
+		var sm match.SetMetrics
+		sm, err = match.EvaluateSet(se.members, bands, ne.built)
+		m = sm.Metrics
+		if err == nil && sm.WorstMember >= 0 {
+			row.Parts += " (worst on " + se.refs[sm.WorstMember].Name + ")"
+		}
+	} else {
+		m, err = match.Evaluate(ne.load, bands, ne.built)
+	}
 	if err != nil {
 		row.Bands = err.Error()
 		return row

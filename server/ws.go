@@ -347,6 +347,15 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
 			return
 		}
+	case m.Type == "form" && setForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.setChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
 	case m.Type == "form" && (networkForms[m.Form] || planeForms[m.Form]):
 		sc, err := c.scene(ctx)
 		if err == nil && networkForms[m.Form] {
@@ -402,6 +411,9 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 // networkForms are the forms whose fields need the session's current scene
 // (the active network's parts and design frequency).
 var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true, "part.params": true}
+
+// setForms save and remove load sets; they need the session's sweeps.
+var setForms = map[string]bool{"set.save": true, "set.remove": true}
 
 // searchForms turn a found design or solution into a network.
 var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true}

@@ -30,7 +30,9 @@ type Event struct {
 	// the part added, changed, moved or removed.
 	NetworkID string `json:"networkId,omitempty"`
 	PartID    string `json:"partId,omitempty"`
-	Gesture   string `json:"gesture,omitempty"`
+	// SetID is the load set saved or removed.
+	SetID   string `json:"setId,omitempty"`
+	Gesture string `json:"gesture,omitempty"`
 	// Unchanged is set (by Apply only) when the change left the state as it
 	// was, so nothing was committed or published and Version is the
 	// current one.

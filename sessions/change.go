@@ -33,6 +33,8 @@ const (
 	OpSweepRefPlane = "sweep.refplane"
 	OpTDRSet        = "tdr.set"
 	OpSearchStore   = "search.store"
+	OpSetSave       = "set.save"
+	OpSetRemove     = "set.remove"
 	OpSearchClear   = "search.clear"
 )
 
@@ -50,6 +52,7 @@ var Ops = []string{
 	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
 	OpSweepRefPlane, OpTDRSet,
 	OpSearchStore, OpSearchClear,
+	OpSetSave, OpSetRemove,
 	OpUndo, OpRedo,
 }
 
@@ -94,12 +97,14 @@ var Ops = []string{
 //	chart.set       chart                       set the chart fields present in chart (a
 //	                                            [ChartPatch]); absent fields keep their value
 //	network.add     name, sweepId, port,        add a matching network on the trace S(port,port)
-//	                designHz, parts             of sweepId (default: the first sweep) and make it
+//	                designHz, parts, setId      of sweepId (default: the first sweep) and make it
 //	                                            active; designHz defaults to the band centre;
-//	                                            parts (optional) are its first parts
+//	                                            parts (optional) are its first parts; setId
+//	                                            (optional) a load set it is judged across
 //	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs);
 //	                port, designHz, powerW,     yieldBuilds −1 turns the Monte Carlo off, chuRadiusM
-//	                yieldBuilds, chuRadiusM     −1 forgets the radius
+//	                yieldBuilds, chuRadiusM,    −1 forgets the radius; setId judges the network
+//	                setId                       across a load set ("none": its sweep only)
 //	network.select  networkId                   make it the active network
 //	network.remove  networkId
 //	part.add        networkId, kind, value,     add a part to the network (networkId "" = the
@@ -116,6 +121,11 @@ var Ops = []string{
 //	search.store    search                      keep a broadband search's result (a [SearchResult];
 //	                                            the server runs searches, pages do not send this)
 //	search.clear                                forget it
+//	set.save        setId, name, setKind,       add a load set (setId "") or replace set setId:
+//	                members                     setKind "conditions" or "lot", members the sweeps
+//	                                            (a [SetMember] each)
+//	set.remove      setId                       remove it; networks judged across it go back to
+//	                                            their own sweep
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -172,6 +182,13 @@ type Change struct {
 	ChuRadiusM  float64 `json:"chuRadiusM,omitempty"`
 	Parts       []Part  `json:"parts,omitempty"`
 
+	// Load sets: set.save creates (no SetID) or replaces set SetID with
+	// Name, SetKind and Members; set.remove removes SetID; network.set with
+	// SetID judges the network across that set ("none" for its sweep only).
+	SetID   string      `json:"setId,omitempty"`
+	SetKind string      `json:"setKind,omitempty"`
+	Members []SetMember `json:"members,omitempty"`
+
 	RefPlane   *RefPlane     `json:"refPlane,omitempty"`
 	Search     *SearchResult `json:"search,omitempty"`
 	TimeDomain *TimeDomain   `json:"timeDomain,omitempty"`
@@ -219,6 +236,8 @@ type Limits struct {
 	TextRunes        int // names, file names and labels
 	HistorySteps     int // undo steps kept per session
 	Networks         int // matching networks per session
+	LoadSets         int // load sets per session
+	SetMembers       int // sweeps in one load set
 	PartsPerNetwork  int
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
 }
@@ -232,6 +251,8 @@ var DefaultLimits = Limits{
 	TextRunes:        200,
 	HistorySteps:     1000,
 	Networks:         16,
+	LoadSets:         8,
+	SetMembers:       16,
 	PartsPerNetwork:  8,
 	ReplayEvents:     256,
 }
@@ -251,6 +272,8 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.HistorySteps, d.HistorySteps)
 	pick(&l.Networks, d.Networks)
 	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
+	pick(&l.LoadSets, d.LoadSets)
+	pick(&l.SetMembers, d.SetMembers)
 	pick(&l.ReplayEvents, d.ReplayEvents)
 	return l
 }

@@ -46,6 +46,40 @@ type State struct {
 	// one drawn and edited.
 	Networks      []Network `json:"networks,omitempty"`
 	ActiveNetwork string    `json:"activeNetwork,omitempty"`
+
+	// LoadSets group sweeps that a network must match at once.
+	LoadSets []LoadSet `json:"loadSets,omitempty"`
+}
+
+// LoadSet groups sweeps of one load: the same device in several conditions
+// (Kind "conditions": a design must hold in every one) or several boards
+// of a lot (Kind "lot": the yield draws a board at random for each build).
+type LoadSet struct {
+	ID      string      `json:"id"`
+	Name    string      `json:"name"`
+	Kind    string      `json:"kind"`
+	Members []SetMember `json:"members"`
+}
+
+// Kinds of load set.
+const (
+	SetConditions = "conditions"
+	SetLot        = "lot"
+)
+
+// SetMember is one sweep of a set: the reflection S(Port,Port) of sweep
+// SweepID, its weight in a lot's draws (0 means 1), and whether it is only
+// judged and shown (Advisory) rather than required to pass.
+type SetMember struct {
+	SweepID  string  `json:"sweepId"`
+	Port     int     `json:"port,omitempty"`
+	Weight   float64 `json:"weight,omitempty"`
+	Advisory bool    `json:"advisory,omitempty"`
+}
+
+// LoadSetIndex returns the index of set id in s.LoadSets, or −1.
+func (s *State) LoadSetIndex(id string) int {
+	return slices.IndexFunc(s.LoadSets, func(l LoadSet) bool { return l.ID == id })
 }
 
 // SweepRef is a sweep as the session lists it. The numbers are read with
@@ -148,6 +182,9 @@ type Network struct {
 	// ChuRadiusM, when positive, is the radius of the sphere enclosing the
 	// antenna, for the Chu limit on its Q.
 	ChuRadiusM float64 `json:"chuRadiusM,omitempty"`
+	// SetID, when set, names a load set the network is judged across; the
+	// chart follows SweepID's point, which is one of its members.
+	SetID string `json:"setId,omitempty"`
 }
 
 // Part kinds, as [rfmath.PartKind] spells them. Lumped parts sit in series
@@ -197,6 +234,7 @@ type Part struct {
 // load: the settings it ran with and its best designs, best first.
 type SearchResult struct {
 	SweepID  string `json:"sweepId"`
+	SetID    string `json:"setId,omitempty"` // the search ran across this load set
 	Port     int    `json:"port"`
 	Settings string `json:"settings"` // as the engineer chose them, in words
 	Exact    bool   `json:"exact"`    // every combination in the ranges was searched
@@ -266,6 +304,10 @@ func (s *State) clone() *State {
 		}
 	}
 	c.Markers = slices.Clone(s.Markers)
+	c.LoadSets = slices.Clone(s.LoadSets)
+	for i := range c.LoadSets {
+		c.LoadSets[i].Members = slices.Clone(c.LoadSets[i].Members)
+	}
 	c.Bands = slices.Clone(s.Bands)
 	c.Chart.QArcs = slices.Clone(s.Chart.QArcs)
 	// Search results are replaced whole, never changed in place.

@@ -153,6 +153,7 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		}
 		next.Sweeps = slices.Delete(next.Sweeps, i, i+1)
 		next.Markers = slices.DeleteFunc(next.Markers, func(m Marker) bool { return m.SweepID == ch.SweepID })
+		dropFromSets(next, ch.SweepID)
 
 	case OpMarkerAdd:
 		i, err := sweepOf(ch.SweepID)
@@ -368,6 +369,9 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		if _, err := sweepOf(res.SweepID); err != nil {
 			return r, err
 		}
+		if res.SetID != "" && cur.LoadSetIndex(res.SetID) < 0 {
+			return r, notFound(op, "search.setId", "load set", res.SetID)
+		}
 		if len(res.Designs) > 20 {
 			return r, invalid(op, "search.designs", "%d designs; at most 20 are kept", len(res.Designs))
 		}
@@ -392,6 +396,11 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 
 	case OpNetworkAdd, OpNetworkSet, OpNetworkSelect, OpNetworkRemove, OpPartAdd, OpPartSet, OpPartRemove, OpPartMove:
 		if err := computeNetwork(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
+	case OpSetSave, OpSetRemove:
+		if err := computeSet(cur, next, ch, &r, lim); err != nil {
 			return r, err
 		}
 

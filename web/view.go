@@ -56,6 +56,7 @@ type SessionView struct {
 	Bands    []BandRow
 	Options  ChartOptions
 	Network  NetworkView
+	Sets     SetsView
 	RefPlane RefPlaneView
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
@@ -175,6 +176,42 @@ type NetworkView struct {
 	Search     SearchView
 	Limits     LimitsView
 	Yield      YieldView
+	// Set is the load set the network is judged across (Name "" for none),
+	// and Sets every set of the session as a choice.
+	Set  NetSetView
+	Sets []Option
+}
+
+// NetSetView shows the active network on each member of its load set.
+type NetSetView struct {
+	Name, Kind string
+	Members    []MemberRow
+}
+
+// MemberRow is the network's figures on one member of its set.
+type MemberRow struct {
+	Name, Color, Margin string
+	Bands               []string
+	Pass, Worst         bool
+	Advisory            bool
+}
+
+// SetsView is the load sets panel: the sets and the sweeps to group.
+type SetsView struct {
+	Sets   []SetRow
+	Sweeps []Option
+}
+
+// SetRow is one load set.
+type SetRow struct {
+	ID, Name, Kind string
+	Members        []SetMemberRow
+}
+
+// SetMemberRow is one sweep of a set.
+type SetMemberRow struct {
+	SweepID, Name, Color, Weight string
+	Must                         bool
 }
 
 // PartRow is one part of the network, in order from the load.

@@ -190,3 +190,30 @@ func EvaluateSet(members []Member, bands []Band, n Network) (SetMetrics, error) 
 	}
 	return sj.metrics(c), nil
 }
+
+// BodeFanoOfSet returns the Bode–Fano limit ([BodeFanoOf]) of the binding
+// member whose limit leaves the least margin, and its fit: no lossless
+// network can hold the set better than that member alone. With one member
+// it is BodeFanoOf.
+func BodeFanoOfSet(members []Member, bands []Band) (Limit, Fit, error) {
+	var lim Limit
+	var fit Fit
+	var err error = fmt.Errorf("%w: no member must pass", ErrNoLoad)
+	found := false
+	for _, m := range members {
+		if m.Advisory {
+			continue
+		}
+		l, f, e := BodeFanoOf(m.Load, bands)
+		if e != nil {
+			if !found {
+				err = e
+			}
+			continue
+		}
+		if !found || l.MaxMarginDB < lim.MaxMarginDB {
+			lim, fit, found, err = l, f, true, nil
+		}
+	}
+	return lim, fit, err
+}
