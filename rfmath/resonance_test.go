@@ -224,12 +224,18 @@ func TestDips(t *testing.T) {
 		x1 := ReactanceOfL(l1, f) + ReactanceOfC(c1, f)
 		x2 := ReactanceOfL(l2, f) + ReactanceOfC(c2, f)
 		// The two resonators in parallel would interact; instead build a
-		// trace that follows the first below 205 MHz and the second above.
+		// trace that follows the first below 205 MHz and the second above,
+		// broken by a NaN where it jumps from one to the other (the chord
+		// across the jump passes 12 dB inside the threshold circle, and an
+		// unbroken trace would rightly read a band there).
 		x := x1
 		if f > 205e6 {
 			x = x2
 		}
 		g[k] = GammaFromZ(complex(50, x), 50)
+		if f > 205e6 && freq[k-1] <= 205e6 {
+			g[k] = cmplx.NaN()
+		}
 	}
 	const thr = 10.0
 	gt := math.Pow(10, -thr/20)
@@ -273,17 +279,18 @@ func TestDipRefinement(t *testing.T) {
 	if math.Abs(d.FreqHz-3.3) > 1e-9 || math.Abs(d.ReturnLossDB-30) > 1e-9 || d.Index != 4 {
 		t.Errorf("dip = %+v, want 3.3, 30 dB at index 4", d)
 	}
-	// Dips with a threshold: RL ≥ 20 dB where |f − 3.3| ≤ √2.5; edges are
-	// linear in dB between points, so check against that interpolation:
-	// between f = 1 (RL 8.84) and 2 (RL 23.24) the crossing of 20 dB is at
-	// 1 + (20 − 8.84)/(23.24 − 8.84).
+	// Dips with a threshold: RL ≥ 20 dB where |f − 3.3| ≤ √2.5 on the true
+	// trace. Between points Γ is interpolated linearly in the complex
+	// plane; Γ is real and positive here, so that is linear in |Γ|, and
+	// the 20 dB edge (|Γ| = 0.1) between f = 1 and 2 lies at
+	// 1 + (0.1 − |Γ(1)|)/(|Γ(2)| − |Γ(1)|) (arithmetic).
 	ds := Dips(freq, g, 20)
 	if len(ds) != 1 {
 		t.Fatalf("dips = %+v", ds)
 	}
-	rl := func(f float64) float64 { return 30 - 4*(f-3.3)*(f-3.3) }
-	wantLo := 1 + (20-rl(1))/(rl(2)-rl(1))
-	wantHi := 4.5 + (20-rl(4.5))/(rl(5)-rl(4.5))*0.5
+	mag := func(f float64) float64 { return math.Pow(10, -(30-4*(f-3.3)*(f-3.3))/20) }
+	wantLo := 1 + (0.1-mag(1))/(mag(2)-mag(1))
+	wantHi := 4.5 + (0.1-mag(4.5))/(mag(5)-mag(4.5))*0.5
 	if math.Abs(ds[0].LoHz-wantLo) > 1e-9 || math.Abs(ds[0].HiHz-wantHi) > 1e-9 {
 		t.Errorf("edges %v, %v; want %v, %v", ds[0].LoHz, ds[0].HiHz, wantLo, wantHi)
 	}
@@ -301,10 +308,10 @@ func TestDipsEdgeCases(t *testing.T) {
 	if !ds[0].LoOpen || ds[0].LoHz != 1 || !ds[0].HiOpen || ds[0].HiHz != 2 || ds[0].Index != 0 || ds[0].FreqHz != 1 {
 		t.Errorf("first dip = %+v", ds[0])
 	}
-	// Γ = 0 at f = 4: RL = +Inf, not refined; the upper edge uses 400 dB
-	// for the Γ = 0 point: 4 + (20 − 400)/(6.02 − 400).
+	// Γ = 0 at f = 4: RL = +Inf, not refined; between Γ = 0 and 0.5 the
+	// interpolated |Γ| reaches 0.1 (20 dB) a fifth of the way: 4.2.
 	d := ds[1]
-	wantHi := 4 + (20-400)/(ReturnLossDB(0.5)-400)
+	wantHi := 4.2
 	if d.Index != 3 || d.FreqHz != 4 || !math.IsInf(d.ReturnLossDB, 1) || math.Abs(d.HiHz-wantHi) > 1e-12 || d.LoHz != 4 || !d.LoOpen {
 		t.Errorf("second dip = %+v, want HiHz %v, LoHz 4 open (beside the NaN)", d, wantHi)
 	}
@@ -384,7 +391,8 @@ func TestInterpolationHelpers(t *testing.T) {
 // several times near each edge: RL = 12 − 2·(f − 5)² + 0.12·sin(2π·f/0.03)
 // dB (arithmetic; the wiggle stands in for measurement noise of about
 // 0.1 dB). The edges must be the outermost crossings of the threshold,
-// interpolated linearly in dB as in TestDipRefinement.
+// interpolated linearly in |Γ| (Γ is real and positive) as in
+// TestDipRefinement.
 func TestDipsChatter(t *testing.T) {
 	t.Parallel()
 	freq := grid(3, 7, 801)
@@ -408,8 +416,12 @@ func TestDipsChatter(t *testing.T) {
 			last = k
 		}
 	}
-	wantLo := freq[first-1] + (thr-rl[first-1])/(rl[first]-rl[first-1])*(freq[first]-freq[first-1])
-	wantHi := freq[last] + (thr-rl[last])/(rl[last+1]-rl[last])*(freq[last+1]-freq[last])
+	gt := math.Pow(10, -thr/20)
+	cross := func(a, b int) float64 {
+		ga, gb := real(g[a]), real(g[b])
+		return freq[a] + (gt-ga)/(gb-ga)*(freq[b]-freq[a])
+	}
+	wantLo, wantHi := cross(first-1, first), cross(last, last+1)
 	ds := Dips(freq, g, thr)
 	if len(ds) != 1 {
 		t.Fatalf("Dips = %+v, want one band", ds)

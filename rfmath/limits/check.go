@@ -33,7 +33,7 @@ type Result struct {
 // Check checks the reflection sweep gamma at freqHz (increasing) against
 // each band and returns one Result per band, in order. Between measured
 // points, at a band's LO and HI, Γ is interpolated linearly in the complex
-// plane, as [rfmath.Sweep.InterpAt] does. A gamma whose length differs from
+// plane ([rfmath.Lerp]), as [rfmath.Sweep.InterpAt] does. A gamma whose length differs from
 // freqHz panics.
 func Check(freqHz []float64, gamma []complex128, bands []Band) []Result {
 	if len(gamma) != len(freqHz) {
@@ -77,10 +77,10 @@ func Check(freqHz []float64, gamma []complex128, bands []Band) []Result {
 	return out
 }
 
-// interp interpolates between points k and k+1 at f.
+// interp interpolates between points k and k+1 at f with [rfmath.Lerp].
 func interp(freqHz []float64, gamma []complex128, k int, f float64) complex128 {
 	t := (f - freqHz[k]) / (freqHz[k+1] - freqHz[k])
-	return gamma[k] + complex(t, 0)*(gamma[k+1]-gamma[k])
+	return rfmath.Lerp(gamma[k], gamma[k+1], t)
 }
 
 // Worst returns the index of the result of least margin, a band that is
