@@ -212,14 +212,7 @@ func (r *Reflection) segmentIn(k int, thr, gmax float64, sa, sb bool) (iv [2][2]
 		}
 		return iv, 0
 	}
-	var n0, n1, d0, d1 complex128
-	if r.kind == linear {
-		n0, n1, d0 = r.pts[k], r.pts[k+1]-r.pts[k], 1
-	} else {
-		rho := complex(r.rho, 0)
-		a, d := r.file[k], r.file[k+1]-r.file[k]
-		n0, n1, d0, d1 = a-rho, d, 1-rho*a, -rho*d
-	}
+	n0, n1, d0, d1 := r.numDen(k)
 	g2 := gmax * gmax
 	qa := sq(n1) - g2*sq(d1)
 	qb := 2 * (dotRe(n0, n1) - g2*dotRe(d0, d1))
@@ -345,11 +338,13 @@ func (r *Reflection) rawBands(thr float64) []rawBand {
 		out = append(out, cur)
 		open = false
 	}
+	next := n > 0 && inBand(r.pts[0], thr) // whether point k is in
 	for k := 0; k < n; k++ {
+		in := next
+		next = k+1 < n && inBand(r.pts[k+1], thr)
 		if isNaN(k) {
 			continue
 		}
-		in := inBand(r.pts[k], thr)
 		if in && !open {
 			// The sweep's first point, or the first after a NaN (or a
 			// crossing that rounding put exactly on this point).
@@ -362,7 +357,7 @@ func (r *Reflection) rawBands(thr float64) []rawBand {
 			}
 			continue
 		}
-		iv, m := r.segmentIn(k, thr, gmax, in, inBand(r.pts[k+1], thr))
+		iv, m := r.segmentIn(k, thr, gmax, in, next)
 		for _, p := range iv[:m] {
 			if p[0] > 0 {
 				cur = rawBand{loK: k, loT: p[0], first: k + 1}
@@ -430,7 +425,7 @@ func (r *Reflection) Dips(thresholdDB, hysteresisDB float64) []Dip {
 			}
 			j++
 		}
-		d := r.bandDip(raw[i:j+1], thresholdDB)
+		d := r.bandDip(raw[i : j+1])
 		if j > i {
 			d.Ridges = j - i
 			d.RidgeHz, d.RidgeReturnLossDB = r.freqHz[ridgeK], ridgeRL
@@ -441,8 +436,8 @@ func (r *Reflection) Dips(thresholdDB, hysteresisDB float64) []Dip {
 	return dips
 }
 
-// DeepestDip returns the point of highest return loss over the whole sweep
-// with its half-power band; see the function [DeepestDip].
+// DeepestDip returns the deepest point of the trace with its half-power
+// band; see the function [DeepestDip].
 func (r *Reflection) DeepestDip() Dip {
 	best, bestRL := -1, math.Inf(-1)
 	for k, g := range r.pts {
@@ -453,20 +448,41 @@ func (r *Reflection) DeepestDip() Dip {
 	if best < 0 {
 		return Dip{Index: -1}
 	}
-	g := cmplx.Abs(r.pts[best])
-	thr := -10 * math.Log10((1+g*g)/2)
+	k, t, g := best, 0.0, r.pts[best]
+	if r.kind == general {
+		k, t, g = r.nearMin(best, 0, 0, float64(len(r.pts)-1), 0)
+	} else {
+		for s := 0; s+1 < len(r.pts); s++ {
+			if cmplx.IsNaN(r.pts[s]) || cmplx.IsNaN(r.pts[s+1]) {
+				continue
+			}
+			if ts, gs := r.segmentMin(s, 0, 1); cmplx.Abs(gs) < cmplx.Abs(g) {
+				k, t, g = s, ts, gs
+			}
+		}
+	}
+	m := cmplx.Abs(g)
+	thr := -10 * math.Log10((1+m*m)/2)
+	at := float64(k) + t
 	for _, b := range r.rawBands(thr) {
-		if b.first <= best && best <= b.last {
-			return r.bandDip([]rawBand{b}, thr)
+		if float64(b.loK)+b.loT <= at && at <= float64(b.hiK)+b.hiT {
+			d := r.bandDip([]rawBand{b})
+			d.Index = best
+			return d
 		}
 	}
 	// |Γ| > 1 at the deepest point (active data): no half-power band.
-	f := r.freqHz[best]
-	return Dip{Index: best, FreqHz: f, ReturnLossDB: bestRL, LoHz: f, HiHz: f}
+	f := r.freqHz[k]
+	if t > 0 {
+		f = r.freqAt(k, t)
+	}
+	return Dip{Index: best, FreqHz: f, ReturnLossDB: returnLoss(g), LoHz: f, HiHz: f}
 }
 
-// bandDip returns the dip of the raw bands bs, joined into one band.
-func (r *Reflection) bandDip(bs []rawBand, thr float64) Dip {
+// bandDip returns the dip of the raw bands bs, joined into one band: its
+// edges, and its deepest point, the least |Γ| of the interpolated trace
+// between them.
+func (r *Reflection) bandDip(bs []rawBand) Dip {
 	first, last := bs[0], bs[len(bs)-1]
 	d := Dip{
 		Index:  -1,
@@ -475,7 +491,6 @@ func (r *Reflection) bandDip(bs []rawBand, thr float64) Dip {
 		LoOpen: first.loOpen,
 		HiOpen: last.hiOpen,
 	}
-	// The best measured point at or above the threshold, refined.
 	bestRL := math.Inf(-1)
 	for _, b := range bs {
 		for k := b.first; k <= b.last; k++ {
@@ -484,41 +499,122 @@ func (r *Reflection) bandDip(bs []rawBand, thr float64) Dip {
 			}
 		}
 	}
-	if d.Index >= 0 {
-		k := d.Index
-		d.FreqHz, d.ReturnLossDB = r.freqHz[k], bestRL
-		if k > 0 && k < len(r.freqHz)-1 && !math.IsInf(bestRL, 1) {
-			x, y, ok := parabolaVertex(
-				r.freqHz[k-1], r.freqHz[k], r.freqHz[k+1],
-				returnLoss(r.pts[k-1]), bestRL, returnLoss(r.pts[k+1]))
-			if ok {
-				d.FreqHz, d.ReturnLossDB = x, y
+	lo, hi := float64(first.loK)+first.loT, float64(last.hiK)+last.hiT
+	var k int
+	var t float64
+	var g complex128
+	switch {
+	case r.kind == general:
+		k, t, g = r.nearMin(d.Index, first.loK, first.loT, float64(last.hiK), last.hiT)
+	default:
+		k, t, g = first.loK, first.loT, cmplx.NaN()
+		if first.loT == 0 {
+			g = r.pts[k]
+		}
+		for s := first.loK; float64(s) < hi; s++ {
+			ta, tb := math.Max(lo-float64(s), 0), math.Min(hi-float64(s), 1)
+			if ts, gs := r.segmentMin(s, ta, tb); !(cmplx.Abs(gs) >= cmplx.Abs(g)) {
+				k, t, g = s, ts, gs
 			}
 		}
 	}
-	// A stretch that lies wholly between two points: its deepest point on
-	// the interpolated trace.
-	for _, b := range bs {
-		if b.first <= b.last {
-			continue
-		}
-		t, g := r.segmentMin(b.loK, b.loT, b.hiT)
-		if rl := returnLoss(g); d.Index < 0 || rl > d.ReturnLossDB {
-			k := b.loK
-			if t > 0.5 {
-				k++
-			}
-			d.Index, d.FreqHz, d.ReturnLossDB = k, r.freqAt(b.loK, t), rl
+	if t == 1 {
+		k, t = k+1, 0
+	}
+	d.FreqHz, d.ReturnLossDB = r.freqHz[k], returnLoss(g)
+	if t > 0 {
+		d.FreqHz = r.freqAt(k, t)
+	}
+	if d.Index < 0 { // wholly between points k and k+1
+		d.Index = k
+		if t > 0.5 {
+			d.Index = k + 1
 		}
 	}
 	return d
 }
 
-// segmentMin returns the fraction t ∈ [t0, t1] of segment k where |Γ| is
-// least, and Γ there, by golden-section search (|Γ| along a segment of the
-// linear kind is convex, and along one of the mobius kind an arc of a
-// circle, so it has one minimum).
-func (r *Reflection) segmentMin(k int, t0, t1 float64) (float64, complex128) {
+// segmentMin returns the fraction t ∈ [ta, tb] of segment k where |Γ| is
+// least, and Γ there. For the linear and mobius kinds Γ = N/D with N and D
+// linear in t, |N|² = a₂t² + a₁t + a₀ and |D|² = b₂t² + b₁t + b₀, and the
+// derivative of |N|²/|D|² vanishes where
+//
+//	(a₂b₁ − a₁b₂)·t² + 2(a₂b₀ − a₀b₂)·t + (a₁b₀ − a₀b₁) = 0
+//
+// (the cubic terms cancel), so the least value is at a root or an end. For
+// the general kind it is a golden-section search.
+func (r *Reflection) segmentMin(k int, ta, tb float64) (float64, complex128) {
+	if r.kind == general {
+		return r.goldenMin(k, ta, tb)
+	}
+	n0, n1, d0, d1 := r.numDen(k)
+	a2, a1, a0 := sq(n1), 2*dotRe(n0, n1), sq(n0)
+	b2, b1, b0 := sq(d1), 2*dotRe(d0, d1), sq(d0)
+	roots, nr := quadRoots01(a2*b1-a1*b2, 2*(a2*b0-a0*b2), a1*b0-a0*b1)
+	bt, bg := ta, r.evalEnd(k, ta)
+	try := func(t float64) {
+		if t < ta || t > tb {
+			return
+		}
+		if g := r.evalEnd(k, t); cmplx.Abs(g) < cmplx.Abs(bg) {
+			bt, bg = t, g
+		}
+	}
+	try(tb)
+	for _, t := range roots[:nr] {
+		try(t)
+	}
+	return bt, bg
+}
+
+// evalEnd is eval that returns the measured points themselves at t = 0 and
+// t = 1.
+func (r *Reflection) evalEnd(k int, t float64) complex128 {
+	switch t {
+	case 0:
+		return r.pts[k]
+	case 1:
+		return r.pts[k+1]
+	}
+	return r.eval(k, t)
+}
+
+// numDen returns Γ = N/D on segment k of the linear and mobius kinds as
+// N = n0 + n1·t, D = d0 + d1·t.
+func (r *Reflection) numDen(k int) (n0, n1, d0, d1 complex128) {
+	if r.kind == linear {
+		return r.pts[k], r.pts[k+1] - r.pts[k], 1, 0
+	}
+	rho := complex(r.rho, 0)
+	a, d := r.file[k], r.file[k+1]-r.file[k]
+	return a - rho, d, 1 - rho*a, -rho * d
+}
+
+// nearMin returns the least |Γ| of the general kind near the measured point
+// best: on the segments beside it, within the positions (loK + loT) to
+// (hi + hiT).
+func (r *Reflection) nearMin(best, loK int, loT, hi, hiT float64) (int, float64, complex128) {
+	lo, end := float64(loK)+loT, hi+hiT
+	k, t, g := best, 0.0, r.pts[best]
+	for _, s := range []int{best - 1, best} {
+		if s < 0 || s+1 >= len(r.pts) {
+			continue
+		}
+		ta, tb := math.Max(lo-float64(s), 0), math.Min(end-float64(s), 1)
+		if ta >= tb {
+			continue
+		}
+		if ts, gs := r.goldenMin(s, ta, tb); cmplx.Abs(gs) < cmplx.Abs(g) {
+			k, t, g = s, ts, gs
+		}
+	}
+	return k, t, g
+}
+
+// goldenMin returns the fraction t ∈ [t0, t1] of segment k where |Γ| is
+// least, and Γ there, by golden-section search, keeping an end if it is
+// lower.
+func (r *Reflection) goldenMin(k int, t0, t1 float64) (float64, complex128) {
 	const ig = 0.6180339887498949 // (√5 − 1)/2
 	a, b := t0, t1
 	x1, x2 := b-ig*(b-a), a+ig*(b-a)
@@ -534,8 +630,13 @@ func (r *Reflection) segmentMin(k int, t0, t1 float64) (float64, complex128) {
 			f2 = cmplx.Abs(r.eval(k, x2))
 		}
 	}
-	t := (a + b) / 2
-	return t, r.eval(k, t)
+	bt, bg := (a+b)/2, r.eval(k, (a+b)/2)
+	for _, t := range []float64{t0, t1} {
+		if g := r.evalEnd(k, t); cmplx.Abs(g) < cmplx.Abs(bg) {
+			bt, bg = t, g
+		}
+	}
+	return bt, bg
 }
 
 // ZeroCrossings returns the frequencies at which the reactance of the

@@ -2,6 +2,7 @@ package rfmath
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -153,50 +154,78 @@ func TestDipsRidge(t *testing.T) {
 	}
 }
 
-// TestDipsBruteForce checks on seeded random coarse traces that the bands
-// are exactly the stretches where the interpolated trace reads at or above
-// the threshold: a readout at every edge reads the threshold, and at 4000
-// frequencies a readout is at or above it exactly when the frequency lies
-// in a band (brute force over the interpolation that readouts use).
+// TestDipsBruteForce checks on seeded random coarse traces, in the file's
+// reference and shown in 75 Ω, that the bands are exactly the stretches
+// where the interpolated trace reads at or above the threshold: a readout
+// at every edge reads the threshold, at 4000 frequencies a readout is at or
+// above it exactly when the frequency lies in a band, and no readout in a
+// band (or, for the deepest dip, anywhere) reads more than its deepest
+// point, which reads its own return loss (brute force over the
+// interpolation that readouts use).
 func TestDipsBruteForce(t *testing.T) {
 	t.Parallel()
 	rng := rand.New(rand.NewPCG(19, 1))
-	for trial := range 50 {
+	for trial := range 60 {
 		n := 2 + rng.IntN(12)
-		freq := make([]float64, n)
-		g := make([]complex128, n)
+		s := NewSweep(n, 1, 50)
 		f := 0.0
 		for k := range n {
 			f += 0.2 + rng.Float64()
-			freq[k] = f
-			g[k] = cmplx.Rect(rng.Float64(), 2*math.Pi*rng.Float64())
+			s.FreqHz[k] = f
+			s.Data[k] = cmplx.Rect(rng.Float64(), 2*math.Pi*rng.Float64())
+		}
+		var to []float64
+		if trial%2 == 1 {
+			to = []float64{75}
+		}
+		tr, err := NewReflection(s, 0, to)
+		if err != nil {
+			t.Fatal(err)
 		}
 		const thr = 6.0
-		tr := ReflectionOf(freq, g, 50)
+		read := func(f float64) float64 {
+			ro, err := tr.Readout(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			return ro.ReturnLossDB
+		}
 		ds := tr.Dips(thr, 0)
 		for _, d := range ds {
 			for _, e := range []struct {
 				f    float64
 				open bool
 			}{{d.LoHz, d.LoOpen}, {d.HiHz, d.HiOpen}} {
-				if e.open {
-					continue
+				if !e.open && math.Abs(read(e.f)-thr) > 1e-9 {
+					t.Errorf("trial %d: edge %v reads %v dB", trial, e.f, read(e.f))
 				}
-				if ro, _ := tr.Readout(e.f); math.Abs(ro.ReturnLossDB-thr) > 1e-9 {
-					t.Errorf("trial %d: edge %v reads %v dB", trial, e.f, ro.ReturnLossDB)
-				}
+			}
+			if rl := read(d.FreqHz); !closeF(rl, d.ReturnLossDB, 1e-9) {
+				t.Errorf("trial %d: the deepest point %v reads %v dB, reported %v", trial, d.FreqHz, rl, d.ReturnLossDB)
 			}
 		}
+		deep := tr.DeepestDip()
+		if rl := read(deep.FreqHz); !closeF(rl, deep.ReturnLossDB, 1e-9) {
+			t.Errorf("trial %d: the deepest dip %v reads %v dB, reported %v", trial, deep.FreqHz, rl, deep.ReturnLossDB)
+		}
 		for i := range 4000 {
-			fq := freq[0] + (freq[n-1]-freq[0])*float64(i)/3999
+			fq := min(s.FreqHz[0]+(s.FreqHz[n-1]-s.FreqHz[0])*float64(i)/3999, s.FreqHz[n-1])
+			rl := read(fq)
+			if rl > deep.ReturnLossDB+1e-9 {
+				t.Fatalf("trial %d: %v reads %v dB, deeper than the deepest dip %+v", trial, fq, rl, deep)
+			}
 			inside, near := false, false
 			for _, d := range ds {
-				inside = inside || (fq >= d.LoHz && fq <= d.HiHz)
+				if fq >= d.LoHz && fq <= d.HiHz {
+					inside = true
+					if rl > d.ReturnLossDB+1e-9 {
+						t.Fatalf("trial %d: %v reads %v dB, deeper than its band %+v", trial, fq, rl, d)
+					}
+				}
 				near = near || math.Abs(fq-d.LoHz) < 1e-9 || math.Abs(fq-d.HiHz) < 1e-9
 			}
-			ro, _ := tr.Readout(fq)
-			if !near && (ro.ReturnLossDB >= thr) != inside {
-				t.Fatalf("trial %d: at %v reads %v dB but inside a band = %v (bands %+v)", trial, fq, ro.ReturnLossDB, inside, ds)
+			if !near && (rl >= thr) != inside {
+				t.Fatalf("trial %d: at %v reads %v dB but inside a band = %v (bands %+v)", trial, fq, rl, inside, ds)
 			}
 		}
 	}
@@ -390,5 +419,31 @@ func TestNewReflectionErrors(t *testing.T) {
 	}
 	if !panics(func() { NewReflection(s, 1, nil) }) || !panics(func() { NewReflection(s, 0, []float64{50, 50}) }) {
 		t.Error("bad port or reference count did not panic")
+	}
+}
+
+// BenchmarkDips measures the band search on a dense series RLC trace
+// (R-1's network, 100–250 MHz) of 1k and 100k points, in the file's
+// reference and shown in 75 Ω.
+func BenchmarkDips(b *testing.B) {
+	for _, n := range []int{1000, 100000} {
+		freq := grid(100e6, 250e6, n)
+		s := NewSweep(n, 1, 50)
+		copy(s.FreqHz, freq)
+		copy(s.Data, gammas(seriesRLC(freq, 40, 100e-9, 10e-12), 50))
+		for _, to := range [][]float64{nil, {75}} {
+			tr, err := NewReflection(s, 0, to)
+			if err != nil {
+				b.Fatal(err)
+			}
+			name := fmt.Sprintf("points=%d/z0=%v", n, to)
+			b.Run(name, func(b *testing.B) {
+				b.ReportAllocs()
+				for b.Loop() {
+					tr.Dips(10, DipHysteresisDB)
+					tr.DeepestDip()
+				}
+			})
+		}
 	}
 }

@@ -19,8 +19,8 @@ type Dip struct {
 	// below the threshold only between them) it is the one of the two
 	// nearer the deepest point.
 	Index int
-	// FreqHz and ReturnLossDB are the deepest point, refined between the
-	// measured points (see [DipsHysteresis]).
+	// FreqHz and ReturnLossDB are the deepest point of the band: the least
+	// |Γ| of the interpolated trace, which may lie between measured points.
 	FreqHz, ReturnLossDB float64
 	// LoHz and HiHz are the band edges, where the return loss of the
 	// interpolated trace crosses the threshold.
@@ -83,15 +83,11 @@ func Dips(freqHz []float64, gamma []complex128, thresholdDB float64) []Dip {
 // bridged. A hysteresisDB of zero (or less, or NaN) splits the band at
 // every crossing.
 //
-// The deepest point of a band is refined by fitting a parabola to the
-// return loss in dB at the best measured point and its two neighbours
-// (which may be unevenly spaced) and taking its vertex; at the ends of the
-// sweep, or where the three points are not concave, the measured point is
-// kept. The vertex is an estimate of where the resonance lies, good to a
-// small part of the point spacing for a smooth resonance, not a reading of
-// the interpolated trace, which may read a little less there. A band with
-// no measured point at or above the threshold takes the least |Γ| of the
-// interpolated trace instead.
+// The deepest point of a band is the least |Γ| of the interpolated trace in
+// it, in closed form on each segment (see [Reflection]), so a readout there
+// reads the band's ReturnLossDB. It is usually between two points: the
+// chord across a resonance passes closer to the centre of the chart than
+// the points do.
 //
 // A gamma whose length differs from freqHz panics. The result is nil if no
 // point reaches the threshold.
@@ -100,13 +96,14 @@ func DipsHysteresis(freqHz []float64, gamma []complex128, thresholdDB, hysteresi
 }
 
 // DeepestDip returns the point of highest return loss over the whole sweep,
-// refined as in [DipsHysteresis], with the band edges where the power the
-// load takes, 1 − |Γ|², has fallen to half its value at the deepest
-// measured point:
+// the least |Γ| of the interpolated trace as in [DipsHysteresis], with the
+// band edges where the power the load takes, 1 − |Γ|², has fallen to half
+// its value there:
 //
 //	threshold = −10·log10((1 + |Γmin|²)/2) dB
 //
-// found on the interpolated trace as the edges of [DipsHysteresis] are. For
+// found on the interpolated trace as the edges of [DipsHysteresis] are.
+// Index is the measured point of highest return loss. For
 // a single resonator at the end of a short lossless line matched to the
 // reference, these are the points where its reactance equals ±(R + Z0), so
 // FreqHz/BandwidthHz() is its loaded Q (REFERENCE-CHECKS §9 R-2).
@@ -129,25 +126,6 @@ func crossAt(x0, x1, y0, y1, y float64) float64 {
 		return (x0 + x1) / 2
 	}
 	return x0 + (y-y0)/(y1-y0)*(x1-x0)
-}
-
-// parabolaVertex returns the vertex of the parabola through (x0, y0),
-// (x1, y1), (x2, y2), with x0 < x1 < x2, if it opens downward, all values
-// are finite and the vertex lies within [x0, x2].
-func parabolaVertex(x0, x1, x2, y0, y1, y2 float64) (x, y float64, ok bool) {
-	h0, h2 := x0-x1, x2-x1
-	d0, d2 := y0-y1, y2-y1
-	// y − y1 = a·h² + b·h with h = x − x1.
-	a := (d0/h0 - d2/h2) / (h0 - h2)
-	b := d0/h0 - a*h0
-	if !(a < 0) || math.IsInf(a, 0) || math.IsNaN(b) || math.IsInf(b, 0) {
-		return 0, 0, false
-	}
-	x = x1 - b/(2*a)
-	if !(x >= x0 && x <= x2) {
-		return 0, 0, false
-	}
-	return x, y1 - b*b/(4*a), true
 }
 
 // Crossing is a frequency at which the reactance of an impedance sweep

@@ -265,9 +265,12 @@ func TestDips(t *testing.T) {
 	}
 }
 
-// TestDipRefinement checks the parabolic vertex on a trace that is exactly
-// quadratic in dB, unevenly sampled: RL = 30 − 4·(f − 3.3)² dB.
-func TestDipRefinement(t *testing.T) {
+// TestDipDeepestOnTrace checks the deepest point on a trace of real,
+// positive Γ, unevenly sampled, with RL = 30 − 4·(f − 3.3)² dB: between
+// points Γ is interpolated linearly in the complex plane, which for a real
+// positive Γ is linear in |Γ|, so the least |Γ| of the interpolated trace is
+// at a measured point, f = 3 with 30 − 4·0.09 = 29.64 dB (arithmetic).
+func TestDipDeepestOnTrace(t *testing.T) {
 	t.Parallel()
 	freq := []float64{0, 1, 2, 2.5, 3, 4.5, 5, 7}
 	g := make([]complex128, len(freq))
@@ -276,14 +279,9 @@ func TestDipRefinement(t *testing.T) {
 		g[k] = complex(math.Pow(10, -rl/20), 0) // |Γ| > 1 where rl < 0
 	}
 	d := DeepestDip(freq, g)
-	if math.Abs(d.FreqHz-3.3) > 1e-9 || math.Abs(d.ReturnLossDB-30) > 1e-9 || d.Index != 4 {
-		t.Errorf("dip = %+v, want 3.3, 30 dB at index 4", d)
+	if d.FreqHz != 3 || math.Abs(d.ReturnLossDB-29.64) > 1e-9 || d.Index != 4 {
+		t.Errorf("dip = %+v, want 3, 29.64 dB at index 4", d)
 	}
-	// Dips with a threshold: RL ≥ 20 dB where |f − 3.3| ≤ √2.5 on the true
-	// trace. Between points Γ is interpolated linearly in the complex
-	// plane; Γ is real and positive here, so that is linear in |Γ|, and
-	// the 20 dB edge (|Γ| = 0.1) between f = 1 and 2 lies at
-	// 1 + (0.1 − |Γ(1)|)/(|Γ(2)| − |Γ(1)|) (arithmetic).
 	ds := Dips(freq, g, 20)
 	if len(ds) != 1 {
 		t.Fatalf("dips = %+v", ds)
@@ -324,10 +322,22 @@ func TestDipsEdgeCases(t *testing.T) {
 	if ds := Dips(nil, nil, 10); ds != nil {
 		t.Errorf("empty Dips = %+v", ds)
 	}
-	// A total reflection everywhere: the whole sweep, both ends open.
-	d = DeepestDip(f, []complex128{1, -1, 1i, -1i, 1})
-	if !d.LoOpen || !d.HiOpen || d.ReturnLossDB != 0 {
-		t.Errorf("total reflection: %+v", d)
+	// An open everywhere: RL 0 at every frequency, so the half-power
+	// threshold is 0 dB and the band is the whole sweep, both ends open.
+	d = DeepestDip(f, []complex128{1, 1, 1, 1, 1})
+	if !d.LoOpen || !d.HiOpen || d.ReturnLossDB != 0 || d.LoHz != 1 || d.HiHz != 5 {
+		t.Errorf("open: %+v", d)
+	}
+	// A lossless trace round the edge of the chart in 10° steps: the chord
+	// between two points passes inside it, closest at its middle, where
+	// |Γ| = cos 5° and RL = −20·log10(cos 5°) = 0.033115 dB (arithmetic).
+	g = make([]complex128, 5)
+	for k := range g {
+		g[k] = cmplx.Rect(1, float64(k)*10*math.Pi/180)
+	}
+	d = DeepestDip(f, g)
+	if want := -20 * math.Log10(math.Cos(5*math.Pi/180)); math.Abs(d.ReturnLossDB-want) > 1e-12 || math.Abs(d.FreqHz-math.Floor(d.FreqHz)-0.5) > 1e-9 {
+		t.Errorf("lossless trace: %+v, want %v dB midway between points", d, want)
 	}
 }
 
@@ -363,26 +373,6 @@ func TestInterpolationHelpers(t *testing.T) {
 	}
 	if x := crossAt(1, 3, 0, 10, 5); x != 2 {
 		t.Errorf("crossAt = %v, want 2", x)
-	}
-	tests := []struct {
-		name       string
-		y0, y1, y2 float64
-		ok         bool
-	}{
-		{"concave", 1, 2, 1, true},
-		{"convex", 2, 1, 2, false},
-		{"straight", 1, 2, 3, false},
-		{"vertex beyond x2", 0, 1, 1.9, false},
-		{"NaN", math.NaN(), 1, 0, false},
-	}
-	for _, tc := range tests {
-		x, y, ok := parabolaVertex(0, 1, 2, tc.y0, tc.y1, tc.y2)
-		if ok != tc.ok {
-			t.Errorf("%s: ok = %v (x %v, y %v), want %v", tc.name, ok, x, y, tc.ok)
-		}
-	}
-	if x, y, _ := parabolaVertex(0, 1, 2, 1, 2, 1); x != 1 || y != 2 {
-		t.Errorf("symmetric vertex = %v, %v; want 1, 2", x, y)
 	}
 }
 
