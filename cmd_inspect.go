@@ -224,10 +224,6 @@ func readoutOf(port int, r rfmath.Readout) readoutJSON {
 	return rj
 }
 
-// fmtDB writes a figure in dB to two decimals, +Inf as ∞ (a perfect
-// match's return loss) and NaN as n/a.
-func fmtDB(v float64) string { return fmtNum(v, 2) }
-
 func printInspect(w io.Writer, rep *inspectReport) {
 	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
 	fmt.Fprintf(w, "%s: %d-port, %d points, %s to %s, reference %s\n",
@@ -294,32 +290,4 @@ func printInspect(w io.Writer, rep *inspectReport) {
 			fmt.Fprintf(w, "  note at %s: %s\n", ff(r.FreqHz), strings.Join(r.Warnings, "; "))
 		}
 	}
-}
-
-// sign returns the sign to write before the magnitude of x: "−" for a
-// negative x that does not round to zero, else "+".
-func sign(x float64) string {
-	if x < 0 && fmtNum(-x, 2) != fmtNum(0, 2) {
-		return "−"
-	}
-	return "+"
-}
-
-// fmtNum writes v with digits decimals, as an engineer writes it: +Inf as
-// ∞, −Inf as −∞, NaN as n/a, and a value that rounds to zero without a
-// minus sign (0.00, not -0.00).
-func fmtNum(v float64, digits int) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "∞"
-	case math.IsInf(v, -1):
-		return "−∞"
-	case math.IsNaN(v):
-		return "n/a"
-	}
-	s := fmt.Sprintf("%.*f", digits, v)
-	if strings.Trim(s, "-0.") == "" {
-		return strings.TrimPrefix(s, "-")
-	}
-	return s
 }
