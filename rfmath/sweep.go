@@ -188,8 +188,12 @@ func locate(freqHz []float64, fHz float64) (k int, t float64, err error) {
 // checks and resampling: linear in the complex plane, real and imaginary
 // parts separately, in the sweep's own reference impedances (a sweep shown
 // in other references is renormalised after interpolating; see
-// [NewReflection]).
+// [NewReflection]). It is exact at the points: Lerp(a, b, 0) = a and
+// Lerp(a, b, 1) = b.
 func Lerp(a, b complex128, t float64) complex128 {
+	if t == 1 {
+		return b // a + (b − a) may differ from b in the last bit
+	}
 	return a + complex(t, 0)*(b-a)
 }
 
