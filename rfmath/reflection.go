@@ -20,8 +20,9 @@ import (
 // and interpolating first keeps the impedance at a frequency independent of
 // the reference it is shown in.
 //
-// A Reflection holds the sweep's slices, not copies: do not change the sweep
-// while it is in use. Its methods do not change it and may be called from
+// A Reflection keeps the sweep's frequencies (and, for a multi-port shown in
+// other references, the sweep itself), not copies: do not change the sweep
+// while it is in use. Its methods change nothing and may be called from
 // several goroutines at once.
 type Reflection struct {
 	freqHz []float64
