@@ -359,17 +359,4 @@ func printCheck(w io.Writer, rep *checkReport, bands []limits.Band) {
 	}
 }
 
-// signed writes a margin with its sign: +1.52, −0.83.
-func signed(v float64) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "+∞"
-	case math.IsInf(v, -1):
-		return "−∞"
-	case v < 0:
-		return fmt.Sprintf("−%.2f", -v)
-	}
-	return fmt.Sprintf("+%.2f", v)
-}
-
 var _ flag.Value = limitFlag{}

@@ -110,7 +110,7 @@ type searchInfoJSON struct {
 }
 
 func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("match", "FILE [FILE ...] | --set DIR --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--lot] [--top 5] [--json]", stderr)
+	fs := newFlagSet("match", "FILE [FILE ...] | --set DIR --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--lot] [--top 5] [--builds 1000] [--power 1W] [--radius 8mm] [--json]", stderr)
 	var bandArgs listFlag
 	fs.Var(&bandArgs, "band", "a band to match, `LO:HI[:RL]` (SI prefixes: 2.40G:2.4835G, or 863M:870M:12 with its own return loss); repeatable")
 	rl := fs.Float64("rl", 10, "required return `loss` in dB for bands that do not give their own")
@@ -124,8 +124,10 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	top := fs.Int("top", 5, "number of designs to print (the best of each ladder shape)")
 	window := fs.Int("window", 0, "search only ±`N` standard values around each continuous optimum (0: the whole range when it is small enough; -1: always the whole range)")
 	builds := fs.Int("builds", 1000, "Monte Carlo `builds` per design for the yield under typical tolerances (0: none)")
-	power := fs.Float64("power", 0, "input `watts`: print each part's peak voltage and RMS current in the best design and warn above its rating")
-	radius := fs.Float64("radius", 0, "radius in `metres` of the sphere around the antenna: compare the sweep's Q with the Chu limit")
+	var power, radius quantityFlag
+	power.unit, radius.unit = "W", "m"
+	fs.Var(&power, "power", "input `power` (0.5, 500mW, 2W): print each part's peak voltage and RMS current in the best design and warn above its rating")
+	fs.Var(&radius, "radius", "`radius` of the sphere around the antenna (8mm, 0.8cm, 0.008): compare the sweep's Q with the Chu limit")
 	asJSON := fs.Bool("json", false, "print a JSON array of designs")
 	setDir := fs.String("set", "", "match every sweep file in this `folder` at once (a set of conditions or a lot), as if each were given")
 	lot := fs.Bool("lot", false, "the files are boards of a lot: the yield judges each build on one board drawn at random (by weight), not on every file")
@@ -170,7 +172,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *top < 1 {
 		return usagef("--top %d: want at least 1", *top)
 	}
-	if *builds < 0 || *power < 0 || *radius < 0 || math.IsNaN(*power) || math.IsNaN(*radius) {
+	if *builds < 0 || power.v < 0 || radius.v < 0 {
 		return usagef("--builds, --power and --radius must not be negative")
 	}
 	obj, err := match.ParseObjective(*objective)
@@ -271,8 +273,8 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		if i == 0 {
 			j.Search = &searchInfoJSON{res.Objective.String(), res.Exact, res.Window, res.Combinations, took.Seconds()}
-			if *power > 0 {
-				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: *power})
+			if power.v > 0 {
+				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: power.v})
 				if err != nil {
 					return err
 				}
@@ -285,12 +287,12 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var chu *match.Chu
 	var chuErr error
-	if *radius > 0 {
+	if radius.v > 0 {
 		lo, hi := bands[0].LoHz, bands[0].HiHz
 		for _, b := range bands {
 			lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
 		}
-		c, err := match.ChuCompare(load, math.Sqrt(lo*hi), *radius)
+		c, err := match.ChuCompare(load, math.Sqrt(lo*hi), radius.v)
 		chu, chuErr = &c, err
 	}
 
@@ -311,7 +313,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if limErr != nil {
 		fmt.Fprintf(stdout, "Bode–Fano: no RC, RL or RLC model fits the load near the bands (%v).\n", limErr)
 	} else {
-		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %.3f in Γ).\n", fit, fit.RMSGammaError)
+		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %s in Γ).\n", fit, fmtNum(fit.RMSGammaError, 3))
 		fmt.Fprintf(stdout, "  No lossless network of any order can hold more than %s dB across all the bands at once", fmtDB(lim.BestRLdB))
 		fmt.Fprintf(stdout, " (largest common margin over the requirements: %s dB)", signed(lim.MaxMarginDB))
 		if lim.BestRLdB >= 60 {
@@ -331,19 +333,19 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chuErr)
 			if limErr == nil && fit.ResonanceHz() > 0 {
 				f0 := fit.ResonanceHz()
-				ka := match.KA(*radius, f0)
+				ka := match.KA(radius.v, f0)
 				ratio := fit.Q() / match.ChuQ(ka)
-				fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %.3g; a sphere of radius %s there has ka = %.3f, so Q ≥ %.3g (Chu; McLean 1996): %.2f × the limit%s.\n",
-					fit.RLC, units.FormatFrequency(f0, 6), fit.Q(), units.Format(*radius, "m", 3), ka, match.ChuQ(ka), ratio, belowChu(ratio))
+				fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
+					fit.RLC, units.FormatFrequency(f0, 6), fmtSig(fit.Q(), 3), units.Format(radius.v, "m", 3), fmtNum(ka, 3), fmtSig(match.ChuQ(ka), 3), fmtNum(ratio, 2), belowChu(ratio))
 			}
 		} else {
-			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %.3f, so Q ≥ %.3g.\n",
-				units.Format(*radius, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), chu.KA, chu.ChuQ)
-			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %.3g (%.2f × the limit%s).\n", chu.Measured.Q, chu.Ratio, belowChu(chu.Ratio))
+			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %s, so Q ≥ %s.\n",
+				units.Format(radius.v, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3))
+			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %s (%s × the limit%s).\n", fmtSig(chu.Measured.Q, 3), fmtNum(chu.Ratio, 2), belowChu(chu.Ratio))
 		}
 	}
-	if *power > 0 {
-		printStress(stdout, designs[0], *power)
+	if power.v > 0 {
+		printStress(stdout, designs[0], power.v)
 	}
 	return nil
 }

@@ -38,8 +38,9 @@ import (
 // Words that may also appear are s11, s, gamma, refl, reflection,
 // coefficient and rho. Real/imaginary columns are used if present, then
 // dB/angle, then magnitude/angle. A header with other names is an error
-// that lists the names found and the names expected. Under ';' a number may
-// use a decimal comma. Frequencies must increase strictly.
+// that lists the names found and the names expected. Numbers are decimal,
+// as in a Touchstone file (no hexadecimal, Inf or NaN); under ';' a number
+// may use a decimal comma. Frequencies must increase strictly.
 func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	lim = lim.withDefaults()
 	buf, err := readAll(r, name, lim.MaxBytes)
@@ -128,7 +129,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			x, ok := csvNumber(rec[idx], sep)
 			if !ok {
 				line, col := cr.FieldPos(idx)
-				return nil, perr(line, col, syntaxf("expected a number in column %q, found %q", cols.names[k], rec[idx]))
+				return nil, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", cols.names[k], rec[idx]))
 			}
 			v[k] = x
 		}
@@ -175,8 +176,11 @@ func csvZ0(text string) (float64, bool, error) {
 		if f[i] != "z0" && f[i] != "r" {
 			continue
 		}
-		v, err := strconv.ParseFloat(strings.TrimSuffix(f[i+1], "ohm"), 64)
+		v, err := parseNumber([]byte(strings.TrimSuffix(f[i+1], "ohm")))
 		if err != nil {
+			if f[i] == "z0" { // "r" may start a word of any comment
+				return 0, false, syntaxf("Z0 must be followed by the reference resistance in ohms as a decimal number, found %q", f[i+1])
+			}
 			continue
 		}
 		if !(v > 0) || math.IsInf(v, 0) {
@@ -187,12 +191,16 @@ func csvZ0(text string) (float64, bool, error) {
 	return 0, false, nil
 }
 
+// csvNumber reads a number of a CSV field by the rules of the Touchstone
+// reader (digits, sign, point and exponent; no hexadecimal, Inf, NaN or
+// underscores, which strconv.ParseFloat would take), with a decimal comma
+// under sep ';'.
 func csvNumber(s string, sep rune) (float64, bool) {
 	s = strings.TrimSpace(s)
 	if sep == ';' && strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
-	v, err := strconv.ParseFloat(s, 64)
+	v, err := parseNumber([]byte(s))
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, false
 	}

@@ -75,7 +75,15 @@ func TestReadCSVErrors(t *testing.T) {
 		{file: "csv_decreasing.csv", kind: ErrSyntax, line: 5, col: 1, msg: []string{"does not increase"}},
 		{text: "freq,re,im\n1,0.5,x\n", kind: ErrSyntax, line: 2, col: 7, msg: []string{`column "im"`, `"x"`}},
 		{text: "freq,re,im\n1,0.5\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{"wrong number of fields"}},
-		{text: "freq,re,im\n1,nan,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a number"}},
+		{text: "freq,re,im\n1,nan,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a decimal number"}},
+		// Numbers are decimal, as the Touchstone reader reads them (TS
+		// reader: `expected a number, found "0x10"`): strconv would take
+		// these.
+		{text: "freq,re,im\n1,0x1p-2,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a decimal number", `"0x1p-2"`}},
+		{text: "freq,re,im\n0x10,0.5,0\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{`column "freq"`, `"0x10"`}},
+		{text: "freq,re,im\n1,Inf,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{`"Inf"`}},
+		{text: "freq;re;im\n1;0x1,5p0;0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"decimal"}},
+		{text: "# Z0 = 0x4B\nfreq,re,im\n1,0,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"Z0 must be followed", `"0x4b"`}},
 		{text: "freq,re,re\n1,0.5,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"two columns"}},
 		{text: "freq\n1\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"one column"}},
 		{text: "# only a comment\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"no header row"}},
