@@ -33,11 +33,12 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-// writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes.
+// writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes
+// and, for a transistor, its noise parameters.
 func writeDemoFile(path string, f demo.File) error {
 	comments := make([]string, len(f.Note))
 	for i, n := range f.Note {
 		comments[i] = " " + n
 	}
-	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments})
+	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments, Noise: f.Noise})
 }

@@ -14,6 +14,10 @@
 //   - "Wristtag": a wrist-worn asset tag with a ceramic chip antenna for the
 //     2400–2483.5 MHz band, measured on the bare board.
 //
+// Wristtag's receiver also gets a discrete low-noise amplifier, and the
+// transistor for it is characterised as a 2-port with noise parameters
+// (see [LNABand] and the model in transistor.go).
+//
 // Also measured: the Fieldnode antenna through 250 mm of thin PE-dielectric
 // coax (as it is first seen before the reference plane is moved), the same
 // cable with its far end left open (for fitting a port extension), and the
@@ -34,6 +38,11 @@
 // at its connector. Noise is complex Gaussian on Γ with σ = 0.002 (a clean
 // analyser at moderate IF bandwidth, from memory), seeded with a fixed
 // PCG seed per file.
+//
+// The LNA transistor is a small-signal FET equivalent circuit with package
+// parasitics and Pospieszalski's two-temperature noise model, solved by
+// nodal analysis (transistor.go). Its S-parameters carry σ = 0.0005 of
+// seeded noise; its noise parameters are the model's own.
 package demo
 
 import (
@@ -41,14 +50,16 @@ import (
 	"math/rand/v2"
 
 	"matchbench/rfmath"
+	"matchbench/rfmath/touchstone"
 )
 
-// File is one generated sweep with its file name and a note for the
-// Touchstone header.
+// File is one generated sweep with its file name, a note for the
+// Touchstone header and, for a transistor, its noise parameters.
 type File struct {
 	Name  string
 	Note  []string
 	Sweep *rfmath.Sweep
+	Noise []touchstone.NoisePoint
 }
 
 // Band is a frequency band the demo products must cover.
@@ -69,6 +80,9 @@ var (
 	WristtagBands = []Band{
 		{"2.4 GHz ISM", 2400e6, 2483.5e6, 10},
 	}
+	// LNABand is the band of Wristtag's low-noise stage (the same ISM
+	// band; the 10 dB input return loss is the demo's choice).
+	LNABand = Band{"2.4 GHz ISM", 2400e6, 2483.5e6, 10}
 )
 
 // antenna is the model of a small antenna at its feed.
@@ -169,6 +183,8 @@ func Generate() []File {
 		return cableABCD(f).InputImpedance(zOpen)
 	}, 4)
 
+	lna, lnaNoise := lnaTransistor(5)
+
 	fixture := rfmath.NewSweep(len(harmonic), 2, 50)
 	copy(fixture.FreqHz, harmonic)
 	for k, f := range harmonic {
@@ -177,10 +193,11 @@ func Generate() []File {
 	}
 
 	return []File{
-		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn},
-		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt},
-		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable},
-		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open},
-		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture},
+		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn, nil},
+		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt, nil},
+		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable, nil},
+		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open, nil},
+		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture, nil},
+		{"wristtag-lna-transistor.s2p", []string{invented, "Wristtag LNA transistor: an invented packaged low-noise pHEMT, common source, 50 ohm.", "S-parameters 0.5-6 GHz with seeded noise; noise parameters 1-6 GHz (Rn normalised to 50 ohm)."}, lna, lnaNoise},
 	}
 }
