@@ -167,7 +167,7 @@ func InputStabilityCircle(s [4]complex128) StabilityCircle {
 func SAt(sw *rfmath.Sweep, fHz float64) ([4]complex128, error) {
 	var s [4]complex128
 	if sw.Ports != 2 {
-		return s, fmt.Errorf("%w: it has %d ports", ErrNotTwoPort, sw.Ports)
+		return s, fmt.Errorf("%w: it is a %d-port", ErrNotTwoPort, sw.Ports)
 	}
 	if _, err := sw.InterpAt(s[:], fHz); err != nil {
 		return s, err
