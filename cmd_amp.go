@@ -308,8 +308,8 @@ func ampAnalyze(path string, tf *touchstone.File, req ampRequest) (*ampReport, e
 	z0 := sw.Z0[0]
 	num := func(v float64) *jsonNum { n := jsonNum(v); return &n }
 	gopt := amp.GammaOpt(np)
-	go_ := cplxOf(gopt)
-	rep.NFminDB, rep.GammaOpt, rep.RnOhm = num(np.NFminDB), &go_, num(np.RnOhm)
+	gOpt := cplxOf(gopt)
+	rep.NFminDB, rep.GammaOpt, rep.RnOhm = num(np.NFminDB), &gOpt, num(np.RnOhm)
 	rep.NF50DB = num(amp.NoiseFigureDB(np, z0, 0))
 	rep.GAAtGammaOptDB = num(amp.DB(amp.AvailableGain(s, gopt)))
 	if rep.GammaS != nil {

@@ -33,11 +33,11 @@ import (
 // output conductance 1/Rds at an equivalent drain temperature Td, the two
 // uncorrelated; the extrinsic resistances are noisy at the ambient
 // temperature. The noise parameters come from the circuit itself by nodal
-// analysis (see noiseParams), not from a formula of the model.
+// analysis (see circuit.twoPort), not from a formula of the model.
 //
 // The chosen values make a device with most of its gain at low frequency,
-// potentially unstable below about 1.5 GHz (K < 1) and unconditionally
-// stable across 2.4–2.5 GHz, with NFmin near 0.5 dB there: a stage worth
+// potentially unstable below about 1.7 GHz (K < 1) and unconditionally
+// stable across 2.4–2.5 GHz, with NFmin near 0.85 dB there: a stage worth
 // stabilising and matching on the chart.
 type fet struct {
 	gmS, tauS                float64 // transconductance and its delay

@@ -3,6 +3,7 @@ package amp
 import (
 	"errors"
 	"fmt"
+	"math"
 
 	"matchbench/rfmath"
 	"matchbench/rfmath/units"
@@ -74,7 +75,7 @@ func (e *GainCircleError) Error() string {
 	if e.Plane == "load" {
 		kind = "operating"
 	}
-	if e.MaxDB == e.MaxDB { // not NaN
+	if !math.IsNaN(e.MaxDB) {
 		return fmt.Sprintf("amp: no %s-plane circle of %s gain %.4g dB: it is above MAG = %.4g dB", e.Plane, kind, e.GainDB, e.MaxDB)
 	}
 	return fmt.Sprintf("amp: no %s-plane circle of %s gain %.4g dB: no termination gives it", e.Plane, kind, e.GainDB)

@@ -70,12 +70,12 @@ func NoiseAt(pts []touchstone.NoisePoint, fHz float64) (touchstone.NoisePoint, e
 //	Rn = 0 gives NFmin for every passive Γs
 func NoiseFigureDB(p touchstone.NoisePoint, z0Ohm float64, gs complex128) float64 {
 	fmin := FromDB(p.NFminDB)
-	go_ := GammaOpt(p)
-	num := 4 * p.RnOhm / z0Ohm * abs2(gs-go_)
+	gOpt := GammaOpt(p)
+	num := 4 * p.RnOhm / z0Ohm * abs2(gs-gOpt)
 	if num == 0 {
 		return p.NFminDB
 	}
-	den := (1 - abs2(gs)) * abs2(1+go_)
+	den := (1 - abs2(gs)) * abs2(1+gOpt)
 	if !(den > 0) {
 		return math.Inf(1)
 	}
@@ -93,17 +93,17 @@ func NoiseFigureDB(p touchstone.NoisePoint, z0Ohm float64, gs complex128) float6
 // gives a *[NoiseCircleError].
 func NoiseCircle(p touchstone.NoisePoint, z0Ohm, nfDB float64) (Circle, error) {
 	f, fmin := FromDB(nfDB), FromDB(p.NFminDB)
-	go_ := GammaOpt(p)
+	gOpt := GammaOpt(p)
 	if nfDB == p.NFminDB {
-		return Circle{Center: go_}, nil
+		return Circle{Center: gOpt}, nil
 	}
 	if !(f > fmin) || p.RnOhm == 0 {
 		return Circle{}, &NoiseCircleError{NFdB: nfDB, NFminDB: p.NFminDB, RnOhm: p.RnOhm}
 	}
-	n := (f - fmin) * abs2(1+go_) / (4 * p.RnOhm / z0Ohm)
-	r := n * (n + 1 - abs2(go_))
+	n := (f - fmin) * abs2(1+gOpt) / (4 * p.RnOhm / z0Ohm)
+	r := n * (n + 1 - abs2(gOpt))
 	if r < 0 {
 		r = 0
 	}
-	return Circle{Center: go_ / complex(n+1, 0), Radius: math.Sqrt(r) / (n + 1)}, nil
+	return Circle{Center: gOpt / complex(n+1, 0), Radius: math.Sqrt(r) / (n + 1)}, nil
 }

@@ -252,3 +252,16 @@ func TestSAt(t *testing.T) {
 		t.Errorf("1-port: error %v, want ErrNotTwoPort", err)
 	}
 }
+
+// StabilityTo into a sized destination allocates nothing.
+func TestStabilityToAllocs(t *testing.T) {
+	sw := rfmath.NewSweep(101, 2, 50)
+	for k := range sw.FreqHz {
+		sw.FreqHz[k] = 1e9 + 1e7*float64(k)
+		copy(sw.Matrix(k), pozarConjugate[:])
+	}
+	dst := make([]Stability, sw.Len())
+	if n := testing.AllocsPerRun(10, func() { StabilityTo(dst, sw) }); n != 0 {
+		t.Errorf("StabilityTo: %g allocations per run, want 0", n)
+	}
+}
