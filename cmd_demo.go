@@ -24,6 +24,9 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
+	if err := writeDemoDevices(dir, stdout); err != nil {
+		return err
+	}
 	for _, f := range demo.Generate() {
 		if err := writeDemoFile(filepath.Join(dir, f.Name), f); err != nil {
 			return err
@@ -33,12 +36,28 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-// writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes
-// and, for a transistor, its noise parameters.
+// writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes.
 func writeDemoFile(path string, f demo.File) error {
 	comments := make([]string, len(f.Note))
 	for i, n := range f.Note {
 		comments[i] = " " + n
 	}
-	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments, Noise: f.Noise})
+	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments})
+}
+
+// writeDemoDevices writes the demo's 2-port devices (Touchstone 1.1, the
+// same layout as writeDemoFile) with their noise parameters.
+func writeDemoDevices(dir string, stdout io.Writer) error {
+	for _, d := range demo.Devices() {
+		comments := make([]string, len(d.Note))
+		for i, n := range d.Note {
+			comments[i] = " " + n
+		}
+		path := filepath.Join(dir, d.Name)
+		if err := writeSweepFile(path, d.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments, Noise: d.Noise}); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "wrote %s\n", path)
+	}
+	return nil
 }

@@ -50,16 +50,14 @@ import (
 	"math/rand/v2"
 
 	"matchbench/rfmath"
-	"matchbench/rfmath/touchstone"
 )
 
-// File is one generated sweep with its file name, a note for the
-// Touchstone header and, for a transistor, its noise parameters.
+// File is one generated sweep with its file name and a note for the
+// Touchstone header.
 type File struct {
 	Name  string
 	Note  []string
 	Sweep *rfmath.Sweep
-	Noise []touchstone.NoisePoint
 }
 
 // Band is a frequency band the demo products must cover.
@@ -80,9 +78,6 @@ var (
 	WristtagBands = []Band{
 		{"2.4 GHz ISM", 2400e6, 2483.5e6, 10},
 	}
-	// LNABand is the band of Wristtag's low-noise stage (the same ISM
-	// band; the 10 dB input return loss is the demo's choice).
-	LNABand = Band{"2.4 GHz ISM", 2400e6, 2483.5e6, 10}
 )
 
 // antenna is the model of a small antenna at its feed.
@@ -183,8 +178,6 @@ func Generate() []File {
 		return cableABCD(f).InputImpedance(zOpen)
 	}, 4)
 
-	lna, lnaNoise := lnaTransistor(5)
-
 	fixture := rfmath.NewSweep(len(harmonic), 2, 50)
 	copy(fixture.FreqHz, harmonic)
 	for k, f := range harmonic {
@@ -193,11 +186,10 @@ func Generate() []File {
 	}
 
 	return []File{
-		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn, nil},
-		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt, nil},
-		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable, nil},
-		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open, nil},
-		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture, nil},
-		{"wristtag-lna-transistor.s2p", []string{invented, "Wristtag LNA transistor: an invented packaged low-noise pHEMT, common source, 50 ohm.", "S-parameters 0.5-6 GHz with seeded noise; noise parameters 1-6 GHz (Rn normalised to 50 ohm)."}, lna, lnaNoise},
+		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn},
+		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt},
+		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable},
+		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open},
+		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture},
 	}
 }

@@ -35,16 +35,6 @@ func TestCommittedFilesMatchModel(t *testing.T) {
 					t.Fatalf("value %d: %v, model %v (remake with: go run . demo testdata/demo)", n, s.Data[n], f.Sweep.Data[n])
 				}
 			}
-			if len(got.Noise) != len(f.Noise) {
-				t.Fatalf("file has %d noise points, model %d (remake with: go run . demo testdata/demo)", len(got.Noise), len(f.Noise))
-			}
-			for k, p := range got.Noise {
-				m := f.Noise[k]
-				if math.Abs(p.FreqHz-m.FreqHz) > 1e-6 || math.Abs(p.NFminDB-m.NFminDB) > 1e-9 || math.Abs(p.GammaOptMag-m.GammaOptMag) > 1e-9 ||
-					math.Abs(p.GammaOptDeg-m.GammaOptDeg) > 1e-7 || math.Abs(p.RnOhm-m.RnOhm) > 1e-8 {
-					t.Fatalf("noise point %d: %+v, model %+v (remake with: go run . demo testdata/demo)", k, p, m)
-				}
-			}
 		})
 	}
 }
@@ -55,7 +45,7 @@ func TestFixtureIsPassiveAndReciprocal(t *testing.T) {
 	t.Parallel()
 	var fx *rfmath.Sweep
 	for _, f := range Generate() {
-		if f.Name == "cable-fixture.s2p" {
+		if f.Sweep.Ports == 2 {
 			fx = f.Sweep
 		}
 	}

@@ -253,6 +253,34 @@ func (c circuit) twoPort(fHz, z0Ohm float64) ([4]complex128, touchstone.NoisePoi
 	}, true
 }
 
+// LNABand is the band of Wristtag's low-noise stage (the 2.4 GHz ISM band;
+// the 10 dB input return loss is the demo's choice).
+var LNABand = Band{"2.4 GHz ISM", 2400e6, 2483.5e6, 10}
+
+// Device is a generated 2-port device file with its noise parameters.
+type Device struct {
+	File
+	Noise []touchstone.NoisePoint
+}
+
+// Devices returns the demo's device files, in a fixed order: the Wristtag
+// LNA transistor.
+func Devices() []Device {
+	lna, noise := lnaTransistor(5)
+	return []Device{{
+		File: File{
+			Name: "wristtag-lna-transistor.s2p",
+			Note: []string{
+				"Invented demo data from matchbench's model (internal/demo); nothing here was measured.",
+				"Wristtag LNA transistor: an invented packaged low-noise pHEMT, common source, 50 ohm.",
+				"S-parameters 0.5-6 GHz with seeded noise; noise parameters 1-6 GHz (Rn normalised to 50 ohm).",
+			},
+			Sweep: lna,
+		},
+		Noise: noise,
+	}}
+}
+
 // lnaTransistor returns the demo transistor's file: S-parameters from
 // 0.5 to 6 GHz in 50 MHz steps with the demo's seeded measurement noise
 // (σ = 0.0005 on each parameter, a quieter setting than the antennas'

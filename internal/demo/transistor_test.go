@@ -48,6 +48,42 @@ func noiseFactorDirect(t *testing.T, c circuit, ys complex128) float64 {
 
 func abs2(c complex128) float64 { return real(c)*real(c) + imag(c)*imag(c) }
 
+// The committed device files must be what the model generates, network
+// and noise data alike, to the 10 significant digits they are written with.
+func TestCommittedDevicesMatchModel(t *testing.T) {
+	t.Parallel()
+	for _, d := range Devices() {
+		got, err := touchstone.ReadFile(filepath.Join("..", "..", "testdata", "demo", d.Name), touchstone.DefaultLimits)
+		if err != nil {
+			t.Fatalf("%v (remake with: go run . demo testdata/demo)", err)
+		}
+		s := got.Sweep
+		if s.Len() != d.Sweep.Len() || s.Ports != d.Sweep.Ports {
+			t.Fatalf("%s: file has %d points, %d ports; model has %d, %d", d.Name, s.Len(), s.Ports, d.Sweep.Len(), d.Sweep.Ports)
+		}
+		for k := range s.FreqHz {
+			if math.Abs(s.FreqHz[k]-d.Sweep.FreqHz[k]) > 1e-6 {
+				t.Fatalf("%s point %d: frequency %g, model %g", d.Name, k, s.FreqHz[k], d.Sweep.FreqHz[k])
+			}
+		}
+		for n := range s.Data {
+			if cmplx.Abs(s.Data[n]-d.Sweep.Data[n]) > 1e-9 {
+				t.Fatalf("%s value %d: %v, model %v (remake with: go run . demo testdata/demo)", d.Name, n, s.Data[n], d.Sweep.Data[n])
+			}
+		}
+		if len(got.Noise) != len(d.Noise) {
+			t.Fatalf("%s: file has %d noise points, model %d (remake with: go run . demo testdata/demo)", d.Name, len(got.Noise), len(d.Noise))
+		}
+		for k, p := range got.Noise {
+			m := d.Noise[k]
+			if math.Abs(p.FreqHz-m.FreqHz) > 1e-6 || math.Abs(p.NFminDB-m.NFminDB) > 1e-9 || math.Abs(p.GammaOptMag-m.GammaOptMag) > 1e-9 ||
+				math.Abs(p.GammaOptDeg-m.GammaOptDeg) > 1e-7 || math.Abs(p.RnOhm-m.RnOhm) > 1e-8 {
+				t.Fatalf("%s noise point %d: %+v, model %+v (remake with: go run . demo testdata/demo)", d.Name, k, p, m)
+			}
+		}
+	}
+}
+
 // The noise parameters the model writes describe its noise: at random
 // source admittances (seeded) the noise factor found by a direct nodal
 // solve equals Fmin + (Rn/Gs)·|Ys − Yopt|², and through amp's Γ form the
