@@ -24,6 +24,9 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
+	if err := writeDemoDevices(dir, stdout); err != nil {
+		return err
+	}
 	for _, f := range demo.Generate() {
 		path := filepath.Join(dir, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
@@ -49,4 +52,21 @@ func writeDemoFile(path string, f demo.File) error {
 		comments[i] = " " + n
 	}
 	return writeSweepFile(path, f.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments})
+}
+
+// writeDemoDevices writes the demo's 2-port devices (Touchstone 1.1, the
+// same layout as writeDemoFile) with their noise parameters.
+func writeDemoDevices(dir string, stdout io.Writer) error {
+	for _, d := range demo.Devices() {
+		comments := make([]string, len(d.Note))
+		for i, n := range d.Note {
+			comments[i] = " " + n
+		}
+		path := filepath.Join(dir, d.Name)
+		if err := writeSweepFile(path, d.Sweep, touchstone.WriteOptions{Version: 1, Format: "RI", FreqUnit: "MHz", Digits: 10, Comments: comments, Noise: d.Noise}); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "wrote %s\n", path)
+	}
+	return nil
 }

@@ -50,6 +50,7 @@ func commands() []command {
 		{"check", "pass or fail sweeps against return-loss limits; a lot summary for many", runCheck},
 		{"deembed", "move the reference plane: remove a fixture or a port extension, renormalise", runDeembed},
 		{"tdr", "time-domain view of a reflection sweep: reflections by distance, impedance, gating", runTDR},
+		{"amp", "a transistor 2-port at one frequency: stability, MAG/MSG, conjugate match, gain and noise circles", runAmp},
 	}
 }
 

@@ -14,6 +14,10 @@
 //   - "Wristtag": a wrist-worn asset tag with a ceramic chip antenna for the
 //     2400–2483.5 MHz band, measured on the bare board.
 //
+// Wristtag's receiver also gets a discrete low-noise amplifier, and the
+// transistor for it is characterised as a 2-port with noise parameters
+// (see [LNABand] and the model in transistor.go).
+//
 // Also measured: the Fieldnode antenna through 250 mm of thin PE-dielectric
 // coax (as it is first seen before the reference plane is moved), the same
 // cable with its far end left open (for fitting a port extension), and the
@@ -34,6 +38,11 @@
 // at its connector. Noise is complex Gaussian on Γ with σ = 0.002 (a clean
 // analyser at moderate IF bandwidth, from memory), seeded with a fixed
 // PCG seed per file.
+//
+// The LNA transistor is a small-signal FET equivalent circuit with package
+// parasitics and Pospieszalski's two-temperature noise model, solved by
+// nodal analysis (transistor.go). Its S-parameters carry σ = 0.0005 of
+// seeded noise; its noise parameters are the model's own.
 package demo
 
 import (
