@@ -356,7 +356,7 @@ func (s *Server) report(w http.ResponseWriter, r *http.Request) {
 		Title: ne.n.Name + " report · matchbench", Session: sc.st.Name, Network: ne.n.Name,
 		Load: fmt.Sprintf("%s S%d%d", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port), Design: fmtF(ne.n.DesignHz),
 		Generated: time.Now().Format("2006-01-02 15:04"), ChartBefore: before.String(), ChartAfter: after.String(), Plot: plotB.String(),
-		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW,
+		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW, Set: nv.Set,
 	}
 	s.render(w, r, http.StatusOK, web.ReportPage(v))
 }

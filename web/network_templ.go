@@ -982,7 +982,7 @@ func NetworkPanel(v SessionView) templ.Component {
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
-				templ_7745c5c3_Err = netSet(v).Render(ctx, templ_7745c5c3_Buffer)
+				templ_7745c5c3_Err = netSet(v.Network.Set).Render(ctx, templ_7745c5c3_Buffer)
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}

@@ -263,6 +263,7 @@ type ReportView struct {
 	Parts                                            [][]string
 	Power                                            []PowerRow
 	PowerW                                           string
+	Set                                              NetSetView // the network on each member of its load set, if any
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
