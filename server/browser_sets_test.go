@@ -52,21 +52,7 @@ func TestBrowserLoadSet(t *testing.T) {
 	ctx := browser(t)
 	ectx, cancel := context.WithTimeout(ctx, 120*time.Second)
 	defer cancel()
-	must := func(err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	waitFor := func(js string) {
-		t.Helper()
-		wctx, c := context.WithTimeout(ectx, 30*time.Second)
-		defer c()
-		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			msg, _ := chromedp.Run(ectx, chromedp.Evaluate[string](`(document.querySelector("#notice")||{}).textContent || ""`))
-			t.Fatalf("waiting for %s: %v (notice %q)", js, err, msg)
-		}
-	}
+	must, waitFor := steps(t, ectx, 30*time.Second)
 	must(chromedp.Do(ectx,
 		chromedp.EmulateViewport(1366, 1800),
 		chromedp.Navigate(ts.URL+"/s/"+se.EditToken+"/"),

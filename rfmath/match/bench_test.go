@@ -47,30 +47,7 @@ func BenchmarkSearchVsExhaustive(b *testing.B) {
 			model parts.Model
 		}{{"ideal", nil}, {"0402", parts.Typical0402}} {
 			b.Run(fmt.Sprintf("parts=%d/%s", parts3, m.name), func(b *testing.B) {
-				set := &Settings{MinParts: parts3, MaxParts: parts3, Model: m.model}
-				var ts, te time.Duration
-				for b.Loop() {
-					t0 := time.Now()
-					a, err := Search(context.Background(), l, bands, set)
-					ts += time.Since(t0)
-					if err != nil {
-						b.Fatal(err)
-					}
-					t0 = time.Now()
-					x, err := Exhaustive(context.Background(), l, bands, set)
-					te += time.Since(t0)
-					if err != nil {
-						b.Fatal(err)
-					}
-					for i := range a.Designs {
-						if a.Designs[i].Network.String() != x.Designs[i].Network.String() {
-							b.Fatalf("design %d: search %v, exhaustive %v", i, a.Designs[i].Network, x.Designs[i].Network)
-						}
-					}
-				}
-				b.ReportMetric(float64(ts.Milliseconds())/float64(b.N), "search-ms")
-				b.ReportMetric(float64(te.Milliseconds())/float64(b.N), "exhaustive-ms")
-				b.ReportMetric(float64(te)/float64(ts), "speedup")
+				benchVsExhaustive(b, []Member{{Load: l}}, bands, &Settings{MinParts: parts3, MaxParts: parts3, Model: m.model})
 			})
 		}
 	}
@@ -173,29 +150,35 @@ func BenchmarkSearchSet(b *testing.B) {
 		b.ReportMetric(float64(t5)/float64(t1), "set-ratio")
 	})
 	b.Run("members=5/vs-exhaustive", func(b *testing.B) {
-		ms := setMembers(5, 41)
-		var ts, te time.Duration
-		for b.Loop() {
-			t0 := time.Now()
-			a, err := SearchSet(context.Background(), ms, bands, set)
-			ts += time.Since(t0)
-			if err != nil {
-				b.Fatal(err)
-			}
-			t0 = time.Now()
-			x, err := ExhaustiveSet(context.Background(), ms, bands, set)
-			te += time.Since(t0)
-			if err != nil {
-				b.Fatal(err)
-			}
-			for i := range a.Designs {
-				if a.Designs[i].Network.String() != x.Designs[i].Network.String() {
-					b.Fatalf("design %d: search %v, exhaustive %v", i, a.Designs[i].Network, x.Designs[i].Network)
-				}
+		benchVsExhaustive(b, setMembers(5, 41), bands, set)
+	})
+}
+
+// benchVsExhaustive times SearchSet and ExhaustiveSet on the same problem,
+// stops on a different design, and reports both times and their ratio
+// (search-ms, exhaustive-ms, speedup).
+func benchVsExhaustive(b *testing.B, ms []Member, bands []Band, set *Settings) {
+	var ts, te time.Duration
+	for b.Loop() {
+		t0 := time.Now()
+		a, err := SearchSet(context.Background(), ms, bands, set)
+		ts += time.Since(t0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		t0 = time.Now()
+		x, err := ExhaustiveSet(context.Background(), ms, bands, set)
+		te += time.Since(t0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := range a.Designs {
+			if a.Designs[i].Network.String() != x.Designs[i].Network.String() {
+				b.Fatalf("design %d: search %v, exhaustive %v", i, a.Designs[i].Network, x.Designs[i].Network)
 			}
 		}
-		b.ReportMetric(float64(ts.Milliseconds())/float64(b.N), "search-ms")
-		b.ReportMetric(float64(te.Milliseconds())/float64(b.N), "exhaustive-ms")
-		b.ReportMetric(float64(te)/float64(ts), "speedup")
-	})
+	}
+	b.ReportMetric(float64(ts.Milliseconds())/float64(b.N), "search-ms")
+	b.ReportMetric(float64(te.Milliseconds())/float64(b.N), "exhaustive-ms")
+	b.ReportMetric(float64(te)/float64(ts), "speedup")
 }
