@@ -87,8 +87,8 @@ func instrument(ctx context.Context) error {
 
 // pageRecord is what the instrument collected, as the page holds it.
 type pageRecord struct {
-	Ptr   []float64 `json:"ptr"`
-	Sent  []struct {
+	Ptr  []float64 `json:"ptr"`
+	Sent []struct {
 		ID int64   `json:"id"`
 		T  float64 `json:"t"`
 		P  float64 `json:"p"`
@@ -407,4 +407,3 @@ func reportLatency(b *testing.B, all []float64) {
 	b.ReportMetric(percentile(all, 0.99), "p99-ms")
 	b.ReportMetric(float64(len(all)), "samples")
 }
-
