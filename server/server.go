@@ -49,6 +49,12 @@ type Config struct {
 	// at; the page builds its share links from them. Empty means the
 	// request's own host.
 	ShareHosts []string
+	// Hosts are further host names (NAME or NAME:PORT, the port taken as
+	// 80 when absent) that requests may address the server by, such as the
+	// bench computer's name on the lab network. Requests naming any other
+	// host than these, ShareHosts and the loopback names are refused (see
+	// hostGuard).
+	Hosts []string
 	// LAN reports that the server listens beyond the loopback address.
 	LAN bool
 	// FileLimits bound what one uploaded file may hold (bytes, ports,
@@ -124,8 +130,9 @@ func (s *Server) routes() http.Handler {
 		r.Get("/report", s.report)
 	})
 	// State-changing requests from other sites are refused (Go's
-	// CrossOriginProtection checks Sec-Fetch-Site and Origin).
-	return http.NewCrossOriginProtection().Handler(r)
+	// CrossOriginProtection checks Sec-Fetch-Site and Origin), and before
+	// anything else a request must name this server (hostGuard).
+	return s.hostGuard(http.NewCrossOriginProtection().Handler(r))
 }
 
 func staticFiles() http.Handler {
