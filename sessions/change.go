@@ -220,6 +220,10 @@ type Limits struct {
 	Networks         int // matching networks per session
 	PartsPerNetwork  int
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
+	// SweepBytes bounds the numbers of the sweeps listed in a session at
+	// once, as [SweepRef.DataBytes] counts them: what drawing the session
+	// holds in memory.
+	SweepBytes int64
 }
 
 // DefaultLimits are the limits used where [Options.Limits] leaves a zero.
@@ -233,6 +237,7 @@ var DefaultLimits = Limits{
 	Networks:         16,
 	PartsPerNetwork:  8,
 	ReplayEvents:     256,
+	SweepBytes:       128 << 20,
 }
 
 func (l Limits) withDefaults() Limits {
@@ -251,6 +256,9 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.Networks, d.Networks)
 	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
 	pick(&l.ReplayEvents, d.ReplayEvents)
+	if l.SweepBytes <= 0 {
+		l.SweepBytes = d.SweepBytes
+	}
 	return l
 }
 

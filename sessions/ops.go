@@ -104,11 +104,20 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		if err != nil {
 			return r, err
 		}
-		sw := ch.Sweep.Clone()
-		next.Sweeps = append(next.Sweeps, SweepRef{
+		ref := SweepRef{
 			ID: id, Name: name, FileName: fileName, Color: color, Visible: true,
-			Ports: sw.Ports, Points: sw.Len(), FminHz: sw.FreqHz[0], FmaxHz: sw.FreqHz[sw.Len()-1],
-		})
+			Ports: ch.Sweep.Ports, Points: ch.Sweep.Len(), FminHz: ch.Sweep.FreqHz[0], FmaxHz: ch.Sweep.FreqHz[ch.Sweep.Len()-1],
+		}
+		total := ref.DataBytes()
+		for _, s := range cur.Sweeps {
+			total += s.DataBytes()
+		}
+		if total > lim.SweepBytes {
+			return r, invalid(op, "sweep", "the session's sweeps would hold %.1f MB of numbers with this one (%.1f MB), more than the limit of %.1f MB a session; remove a sweep first",
+				float64(total)/1e6, float64(ref.DataBytes())/1e6, float64(lim.SweepBytes)/1e6)
+		}
+		sw := ch.Sweep.Clone()
+		next.Sweeps = append(next.Sweeps, ref)
 		r.ev.SweepID = id
 		r.newSweep = &newSweep{
 			id: id, fileName: fileName, raw: slices.Clone(ch.Raw), parsed: encodeSweep(sw), sweep: sw,
