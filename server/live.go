@@ -207,20 +207,29 @@ func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 		return prev, prev.prev
 	}
 	key := structureKey(st)
+	back := prev.animationBase()
 	if prev != nil && rm.key == key {
 		c := *prev
-		c.st, c.prev = st, prev
+		c.st, c.prev = st, back
 		sc = &c
 	} else {
 		sc = rm.s.scene(rm.sid, st)
-		sc.prev = prev
+		sc.prev = back
 		rm.key = key
-	}
-	if prev != nil {
-		prev.prev = nil // keep one scene back, not the whole history
 	}
 	rm.last = sc
 	return sc, prev
+}
+
+// animationBase is what a scene keeps of the scene before it: the state
+// and the active network, from which stepAnimation starts a step. The
+// traces, plots and drawings of the scene before are not kept, so a room
+// holds one scene's worth of series, not two. A nil scene gives nil.
+func (sc *scene) animationBase() *scene {
+	if sc == nil {
+		return nil
+	}
+	return &scene{sid: sc.sid, st: sc.st, net: sc.net}
 }
 
 // structureKey identifies everything of a state except its markers: when

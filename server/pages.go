@@ -1,6 +1,7 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/csv"
 	"encoding/json"
@@ -210,12 +211,12 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 // Zero fields of lim take touchstone's defaults.
 func parseSweep(name string, raw []byte, lim touchstone.Limits) (*rfmath.Sweep, error) {
 	if strings.EqualFold(path.Ext(name), ".csv") {
-		return touchstone.ReadCSV(strings.NewReader(string(raw)), name, lim)
+		return touchstone.ReadCSV(bytes.NewReader(raw), name, lim)
 	}
 	if _, ok := touchstone.PortsFromName(name); !ok && !strings.EqualFold(path.Ext(name), ".ts") {
 		return nil, fmt.Errorf("%s: the name must end in .sNp (e.g. .s1p, .s2p), .ts or .csv so the reader knows the format", name)
 	}
-	tf, err := touchstone.Read(strings.NewReader(string(raw)), name, lim)
+	tf, err := touchstone.Read(bytes.NewReader(raw), name, lim)
 	if err != nil {
 		return nil, err
 	}

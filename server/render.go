@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/cmplx"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -162,11 +163,13 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 }
 
 // thinSeries keeps, of a long series, the first, lowest, highest and last
-// point of each of 4·plotWidth frequency columns: what the plot can show
-// (chartsvg thins again to its pixels), at a fraction of the memory that a
-// room's cached scene holds between renders.
+// point of each of plotWidth frequency columns: what the plot can show
+// (chartsvg thins the same way to its pixels, and a series spans at most
+// the plot's width, so a column is at most a pixel wide), at a fraction of
+// the memory that a room's cached scene holds between renders. A series of
+// at most 4·plotWidth points is kept whole.
 func thinSeries(s chartsvg.Series) chartsvg.Series {
-	const cols = 4 * plotWidth
+	const cols = plotWidth
 	n := len(s.FreqHz)
 	if n <= 4*cols {
 		return s
@@ -195,7 +198,8 @@ func thinSeries(s chartsvg.Series) chartsvg.Series {
 		}
 		start = end
 	}
-	s.FreqHz, s.Y = fs, ys
+	// Exact-size copies: the scratch above is sized for the worst case.
+	s.FreqHz, s.Y = slices.Clone(fs), slices.Clone(ys)
 	return s
 }
 
