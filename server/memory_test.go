@@ -294,3 +294,35 @@ func TestRoomKeepsOneScene(t *testing.T) {
 		t.Errorf("the new scene keeps the previous scene's traces or plots (%d traces, %d plots)", len(sc.prev.traces), len(sc.prev.plotsC))
 	}
 }
+
+// Corrected sweeps are cached within a budget of bytes, whatever the
+// number of planes tried.
+func TestCorrectionsBounded(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 2001)
+	per := int64(8*2001 + 8 + 16*2001) // one corrected 1-port sweep
+	f.srv.corr.limit = 5 * per
+	ctx := context.Background()
+	st, _, _ := f.store.State(ctx, f.sess.ID)
+	ref := st.Sweeps[0]
+	raw, err := f.store.Sweep(f.sess.ID, ref.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range 40 {
+		ref.RefPlane = &sessions.RefPlane{DelayS: float64(i+1) * 1e-12}
+		c, err := f.srv.corrected(f.sess.ID, ref, raw)
+		if err != nil || c == raw {
+			t.Fatalf("plane %d: %v", i, err)
+		}
+		f.srv.corr.mu.Lock()
+		held := int64(0)
+		for _, e := range f.srv.corr.m {
+			held += sweepBytes(e.s)
+		}
+		f.srv.corr.mu.Unlock()
+		if held > 5*per {
+			t.Fatalf("after %d planes the corrections hold %d bytes; the budget is %d", i+1, held, 5*per)
+		}
+	}
+}
