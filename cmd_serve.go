@@ -87,7 +87,7 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 
 	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, Hosts: names, LAN: lan})
-	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
+	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, IdleTimeout: 2 * time.Minute, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
 
 	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
 	if !addr.IP.IsUnspecified() {

@@ -46,9 +46,10 @@ type anim struct {
 // room fans the events of one session out to its websocket connections.
 // It renders each event once per capability and shares the bytes.
 type room struct {
-	s   *Server
-	sid string
-	sub *sessions.Subscription
+	s     *Server
+	sid   string
+	sub   *sessions.Subscription
+	share *sessionShare // the session's; the room draws in its slot
 
 	mu    sync.Mutex
 	conns map[*conn]struct{}
@@ -70,7 +71,7 @@ func (s *Server) join(c *conn) (*room, error) {
 		if err != nil {
 			return nil, err
 		}
-		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{})}
+		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{}), share: s.share(c.sid)}
 		s.rooms[c.sid] = rm
 		go rm.run()
 	}
@@ -113,7 +114,9 @@ func (rm *room) run() {
 				break drain
 			}
 		}
+		rm.share.drawing(context.Background())
 		rm.broadcast(batch)
+		rm.share.done()
 	}
 	rm.ended() // tokens.go: overflow, re-issued links, shutdown
 }

@@ -63,6 +63,16 @@ type Config struct {
 	// MsgPerSecond and MsgBurst bound websocket messages per connection;
 	// zero means 120 and 240.
 	MsgPerSecond, MsgBurst float64
+	// SessionMsgPerSecond and SessionMsgBurst bound the messages into one
+	// session from all its pages together (its fair share; see
+	// sessionBucket); zero means DefaultSessionMsgPerSec and
+	// DefaultSessionMsgBurst.
+	SessionMsgPerSecond, SessionMsgBurst float64
+	// MaxConnsPerSession, MaxConnsPerToken and MaxConnsPerAddr bound the
+	// live pages (websockets) of one session, of one link and from one
+	// remote address; MaxRequestsPerAddr the other requests in progress
+	// from one remote address. Zero means the Default… constants.
+	MaxConnsPerSession, MaxConnsPerToken, MaxConnsPerAddr, MaxRequestsPerAddr int
 }
 
 // Server serves the app. Create it with New.
@@ -77,6 +87,7 @@ type Server struct {
 	closed bool
 	corr   corrections
 	search searchJobs
+	limits connLimits
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.
@@ -96,6 +107,23 @@ func New(cfg Config) *Server {
 	if cfg.MsgBurst <= 0 {
 		cfg.MsgBurst = 240
 	}
+	if cfg.SessionMsgPerSecond <= 0 {
+		cfg.SessionMsgPerSecond = DefaultSessionMsgPerSec
+	}
+	if cfg.SessionMsgBurst <= 0 {
+		cfg.SessionMsgBurst = DefaultSessionMsgBurst
+	}
+	for _, l := range []struct {
+		v   *int
+		def int
+	}{
+		{&cfg.MaxConnsPerSession, DefaultConnsPerSession}, {&cfg.MaxConnsPerToken, DefaultConnsPerToken},
+		{&cfg.MaxConnsPerAddr, DefaultConnsPerAddr}, {&cfg.MaxRequestsPerAddr, DefaultRequestsPerAddr},
+	} {
+		if *l.v <= 0 {
+			*l.v = l.def
+		}
+	}
 	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}}
 	s.router = s.routes()
 	return s
@@ -108,6 +136,7 @@ func (s *Server) routes() http.Handler {
 	r := chi.NewRouter()
 	r.Use(middleware.Recoverer)
 	r.Use(s.logRequests)
+	r.Use(s.limitRequests)
 	r.Use(securityHeaders)
 	r.Handle("/static/*", http.StripPrefix("/static/", staticFiles()))
 	r.Get("/", s.start)
@@ -115,19 +144,23 @@ func (s *Server) routes() http.Handler {
 	r.Get("/open/{id}", s.openLocal)
 	r.Route("/s/{token}", func(r chi.Router) {
 		r.Use(s.withSession)
-		r.Get("/", s.page)
 		r.Get("/ws", s.websocket)
 		r.Post("/upload", s.upload)
 		r.Post("/reissue", s.reissue)
-		r.Get("/export/chart.svg", s.exportChart)
-		r.Get("/export/plot-{plot}.svg", s.exportPlot)
-		r.Get("/export/markers.csv", s.exportMarkers)
 		r.Get("/sweeps/{sweep}/file", s.rawFile)
-		r.Get("/export/matched.s1p", s.exportMatched)
-		r.Get("/export/network.s2p", s.exportNetwork2)
-		r.Get("/export/network.cir", s.exportNetlist)
-		r.Get("/export/parts.csv", s.exportParts)
-		r.Get("/report", s.report)
+		// What draws the session runs in its drawing slot (see sessionShare).
+		r.Group(func(r chi.Router) {
+			r.Use(s.drawn)
+			r.Get("/", s.page)
+			r.Get("/export/chart.svg", s.exportChart)
+			r.Get("/export/plot-{plot}.svg", s.exportPlot)
+			r.Get("/export/markers.csv", s.exportMarkers)
+			r.Get("/export/matched.s1p", s.exportMatched)
+			r.Get("/export/network.s2p", s.exportNetwork2)
+			r.Get("/export/network.cir", s.exportNetlist)
+			r.Get("/export/parts.csv", s.exportParts)
+			r.Get("/report", s.report)
+		})
 	})
 	// State-changing requests from other sites are refused (Go's
 	// CrossOriginProtection checks Sec-Fetch-Site and Origin), and before

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"net/http"
 	"net/url"
 	"strings"
@@ -55,6 +56,7 @@ type conn struct {
 	token string
 	cap   sessions.Capability
 	send  chan []byte
+	share *sessionShare // the session's
 
 	mu      sync.Mutex
 	ops     []inMsg // pending changes; a drag replaces the pending drag of its marker
@@ -87,11 +89,19 @@ func (s *Server) upgrader() *websocket.Upgrader {
 
 func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
 	a := accessFrom(r.Context())
+	release, err := s.admitConn(a.SessionID, a.Token, remoteIP(r))
+	if err != nil {
+		le := err.(*limitError)
+		http.Error(w, le.msg, le.status)
+		return
+	}
+	defer release()
 	ws, err := s.upgrader().Upgrade(w, r, nil)
 	if err != nil {
 		return // the upgrader has answered
 	}
-	c := &conn{s: s, ws: ws, sid: a.SessionID, token: a.Token, cap: a.Cap, send: make(chan []byte, sendQueue), wake: make(chan struct{}, 1), done: make(chan struct{})}
+	c := &conn{s: s, ws: ws, sid: a.SessionID, token: a.Token, cap: a.Cap, share: s.share(a.SessionID),
+		send: make(chan []byte, sendQueue), wake: make(chan struct{}, 1), done: make(chan struct{})}
 	rm, err := s.join(c)
 	if err != nil {
 		ws.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(websocket.CloseGoingAway, "server shutting down"), time.Now().Add(time.Second))
@@ -212,8 +222,14 @@ func (c *conn) reader() {
 			c.reply(outMsg{Type: "error", Msg: "the message is not JSON of the expected shape: " + err.Error()})
 			continue
 		}
-		if !bucket.take(time.Now()) {
+		now := time.Now()
+		if !bucket.take(now) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
+			continue
+		}
+		if cost := sessionCost(m.Type); cost > 0 && !c.share.take(now, cost) {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: fmt.Sprintf(
+				"this session's pages together send more than the %g messages a second one session may: slow down", c.s.cfg.SessionMsgPerSecond)})
 			continue
 		}
 		switch m.Type {
@@ -236,6 +252,19 @@ func (c *conn) reader() {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + strconvQuote(m.Type)})
 		}
 	}
+}
+
+// sessionCost is what a message of type typ takes from its session's
+// fair share: nothing for a keep-alive, catchUpCost for a hello (which may
+// redraw the whole page), one for anything else.
+func sessionCost(typ string) float64 {
+	switch typ {
+	case "ping":
+		return 0
+	case "hello":
+		return catchUpCost
+	}
+	return 1
 }
 
 func strconvQuote(s string) string {
@@ -410,12 +439,17 @@ var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.u
 // the scene (the sweeps, corrected or raw).
 var planeForms = map[string]bool{"refplane.set": true, "refplane.fit": true, "tdr.set": true, "tdr.gate": true}
 
-// scene returns the scene of the session's current state.
+// scene returns the scene of the session's current state, built in the
+// session's drawing slot.
 func (c *conn) scene(ctx context.Context) (*scene, error) {
 	st, _, err := c.s.store.State(ctx, c.sid)
 	if err != nil {
 		return nil, err
 	}
+	if !c.share.drawing(ctx) {
+		return nil, ctx.Err()
+	}
+	defer c.share.done()
 	return c.s.scene(c.sid, st), nil
 }
 
@@ -447,10 +481,13 @@ func (c *conn) activeNetwork(ctx context.Context) (*netEval, error) {
 }
 
 // catchUp sends a full update when the page's version is not the session's.
-// It holds sendMu throughout, so that the room's updates queue either
-// before the catch-up (and it overtakes them) or after it (and those it
-// already covers are skipped).
+// It draws in the session's drawing slot, taken before sendMu as the room
+// takes it, and holds sendMu throughout, so that the room's updates queue
+// either before the catch-up (and it overtakes them) or after it (and those
+// it already covers are skipped).
 func (c *conn) catchUp(v int64) {
+	c.share.drawing(context.Background())
+	defer c.share.done()
 	c.sendMu.Lock()
 	defer c.sendMu.Unlock()
 	cu, err := c.s.store.Since(context.Background(), c.sid, v)
@@ -477,14 +514,19 @@ type bucket struct {
 
 func newBucket(rate, burst float64) *bucket { return &bucket{rate: rate, burst: burst, tokens: burst} }
 
-func (b *bucket) take(now time.Time) bool {
-	if !b.last.IsZero() {
+func (b *bucket) take(now time.Time) bool { return b.takeN(now, 1) }
+
+// takeN takes n tokens at time now, or none and reports false.
+func (b *bucket) takeN(now time.Time, n float64) bool {
+	if !b.last.IsZero() && now.After(b.last) {
 		b.tokens = min(b.burst, b.tokens+now.Sub(b.last).Seconds()*b.rate)
 	}
-	b.last = now
-	if b.tokens < 1 {
+	if now.After(b.last) {
+		b.last = now
+	}
+	if b.tokens < n {
 		return false
 	}
-	b.tokens--
+	b.tokens -= n
 	return true
 }
