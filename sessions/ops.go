@@ -563,8 +563,19 @@ func text(op, field, s string, required bool, maxRunes int) (string, error) {
 	if i := strings.IndexFunc(s, unicode.IsControl); i >= 0 {
 		return "", invalid(op, field, "control character %U at byte %d", []rune(s[i:])[0], i)
 	}
+	if i := strings.IndexFunc(s, isBidiControl); i >= 0 {
+		return "", invalid(op, field, "bidirectional control character %U at byte %d: it can make a name read differently from what it is (a file name's ending shown reversed, say)", []rune(s[i:])[0], i)
+	}
 	return s, nil
 }
+
+// isBidiControl reports whether r is a bidirectional control character:
+// Unicode's Bidi_Control property (PropList.txt, through Go's unicode
+// tables: U+061C, U+200E–U+200F, U+202A–U+202E, U+2066–U+2069), the
+// embeddings, overrides, isolates and marks of the Bidirectional Algorithm
+// (Unicode Standard Annex #9). Names holding them are refused:
+// "report\u202Efdp.exe" shows as "reportexe.pdf".
+func isBidiControl(r rune) bool { return unicode.Is(unicode.Bidi_Control, r) }
 
 // checkColor accepts "#rrggbb" (any case) and returns it in lower case.
 func checkColor(op, c string) (string, error) {

@@ -7,13 +7,16 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io/fs"
 	"net/url"
 	"os"
 	"path/filepath"
 	"sync"
+	"syscall"
 	"time"
 
-	_ "modernc.org/sqlite" // registers the "sqlite" driver
+	"modernc.org/sqlite" // registers the "sqlite" driver
+	sqlite3 "modernc.org/sqlite/lib"
 
 	"matchbench/rfmath"
 )
@@ -117,6 +120,9 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		return fail(err)
 	}
 	path := filepath.Join(dir, DBFile)
+	if err := ownerOnly(path); err != nil {
+		return fail(err)
+	}
 	st.fullSync = syncMode == "FULL"
 	if st.wdb, err = sql.Open("sqlite", dsn(path, syncMode, true)); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
@@ -134,6 +140,25 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
 	return st, nil
+}
+
+// ownerOnly makes the database file readable and writable by its owner
+// only (mode 0600), creating it empty when it does not exist, and brings
+// its -wal and -shm files, when present, to the same mode. SQLite creates
+// those two with the mode of the database file, and would create the
+// database itself 0644.
+func ownerOnly(path string) error {
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE, 0o600)
+	if err != nil {
+		return fmt.Errorf("sessions: creating %s: %w", path, err)
+	}
+	f.Close()
+	for _, p := range []string{path, path + "-wal", path + "-shm"} {
+		if err := os.Chmod(p, 0o600); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return fmt.Errorf("sessions: making %s private: %w", p, err)
+		}
+	}
+	return nil
 }
 
 // dsn returns the modernc.org/sqlite data source name for path. The write
@@ -199,9 +224,23 @@ func (st *Store) closeDB() error {
 	return errors.Join(errs...)
 }
 
-// dbErr wraps a database error with what was being done.
+// dbErr wraps a database error with what was being done; a full disk
+// wraps ErrDiskFull as well.
 func (st *Store) dbErr(doing string, err error) error {
+	if diskFull(err) {
+		return fmt.Errorf("sessions: %s: %w (%w)", doing, ErrDiskFull, err)
+	}
 	return fmt.Errorf("sessions: %s: %w", doing, err)
+}
+
+// diskFull reports whether err is SQLite's "database or disk is full"
+// (SQLITE_FULL, also as an extended code) or the system's ENOSPC.
+func diskFull(err error) bool {
+	var se *sqlite.Error
+	if errors.As(err, &se) && se.Code()&0xff == sqlite3.SQLITE_FULL {
+		return true
+	}
+	return errors.Is(err, syscall.ENOSPC)
 }
 
 // Create makes a new session with a fresh id and fresh tokens, and returns
