@@ -11,6 +11,10 @@ import (
 // quoted whole would make a 6 MB reply.
 const maxEcho = 120
 
+// maxReplyText bounds the whole text of an error reply (a websocket error
+// or an upload's JSON answer), whatever made it.
+const maxReplyText = 1000
+
 // clip returns s cut to at most n bytes on a character boundary, with
 // "…" and the full length added when it was cut.
 func clip(s string, n int) string {

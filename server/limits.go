@@ -3,9 +3,12 @@ package server
 import (
 	"bytes"
 	"context"
+	"errors"
 	"fmt"
+	"io"
 	"net"
 	"net/http"
+	"os"
 	"sync"
 	"time"
 
@@ -228,4 +231,78 @@ func (b *bufferedResponse) Write(p []byte) (int, error) {
 		b.status = http.StatusOK
 	}
 	return b.body.Write(p)
+}
+
+// Defaults of the pace a request body must keep.
+const (
+	DefaultBodyGrace   = 10 * time.Second
+	DefaultBodyMinRate = 16 << 10 // bytes a second
+)
+
+// errTooSlow is the read error of a request body that fell below its pace.
+var errTooSlow = errors.New("the request body arrived too slowly")
+
+// paceBodies holds every request body (an upload, a form) to a pace: after
+// Config.BodyGrace it must have averaged Config.BodyMinRate bytes a second
+// since the request began, and it may never pause for longer than
+// BodyGrace. A body that falls behind is cut off (its reads fail with
+// errTooSlow), so trickling uploads cannot hold handlers and connections
+// open. The pace is kept with the connection's read deadline, moved on at
+// every read.
+func (s *Server) paceBodies(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.Body == nil || r.Body == http.NoBody || r.ContentLength == 0 {
+			next.ServeHTTP(w, r)
+			return
+		}
+		rc := http.NewResponseController(w)
+		p := &pacedBody{body: r.Body, rc: rc, hdr: w.Header(), start: time.Now(), grace: s.cfg.BodyGrace, rate: float64(s.cfg.BodyMinRate)}
+		if rc.SetReadDeadline(p.start.Add(p.grace)) != nil {
+			next.ServeHTTP(w, r) // no deadlines on this connection: an HTTP/2 stream or a test recorder
+			return
+		}
+		r.Body = p
+		next.ServeHTTP(w, r)
+		if !p.cut {
+			rc.SetReadDeadline(time.Time{})
+		}
+		// A body cut off stays so: the deadline stays past, and the
+		// answer closes the connection instead of waiting for the rest.
+	})
+}
+
+// pacedBody is a request body held to a pace; see paceBodies.
+type pacedBody struct {
+	body  io.ReadCloser
+	rc    *http.ResponseController
+	start time.Time
+	grace time.Duration
+	rate  float64 // bytes a second
+	n     int64
+	hdr   http.Header
+	cut   bool
+}
+
+func (p *pacedBody) Read(b []byte) (int, error) {
+	n, err := p.body.Read(b)
+	p.n += int64(n)
+	if err != nil && errors.Is(err, os.ErrDeadlineExceeded) {
+		p.cut = true
+		p.hdr.Set("Connection", "close")
+		return n, fmt.Errorf("%w: %d bytes in %v", errTooSlow, p.n, time.Since(p.start).Round(time.Millisecond))
+	}
+	if n > 0 {
+		due := p.start.Add(p.grace + time.Duration(float64(p.n)/p.rate*float64(time.Second)))
+		p.rc.SetReadDeadline(minTime(due, time.Now().Add(p.grace)))
+	}
+	return n, err
+}
+
+func (p *pacedBody) Close() error { return p.body.Close() }
+
+func minTime(a, b time.Time) time.Time {
+	if a.Before(b) {
+		return a
+	}
+	return b
 }

@@ -6,9 +6,11 @@ package server
 
 import (
 	"context"
+	"io/fs"
 	"log/slog"
 	"net"
 	"net/http"
+	"strings"
 	"sync"
 	"time"
 
@@ -73,6 +75,10 @@ type Config struct {
 	// remote address; MaxRequestsPerAddr the other requests in progress
 	// from one remote address. Zero means the Default… constants.
 	MaxConnsPerSession, MaxConnsPerToken, MaxConnsPerAddr, MaxRequestsPerAddr int
+	// BodyGrace and BodyMinRate are the pace a request body must keep (see
+	// paceBodies); zero means DefaultBodyGrace and DefaultBodyMinRate.
+	BodyGrace   time.Duration
+	BodyMinRate int
 }
 
 // Server serves the app. Create it with New.
@@ -113,6 +119,12 @@ func New(cfg Config) *Server {
 	if cfg.SessionMsgBurst <= 0 {
 		cfg.SessionMsgBurst = DefaultSessionMsgBurst
 	}
+	if cfg.BodyGrace <= 0 {
+		cfg.BodyGrace = DefaultBodyGrace
+	}
+	if cfg.BodyMinRate <= 0 {
+		cfg.BodyMinRate = DefaultBodyMinRate
+	}
 	for _, l := range []struct {
 		v   *int
 		def int
@@ -137,6 +149,7 @@ func (s *Server) routes() http.Handler {
 	r.Use(middleware.Recoverer)
 	r.Use(s.logRequests)
 	r.Use(s.limitRequests)
+	r.Use(s.paceBodies)
 	r.Use(securityHeaders)
 	r.Handle("/static/*", http.StripPrefix("/static/", staticFiles()))
 	r.Get("/", s.start)
@@ -168,11 +181,22 @@ func (s *Server) routes() http.Handler {
 	return s.hostGuard(http.NewCrossOriginProtection().Handler(r))
 }
 
+// staticFiles serves the app's script and styles. Folders answer 404: the
+// files are listed nowhere.
 func staticFiles() http.Handler {
-	fs := http.FileServerFS(web.Static())
+	files := web.Static()
+	srv := http.FileServerFS(files)
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		name := strings.Trim(r.URL.Path, "/")
+		if name == "" {
+			name = "."
+		}
+		if st, err := fs.Stat(files, name); err != nil || st.IsDir() {
+			http.NotFound(w, r)
+			return
+		}
 		w.Header().Set("Cache-Control", "no-cache")
-		fs.ServeHTTP(w, r)
+		srv.ServeHTTP(w, r)
 	})
 }
 

@@ -147,7 +147,10 @@ func (c *conn) isDone() bool {
 	}
 }
 
+// reply sends m, its text cut to maxReplyText: an error names what was
+// wrong, not the whole of a client's input.
 func (c *conn) reply(m outMsg) {
+	m.Msg = clip(m.Msg, maxReplyText)
 	b, _ := json.Marshal(m)
 	c.queue(b)
 }
@@ -249,7 +252,7 @@ func (c *conn) reader() {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many changes waiting: slow down"})
 			}
 		default:
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + strconvQuote(m.Type)})
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + quoteClipped(m.Type, maxEcho)})
 		}
 	}
 }
@@ -265,11 +268,6 @@ func sessionCost(typ string) float64 {
 		return catchUpCost
 	}
 	return 1
-}
-
-func strconvQuote(s string) string {
-	b, _ := json.Marshal(s)
-	return string(b)
 }
 
 // push queues m. A marker drag replaces the drag of the same marker still
@@ -353,7 +351,7 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			}
 			c.reply(outMsg{Type: "ack", ID: m.ID})
 		default:
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + strconvQuote(m.Action)})
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + quoteClipped(m.Action, maxEcho)})
 		}
 		return
 	case m.Type == "form" && m.Form == "search.start":
@@ -411,21 +409,29 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 	default:
 		ch = *m.Change
 		ch.Raw, ch.Sweep = nil, nil
-		if ch.Op == sessions.OpSweepAdd {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "sweeps are added by uploading a file"})
+		if why, ok := serverOnlyOps[ch.Op]; ok {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: why})
 			return
 		}
 	}
 	ev, err := c.s.store.ApplyAs(ctx, c.cap, c.sid, ch)
 	if err != nil {
 		status, msg := errorStatus(err)
-		if status == http.StatusInternalServerError {
+		if status >= 500 {
 			c.s.log.Error("apply", "op", ch.Op, "err", err)
 		}
 		c.reply(outMsg{Type: "error", ID: m.ID, Msg: msg})
 		return
 	}
 	c.reply(outMsg{Type: "ack", ID: m.ID, V: ev.Version})
+}
+
+// serverOnlyOps are the ops that only the server makes, with why a page's
+// is refused: a page could otherwise store numbers of its own making as a
+// measurement or as the result of a search.
+var serverOnlyOps = map[string]string{
+	sessions.OpSweepAdd:    "sweeps are added by uploading a file",
+	sessions.OpSearchStore: "search results come only from the server's own search: start one with the search form",
 }
 
 // networkForms are the forms whose fields need the session's current scene
