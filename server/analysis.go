@@ -113,7 +113,7 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 			}
 		}
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
 	res, err := match.Yield(ctx, l, bands, nw, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Tolerances: tols, Model: model, Traces: cloudTraces})
 	if err != nil {

@@ -50,10 +50,14 @@ type room struct {
 	sid   string
 	sub   *sessions.Subscription
 	share *sessionShare // the session's; the room draws in its slot
+	// redraw asks the room to redraw its pages at the latest state: a
+	// derived result they show as computing is ready.
+	redraw chan struct{}
 
 	mu    sync.Mutex
 	conns map[*conn]struct{}
 	last  *scene // the scene of the latest state, reused while the structure is unchanged
+	lastV int64  // the version of the update sent last
 	key   string
 	done  chan struct{}
 }
@@ -71,7 +75,7 @@ func (s *Server) join(c *conn) (*room, error) {
 		if err != nil {
 			return nil, err
 		}
-		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{}), share: s.share(c.sid)}
+		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{}), share: s.share(c.sid), redraw: make(chan struct{}, 1)}
 		s.rooms[c.sid] = rm
 		go rm.run()
 	}
@@ -97,7 +101,21 @@ func (s *Server) leave(rm *room, c *conn) {
 
 func (rm *room) run() {
 	defer close(rm.done)
-	for ev := range rm.sub.C {
+	for {
+		var ev sessions.Event
+		select {
+		case e, ok := <-rm.sub.C:
+			if !ok {
+				rm.ended() // tokens.go: overflow, re-issued links, shutdown
+				return
+			}
+			ev = e
+		case <-rm.redraw:
+			rm.share.drawing(context.Background())
+			rm.redrawAll()
+			rm.share.done()
+			continue
+		}
 		// Events that arrived while the last one was being sent go out as
 		// one update: a room that falls behind a fast drag sends the latest
 		// state, not every step of the way.
@@ -118,7 +136,57 @@ func (rm *room) run() {
 		rm.broadcast(batch)
 		rm.share.done()
 	}
-	rm.ended() // tokens.go: overflow, re-issued links, shutdown
+}
+
+// askRedraw asks the room to redraw its pages; asks that come while one
+// waits are one.
+func (rm *room) askRedraw() {
+	select {
+	case rm.redraw <- struct{}{}:
+	default:
+	}
+}
+
+// redrawAll draws the session's latest state afresh (with the derived
+// results the cache now holds) and sends it to every page as a full update
+// at that version, unless the page has an update as new already.
+//
+// The state is the one the room sent last, so that a redraw never overtakes
+// an update still to be sent (whose animation it would swallow); a room
+// that has sent none yet takes the store's.
+func (rm *room) redrawAll() {
+	rm.mu.Lock()
+	var st *sessions.State
+	v := rm.lastV
+	if rm.last != nil {
+		st = rm.last.st
+	}
+	rm.mu.Unlock()
+	if st == nil {
+		var err error
+		if st, v, err = rm.s.store.State(context.Background(), rm.sid); err != nil {
+			return // the room ends with the session
+		}
+	}
+	sc := rm.s.scene(rm.sid, st)
+	rm.mu.Lock()
+	if rm.last != nil && rm.last.st == st {
+		sc.prev = rm.last.prev
+		rm.last = sc
+	}
+	rm.mu.Unlock()
+	var msgs [3][]byte
+	for _, c := range rm.snapshot() {
+		if msgs[c.cap] == nil {
+			b, err := json.Marshal(outMsg{Type: "update", V: v, Op: "derived",
+				Frags: rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: c.cap, Token: c.token}, v)})
+			if err != nil {
+				return
+			}
+			msgs[c.cap] = b
+		}
+		c.queueRedraw(v, msgs[c.cap])
+	}
 }
 
 // maxBatch bounds the events merged into one update.
@@ -145,6 +213,9 @@ func (rm *room) closeAll(reason string) {
 // them) and queues it on every connection.
 func (rm *room) broadcast(batch []sessions.Event) {
 	ev := batch[len(batch)-1]
+	rm.mu.Lock()
+	rm.lastV = ev.Version
+	rm.mu.Unlock()
 	conns := rm.snapshot()
 	var msgs [3][]byte // by capability
 	for _, c := range conns {

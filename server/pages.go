@@ -142,6 +142,12 @@ func (s *Server) page(w http.ResponseWriter, r *http.Request) {
 	}
 	sc := s.scene(a.SessionID, st)
 	v := s.sessionView(r, a, sc, ver)
+	if sc.derivedPending() {
+		// A result still computing: the page says it is one version behind,
+		// so that its websocket's hello asks for a catch-up, which brings
+		// the result if it came meanwhile (later ones come as redraws).
+		v.Version = ver - 1
+	}
 	s.render(w, r, http.StatusOK, web.SessionPage(v))
 }
 

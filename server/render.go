@@ -2,6 +2,7 @@ package server
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"math"
@@ -55,6 +56,11 @@ type scene struct {
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
 	yieldMsg  string
+
+	// Filled by fillDerived (derivedscene.go) from the derived-results cache.
+	yieldPending bool            // the Monte Carlo is computing
+	limitsV      *web.LimitsView // the limits, or "computing…"
+	jobCtx       context.Context // a derived job's context (jobContext)
 
 	tdrDone bool // tdrP and tdrNote hold the time-domain view
 	tdrP    *plot
@@ -123,6 +129,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	if n := st.Active(); n != nil {
 		sc.net = sc.evalNetwork(n)
 	}
+	s.fillDerived(sc)
 	return sc
 }
 

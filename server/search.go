@@ -129,7 +129,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.Search(ctx, load, bands, set)
+		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) { return match.Search(ctx, load, bands, set) })
 		if err != nil {
 			msg := "the search failed: " + err.Error()
 			if errors.Is(err, context.Canceled) {

@@ -79,6 +79,10 @@ type Config struct {
 	// paceBodies); zero means DefaultBodyGrace and DefaultBodyMinRate.
 	BodyGrace   time.Duration
 	BodyMinRate int
+	// DerivedWorkers is the size of the pool that computes the heavy
+	// derived results (Monte Carlo, limits) and runs the searches; zero
+	// means one less than the CPUs, at least one.
+	DerivedWorkers int
 }
 
 // Server serves the app. Create it with New.
@@ -94,6 +98,9 @@ type Server struct {
 	corr   corrections
 	search searchJobs
 	limits connLimits
+
+	derived  *derivedCache // heavy results by session and inputs (derived.go)
+	searches chan struct{} // slots of the searches running
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.
@@ -136,7 +143,11 @@ func New(cfg Config) *Server {
 			*l.v = l.def
 		}
 	}
-	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}}
+	if cfg.DerivedWorkers <= 0 {
+		cfg.DerivedWorkers = defaultDerivedWorkers()
+	}
+	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}, searches: make(chan struct{}, cfg.DerivedWorkers)}
+	s.derived = newDerivedCache(cfg.DerivedWorkers, s.derivedReady)
 	s.router = s.routes()
 	return s
 }
@@ -251,4 +262,5 @@ func (s *Server) Shutdown() {
 	for _, rm := range rooms {
 		rm.closeAll("server shutting down")
 	}
+	s.derived.close()
 }
