@@ -146,3 +146,30 @@ func TestDerivedBounded(t *testing.T) {
 		t.Error("the newest result was evicted, or the oldest kept")
 	}
 }
+
+// forget drops a session's results and jobs and cancels its running one.
+func TestDerivedForget(t *testing.T) {
+	t.Parallel()
+	d := newDerivedCache(1, nil)
+	defer d.close()
+	cancelled := make(chan struct{})
+	d.get(derivedKey{"gone", "yield", "1"}, func(ctx context.Context) (any, int64) {
+		<-ctx.Done()
+		close(cancelled)
+		return nil, 0
+	})
+	d.get(derivedKey{"gone", "limits", "1"}, func(context.Context) (any, int64) { return 1, 1 })
+	waitFor(5*time.Second, func() bool { d.mu.Lock(); defer d.mu.Unlock(); return len(d.running) == 1 })
+	d.forget("gone")
+	select {
+	case <-cancelled:
+	case <-time.After(5 * time.Second):
+		t.Fatal("the running job was not cancelled")
+	}
+	d.mu.Lock()
+	n, q := len(d.entries), len(d.queues)
+	d.mu.Unlock()
+	if n != 0 || q != 0 {
+		t.Errorf("%d results and %d queues left of the forgotten session", n, q)
+	}
+}
