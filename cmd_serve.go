@@ -30,6 +30,8 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	maxMB := fs.Int("max-upload-mb", 20, "largest sweep file accepted, in `MB`")
 	noDemo := fs.Bool("no-demo", false, "do not create the demo sessions on first start")
 	verbose := fs.Bool("v", false, "log every request (routes only; never the links' tokens)")
+	var extraHosts listFlag
+	fs.Var(&extraHosts, "host", "another `name` (NAME or NAME:PORT) requests may address this server by, such as its name on the lab network; repeatable. Requests naming other hosts are refused")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -40,11 +42,37 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *maxMB < 1 || *maxMB > 4096 {
 		return usagef("--max-upload-mb %d: use 1 to 4096", *maxMB)
 	}
+	for _, h := range extraHosts {
+		if h == "" || strings.ContainsAny(h, "/ \t@?#") {
+			return usagef("--host %q: give a host name, optionally with :PORT (e.g. --host bench-pc.lab)", h)
+		}
+	}
 	level := slog.LevelInfo
 	if *verbose {
 		level = slog.LevelDebug
 	}
 	log := slog.New(slog.NewTextHandler(stderr, &slog.HandlerOptions{Level: level}))
+
+	// Listen first: a busy port is refused before the data folder or any
+	// demo session exists.
+	ln, err := net.Listen("tcp", *listen)
+	if err != nil {
+		if errors.Is(err, syscall.EADDRINUSE) {
+			return fmt.Errorf("%s is already in use (is matchbench already running?); choose another port, e.g. --listen %s", *listen, nextPort(*listen))
+		}
+		return fmt.Errorf("cannot listen on %s: %w", *listen, err)
+	}
+	defer ln.Close()
+	addr := ln.Addr().(*net.TCPAddr)
+	lan := !addr.IP.IsLoopback()
+	hosts := shareHosts(addr)
+	var names []string
+	for _, h := range extraHosts {
+		names = append(names, withPort(h, addr.Port))
+	}
+	if lan {
+		hosts = append(hosts, names...)
+	}
 
 	store, err := sessions.Open(*data)
 	if err != nil {
@@ -62,18 +90,8 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 	}
 
-	ln, err := net.Listen("tcp", *listen)
-	if err != nil {
-		if errors.Is(err, syscall.EADDRINUSE) {
-			return fmt.Errorf("%s is already in use (is matchbench already running?); choose another port, e.g. --listen %s", *listen, nextPort(*listen))
-		}
-		return fmt.Errorf("cannot listen on %s: %w", *listen, err)
-	}
-	addr := ln.Addr().(*net.TCPAddr)
-	lan := !addr.IP.IsLoopback()
-	hosts := shareHosts(addr)
-	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, LAN: lan})
-	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
+	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, Hosts: names, LAN: lan})
+	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, IdleTimeout: 2 * time.Minute, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
 
 	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
 	if !addr.IP.IsUnspecified() {
@@ -107,6 +125,14 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	return nil
+}
+
+// withPort adds port to a host name given without one.
+func withPort(h string, port int) string {
+	if _, _, err := net.SplitHostPort(h); err == nil {
+		return h
+	}
+	return net.JoinHostPort(strings.Trim(h, "[]"), fmt.Sprint(port))
 }
 
 // nextPort suggests the same address with the port one higher.

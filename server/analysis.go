@@ -85,7 +85,7 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 		sc.yieldMsg = "Yield needs a band with a requirement (return loss or power to the load)."
 		return nil, sc.yieldMsg
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
 	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces}
 	var res *match.YieldResult

@@ -347,7 +347,7 @@ func (sc *scene) networkView() web.NetworkView {
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
-	v.Limits = sc.limitsView()
+	v.Limits = sc.limits()
 	v.Yield = sc.yieldView()
 	return v
 }

@@ -2,11 +2,13 @@ package server
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -60,6 +62,11 @@ type scene struct {
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
 	yieldMsg  string
+
+	// Filled by fillDerived (derivedscene.go) from the derived-results cache.
+	yieldPending bool            // the Monte Carlo is computing
+	limitsV      *web.LimitsView // the limits, or "computing…"
+	jobCtx       context.Context // a derived job's context (jobContext)
 
 	tdrDone bool // tdrP and tdrNote hold the time-domain view
 	tdrP    *plot
@@ -128,6 +135,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	if n := st.Active(); n != nil {
 		sc.net = sc.evalNetwork(n)
 	}
+	s.fillDerived(sc)
 	return sc
 }
 
@@ -168,11 +176,13 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 }
 
 // thinSeries keeps, of a long series, the first, lowest, highest and last
-// point of each of 4·plotWidth frequency columns: what the plot can show
-// (chartsvg thins again to its pixels), at a fraction of the memory that a
-// room's cached scene holds between renders.
+// point of each of plotWidth frequency columns: what the plot can show
+// (chartsvg thins the same way to its pixels, and a series spans at most
+// the plot's width, so a column is at most a pixel wide), at a fraction of
+// the memory that a room's cached scene holds between renders. A series of
+// at most 4·plotWidth points is kept whole.
 func thinSeries(s chartsvg.Series) chartsvg.Series {
-	const cols = 4 * plotWidth
+	const cols = plotWidth
 	n := len(s.FreqHz)
 	if n <= 4*cols {
 		return s
@@ -201,7 +211,8 @@ func thinSeries(s chartsvg.Series) chartsvg.Series {
 		}
 		start = end
 	}
-	s.FreqHz, s.Y = fs, ys
+	// Exact-size copies: the scratch above is sized for the worst case.
+	s.FreqHz, s.Y = slices.Clone(fs), slices.Clone(ys)
 	return s
 }
 

@@ -145,7 +145,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.SearchSet(ctx, members, bands, set)
+		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) { return match.SearchSet(ctx, members, bands, set) })
 		if err != nil {
 			msg := "the search failed: " + err.Error()
 			if errors.Is(err, context.Canceled) {

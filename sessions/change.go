@@ -240,6 +240,10 @@ type Limits struct {
 	SetMembers       int // sweeps in one load set
 	PartsPerNetwork  int
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
+	// SweepBytes bounds the numbers of the sweeps listed in a session at
+	// once, as [SweepRef.DataBytes] counts them: what drawing the session
+	// holds in memory.
+	SweepBytes int64
 }
 
 // DefaultLimits are the limits used where [Options.Limits] leaves a zero.
@@ -255,6 +259,7 @@ var DefaultLimits = Limits{
 	SetMembers:       16,
 	PartsPerNetwork:  8,
 	ReplayEvents:     256,
+	SweepBytes:       128 << 20,
 }
 
 func (l Limits) withDefaults() Limits {
@@ -275,6 +280,9 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.LoadSets, d.LoadSets)
 	pick(&l.SetMembers, d.SetMembers)
 	pick(&l.ReplayEvents, d.ReplayEvents)
+	if l.SweepBytes <= 0 {
+		l.SweepBytes = d.SweepBytes
+	}
 	return l
 }
 

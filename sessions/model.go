@@ -100,6 +100,14 @@ type SweepRef struct {
 	RefPlane *RefPlane `json:"refPlane,omitempty"`
 }
 
+// DataBytes is the size of the sweep's numbers in memory: 8 bytes a
+// frequency, 8 a reference impedance and 16 a complex value, of which
+// there are Ports² a point.
+func (r SweepRef) DataBytes() int64 {
+	p, n := int64(r.Ports), int64(r.Points)
+	return 8*n + 8*p + 16*p*p*n
+}
+
 // Marker is a point on one trace of a sweep, held by frequency. The trace is
 // the reflection at port Port: 1 → S11, 2 → S22. FreqHz may lie between
 // measured points; the value there is interpolated as

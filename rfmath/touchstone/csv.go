@@ -92,7 +92,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		}
 	}
 	if best == 0 {
-		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", header))
+		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", found(header)))
 	}
 
 	cr := csv.NewReader(bytes.NewReader(text))
@@ -129,7 +129,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			x, ok := csvNumber(rec[idx], sep)
 			if !ok {
 				line, col := cr.FieldPos(idx)
-				return nil, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", cols.names[k], rec[idx]))
+				return nil, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.names[k]), found(rec[idx])))
 			}
 			v[k] = x
 		}
@@ -139,7 +139,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", v[0]))
 		}
 		if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
-			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", rec[cols.freq]))
+			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
 		}
 		if len(s.FreqHz) >= lim.MaxPoints {
 			return nil, perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", lim.MaxPoints))
@@ -184,7 +184,7 @@ func csvZ0(text string) (float64, bool, error) {
 			continue
 		}
 		if !(v > 0) || math.IsInf(v, 0) {
-			return 0, false, syntaxf("reference resistance %s must be a positive number of ohms", f[i+1])
+			return 0, false, syntaxf("reference resistance %s must be a positive number of ohms", found(f[i+1]))
 		}
 		return v, true, nil
 	}
@@ -244,7 +244,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 			kind, ok := csvWords[w]
 			if !ok {
 				if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
-					return nil, unsupportedf("CSV import reads 1-port data (S11) only; column %q names %s", name, strings.ToUpper(w))
+					return nil, unsupportedf("CSV import reads 1-port data (S11) only; column %q names %s", found(name), found(strings.ToUpper(w)))
 				}
 				kind = "?"
 			}
@@ -290,7 +290,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 			continue
 		}
 		if _, dup := idx[role]; dup {
-			return nil, syntaxf("two columns are %s columns (%q and %q)", role, rec[idx[role]], name)
+			return nil, syntaxf("two columns are %s columns (%q and %q)", role, found(rec[idx[role]]), found(name))
 		}
 		idx[role] = i
 		if role == "freq" && unit != "" {
@@ -320,7 +320,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		if allNumbers {
 			return nil, syntaxf("expected a header row naming the columns, found numbers; a header needs %s", csvExpected)
 		}
-		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", rec, csvExpected)
+		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", foundList(rec), csvExpected)
 	}
 	c.freq = f
 	c.names = [3]string{rec[f], rec[c.a], rec[c.b]}
