@@ -55,13 +55,6 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	defer store.Close()
 
-	var demoLink string
-	if !*noDemo {
-		if demoLink, err = seedDemo(ctx, store); err != nil {
-			return fmt.Errorf("creating the demo sessions: %w", err)
-		}
-	}
-
 	ln, err := net.Listen("tcp", *listen)
 	if err != nil {
 		if errors.Is(err, syscall.EADDRINUSE) {
@@ -73,6 +66,14 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	lan := !addr.IP.IsLoopback()
 	hosts := shareHosts(addr)
 	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, LAN: lan})
+
+	var demoLink string
+	if !*noDemo {
+		if demoLink, err = seedDemo(ctx, store, srv); err != nil {
+			ln.Close()
+			return fmt.Errorf("creating the demo sessions: %w", err)
+		}
+	}
 	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
 
 	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
@@ -149,8 +150,10 @@ func shareHosts(addr *net.TCPAddr) []string {
 // the Fieldnode, through its cable, with the cable's fixture removed as a
 // reference-plane step), the bands, markers, and a network of standard
 // 0402 values chosen by the loss-aware search, with the search's designs
-// in the panel.
-func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
+// in the panel. The Fieldnode's also holds its first prototype board as
+// built and one round of bench tuning on it, fitted by srv as an editor's
+// form would.
+func seedDemo(ctx context.Context, st *sessions.Store, srv *server.Server) (string, error) {
 	list, err := st.List(ctx)
 	if err != nil || len(list) > 0 {
 		return "", err
@@ -167,13 +170,14 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		bands   []demo.Band
 		markers []float64
 		parts   int
+		built   string // a sweep among hidden of the network's first board as built, for a round of tuning
 	}
 	plans := []plan{
 		{"Demo · Fieldnode trace antenna (invented data)",
-			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p"}, "cable-fixture.s2p",
-			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3},
+			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p", "fieldnode-first-build.s1p"}, "cable-fixture.s2p",
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3, "fieldnode-first-build.s1p"},
 		{"Demo · Wristtag chip antenna (invented data)",
-			[]string{"wristtag-antenna.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3},
+			[]string{"wristtag-antenna.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3, ""},
 	}
 	first := ""
 	for _, p := range plans {
@@ -232,6 +236,17 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		}
 		if err := seedSearch(ctx, st, se.ID, ids[loadName], load, bands, p.parts, p.markers[0]); err != nil {
 			return "", err
+		}
+		if p.built != "" {
+			_, lay := demoFieldnodeNetwork()
+			var traces []string
+			for _, t := range lay.Traces {
+				traces = append(traces, t.String())
+			}
+			fields := map[string]string{"builtId": ids[p.built], "footprint": lay.Footprint.Name, "traces": strings.Join(traces, "; ")}
+			if err := srv.FitTuneRound(ctx, se.ID, fields); err != nil {
+				return "", fmt.Errorf("the demo's round of tuning: %w", err)
+			}
 		}
 	}
 	return first, nil

@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -199,7 +198,7 @@ func runTune(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if len(traceArgs) > 0 {
 		lay.Traces = nil
 		for _, s := range traceArgs {
-			t, err := parseTrace(s)
+			t, err := match.ParseTrace(s)
 			if err != nil {
 				return usagef("--trace %s: %v", s, err)
 			}
@@ -258,32 +257,6 @@ func orNone(builds int) int {
 		return -1
 	}
 	return builds
-}
-
-// parseTrace reads GAP:LENGTH or GAP:LENGTH:Z0:EPSEFF.
-func parseTrace(s string) (match.Trace, error) {
-	f := strings.Split(s, ":")
-	if len(f) != 2 && len(f) != 4 {
-		return match.Trace{}, fmt.Errorf("want GAP:LENGTH or GAP:LENGTH:Z0:EPSEFF, e.g. 2:0.8mm:53:3.2")
-	}
-	gap, err := strconv.Atoi(strings.TrimSpace(f[0]))
-	if err != nil || gap < 0 {
-		return match.Trace{}, fmt.Errorf("gap %q is not a whole number from 0", f[0])
-	}
-	length, err := units.ParseValue(f[1], "m")
-	if err != nil {
-		return match.Trace{}, fmt.Errorf("length: %v", err)
-	}
-	t := match.Trace{Gap: gap, LengthM: length, Z0Ohm: 50, EpsEff: 1}
-	if len(f) == 4 {
-		if t.Z0Ohm, err = units.ParseValue(f[2], "Ω"); err != nil {
-			return t, fmt.Errorf("Z0: %v", err)
-		}
-		if t.EpsEff, err = strconv.ParseFloat(strings.TrimSpace(f[3]), 64); err != nil {
-			return t, fmt.Errorf("effective permittivity %q is not a number", f[3])
-		}
-	}
-	return t, nil
 }
 
 // tuneOutput gathers the fit and the swaps as the JSON prints them; the
@@ -348,7 +321,7 @@ func printTune(w io.Writer, load, built match.Load, loadPath, builtPath string, 
 		models = "mixed"
 	}
 	fmt.Fprintf(w, "Network, from the load: %s; %s parts\n", strings.Join(ps, ", "), models)
-	fmt.Fprintf(w, "Layout as declared: %s\n", layoutText(n, lay))
+	fmt.Fprintf(w, "Layout as declared: %s\n", lay.Describe(n))
 	fmt.Fprintln(w)
 	fmt.Fprintf(w, "Fit over %d points, %s to %s: rms error %.3g in Γ (%.3g for the design as declared); condition number %.3g\n",
 		fit.Points, ff(fit.FitLoHz), ff(fit.FitHiHz), fit.RMSResidual, fit.NominalRMSResidual, fit.Condition)
@@ -437,26 +410,4 @@ func printTuneBands(w io.Writer, m match.Metrics) {
 			fmt.Fprintf(w, "  (!) %s.\n", note)
 		}
 	}
-}
-
-// layoutText describes a layout in words.
-func layoutText(n match.Network, lay match.Layout) string {
-	if lay.IsZero() {
-		return "none (the parts alone, no pads or traces)"
-	}
-	var s []string
-	if lay.Footprint.PadCF > 0 {
-		s = append(s, fmt.Sprintf("%s pads (%s each)", lay.Footprint.Name, units.Format(lay.Footprint.PadCF, "F", 3)))
-	}
-	for _, t := range lay.Traces {
-		a, b := "load", "source"
-		if t.Gap > 0 {
-			a = n.Designator(t.Gap - 1)
-		}
-		if t.Gap < len(n) {
-			b = n.Designator(t.Gap)
-		}
-		s = append(s, fmt.Sprintf("trace %s–%s %s (%s, εeff %.3g)", a, b, units.Format(t.LengthM, "m", 3), units.Format(t.Z0Ohm, "Ω", 3), t.EpsEff))
-	}
-	return strings.Join(s, ", ")
 }

@@ -542,6 +542,7 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
 		Network:  sc.networkView(),
+		Tuning:   sc.tuningView(),
 		RefPlane: sc.refPlaneView(),
 	}
 }

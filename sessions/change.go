@@ -34,6 +34,10 @@ const (
 	OpTDRSet        = "tdr.set"
 	OpSearchStore   = "search.store"
 	OpSearchClear   = "search.clear"
+
+	OpNetworkLayout = "network.layout"
+	OpTuneStore     = "tune.store"
+	OpTuneUse       = "tune.use"
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
@@ -50,6 +54,7 @@ var Ops = []string{
 	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
 	OpSweepRefPlane, OpTDRSet,
 	OpSearchStore, OpSearchClear,
+	OpNetworkLayout, OpTuneStore, OpTuneUse,
 	OpUndo, OpRedo,
 }
 
@@ -94,9 +99,10 @@ var Ops = []string{
 //	chart.set       chart                       set the chart fields present in chart (a
 //	                                            [ChartPatch]); absent fields keep their value
 //	network.add     name, sweepId, port,        add a matching network on the trace S(port,port)
-//	                designHz, parts             of sweepId (default: the first sweep) and make it
+//	                designHz, parts, layout     of sweepId (default: the first sweep) and make it
 //	                                            active; designHz defaults to the band centre;
-//	                                            parts (optional) are its first parts
+//	                                            parts (optional) are its first parts, layout
+//	                                            (optional) its board
 //	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs);
 //	                port, designHz, powerW,     yieldBuilds −1 turns the Monte Carlo off, chuRadiusM
 //	                yieldBuilds, chuRadiusM     −1 forgets the radius
@@ -116,6 +122,13 @@ var Ops = []string{
 //	search.store    search                      keep a broadband search's result (a [SearchResult];
 //	                                            the server runs searches, pages do not send this)
 //	search.clear                                forget it
+//	network.layout  networkId, layout           set the board the network is built on (a [Layout];
+//	                                            absent or empty: none)
+//	tune.store      tune                        keep a round of bench tuning (a [TuneRound]; the
+//	                                            server fits, pages do not send this)
+//	tune.use        tuneId, index               make suggestion index of round tuneId the next
+//	                                            candidate network (with the round's layout), active,
+//	                                            and mark it chosen
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -176,6 +189,12 @@ type Change struct {
 	Search     *SearchResult `json:"search,omitempty"`
 	TimeDomain *TimeDomain   `json:"timeDomain,omitempty"`
 
+	// Layout is for network.add and network.layout; Tune and TuneID for
+	// tune.store and tune.use (see there).
+	Layout *Layout    `json:"layout,omitempty"`
+	Tune   *TuneRound `json:"tune,omitempty"`
+	TuneID string     `json:"tuneId,omitempty"`
+
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.
 	Raw   []byte        `json:"-"`
@@ -220,6 +239,7 @@ type Limits struct {
 	HistorySteps     int // undo steps kept per session
 	Networks         int // matching networks per session
 	PartsPerNetwork  int
+	TuneRounds       int // rounds of bench tuning kept per session
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
 }
 
@@ -233,6 +253,7 @@ var DefaultLimits = Limits{
 	HistorySteps:     1000,
 	Networks:         16,
 	PartsPerNetwork:  8,
+	TuneRounds:       32,
 	ReplayEvents:     256,
 }
 
@@ -251,6 +272,7 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.HistorySteps, d.HistorySteps)
 	pick(&l.Networks, d.Networks)
 	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
+	pick(&l.TuneRounds, d.TuneRounds)
 	pick(&l.ReplayEvents, d.ReplayEvents)
 	return l
 }

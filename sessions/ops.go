@@ -395,6 +395,11 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
+	case OpNetworkLayout, OpTuneStore, OpTuneUse:
+		if err := computeTune(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
 	case "":
 		return r, invalid("(no op)", "op", "missing")
 	default:

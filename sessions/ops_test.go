@@ -297,8 +297,8 @@ func TestChangeJSON(t *testing.T) {
 	if ch.Sweep != nil {
 		t.Errorf("sweep decoded from JSON: %+v", ch.Sweep)
 	}
-	if len(Ops) != 29 {
-		t.Errorf("Ops lists %d ops, want 29", len(Ops))
+	if len(Ops) != 32 {
+		t.Errorf("Ops lists %d ops, want 32", len(Ops))
 	}
 }
 

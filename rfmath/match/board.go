@@ -7,6 +7,8 @@ import (
 	"strings"
 
 	"matchbench/rfmath"
+	"matchbench/rfmath/parts"
+	"matchbench/rfmath/units"
 )
 
 // # The board a network is built on
@@ -99,6 +101,64 @@ func (t Trace) ShuntCF() float64 { return t.DelayS() / t.Z0Ohm }
 // lengthM.
 func (t Trace) Part(lengthM float64) Part {
 	return Part{Kind: Line, Value: lengthM, Params: map[string]float64{"z0Ohm": t.Z0Ohm, "vf": 1 / math.Sqrt(t.EpsEff)}}
+}
+
+// ParseTrace reads a trace written GAP:LENGTH or GAP:LENGTH:Z0:EPSEFF,
+// as the command line and the web app take it: "2:0.5mm" (50 Ω, in air)
+// or "2:0.5mm:53.1:3.18". The length takes SI prefixes and an optional
+// unit m; Z0 is in ohms. Errors wrap [ErrLayout] and name the field.
+func ParseTrace(s string) (Trace, error) {
+	f := strings.Split(strings.TrimSpace(s), ":")
+	if len(f) != 2 && len(f) != 4 {
+		return Trace{}, fmt.Errorf("%w: trace %q: want GAP:LENGTH or GAP:LENGTH:Z0:EPSEFF, e.g. 2:0.5mm:53:3.2", ErrLayout, s)
+	}
+	gap, err := strconv.Atoi(strings.TrimSpace(f[0]))
+	if err != nil || gap < 0 {
+		return Trace{}, fmt.Errorf("%w: trace %q: gap %q is not a whole number from 0", ErrLayout, s, f[0])
+	}
+	length, err := units.ParseValue(f[1], "m")
+	if err != nil {
+		return Trace{}, fmt.Errorf("%w: trace %q: length: %v", ErrLayout, s, err)
+	}
+	t := Trace{Gap: gap, LengthM: length, Z0Ohm: 50, EpsEff: 1}
+	if len(f) == 4 {
+		if t.Z0Ohm, err = units.ParseValue(f[2], "Ω"); err != nil {
+			return t, fmt.Errorf("%w: trace %q: Z0: %v", ErrLayout, s, err)
+		}
+		if t.EpsEff, err = strconv.ParseFloat(strings.TrimSpace(f[3]), 64); err != nil {
+			return t, fmt.Errorf("%w: trace %q: effective permittivity %q is not a number", ErrLayout, s, f[3])
+		}
+	}
+	return t, t.validate(math.MaxInt32)
+}
+
+// String writes the trace as [ParseTrace] reads it.
+func (t Trace) String() string {
+	return fmt.Sprintf("%d:%smm:%s:%s", t.Gap, strconv.FormatFloat(t.LengthM*1e3, 'g', 6, 64), strconv.FormatFloat(t.Z0Ohm, 'g', 6, 64),
+		strconv.FormatFloat(t.EpsEff, 'g', 6, 64))
+}
+
+// Describe says what the layout adds to the network n, in words: "0402
+// pads (80 fF each), trace L2–C1 500 µm (53.1 Ω, εeff 3.18)".
+func (l Layout) Describe(n Network) string {
+	if l.IsZero() {
+		return "no board (the parts alone, no pads or traces)"
+	}
+	var s []string
+	if l.Footprint.PadCF > 0 {
+		name := l.Footprint.Name
+		if name == "" {
+			name = "chip"
+		}
+		s = append(s, fmt.Sprintf("%s pads (%s each)", name, units.Format(l.Footprint.PadCF, "F", 3)))
+	}
+	for _, t := range l.Traces {
+		if t.Gap > len(n) {
+			continue
+		}
+		s = append(s, fmt.Sprintf("%s %s (%s, εeff %.3g)", traceName(n, t.Gap), units.Format(t.LengthM, "m", 3), units.Format(t.Z0Ohm, "Ω", 3), t.EpsEff))
+	}
+	return strings.Join(s, ", ")
 }
 
 func (t Trace) validate(parts int) error {
@@ -269,6 +329,34 @@ func (p Placed) Design() Network {
 		}
 	}
 	return n
+}
+
+// Name names element j of the placed network of the design n: the part's
+// designator ("L2"), its pads ("pad at C1", "pads at the L1–L2 node") or
+// its trace ("trace L2–C1").
+func (p Placed) Name(n Network, j int) string {
+	o := p.Origins[j]
+	switch o.Role {
+	case RolePads:
+		return padName(p, n, o.Index)
+	case RoleTrace:
+		return traceName(n, o.Index)
+	}
+	return n.Designator(o.Index)
+}
+
+// Tolerances returns, for each element of the placed network, the
+// tolerance of the design part it is (its own figures, else the typical
+// tolerance of its kind) and none for the pads and traces: the spread
+// [Yield] draws when a board's parts are bought again.
+func (p Placed) Tolerances() []parts.Tolerance {
+	out := make([]parts.Tolerance, len(p.Network))
+	for j, o := range p.Origins {
+		if o.Role == RolePart {
+			out[j] = p.Network[j].Tolerance()
+		}
+	}
+	return out
 }
 
 // Place returns the network n laid out on the board: n's parts in their

@@ -236,3 +236,30 @@ func TestDesignator(t *testing.T) {
 		}
 	}
 }
+
+// Traces as the command line and the page write them.
+func TestParseTrace(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		in   string
+		want Trace
+	}{
+		{"2:0.5mm", Trace{Gap: 2, LengthM: 0.5e-3, Z0Ohm: 50, EpsEff: 1}},
+		{"0:1.2mm:75:2.5", Trace{Gap: 0, LengthM: 1.2e-3, Z0Ohm: 75, EpsEff: 2.5}},
+		{" 3 : 800u : 53.1 : 3.18 ", Trace{Gap: 3, LengthM: 800e-6, Z0Ohm: 53.1, EpsEff: 3.18}},
+	} {
+		got, err := ParseTrace(tc.in)
+		if err != nil || got.Gap != tc.want.Gap || math.Abs(got.LengthM-tc.want.LengthM) > 1e-15 || got.Z0Ohm != tc.want.Z0Ohm || got.EpsEff != tc.want.EpsEff {
+			t.Errorf("%q: %+v, %v; want %+v", tc.in, got, err, tc.want)
+		}
+		back, err := ParseTrace(got.String())
+		if err != nil || math.Abs(back.LengthM-got.LengthM) > 1e-15 || back.Gap != got.Gap || back.Z0Ohm != got.Z0Ohm || back.EpsEff != got.EpsEff {
+			t.Errorf("%q written %q read back %+v, %v", tc.in, got.String(), back, err)
+		}
+	}
+	for _, bad := range []string{"", "2", "x:1mm", "-1:1mm", "2:1q", "2:1mm:50", "2:1mm:z:3", "2:1mm:50:e", "2:1mm:50:0.5", "2:-1mm", "0:1.2m"} {
+		if _, err := ParseTrace(bad); !errors.Is(err, ErrLayout) {
+			t.Errorf("%q: %v", bad, err)
+		}
+	}
+}
