@@ -42,15 +42,15 @@ type netEval struct {
 	board    match.Placed
 	typed    match.Network
 	boardErr string
-	load   match.Load
-	sweep  *rfmath.Sweep
-	port   int
-	z0     float64
-	gLoad  []complex128
-	ideal  []complex128 // Γ with the values as typed
-	buy    []complex128 // Γ with standard values; nil when no part snaps
-	toLoad []float64    // share of the available power at the load, as built
-	err    error
+	load     match.Load
+	sweep    *rfmath.Sweep
+	port     int
+	z0       float64
+	gLoad    []complex128
+	ideal    []complex128 // Γ with the values as typed
+	buy      []complex128 // Γ with standard values; nil when no part snaps
+	toLoad   []float64    // share of the available power at the load, as built
+	err      error
 }
 
 // evalNetwork evaluates n over the sweep it sits on.
