@@ -110,6 +110,12 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 	}
 	load := ne.load
 	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
+	lay, board := ne.lay, ne.n.Layout
+	if !lay.IsZero() {
+		desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, lay.Describe(ne.built))
+	} else {
+		board = nil
+	}
 
 	s.search.mu.Lock()
 	if s.search.jobs == nil {
@@ -141,7 +147,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.Search(ctx, load, bands, set)
+		res, err := match.SearchOnBoard(ctx, load, bands, set, lay)
 		if err != nil {
 			msg := "the search failed: " + err.Error()
 			if errors.Is(err, context.Canceled) {
@@ -152,7 +158,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
+		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board}
 		for _, d := range res.Designs {
 			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
@@ -269,7 +275,7 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			return sessions.Change{}, fmt.Errorf("no such design")
 		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
-			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts}, nil
+			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, Layout: r.Layout.For(len(r.Designs[idx].Parts))}, nil
 	case "synth.use", "stub.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
@@ -358,7 +364,7 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		row.Bands = "the searched sweep is gone"
 		return row
 	}
-	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts}, sw)
+	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
 	bands, _ := ne.netBands(sc.st, true)
 	if ne.err != nil || len(bands) == 0 {
 		row.Bands = "no band with a requirement inside the sweep"
@@ -367,7 +373,7 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		}
 		return row
 	}
-	m, err := match.Evaluate(ne.load, bands, ne.built)
+	m, err := match.Evaluate(ne.load, bands, ne.board.Network)
 	if err != nil {
 		row.Bands = err.Error()
 		return row

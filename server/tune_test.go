@@ -263,3 +263,38 @@ func TestTuneRoundShowsStoredFigures(t *testing.T) {
 		}
 	}
 }
+
+// With a board on the active network the search judges its designs on
+// that board; the table's figures and those of a design made a network
+// (which takes the board) agree to the printed digit.
+func TestSearchOnTheBoard(t *testing.T) {
+	t.Parallel()
+	f, nid := netFixture(t)
+	ctx := context.Background()
+	if _, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpNetworkLayout, NetworkID: nid, Layout: &sessions.Layout{Footprint: "0603", Traces: []sessions.Trace{{Gap: 1, LengthM: 0.04, Z0Ohm: 80, EpsEff: 1}}}}); err != nil {
+		t.Fatal(err)
+	}
+	c := wsDial(t, f, f.sess.EditToken)
+	c.WriteJSON(inMsg{Type: "form", ID: 1, Form: "search.start", Fields: map[string]string{"parts": "2", "lseries": "E24", "cseries": "E24", "model": ""}})
+	readMsg(t, c, func(m map[string]any) bool { return m["type"] == "ack" && m["id"] == 1.0 })
+	done := readMsg(t, c, func(m map[string]any) bool { return m["type"] == "progress" && m["running"] == false })
+	if msg, _ := done["msg"].(string); !strings.HasPrefix(msg, "search done") {
+		t.Fatalf("search ended with %q", msg)
+	}
+	st, _, _ := f.store.State(ctx, f.sess.ID)
+	if st.Search == nil || st.Search.Layout == nil || st.Search.Exact || !strings.Contains(st.Search.Settings, "judged on the board") {
+		t.Fatalf("stored search %+v", st.Search)
+	}
+	c.WriteJSON(inMsg{Type: "form", ID: 2, Form: "search.use", Fields: map[string]string{"index": "0"}})
+	readMsg(t, c, func(m map[string]any) bool { return m["type"] == "ack" && m["id"] == 2.0 })
+	st, _, _ = f.store.State(ctx, f.sess.ID)
+	if l := st.Active().Layout; l == nil || l.Footprint != "0603" {
+		t.Fatalf("the design made a network has layout %+v", l)
+	}
+	sc := f.srv.scene(f.sess.ID, st)
+	row := sc.networkView().Metrics[0]
+	d := sc.searchView().Designs[0]
+	if row.Worst != d.Worst || row.PowerWorst != d.Power {
+		t.Errorf("panel %q / %q, search table %q / %q", row.Worst, row.PowerWorst, d.Worst, d.Power)
+	}
+}

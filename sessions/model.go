@@ -315,6 +315,9 @@ type SearchResult struct {
 	Objective string   `json:"objective,omitempty"`
 	Designs   []Design `json:"designs"`
 	Note      string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+	// Layout, when set, is the board the designs were judged on (the
+	// searched network's); a design made a network takes it.
+	Layout *Layout `json:"layout,omitempty"`
 }
 
 // Design is one network a search found, with its figures when it was

@@ -385,6 +385,10 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 				}
 			}
 		}
+		var err error
+		if res.Layout, err = checkLayout(op, res.Layout, lim.PartsPerNetwork); err != nil {
+			return r, err
+		}
 		next.Search = &res
 
 	case OpSearchClear:

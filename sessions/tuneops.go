@@ -34,6 +34,22 @@ func (l *Layout) Board(parts int) (match.Layout, error) {
 	return out, nil
 }
 
+// For returns the layout for a network of parts parts: a copy without the
+// traces in gaps such a network does not have (nil for nil).
+func (l *Layout) For(parts int) *Layout {
+	if l == nil {
+		return nil
+	}
+	c := l.clone()
+	c.Traces = c.Traces[:0]
+	for _, t := range l.Traces {
+		if t.Gap >= 0 && t.Gap <= parts {
+			c.Traces = append(c.Traces, t)
+		}
+	}
+	return c
+}
+
 // checkLayout validates a layout for a network of parts parts and returns
 // it normalised: nil when it adds nothing.
 func checkLayout(op string, l *Layout, parts int) (*Layout, error) {

@@ -260,6 +260,19 @@ func (l Layout) Validate(parts int) error {
 	return nil
 }
 
+// For returns the layout for a network of parts parts: the traces in gaps
+// such a network does not have are left out (a board declared for a
+// longer ladder, applied to a shorter design).
+func (l Layout) For(parts int) Layout {
+	out := Layout{Footprint: l.Footprint}
+	for _, t := range l.Traces {
+		if t.Gap >= 0 && t.Gap <= parts {
+			out.Traces = append(out.Traces, t)
+		}
+	}
+	return out
+}
+
 // TraceAt returns the trace in gap g and whether there is one.
 func (l Layout) TraceAt(g int) (Trace, bool) {
 	for _, t := range l.Traces {

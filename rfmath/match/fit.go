@@ -859,7 +859,7 @@ func fmtCorr(c float64) string {
 	if math.IsNaN(c) {
 		return "undetermined"
 	}
-	return fmt.Sprintf("%+.4f", c)
+	return strings.Replace(fmt.Sprintf("%+.4f", c), "-", "−", 1)
 }
 
 // minimise fits the free parameters (indices into vals) in place, with

@@ -226,14 +226,7 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 	}
 	res.AsBuilt = j.metrics(base)
 
-	key := func(m Metrics) float64 {
-		if set.Objective == PowerToLoad && m.Meets() {
-			return -m.WorstPowerToLoad
-		}
-		// A miss (or the return-loss objective): the larger the margin the
-		// better; above every key of a network that meets.
-		return 1 - math.Tanh(m.MarginDB/10)
-	}
+	key := func(m Metrics) float64 { return objectiveKey(set.Objective, m) }
 	try := func(ch []Change) (Swap, error) {
 		b := board.Network.Clone()
 		next := design.Clone()
@@ -322,6 +315,18 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 		}
 	}
 	return res, nil
+}
+
+// objectiveKey ranks figures by the objective o, least best, as [Search]
+// ranks networks: for [PowerToLoad], those that meet every requirement by
+// −(worst share of the available power at the load); the others (and every
+// network for [ReturnLoss]) by their margin, larger better, above every
+// key of a network that meets.
+func objectiveKey(o Objective, m Metrics) float64 {
+	if o == PowerToLoad && m.Meets() {
+		return -m.WorstPowerToLoad
+	}
+	return 1 - math.Tanh(m.MarginDB/10)
 }
 
 // swapYield returns the yield of the swap w over its new parts'
