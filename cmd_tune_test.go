@@ -2,7 +2,10 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
+	"io"
+	"log/slog"
 	"math"
 	"os"
 	"path/filepath"
@@ -14,6 +17,8 @@ import (
 	"matchbench/rfmath"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
+	"matchbench/server"
+	"matchbench/sessions"
 )
 
 // tuneDemoArgs runs `tune` on the shipped demo files, as the README shows.
@@ -422,5 +427,44 @@ func TestTuneDemoFiguresInREADME(t *testing.T) {
 		if !strings.Contains(string(readme), w) {
 			t.Errorf("README does not say %q", w)
 		}
+	}
+}
+
+// The Fieldnode demo session is coherent with the demo files: its network
+// is the design the network file holds, and it keeps one round of tuning
+// on the first build whose swap to try first is predicted to meet every
+// band.
+func TestDemoSessionTuningRound(t *testing.T) {
+	t.Parallel()
+	st, err := sessions.Open(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv := server.New(server.Config{Store: st, Log: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	t.Cleanup(func() { srv.Shutdown(); st.Close() })
+	if _, err := seedDemo(context.Background(), st, srv); err != nil {
+		t.Fatal(err)
+	}
+	list, _ := st.List(context.Background())
+	var fn *sessions.State
+	for _, s := range list {
+		if strings.Contains(s.Name, "Fieldnode") {
+			fn, _, _ = st.State(context.Background(), s.ID)
+		}
+	}
+	if fn == nil || fn.Active() == nil {
+		t.Fatal("no Fieldnode demo session with a network")
+	}
+	for i, p := range fn.Active().Parts {
+		if d := demo.FieldnodeDesign[i]; p.Kind != d.Kind || p.Value != d.Value {
+			t.Errorf("demo network part %d: %s %g; internal/demo's design: %s %g", i, p.Kind, p.Value, d.Kind, d.Value)
+		}
+	}
+	if len(fn.Tuning) != 1 {
+		t.Fatalf("%d rounds of tuning", len(fn.Tuning))
+	}
+	r := fn.Tuning[0]
+	if r.AsBuilt.Meets || r.Best < 0 || !r.Suggestions[r.Best].Figs.Meets || r.Chosen != -1 || r.Layout == nil || r.Layout.Footprint != "0402" {
+		t.Errorf("demo round: as built %+v, best %d, chosen %d, layout %+v", r.AsBuilt, r.Best, r.Chosen, r.Layout)
 	}
 }

@@ -396,5 +396,8 @@ func (s *Server) report(w http.ResponseWriter, r *http.Request) {
 		Generated: time.Now().Format("2006-01-02 15:04"), ChartBefore: before.String(), ChartAfter: after.String(), Plot: plotB.String(),
 		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW,
 	}
+	if !ne.lay.IsZero() {
+		v.Board = ne.lay.Describe(ne.built)
+	}
 	s.render(w, r, http.StatusOK, web.ReportPage(v))
 }

@@ -109,6 +109,9 @@ func TestNetworkBoard(t *testing.T) {
 	if err != nil || len(rows) != 3 {
 		t.Errorf("parts.csv holds the board's pads: %v, %v", rows, err)
 	}
+	if rep := fetch(t, base+"/report"); !strings.Contains(rep, `data-testid="report-board"`) || !strings.Contains(rep, "0603 pads (150 fF each)") {
+		t.Error("the report does not say the board")
+	}
 	ns, ls, err := match.UnmarshalNetworks([]byte(fetch(t, base+"/export/network.json")))
 	if err != nil || len(ns[0]) != 2 || ns[0][0].Value != 13.783e-12 || ls[0].Footprint.PadCF != match.Footprint0603.PadCF || len(ls[0].Traces) != 1 {
 		t.Errorf("network file: %v %+v, %v", ns, ls, err)

@@ -227,6 +227,7 @@ type ReportView struct {
 	Parts                                            [][]string
 	Power                                            []PowerRow
 	PowerW                                           string
+	Board                                            string // the board the figures include, in words; "" for none
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
