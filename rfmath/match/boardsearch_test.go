@@ -60,4 +60,18 @@ func TestSearchOnBoard(t *testing.T) {
 		t.Errorf("on the board: best %g dB, %g; the parts-alone best placed there %g dB, %g", res.Designs[0].MarginDB, res.Designs[0].WorstPowerToLoad, naive.MarginDB, naive.WorstPowerToLoad)
 	}
 	t.Logf("parts-alone best on the board: %+.2f dB (%s); searched on the board: %+.2f dB (%s)", naive.MarginDB, alone.Designs[0].Network, res.Designs[0].MarginDB, res.Designs[0].Network)
+
+	// A board that detunes the parts-alone best (70 Ω of trace between
+	// its two parts): the search on the board does better than placing it.
+	lay1 := Layout{Footprint: Footprint0603, Traces: []Trace{{Gap: 1, LengthM: 3e-3, Z0Ohm: 70, EpsEff: 3}}}
+	res1, err := SearchOnBoard(context.Background(), load, bands, set, lay1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pl1, _ := lay1.For(len(alone.Designs[0].Network)).Place(alone.Designs[0].Network)
+	naive1, _ := Evaluate(load, bands, pl1.Network)
+	if !(res1.Designs[0].MarginDB > naive1.MarginDB+0.5) {
+		t.Errorf("trace between the parts: searched on the board %+.2f dB, the parts-alone best placed there %+.2f dB", res1.Designs[0].MarginDB, naive1.MarginDB)
+	}
+	t.Logf("trace between the parts: parts-alone best on the board %+.2f dB; searched on the board %+.2f dB (%s)", naive1.MarginDB, res1.Designs[0].MarginDB, res1.Designs[0].Network)
 }
