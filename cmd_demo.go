@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 
 	"matchbench/internal/demo"
+	"matchbench/rfmath/match"
+	"matchbench/rfmath/parts"
 	"matchbench/rfmath/touchstone"
 )
 
@@ -42,7 +44,40 @@ func runDemo(_ context.Context, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	fmt.Fprintf(stdout, "wrote %s\n", filepath.Join(dir, name))
+	b, err := demoNetworkFile()
+	if err != nil {
+		return err
+	}
+	path := filepath.Join(dir, demoNetworkFileName)
+	if err := os.WriteFile(path, b, 0o644); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "wrote %s\n", path)
 	return nil
+}
+
+// demoNetworkFileName is the network file of the Fieldnode design with its
+// first board's layout as declared, beside the demo sweeps.
+const demoNetworkFileName = "fieldnode-network.json"
+
+// demoFieldnodeNetwork returns the demo's Fieldnode design (internal/demo)
+// as a design network of E24 values and typical 0402 parts, with the first
+// board's layout as the engineer declares it.
+func demoFieldnodeNetwork() (match.Network, match.Layout) {
+	n := make(match.Network, len(demo.FieldnodeDesign))
+	for i, p := range demo.FieldnodeDesign {
+		n[i] = match.Part{Kind: p.Kind, Value: p.Value, Series: "E24", Model: parts.Typical0402}
+	}
+	lay := match.Layout{Footprint: match.Footprint{Name: "0402", PadCF: demo.FieldnodeDeclaredPadCF},
+		Traces: []match.Trace{{Gap: demo.FieldnodeTraceGap, LengthM: demo.FieldnodeDeclaredTraceM, Z0Ohm: demo.FieldnodeTraceZ0Ohm, EpsEff: demo.FieldnodeTraceEpsEff}}}
+	return n, lay
+}
+
+// demoNetworkFile returns the network file shipped as
+// testdata/demo/fieldnode-network.json.
+func demoNetworkFile() ([]byte, error) {
+	n, lay := demoFieldnodeNetwork()
+	return match.MarshalNetwork(n, lay)
 }
 
 // writeDemoFile writes one demo sweep as Touchstone 1.1 with its notes.

@@ -83,14 +83,14 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	defer store.Close()
 
+	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, Hosts: names, LAN: lan})
+
 	var demoLink string
 	if !*noDemo {
-		if demoLink, err = seedDemo(ctx, store); err != nil {
+		if demoLink, err = seedDemo(ctx, store, srv); err != nil {
 			return fmt.Errorf("creating the demo sessions: %w", err)
 		}
 	}
-
-	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, Hosts: names, LAN: lan})
 	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, IdleTimeout: 2 * time.Minute, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
 
 	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
@@ -175,8 +175,10 @@ func shareHosts(addr *net.TCPAddr) []string {
 // the Fieldnode, through its cable, with the cable's fixture removed as a
 // reference-plane step), the bands, markers, and a network of standard
 // 0402 values chosen by the loss-aware search, with the search's designs
-// in the panel.
-func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
+// in the panel. The Fieldnode's also holds its first prototype board as
+// built and one round of bench tuning on it, fitted by srv as an editor's
+// form would.
+func seedDemo(ctx context.Context, st *sessions.Store, srv *server.Server) (string, error) {
 	list, err := st.List(ctx)
 	if err != nil || len(list) > 0 {
 		return "", err
@@ -195,14 +197,15 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		parts   int
 		set     []string // sweeps of a load set of conditions, when the demo has one
 		setName string
+		built   string // a sweep among hidden of the network's first board as built, for a round of tuning
 	}
 	plans := []plan{
 		{"Demo · Fieldnode trace antenna (invented data)",
-			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p"}, "cable-fixture.s2p",
-			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3, nil, ""},
+			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p", "fieldnode-first-build.s1p"}, "cable-fixture.s2p",
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3, nil, "", "fieldnode-first-build.s1p"},
 		{"Demo · Wristtag chip antenna (invented data)",
 			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3,
-			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, "Wristtag in free space, on a wrist, in its enclosure"},
+			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, "Wristtag in free space, on a wrist, in its enclosure", ""},
 	}
 	first := ""
 	for _, p := range plans {
@@ -262,6 +265,17 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		if p.set == nil {
 			if err := seedSearch(ctx, st, se.ID, ids[loadName], "", []match.Member{{Load: mustLoad(load)}}, bands, p.parts, p.markers[0], "Search 1"); err != nil {
 				return "", err
+			}
+			if p.built != "" {
+				_, lay := demoFieldnodeNetwork()
+				var traces []string
+				for _, t := range lay.Traces {
+					traces = append(traces, t.String())
+				}
+				fields := map[string]string{"builtId": ids[p.built], "footprint": lay.Footprint.Name, "traces": strings.Join(traces, "; ")}
+				if err := srv.FitTuneRound(ctx, se.ID, fields); err != nil {
+					return "", fmt.Errorf("the demo's round of tuning: %w", err)
+				}
 			}
 			continue
 		}

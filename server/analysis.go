@@ -87,13 +87,13 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	}
 	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
-	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces}
+	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces, Tolerances: ne.board.Tolerances()}
 	var res *match.YieldResult
 	var err error
 	if ne.set != nil {
-		res, err = match.YieldSet(ctx, ne.set.members, ne.set.kind(), bands, ne.built, ys)
+		res, err = match.YieldSet(ctx, ne.set.members, ne.set.kind(), bands, ne.board.Network, ys)
 	} else {
-		res, err = match.Yield(ctx, l, bands, ne.built, ys)
+		res, err = match.Yield(ctx, l, bands, ne.board.Network, ys)
 	}
 	if err != nil {
 		sc.yieldMsg = "Yield: " + err.Error()
@@ -118,12 +118,17 @@ func (sc *scene) yieldView() web.YieldView {
 	}
 	v.Summary = fmt.Sprintf("%d builds (seed %d): %s meet every requirement of every band (return loss and power to the load). Margin: median %s, 5th percentile %s, worst build %s; worst corner %s.",
 		res.Builds, max(ne.n.YieldSeed, 1), units.FormatPercent(res.Yield, 1), signedDB(res.MedianMarginDB), signedDB(res.P5MarginDB), signedDB(res.WorstMarginDB), signedDB(res.WorstCorner.MarginDB))
-	for i, s := range res.Sensitivity {
+	for j, s := range res.Sensitivity {
+		o := ne.board.Origins[j]
+		if o.Role != match.RolePart {
+			continue // the board's pads and traces have no tolerance drawn
+		}
+		i := o.Index
 		u := ne.n.Parts[i].Kind.Unit()
 		v.Parts = append(v.Parts, web.SensRow{
 			Designator: designator(ne.n.Parts, i), Tol: "±" + units.Format(s.Tolerance, u, 3),
 			Low: signedDB(s.LowDB), High: signedDB(s.HighDB),
-			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: i == res.MostSensitive,
+			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: j == res.MostSensitive,
 		})
 	}
 	return v

@@ -361,6 +361,7 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
 		frag{ID: "chart-panel", HTML: renderString(web.ChartPanel(v))},
 		frag{ID: "network-panel", HTML: renderString(web.NetworkPanel(v))},
 		frag{ID: "sets-panel", HTML: renderString(web.SetsPanel(v))},
+		frag{ID: "tuning-panel", HTML: renderString(web.TuningPanel(v))},
 		frag{ID: "refplane-panel", HTML: renderString(web.RefPlanePanel(v))},
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)

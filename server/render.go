@@ -556,6 +556,7 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
 		Network:  sc.networkView(),
 		Sets:     sc.setsView(),
+		Tuning:   sc.tuningView(),
 		RefPlane: sc.refPlaneView(),
 	}
 }

@@ -114,6 +114,18 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 		members, setID = ne.set.members, ne.set.set.ID
 	}
 	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
+	lay, board := ne.lay, ne.n.Layout
+	switch {
+	case lay.IsZero():
+		board = nil
+	case len(members) > 1:
+		// The search across a set judges the parts alone; each design is
+		// then shown on the network's board by the panel.
+		lay, board = match.Layout{}, nil
+		desc += ", parts alone (the board is not searched across a set)"
+	default:
+		desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, lay.Describe(ne.built))
+	}
 
 	s.search.mu.Lock()
 	if s.search.jobs == nil {
@@ -145,7 +157,12 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) { return match.SearchSet(ctx, members, bands, set) })
+		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) {
+			if !lay.IsZero() {
+				return match.SearchOnBoard(ctx, members[0].Load, bands, set, lay)
+			}
+			return match.SearchSet(ctx, members, bands, set)
+		})
 		if err != nil {
 			msg := "the search failed: " + err.Error()
 			if errors.Is(err, context.Canceled) {
@@ -156,7 +173,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
+		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board}
 		for _, d := range res.Designs {
 			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
@@ -277,7 +294,7 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			setID = "" // the set is gone: the design lands on its sweep alone
 		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
-			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID}, nil
+			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID, Layout: r.Layout.For(len(r.Designs[idx].Parts))}, nil
 	case "synth.use", "stub.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
@@ -366,7 +383,7 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		row.Bands = "the searched sweep is gone"
 		return row
 	}
-	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts}, sw)
+	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
 	bands, _ := ne.netBands(sc.st, true)
 	if ne.err != nil || len(bands) == 0 {
 		row.Bands = "no band with a requirement inside the sweep"
@@ -384,13 +401,13 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 			return row
 		}
 		var sm match.SetMetrics
-		sm, err = match.EvaluateSet(se.members, bands, ne.built)
+		sm, err = match.EvaluateSet(se.members, bands, ne.board.Network)
 		m = sm.Metrics
 		if err == nil && sm.WorstMember >= 0 {
 			row.Parts += " (worst on " + se.refs[sm.WorstMember].Name + ")"
 		}
 	} else {
-		m, err = match.Evaluate(ne.load, bands, ne.built)
+		m, err = match.Evaluate(ne.load, bands, ne.board.Network)
 	}
 	if err != nil {
 		row.Bands = err.Error()

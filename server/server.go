@@ -183,6 +183,7 @@ func (s *Server) routes() http.Handler {
 			r.Get("/export/network.s2p", s.exportNetwork2)
 			r.Get("/export/network.cir", s.exportNetlist)
 			r.Get("/export/parts.csv", s.exportParts)
+			r.Get("/export/network.json", s.exportNetworkFile)
 			r.Get("/report", s.report)
 		})
 	})

@@ -383,6 +383,15 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
 			return
 		}
+	case m.Type == "form" && tuneForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.tuneChange(ctx, m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
 	case m.Type == "form" && (networkForms[m.Form] || planeForms[m.Form]):
 		sc, err := c.scene(ctx)
 		if err == nil && networkForms[m.Form] {

@@ -36,6 +36,10 @@ const (
 	OpSetSave       = "set.save"
 	OpSetRemove     = "set.remove"
 	OpSearchClear   = "search.clear"
+
+	OpNetworkLayout = "network.layout"
+	OpTuneStore     = "tune.store"
+	OpTuneUse       = "tune.use"
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
@@ -53,6 +57,7 @@ var Ops = []string{
 	OpSweepRefPlane, OpTDRSet,
 	OpSearchStore, OpSearchClear,
 	OpSetSave, OpSetRemove,
+	OpNetworkLayout, OpTuneStore, OpTuneUse,
 	OpUndo, OpRedo,
 }
 
@@ -97,10 +102,11 @@ var Ops = []string{
 //	chart.set       chart                       set the chart fields present in chart (a
 //	                                            [ChartPatch]); absent fields keep their value
 //	network.add     name, sweepId, port,        add a matching network on the trace S(port,port)
-//	                designHz, parts, setId      of sweepId (default: the first sweep) and make it
-//	                                            active; designHz defaults to the band centre;
+//	                designHz, parts, setId,     of sweepId (default: the first sweep) and make it
+//	                layout                      active; designHz defaults to the band centre;
 //	                                            parts (optional) are its first parts; setId
-//	                                            (optional) a load set it is judged across
+//	                                            (optional) a load set it is judged across, layout
+//	                                            (optional) its board
 //	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs);
 //	                port, designHz, powerW,     yieldBuilds −1 turns the Monte Carlo off, chuRadiusM
 //	                yieldBuilds, chuRadiusM,    −1 forgets the radius; setId judges the network
@@ -126,6 +132,13 @@ var Ops = []string{
 //	                                            (a [SetMember] each)
 //	set.remove      setId                       remove it; networks judged across it go back to
 //	                                            their own sweep
+//	network.layout  networkId, layout           set the board the network is built on (a [Layout];
+//	                                            absent or empty: none)
+//	tune.store      tune                        keep a round of bench tuning (a [TuneRound]; the
+//	                                            server fits, pages do not send this)
+//	tune.use        tuneId, index               make suggestion index of round tuneId the next
+//	                                            candidate network (with the round's layout), active,
+//	                                            and mark it chosen
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -193,6 +206,12 @@ type Change struct {
 	Search     *SearchResult `json:"search,omitempty"`
 	TimeDomain *TimeDomain   `json:"timeDomain,omitempty"`
 
+	// Layout is for network.add and network.layout; Tune and TuneID for
+	// tune.store and tune.use (see there).
+	Layout *Layout    `json:"layout,omitempty"`
+	Tune   *TuneRound `json:"tune,omitempty"`
+	TuneID string     `json:"tuneId,omitempty"`
+
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.
 	Raw   []byte        `json:"-"`
@@ -239,6 +258,7 @@ type Limits struct {
 	LoadSets         int // load sets per session
 	SetMembers       int // sweeps in one load set
 	PartsPerNetwork  int
+	TuneRounds       int // rounds of bench tuning kept per session
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
 	// SweepBytes bounds the numbers of the sweeps listed in a session at
 	// once, as [SweepRef.DataBytes] counts them: what drawing the session
@@ -258,6 +278,7 @@ var DefaultLimits = Limits{
 	LoadSets:         8,
 	SetMembers:       16,
 	PartsPerNetwork:  8,
+	TuneRounds:       32,
 	ReplayEvents:     256,
 	SweepBytes:       128 << 20,
 }
@@ -279,6 +300,7 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
 	pick(&l.LoadSets, d.LoadSets)
 	pick(&l.SetMembers, d.SetMembers)
+	pick(&l.TuneRounds, d.TuneRounds)
 	pick(&l.ReplayEvents, d.ReplayEvents)
 	if l.SweepBytes <= 0 {
 		l.SweepBytes = d.SweepBytes

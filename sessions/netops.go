@@ -118,6 +118,9 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			}
 			n.Parts = append(n.Parts, p)
 		}
+		if n.Layout, err = checkLayout(op, ch.Layout, len(n.Parts)); err != nil {
+			return err
+		}
 		next.Networks = append(next.Networks, n)
 		next.ActiveNetwork = id
 		r.ev.SweepID = sweepID
@@ -262,6 +265,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			at = *ch.Index
 		}
 		n.Parts = slices.Insert(n.Parts, at, p)
+		n.Layout = shiftTraces(n.Layout, at, +1)
 		r.ev.PartID = p.ID
 
 	case OpPartSet:
@@ -305,6 +309,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			return err
 		}
 		n.Parts = slices.Delete(n.Parts, j, j+1)
+		n.Layout = shiftTraces(n.Layout, j, -1)
 		r.ev.PartID = ch.PartID
 
 	case OpPartMove:

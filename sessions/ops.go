@@ -398,6 +398,10 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 				}
 			}
 		}
+		var err error
+		if res.Layout, err = checkLayout(op, res.Layout, lim.PartsPerNetwork); err != nil {
+			return r, err
+		}
 		next.Search = &res
 
 	case OpSearchClear:
@@ -410,6 +414,11 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 
 	case OpSetSave, OpSetRemove:
 		if err := computeSet(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
+	case OpNetworkLayout, OpTuneStore, OpTuneUse:
+		if err := computeTune(cur, next, ch, &r, lim); err != nil {
 			return r, err
 		}
 

@@ -57,6 +57,7 @@ type SessionView struct {
 	Options  ChartOptions
 	Network  NetworkView
 	Sets     SetsView
+	Tuning   TuningView
 	RefPlane RefPlaneView
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
@@ -264,6 +265,7 @@ type ReportView struct {
 	Power                                            []PowerRow
 	PowerW                                           string
 	Set                                              NetSetView // the network on each member of its load set, if any
+	Board                                            string // the board the figures include, in words; "" for none
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
@@ -333,4 +335,47 @@ type YieldView struct {
 type SensRow struct {
 	Designator, Tol, Low, High, Share string
 	Most                              bool
+}
+
+// TuningView is the bench-tuning panel: the active network's board, the
+// form that fits a re-measured board, and every round so far.
+type TuningView struct {
+	Active    bool   // a network is active and can be fitted
+	Network   string // its name
+	Board     string // its board in words
+	BoardNote string // why a stored board is left out, if it is
+	// The form's defaults: the network's board.
+	Footprint, Pad, Traces string
+	Sweeps                 []Option // sweeps that may be the board as built
+	Rounds                 []TuneRoundRow
+}
+
+// TuneRoundRow is one round of tuning as stored.
+type TuneRoundRow struct {
+	ID          string
+	Num         int
+	Network     string
+	Built       string
+	Parts       string
+	Board       string
+	Bands       string
+	Fit         string
+	Params      []TuneParamRow
+	Warnings    []string
+	AsBuilt     string
+	AsBuiltPass bool
+	Swaps       []TuneSwapRow
+	Chosen      string
+}
+
+// TuneParamRow is one fitted number of the board.
+type TuneParamRow struct {
+	Name, Nominal, Value, Sigma, Note string
+}
+
+// TuneSwapRow is one suggested swap with its predicted figures.
+type TuneSwapRow struct {
+	Index                               int
+	Change, Worst, Power, Margin, Yield string
+	Pass, Best, Chosen                  bool
 }

@@ -21,7 +21,9 @@
 // Also measured: the Fieldnode antenna through 250 mm of thin PE-dielectric
 // coax (as it is first seen before the reference plane is moved), the same
 // cable with its far end left open (for fitting a port extension), and the
-// cable alone as a 2-port (a fixture to remove).
+// cable alone as a 2-port (a fixture to remove), and the first prototype
+// board with its matching network fitted (see firstbuild.go), for a round
+// of bench tuning.
 //
 // # The models
 //
@@ -168,7 +170,7 @@ func Generate() []File {
 	// time-domain transform.
 	harmonic := grid(3e6, 1500e6, 500)
 
-	fn := onePort(grid(700e6, 1100e6, 401), fieldnode.z, 1)
+	fn := onePort(AntennaGrid(), fieldnode.z, 1)
 	wt := onePort(grid(2.0e9, 3.0e9, 401), wristtag.z, 2)
 	viaCable := onePort(harmonic, func(f float64) complex128 {
 		return cableABCD(f).InputImpedance(fieldnode.z(f))
@@ -191,5 +193,6 @@ func Generate() []File {
 		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable},
 		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open},
 		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture},
+		{"fieldnode-first-build.s1p", []string{invented, "Fieldnode first prototype board with its matching network fitted, measured at the radio's end of the network (network in fieldnode-network.json)."}, firstBuild()},
 	}, append(conditions(invented), ProductionLot()...)...)
 }

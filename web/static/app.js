@@ -362,6 +362,7 @@ document.addEventListener("click", (ev) => {
 	case "synth-use": send({ type: "form", form: "synth.use", fields: { index: d.index } }); break;
 	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index } }); break;
 	case "search-cancel": send({ type: "action", action: "search-cancel" }); break;
+	case "tune-use": send({ type: "form", form: "tune.use", fields: { tuneId: d.tune, index: d.index } }); break;
 	default: send({ type: "action", action: d.action, fields: { ...d } });
 	}
 });
