@@ -265,7 +265,7 @@ type ReportView struct {
 	Power                                            []PowerRow
 	PowerW                                           string
 	Set                                              NetSetView // the network on each member of its load set, if any
-	Board                                            string // the board the figures include, in words; "" for none
+	Board                                            string     // the board the figures include, in words; "" for none
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
