@@ -49,6 +49,12 @@ type State struct {
 
 	// LoadSets group sweeps that a network must match at once.
 	LoadSets []LoadSet `json:"loadSets,omitempty"`
+
+	// Amp is the amplifier view of a 2-port sweep, and Stage a transistor
+	// stage with its two networks (see stage.go); nil for none. Both are
+	// replaced whole by their ops, never changed in place.
+	Amp   *AmpView `json:"amp,omitempty"`
+	Stage *Stage   `json:"stage,omitempty"`
 }
 
 // LoadSet groups sweeps of one load: the same device in several conditions
