@@ -391,24 +391,37 @@ func EvaluateStagePoints(st *Stage, pts []StagePoint, bands []StageBand) (StageM
 // [StageBandResult.MarginDB]).
 func (r StageBandResult) margin() float64 {
 	m := math.Inf(1)
-	low := func(v float64) {
+	for _, v := range r.Margins() {
+		m = math.Min(m, v)
+	}
+	return m
+}
+
+// Margins returns the band's margin over each requirement it has, in the
+// order gain, noise figure, input and output return loss: the least gain
+// less its limit, the noise-figure limit less the worst noise figure, the
+// least return losses less theirs. A margin that cannot be judged (a
+// noise-figure limit at a point without noise data) is −∞.
+func (r StageBandResult) Margins() []float64 {
+	var out []float64
+	add := func(v float64) {
 		if math.IsNaN(v) {
 			v = math.Inf(-1)
 		}
-		m = math.Min(m, v)
+		out = append(out, v)
 	}
 	q := r.Band.StageRequirement
 	if q.MinGainDB != 0 {
-		low(r.MinGainDB - q.MinGainDB)
+		add(r.MinGainDB - q.MinGainDB)
 	}
 	if q.MaxNFdB != 0 {
-		low(q.MaxNFdB - r.WorstNFdB)
+		add(q.MaxNFdB - r.WorstNFdB)
 	}
 	if q.MinInputRLdB != 0 {
-		low(r.WorstInputRLdB - q.MinInputRLdB)
+		add(r.WorstInputRLdB - q.MinInputRLdB)
 	}
 	if q.MinOutputRLdB != 0 {
-		low(r.WorstOutputRLdB - q.MinOutputRLdB)
+		add(r.WorstOutputRLdB - q.MinOutputRLdB)
 	}
-	return m
+	return out
 }

@@ -52,9 +52,10 @@ import (
 // ranks every stage it builds by its exact figures
 // ([amp.EvaluateStage], the one evaluator of a stage): first by the number
 // of the sweep's frequencies where the terminations would let the device
-// oscillate (fewest first), then by the least margin over the bands'
-// requirements of gain, noise figure and return losses (largest first),
-// then by the least gain in the bands. Each side's search is exact for its
+// oscillate (fewest first), then by its margins over the bands'
+// requirements of gain, noise figure and return losses, worst first (the
+// least margin largest, then the next least, and so on), then by the least
+// gain in the bands. Each side's search is exact for its
 // own objective over its standard values (see [Search]); the stage is not:
 // the result is the best stage found among those the alternation builds,
 // not a proof that no other pair of networks does better
@@ -109,18 +110,23 @@ type StageResult struct {
 	SidesExact bool
 }
 
-// stageKey ranks a stage: fewer unstable frequencies, then a larger
-// margin, then a larger least gain.
+// stageKey ranks a stage: fewer unstable frequencies, then its
+// requirement margins compared worst first (the least margin, then the
+// next least, …: a leximin order, so that among stages that one
+// requirement limits alike the others still count), then a larger least
+// gain.
 type stageKey struct {
-	unstable     int
-	margin, gain float64
+	unstable int
+	margins  []float64 // ascending
+	gain     float64
 }
 
 func keyOf(m amp.StageMetrics) stageKey {
-	k := stageKey{unstable: len(m.UnstableHz), margin: m.MarginDB, gain: m.MinGainDB}
-	if math.IsNaN(k.margin) {
-		k.margin = math.Inf(-1)
+	k := stageKey{unstable: len(m.UnstableHz), gain: m.MinGainDB}
+	for _, b := range m.Bands {
+		k.margins = append(k.margins, b.Margins()...)
 	}
+	sort.Float64s(k.margins)
 	if math.IsNaN(k.gain) {
 		k.gain = math.Inf(-1)
 	}
@@ -131,11 +137,15 @@ func (a stageKey) better(b stageKey) bool {
 	if a.unstable != b.unstable {
 		return a.unstable < b.unstable
 	}
-	if a.margin != b.margin {
-		return a.margin > b.margin
+	for i := 0; i < len(a.margins) && i < len(b.margins); i++ {
+		if a.margins[i] != b.margins[i] {
+			return a.margins[i] > b.margins[i]
+		}
 	}
 	return a.gain > b.gain
 }
+
+func (a stageKey) equal(b stageKey) bool { return !a.better(b) && !b.better(a) }
 
 // stageSearch holds one stage search's data.
 type stageSearch struct {

@@ -146,7 +146,7 @@ func TestSearchStageAgainstBruteForcePairs(t *testing.T) {
 		}
 	}
 	got := keyOf(res.Designs[0].StageMetrics)
-	if got != bestKey {
+	if !got.equal(bestKey) {
 		t.Errorf("stage search: %+v with source %v, load %v; brute force over %d pairs: %+v with source %v, load %v",
 			got, res.Designs[0].Source, res.Designs[0].Load, len(nets)*len(nets), bestKey, bestPair[0], bestPair[1])
 	}
