@@ -65,6 +65,9 @@ type scene struct {
 	tdrP    *plot
 	tdrNote string
 	prev    *scene // the scene before, while a room renders an event
+
+	amp   *ampEval   // the amplifier view, or nil (amp.go)
+	stage *stageEval // the transistor stage, or nil (amp.go)
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
@@ -128,6 +131,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	if n := st.Active(); n != nil {
 		sc.net = sc.evalNetwork(n)
 	}
+	s.evalAmp(sc)
 	return sc
 }
 
@@ -546,5 +550,6 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		Network:  sc.networkView(),
 		Sets:     sc.setsView(),
 		RefPlane: sc.refPlaneView(),
+		Amp:      sc.ampView(),
 	}
 }

@@ -71,6 +71,7 @@ type Server struct {
 	closed bool
 	corr   corrections
 	search searchJobs
+	noise  noiseCache // amp.go
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.
