@@ -132,4 +132,3 @@ func TestStageDemo(t *testing.T) {
 		t.Errorf("README does not say %q", want)
 	}
 }
-
