@@ -638,6 +638,17 @@ func (sc *scene) stageView() web.StageView {
 	if id != "" {
 		v.Networks = append(v.Networks, web.Option{Value: id, Label: "load network", Selected: sc.st.ActiveNetwork == id})
 	}
+	for _, n := range sc.st.Networks {
+		if n.SweepID != se.ref.ID {
+			continue
+		}
+		switch max(n.Port, 1) {
+		case 1:
+			v.SourceChoices = append(v.SourceChoices, web.Option{Value: n.ID, Label: n.Name, Selected: n.ID == se.stage.SourceNetworkID})
+		case 2:
+			v.LoadChoices = append(v.LoadChoices, web.Option{Value: n.ID, Label: n.Name, Selected: n.ID == se.stage.LoadNetworkID})
+		}
+	}
 	for i, r := range se.m.Bands {
 		b := sc.st.Bands[se.bandIdx[i]]
 		row := web.StageBandRow{
@@ -873,6 +884,7 @@ func (sc *scene) ampChange(form string, f map[string]string) (sessions.Change, e
 		return sessions.Change{Op: sessions.OpStageUse, Index: &i}, nil
 	case "stage.set":
 		ch := sessions.Change{Op: sessions.OpStageSet, SweepID: f["sweepId"]}
+		ch.SourceNetworkID, ch.LoadNetworkID = f["sourceNetworkId"], f["loadNetworkId"]
 		reqs := []sessions.StageReq{}
 		given := false
 		for _, b := range sc.st.Bands {
@@ -1059,4 +1071,28 @@ func onlyAmpPoints(batch []sessions.Event) bool {
 		}
 	}
 	return len(batch) > 0
+}
+
+// stageNetworkID returns the id of the stage network a network search r
+// was made for ("" when r was not made for a side of the session's stage
+// on its sweep).
+func stageNetworkID(st *sessions.State, r *sessions.SearchResult) string {
+	s := st.Stage
+	if s == nil || r.StageSide == "" || s.SweepID != r.SweepID {
+		return ""
+	}
+	if r.StageSide == "load" {
+		return s.LoadNetworkID
+	}
+	return s.SourceNetworkID
+}
+
+// stagePartsChange returns the change that puts design idx of the search r
+// into the stage network it was made for, when there is one.
+func stagePartsChange(st *sessions.State, r *sessions.SearchResult, idx int) (sessions.Change, bool) {
+	id := stageNetworkID(st, r)
+	if id == "" || st.NetworkIndex(id) < 0 {
+		return sessions.Change{}, false
+	}
+	return sessions.Change{Op: sessions.OpStageParts, AmpChange: sessions.AmpChange{Plane: r.StageSide}, Parts: r.Designs[idx].Parts}, true
 }

@@ -336,6 +336,10 @@ func TestAmpFormsAndNoNoise(t *testing.T) {
 	if err != nil || ch.FreqHz != 2.45e9 || ch.GainStepsDB == nil || (*ch.GainStepsDB)[1] != 3 || ch.NFStepsDB != nil {
 		t.Errorf("amp.set: %+v, %v", ch, err)
 	}
+	ch, err = sc.ampChange("stage.set", map[string]string{"sourceNetworkId": "n1", "loadNetworkId": "n2"})
+	if err != nil || ch.SourceNetworkID != "n1" || ch.LoadNetworkID != "n2" || ch.StageReqs != nil {
+		t.Errorf("stage.set choosing networks: %+v, %v (no requirement field: requirements kept)", ch.AmpChange, err)
+	}
 	// A 2-port from a file without noise parameters.
 	two := testTwoPort()
 	ctx := context.Background()
@@ -361,4 +365,40 @@ func testTwoPort() *rfmath.Sweep {
 		copy(sw.Matrix(k), []complex128{cmplx.Rect(0.5, -math.Pi/3), cmplx.Rect(0.05, math.Pi/6), cmplx.Rect(2, 80*math.Pi/180), cmplx.Rect(0.4, -40*math.Pi/180)})
 	}
 	return sw
+}
+
+// The network search run from a stage network searches that network in the
+// stage: its stored designs say which side, its table judges them in the
+// stage (the figures the workbench then shows for the design), and using
+// one puts its parts into the stage's network rather than a new one.
+func TestNetworkSearchOnAStageSide(t *testing.T) {
+	t.Parallel()
+	f, _ := ampFixture(t, 2.44e9)
+	ctx := context.Background()
+	ev, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpStageSet})
+	if err != nil {
+		t.Fatal(err)
+	}
+	srcID := ev.State.Stage.SourceNetworkID
+	c := wsDial(t, f, f.sess.EditToken)
+	c.WriteJSON(inMsg{Type: "form", ID: 1, Form: "search.start", Fields: map[string]string{"parts": "2", "lseries": "E24", "cseries": "E24", "model": "0402"}})
+	readMsg(t, c, func(m map[string]any) bool { return m["type"] == "ack" && m["id"] == 1.0 })
+	readMsg(t, c, func(m map[string]any) bool { return m["type"] == "progress" && m["running"] == false })
+	st := f.state(t)
+	if st.Search == nil || st.Search.StageSide != "source" || len(st.Search.Designs) == 0 {
+		t.Fatalf("stored search %+v", st.Search)
+	}
+	row := f.srv.scene(f.sess.ID, st).searchView().Designs[0]
+	nets := len(st.Networks)
+	c.WriteJSON(inMsg{Type: "form", ID: 2, Form: "search.use", Fields: map[string]string{"index": "0"}})
+	readMsg(t, c, func(m map[string]any) bool { return m["type"] == "ack" && m["id"] == 2.0 })
+	st = f.state(t)
+	n := st.Networks[st.NetworkIndex(srcID)]
+	if len(st.Networks) != nets || len(n.Parts) != len(st.Search.Designs[0].Parts) || st.ActiveNetwork != srcID {
+		t.Fatalf("search.use: %d networks (was %d), source network %+v, active %q", len(st.Networks), nets, n.Parts, st.ActiveNetwork)
+	}
+	mv := f.srv.scene(f.sess.ID, st).networkView().Metrics[0]
+	if mv.Worst != row.Worst || mv.PowerWorst != row.Power {
+		t.Errorf("the workbench shows %s / %s for the design, the search table %s / %s", mv.Worst, mv.PowerWorst, row.Worst, row.Power)
+	}
 }

@@ -53,7 +53,7 @@ var Ops = []string{
 	OpSweepRefPlane, OpTDRSet,
 	OpSearchStore, OpSearchClear,
 	OpSetSave, OpSetRemove,
-	OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse,
+	OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts,
 	OpUndo, OpRedo,
 }
 
@@ -144,6 +144,8 @@ var Ops = []string{
 //	stage.remove                                forget the stage (its networks stay)
 //	stage.store     stageSearch                 keep a stage search's designs (the server sends it)
 //	stage.use       index                       put design index's parts into the stage's networks
+//	stage.parts     plane, parts                replace the parts of the stage's "source" or "load"
+//	                                            network (a network search's design for that side)
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //

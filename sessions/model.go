@@ -249,6 +249,10 @@ type SearchResult struct {
 	Objective string   `json:"objective,omitempty"`
 	Designs   []Design `json:"designs"`
 	Note      string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+	// StageSide is "source" or "load" when the search matched a network of
+	// the transistor stage (its load was the device's port with the other
+	// network in place); its designs then go into that network.
+	StageSide string `json:"stageSide,omitempty"`
 }
 
 // Design is one network a search found, with its figures when it was

@@ -404,7 +404,7 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
-	case OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse:
+	case OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts:
 		if err := computeAmp(cur, next, ch, &r, lim); err != nil {
 			return r, err
 		}

@@ -297,8 +297,8 @@ func TestChangeJSON(t *testing.T) {
 	if ch.Sweep != nil {
 		t.Errorf("sweep decoded from JSON: %+v", ch.Sweep)
 	}
-	if len(Ops) != 38 { // set.save and set.remove added to the 29; the 7 amplifier and stage ops
-		t.Errorf("Ops lists %d ops, want 38", len(Ops))
+	if len(Ops) != 39 { // set.save and set.remove added to the 29; the 8 amplifier and stage ops
+		t.Errorf("Ops lists %d ops, want 39", len(Ops))
 	}
 }
 

@@ -15,6 +15,7 @@ const (
 	OpStageRemove = "stage.remove"
 	OpStageStore  = "stage.store"
 	OpStageUse    = "stage.use"
+	OpStageParts  = "stage.parts"
 )
 
 // AmpView is the amplifier panel of a 2-port sweep: the frequency it is
@@ -305,6 +306,27 @@ func computeAmp(cur, next *State, ch *Change, r *result, lim Limits) error {
 		s.Search = &c
 		next.Stage = &s
 
+	case OpStageParts:
+		if cur.Stage == nil {
+			return invalid(op, "", "the session has no stage")
+		}
+		id := cur.Stage.SourceNetworkID
+		switch ch.Plane {
+		case "source":
+		case "load":
+			id = cur.Stage.LoadNetworkID
+		default:
+			return invalid(op, "plane", "%q: want \"source\" or \"load\"", ch.Plane)
+		}
+		if len(ch.Parts) > lim.PartsPerNetwork {
+			return invalid(op, "parts", "%d parts; a network holds at most %d", len(ch.Parts), lim.PartsPerNetwork)
+		}
+		if err := setParts(op, next, id, ch.Parts); err != nil {
+			return err
+		}
+		next.ActiveNetwork = id
+		r.ev.NetworkID = id
+
 	case OpStageUse:
 		if cur.Stage == nil || cur.Stage.Search == nil {
 			return invalid(op, "", "the session has no stage search result")
@@ -313,32 +335,39 @@ func computeAmp(cur, next *State, ch *Change, r *result, lim Limits) error {
 			return invalid(op, "index", "no such design")
 		}
 		d := cur.Stage.Search.Designs[*ch.Index]
-		for _, side := range []struct {
-			id    string
-			parts []Part
-		}{{cur.Stage.SourceNetworkID, d.Source}, {cur.Stage.LoadNetworkID, d.Load}} {
-			i := next.NetworkIndex(side.id)
-			if i < 0 {
-				return invalid(op, "", "the stage's networks are gone; set the stage up again")
-			}
-			n := &next.Networks[i]
-			n.Parts = make([]Part, 0, len(side.parts))
-			for _, p := range side.parts {
-				p.ID = ""
-				p.Params = cloneParams(p.Params)
-				if err := checkPart(op, &p); err != nil {
-					return err
-				}
-				id, err := uniqueID(func(id string) bool { return slices.ContainsFunc(n.Parts, func(q Part) bool { return q.ID == id }) })
-				if err != nil {
-					return err
-				}
-				p.ID = id
-				n.Parts = append(n.Parts, p)
-			}
+		if err := setParts(op, next, cur.Stage.SourceNetworkID, d.Source); err != nil {
+			return err
+		}
+		if err := setParts(op, next, cur.Stage.LoadNetworkID, d.Load); err != nil {
+			return err
 		}
 		next.ActiveNetwork = cur.Stage.SourceNetworkID
 		r.ev.NetworkID = next.ActiveNetwork
+	}
+	return nil
+}
+
+// setParts replaces the parts of network id of next with copies of ps,
+// each checked and given a new id.
+func setParts(op string, next *State, id string, ps []Part) error {
+	i := next.NetworkIndex(id)
+	if i < 0 {
+		return invalid(op, "", "the stage's network is gone; set the stage up again")
+	}
+	n := &next.Networks[i]
+	n.Parts = make([]Part, 0, len(ps))
+	for _, p := range ps {
+		p.ID = ""
+		p.Params = cloneParams(p.Params)
+		if err := checkPart(op, &p); err != nil {
+			return err
+		}
+		pid, err := uniqueID(func(id string) bool { return slices.ContainsFunc(n.Parts, func(q Part) bool { return q.ID == id }) })
+		if err != nil {
+			return err
+		}
+		p.ID = pid
+		n.Parts = append(n.Parts, p)
 	}
 	return nil
 }

@@ -170,3 +170,30 @@ func TestAmpChangeJSON(t *testing.T) {
 		t.Fatalf("decoded %+v", ch)
 	}
 }
+
+// stage.parts replaces one side's parts (a network search's design for
+// that side), makes that network active, and is one undo step.
+func TestStageParts(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{})
+	sid := create(t, st, "stage parts").ID
+	dev := addSweep(t, st, sid, testSweep(11, 2, 0.5e9, 1.5e9), "transistor")
+	ps := []Part{{Kind: PartSeriesC, Value: 1e-12}, {Kind: PartShuntL, Value: 5e-9}}
+	_, err := st.Apply(context.Background(), sid, Change{Op: OpStageParts, AmpChange: AmpChange{Plane: "load"}, Parts: ps})
+	wantErr(t, err, ErrInvalid, "")
+	ev := apply(t, st, sid, Change{Op: OpStageSet, SweepID: dev})
+	load := ev.State.Stage.LoadNetworkID
+	_, err = st.Apply(context.Background(), sid, Change{Op: OpStageParts, AmpChange: AmpChange{Plane: "both"}, Parts: ps})
+	wantErr(t, err, ErrInvalid, "plane")
+	_, err = st.Apply(context.Background(), sid, Change{Op: OpStageParts, AmpChange: AmpChange{Plane: "load"}, Parts: []Part{{Kind: PartSeriesC, Value: -1}}})
+	wantErr(t, err, ErrInvalid, "value")
+	ev = apply(t, st, sid, Change{Op: OpStageParts, AmpChange: AmpChange{Plane: "load"}, Parts: ps})
+	n := ev.State.Networks[ev.State.NetworkIndex(load)]
+	if len(n.Parts) != 2 || n.Parts[1].Kind != PartShuntL || ev.State.ActiveNetwork != load || len(ev.State.Networks) != 2 {
+		t.Fatalf("after stage.parts: %+v, active %q", n, ev.State.ActiveNetwork)
+	}
+	ev = apply(t, st, sid, Change{Op: OpUndo})
+	if len(ev.State.Networks[ev.State.NetworkIndex(load)].Parts) != 0 {
+		t.Error("undo leaves the parts")
+	}
+}

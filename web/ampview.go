@@ -45,18 +45,21 @@ type StageView struct {
 	Has      bool
 	TwoPorts []Option
 	Device   string
-	// Networks choose which of the two the workbench edits.
-	Networks     []Option
-	Source, Load string // each network's parts in words
-	Reqs         []StageReqRow
-	Bands        []StageBandRow
-	Stability    string
-	Stable       bool
-	NoiseNote    string
-	GainSVG      string // trusted SVG from chartsvg
-	RLSVG        string
-	Search       StageSearchView
-	Error        string
+	// Networks choose which of the two the workbench edits;
+	// SourceChoices and LoadChoices the session's networks on the device's
+	// port 1 and port 2 that can be the stage's.
+	Networks                   []Option
+	SourceChoices, LoadChoices []Option
+	Source, Load               string // each network's parts in words
+	Reqs                       []StageReqRow
+	Bands                      []StageBandRow
+	Stability                  string
+	Stable                     bool
+	NoiseNote                  string
+	GainSVG                    string // trusted SVG from chartsvg
+	RLSVG                      string
+	Search                     StageSearchView
+	Error                      string
 }
 
 // StageReqRow is one band's requirement as the form takes it ("" for none).
