@@ -94,7 +94,7 @@ func TestSearchStageUnilateralAgainstExhaustive(t *testing.T) {
 	}
 }
 
-// On the demo transistor with at most one part per side (E12, typical
+// On the demo transistor with at most one part per side (E6, typical
 // 0402 parts), the stage search finds the stage that brute force over
 // every pair of one-part networks finds best by the same ranking, with the
 // same figures. (A check on one case: the search is best found in general.)
@@ -102,14 +102,14 @@ func TestSearchStageAgainstBruteForcePairs(t *testing.T) {
 	t.Parallel()
 	dev, noise := demoTransistor(t)
 	bands := []amp.StageBand{{LoHz: 2.4e9, HiHz: 2.4835e9, StageRequirement: amp.StageRequirement{MinGainDB: 12, MaxNFdB: 1.6, MinInputRLdB: 5, MinOutputRLdB: 8}}}
-	set := Settings{LSeries: "E12", CSeries: "E12", MaxParts: 1, Model: parts.Typical0402}
+	set := Settings{LSeries: "E6", CSeries: "E6", MaxParts: 1, Model: parts.Typical0402}
 	res, err := SearchStage(context.Background(), dev, noise, 50, bands, &StageSettings{Settings: set})
 	if err != nil {
 		t.Fatal(err)
 	}
 	// Every one-part network of each kind over the same ranges the
 	// one-side searches use (their Result ranges).
-	r, err := Search(context.Background(), mustLoads(t, dev, noise).in, []Band{{LoHz: 2.4e9, HiHz: 2.4835e9}}, &Settings{LSeries: "E12", CSeries: "E12", MaxParts: 1, Model: parts.Typical0402})
+	r, err := Search(context.Background(), mustLoads(t, dev, noise).in, []Band{{LoHz: 2.4e9, HiHz: 2.4835e9}}, &Settings{LSeries: "E6", CSeries: "E6", MaxParts: 1, Model: parts.Typical0402})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -117,7 +117,7 @@ func TestSearchStageAgainstBruteForcePairs(t *testing.T) {
 	nets = append(nets, nil)
 	for _, k := range []Kind{SeriesL, ShuntL, SeriesC, ShuntC} {
 		lo, hi := r.LRange[0], r.LRange[1]
-		ser := "E12"
+		ser := "E6"
 		if k.Component() == rfmath.ComponentC {
 			lo, hi = r.CRange[0], r.CRange[1]
 		}
