@@ -170,8 +170,9 @@ func shareHosts(addr *net.TCPAddr) []string {
 }
 
 // seedDemo creates the demo sessions when the store has none, and returns
-// the edit token of the first demo session ("" when none was made). Each
-// demo shows the whole loop on invented data: the sweep as measured (for
+// the edit token of the first demo session ("" when none was made). The
+// third is the transistor stage (seedStageDemo). The first two show the
+// whole loop on invented data: the sweep as measured (for
 // the Fieldnode, through its cable, with the cable's fixture removed as a
 // reference-plane step), the bands, markers, and a network of standard
 // 0402 values chosen by the loss-aware search, with the search's designs
@@ -297,6 +298,9 @@ func seedDemo(ctx context.Context, st *sessions.Store, srv *server.Server) (stri
 		if err := seedSearch(ctx, st, se.ID, ids[loadName], ev.SetID, ms, bands, p.parts, p.markers[0], "Best across the three conditions"); err != nil {
 			return "", err
 		}
+	}
+	if err := seedStageDemo(ctx, st); err != nil { // demo_stage.go
+		return "", err
 	}
 	return first, nil
 }

@@ -59,6 +59,21 @@ func setOf(st *sessions.State, n *sessions.Network) setInputs {
 	return in
 }
 
+// stageInputs are the inputs a network of the transistor stage depends on
+// beyond its own: the stage and its other network (its load is the
+// device's port with the other network in place).
+type stageInputs struct {
+	Stage    *sessions.Stage    `json:"stage,omitempty"`
+	Networks []sessions.Network `json:"networks,omitempty"`
+}
+
+func stageOfNet(st *sessions.State, ne *netEval) stageInputs {
+	if ne.stageSide == "" || st.Stage == nil {
+		return stageInputs{}
+	}
+	return stageInputs{Stage: st.Stage, Networks: st.Networks}
+}
+
 // jobContext is the context the scene's heavy computations run under: a
 // derived job's (cancelled when the job is stale or the server stops), or
 // the background for a scene drawn directly.
@@ -79,14 +94,15 @@ func (s *Server) fillDerived(sc *scene) {
 	n := ne.n
 	load := loadOf(sc.st, n)
 	sc.limitsV = &web.LimitsView{BodeFano: "Bode–Fano: computing…"}
-	set := setOf(sc.st, n)
+	set, stage := setOf(sc.st, n), stageOfNet(sc.st, ne)
 	key := derivedKey{sc.sid, "limits", digest(struct {
 		Load     loadInputs      `json:"load"`
 		Set      setInputs       `json:"set"`
+		Stage    stageInputs     `json:"stage"`
 		Bands    []sessions.Band `json:"bands"`
 		DesignHz float64         `json:"designHz"`
 		Radius   float64         `json:"radius"`
-	}{load, set, sc.st.Bands, n.DesignHz, n.ChuRadiusM})}
+	}{load, set, stage, sc.st.Bands, n.DesignHz, n.ChuRadiusM})}
 	if v, ok := s.derived.get(key, sc.limitsJob()); ok {
 		lv := v.(web.LimitsView)
 		sc.limitsV = &lv
@@ -104,8 +120,9 @@ func (s *Server) fillDerived(sc *scene) {
 		Network *sessions.Network `json:"network"`
 		Load    loadInputs        `json:"load"`
 		Set     setInputs         `json:"set"`
+		Stage   stageInputs       `json:"stage"`
 		Bands   []sessions.Band   `json:"bands"`
-	}{n, load, set, sc.st.Bands})}
+	}{n, load, set, stage, sc.st.Bands})}
 	sc.yieldDone = true
 	if v, ok := s.derived.get(key, sc.yieldJob()); ok {
 		out := v.(yieldOut)

@@ -257,6 +257,12 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 			moved = append(moved, e.MarkerID)
 		}
 	}
+	if onlyAmpPoints(batch) {
+		if frags := rm.s.ampPointFrags(sc); frags != nil {
+			msg.Frags = frags
+			return msg
+		}
+	}
 	if onlyMarkers {
 		for i, id := range moved {
 			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit)
@@ -311,6 +317,11 @@ func (sc *scene) animationBase() *scene {
 func structureKey(st *sessions.State) string {
 	c := *st
 	c.Markers = nil
+	if c.Amp != nil { // the terminations are drawn from the state itself
+		a := *c.Amp
+		a.GammaS, a.GammaL = nil, nil
+		c.Amp = &a
+	}
 	b, _ := json.Marshal(&c)
 	return string(b)
 }
@@ -363,6 +374,7 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
 		frag{ID: "sets-panel", HTML: renderString(web.SetsPanel(v))},
 		frag{ID: "tuning-panel", HTML: renderString(web.TuningPanel(v))},
 		frag{ID: "refplane-panel", HTML: renderString(web.RefPlanePanel(v))},
+		frag{ID: "amp-panel", HTML: renderString(web.AmpPanel(v))},
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)
 	return out

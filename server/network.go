@@ -51,12 +51,17 @@ type netEval struct {
 	buy      []complex128 // Γ with standard values; nil when no part snaps
 	toLoad   []float64    // share of the available power at the load, as built
 	set      *setEval     // the load set the network is judged across, or nil
-	err      error
+	// stageSide is "source" or "load" for a network of the session's
+	// transistor stage, whose load is then the device's port with the
+	// other network in place (adaptStage, amp.go); "" otherwise.
+	stageSide string
+	err       error
 }
 
 // evalNetwork evaluates n over the sweep it sits on.
 func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 	ne := prepareNetwork(n, sc.all[n.SweepID])
+	adaptStage(sc.st, ne)
 	if ne.err != nil {
 		return ne
 	}
@@ -342,6 +347,7 @@ func (sc *scene) networkView() web.NetworkView {
 	for i := range v.Loads {
 		v.Loads[i].Selected = v.Loads[i].Value == n.SweepID
 	}
+	v.StageNote = stageNote(ne)
 	if ne.err != nil {
 		v.Error = ne.err.Error()
 		return v

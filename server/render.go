@@ -72,6 +72,9 @@ type scene struct {
 	tdrP    *plot
 	tdrNote string
 	prev    *scene // the scene before, while a room renders an event
+
+	amp   *ampEval   // the amplifier view, or nil (amp.go)
+	stage *stageEval // the transistor stage, or nil (amp.go)
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
@@ -136,6 +139,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 		sc.net = sc.evalNetwork(n)
 	}
 	s.fillDerived(sc)
+	s.evalAmp(sc)
 	return sc
 }
 
@@ -558,5 +562,6 @@ func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
 		Sets:     sc.setsView(),
 		Tuning:   sc.tuningView(),
 		RefPlane: sc.refPlaneView(),
+		Amp:      sc.ampView(),
 	}
 }

@@ -140,7 +140,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 	s.search.jobs[sc.sid] = job
 	s.search.mu.Unlock()
 
-	sid, sweepID, port := sc.sid, ne.n.SweepID, ne.port
+	sid, sweepID, port, stageSide := sc.sid, ne.n.SweepID, ne.port, ne.stageSide
 	go func() {
 		defer close(job.done)
 		defer cancel()
@@ -173,7 +173,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board}
+		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board, StageSide: stageSide}
 		for _, d := range res.Designs {
 			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
@@ -293,6 +293,9 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		if setID != "" && sc.st.LoadSetIndex(setID) < 0 {
 			setID = "" // the set is gone: the design lands on its sweep alone
 		}
+		if ch, ok := stagePartsChange(sc.st, r, idx); ok { // amp.go: into the stage's network
+			return ch, nil
+		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
 			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID, Layout: r.Layout.For(len(r.Designs[idx].Parts))}, nil
 	case "synth.use", "stub.use":
@@ -383,7 +386,8 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		row.Bands = "the searched sweep is gone"
 		return row
 	}
-	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
+	ne := prepareNetwork(&sessions.Network{ID: stageNetworkID(sc.st, r), SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
+	adaptStage(sc.st, ne) // a stage side's design is judged in the stage, as it was searched
 	bands, _ := ne.netBands(sc.st, true)
 	if ne.err != nil || len(bands) == 0 {
 		row.Bands = "no band with a requirement inside the sweep"

@@ -101,6 +101,7 @@ type Server struct {
 
 	derived  *derivedCache // heavy results by session and inputs (derived.go)
 	searches chan struct{} // slots of the searches running
+	noise    noiseCache    // amp.go
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.

@@ -295,14 +295,18 @@ func (c *conn) push(m inMsg) bool {
 }
 
 func isDrag(m inMsg) bool {
-	return (m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove) ||
+	return (m.Type == "change" && m.Change != nil && (m.Change.Op == sessions.OpMarkerMove || m.Change.Op == sessions.OpAmpPoint)) ||
 		(m.Type == "partdrag" && m.Change != nil)
 }
 
-// dragKey is what a drag moves: one marker or one part.
+// dragKey is what a drag moves: one marker, one part or one termination
+// of the amplifier view.
 func dragKey(m inMsg) string {
-	if m.Type == "partdrag" {
+	switch {
+	case m.Type == "partdrag":
 		return "p:" + m.Change.PartID
+	case m.Change.Op == sessions.OpAmpPoint:
+		return "a:" + m.Change.Plane
 	}
 	return "m:" + m.Change.MarkerID
 }
@@ -369,6 +373,26 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 		sc, err := c.scene(ctx)
 		if err == nil {
 			ch, err = sc.searchChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	case m.Type == "form" && m.Form == "stage.search":
+		sc, err := c.scene(ctx)
+		if err == nil {
+			err = c.s.startStageSearch(sc, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+		c.reply(outMsg{Type: "ack", ID: m.ID})
+		return
+	case m.Type == "form" && ampForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.ampChange(m.Form, m.Fields)
 		}
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
@@ -504,6 +528,7 @@ func (c *conn) activeNetwork(ctx context.Context) (*netEval, error) {
 		return nil, err
 	}
 	ne := prepareNetwork(n, sw)
+	adaptStage(st, ne)
 	return ne, ne.err
 }
 

@@ -43,7 +43,7 @@ const (
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
-var coalescible = map[string]bool{OpMarkerMove: true, OpPartSet: true}
+var coalescible = map[string]bool{OpMarkerMove: true, OpPartSet: true, OpAmpPoint: true}
 
 // Ops lists every op [Store.Apply] accepts, in a stable order.
 var Ops = []string{
@@ -58,6 +58,7 @@ var Ops = []string{
 	OpSearchStore, OpSearchClear,
 	OpSetSave, OpSetRemove,
 	OpNetworkLayout, OpTuneStore, OpTuneUse,
+	OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts,
 	OpUndo, OpRedo,
 }
 
@@ -139,6 +140,25 @@ var Ops = []string{
 //	tune.use        tuneId, index               make suggestion index of round tuneId the next
 //	                                            candidate network (with the round's layout), active,
 //	                                            and mark it chosen
+//	amp.set         sweepId, freqHz,            open or change the amplifier view of a 2-port sweep
+//	                gainStepsDB, nfStepsDB      (an [AmpView]): the frequency (default: the band
+//	                                            centre), the gain circles in dB below the maximum
+//	                                            gain and the noise circles in dB above NFmin
+//	                                            (each positive, at most 8; absent keeps them)
+//	amp.point       plane, gamma, gesture       place the source ("source") or load ("load")
+//	                                            termination; |Γ| is held below 1; moves with the
+//	                                            same gesture are one undo step
+//	amp.clear                                   close the amplifier view
+//	stage.set       sweepId, sourceNetworkId,   set up the transistor stage (a [Stage]) on a 2-port
+//	                loadNetworkId, stageReqs    sweep (default: the amplifier view's): its source and
+//	                                            load networks (absent: new empty ones on ports 1
+//	                                            and 2) and its requirement per band (a [StageReq]
+//	                                            each; absent keeps them)
+//	stage.remove                                forget the stage (its networks stay)
+//	stage.store     stageSearch                 keep a stage search's designs (the server sends it)
+//	stage.use       index                       put design index's parts into the stage's networks
+//	stage.parts     plane, parts                replace the parts of the stage's "source" or "load"
+//	                                            network (a network search's design for that side)
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -201,6 +221,9 @@ type Change struct {
 	SetID   string      `json:"setId,omitempty"`
 	SetKind string      `json:"setKind,omitempty"`
 	Members []SetMember `json:"members,omitempty"`
+
+	// AmpChange is the payload of the amplifier and stage ops.
+	AmpChange
 
 	RefPlane   *RefPlane     `json:"refPlane,omitempty"`
 	Search     *SearchResult `json:"search,omitempty"`

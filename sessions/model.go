@@ -53,6 +53,11 @@ type State struct {
 	// Tuning holds the rounds of bench tuning, oldest first: each a
 	// re-measured board, the fit of it and the swaps it suggested.
 	Tuning []TuneRound `json:"tuning,omitempty"`
+	// Amp is the amplifier view of a 2-port sweep, and Stage a transistor
+	// stage with its two networks (see stage.go); nil for none. Both are
+	// replaced whole by their ops, never changed in place.
+	Amp   *AmpView `json:"amp,omitempty"`
+	Stage *Stage   `json:"stage,omitempty"`
 }
 
 // LoadSet groups sweeps of one load: the same device in several conditions
@@ -364,6 +369,10 @@ type SearchResult struct {
 	// Layout, when set, is the board the designs were judged on (the
 	// searched network's); a design made a network takes it.
 	Layout *Layout `json:"layout,omitempty"`
+	// StageSide is "source" or "load" when the search matched a network of
+	// the transistor stage (its load was the device's port with the other
+	// network in place); its designs then go into that network.
+	StageSide string `json:"stageSide,omitempty"`
 }
 
 // Design is one network a search found, with its figures when it was

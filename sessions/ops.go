@@ -422,11 +422,17 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
+	case OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts:
+		if err := computeAmp(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
 	case "":
 		return r, invalid("(no op)", "op", "missing")
 	default:
 		return r, invalid(op, "op", "unknown op %q", op)
 	}
+	tidyAmp(next)
 	return r, nil
 }
 

@@ -59,6 +59,7 @@ type SessionView struct {
 	Sets     SetsView
 	Tuning   TuningView
 	RefPlane RefPlaneView
+	Amp      AmpPanelView // ampview.go
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
 }
@@ -181,6 +182,8 @@ type NetworkView struct {
 	// and Sets every set of the session as a choice.
 	Set  NetSetView
 	Sets []Option
+	// StageNote says what a network of the transistor stage matches.
+	StageNote string
 }
 
 // NetSetView shows the active network on each member of its load set.

@@ -427,6 +427,21 @@ document.addEventListener("input", (ev) => {
 });
 document.addEventListener("focusout", () => { if (!sliding) setTimeout(flushPending, 0); });
 
+// ---- amplifier panel: dragging a termination (server/amp.go, web/amp.templ) ----
+// The Γs handle of the source-plane chart and the ΓL handle of the
+// load-plane chart drag like a marker: at most one amp.point change per
+// animation frame, one gesture (one undo step) per drag. The server
+// answers with the two handles and the readout.
+document.addEventListener("pointerdown", (ev) => {
+	const fig = ev.target.closest(".amp-chart[data-plane]");
+	if (!fig || !canEdit || !ev.target.closest("g.handle")) return;
+	startDrag("amp", fig.dataset.plane, ev, fig.querySelector("svg"));
+});
+document.addEventListener("pointermove", (ev) => {
+	if (!drag || drag.kind !== "amp") return;
+	queueMove({ op: "amp.point", plane: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+});
+
 // ---- uploads ----
 
 async function upload(files) {
