@@ -70,6 +70,12 @@ type Chart struct {
 	// Tag, when set, is written on the root element as data-tag, so that a
 	// page can tell which of its requests a drawing answers.
 	Tag string
+
+	// Regions are circles and lines drawn from their numbers with a side
+	// shaded, above the grid; Spots are labelled points on top of
+	// everything (see regions.go). A nil slice leaves its layer out.
+	Regions []Region
+	Spots   []Spot
 }
 
 // layout is the geometry derived from the options.
@@ -192,9 +198,15 @@ func (c *Chart) Render(w io.Writer, traces []Trace, markers []Marker, path []Pat
 	sw.num(height)
 	sw.s(`" fill="#fff"/>`)
 	c.grid(sw, l)
+	if c.Regions != nil {
+		c.regions(sw, l)
+	}
 	c.traces(sw, l, traces)
 	c.path(sw, l, path)
 	c.markers(sw, l, markers)
+	if c.Spots != nil {
+		c.spots(sw, l)
+	}
 	if !c.NoLegend {
 		c.legend(sw, l, traces)
 	}

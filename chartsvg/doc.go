@@ -52,9 +52,13 @@
 //
 //	P+"grid"        grid layer: disc, grids, labels, scales, overlays, caption
 //	P+"clip"        the clip path of the shown disc (zoomed charts only)
+//	P+"regions"     shaded circles and lines (Chart.Regions, when set);
+//	                P+"region-"+Region.ID for each, P+"rclip" its clip
 //	P+"traces"      all traces; P+"trace-"+Trace.ID for each
 //	P+"match-path"  the matching path
 //	P+"markers"     all markers; P+"mk-"+Marker.ID for each
+//	P+"spots"       labelled points and handles (Chart.Spots, when set);
+//	                P+"spot-"+Spot.ID for each
 //	P+"legend"      the legend strip
 //
 // and for a Plot with Plot.IDPrefix P:

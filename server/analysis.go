@@ -33,7 +33,11 @@ func (sc *scene) limitsView() web.LimitsView {
 	}
 	l, bands := ne.matchLoad(sc.st)
 	if len(bands) > 0 {
-		lim, fit, err := match.BodeFanoOf(l, bands)
+		members := []match.Member{{Load: l}}
+		if ne.set != nil {
+			members = ne.set.members
+		}
+		lim, fit, err := match.BodeFanoOfSet(members, bands)
 		if err != nil {
 			v.BodeFano = "Bode–Fano: " + plainDetail(err.Error())
 		} else {
@@ -100,9 +104,16 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 		sc.yieldMsg = "Yield needs a band with a requirement (return loss or power to the load)."
 		return nil, sc.yieldMsg
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
-	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
+	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces, Tolerances: ne.board.Tolerances()}
+	var res *match.YieldResult
+	var err error
+	if ne.set != nil {
+		res, err = match.YieldSet(ctx, ne.set.members, ne.set.kind(), bands, ne.board.Network, ys)
+	} else {
+		res, err = match.Yield(ctx, l, bands, ne.board.Network, ys)
+	}
 	if err != nil {
 		sc.yieldMsg = "Yield: " + plainDetail(err.Error())
 		return nil, sc.yieldMsg
@@ -126,12 +137,17 @@ func (sc *scene) yieldView() web.YieldView {
 	}
 	v.Summary = fmt.Sprintf("%d builds (seed %d): %s meet every requirement of every band (return loss and power to the load). Margin: median %s, 5th percentile %s, worst build %s; worst corner %s.",
 		res.Builds, max(ne.n.YieldSeed, 1), units.FormatPercent(res.Yield, 1), signedDB(res.MedianMarginDB), signedDB(res.P5MarginDB), signedDB(res.WorstMarginDB), signedDB(res.WorstCorner.MarginDB))
-	for i, s := range res.Sensitivity {
+	for j, s := range res.Sensitivity {
+		o := ne.board.Origins[j]
+		if o.Role != match.RolePart {
+			continue // the board's pads and traces have no tolerance drawn
+		}
+		i := o.Index
 		u := ne.n.Parts[i].Kind.Unit()
 		v.Parts = append(v.Parts, web.SensRow{
 			Designator: designator(ne.n.Parts, i), Tol: "±" + units.Format(s.Tolerance, u, 3),
 			Low: signedDB(s.LowDB), High: signedDB(s.HighDB),
-			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: i == res.MostSensitive,
+			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: j == res.MostSensitive,
 		})
 	}
 	return v
@@ -146,7 +162,12 @@ func (sc *scene) cloudTraces(chartZ0 float64) []chartsvg.Trace {
 	}
 	out := make([]chartsvg.Trace, 0, len(res.Traces))
 	for i, g := range res.Traces {
-		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: toChart(g, sc.net.z0, chartZ0), Ticks: -1, NoLegend: i > 0})
+		freq, z0 := sc.net.sweep.FreqHz, sc.net.z0
+		if sc.net.set != nil {
+			m := sc.net.set.members[res.TraceMembers[i]].Load
+			freq, z0 = m.FreqHz, m.Z0Ohm
+		}
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: freq, Gamma: toChart(g, z0, chartZ0), Ticks: -1, NoLegend: i > 0})
 	}
 	return out
 }

@@ -59,20 +59,7 @@ func TestBrowserLossAware(t *testing.T) {
 	ctx := browser(t)
 	ectx, cancel := context.WithTimeout(ctx, 120*time.Second)
 	defer cancel()
-	must := func(err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	waitFor := func(js string) {
-		t.Helper()
-		wctx, c := context.WithTimeout(ectx, 30*time.Second)
-		defer c()
-		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			t.Fatalf("waiting for %s: %v", js, err)
-		}
-	}
+	must, waitFor := steps(t, ectx, 30*time.Second)
 	share := func() float64 { // the first band's worst power to the load, in %
 		t.Helper()
 		s, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-power-worst"]`)))

@@ -224,21 +224,7 @@ func TestBrowserMatching(t *testing.T) {
 	ctx := browser(t)
 	ectx, cancel := context.WithTimeout(ctx, 90*time.Second)
 	defer cancel()
-	must := func(err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	waitFor := func(js string) {
-		t.Helper()
-		wctx, c := context.WithTimeout(ectx, 10*time.Second)
-		defer c()
-		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			state, _ := chromedp.Run(ectx, chromedp.Evaluate[string](`(document.querySelector("#notice")||{}).textContent + " | " + [...document.querySelectorAll('[data-testid="part-value"]')].map(e => e.value).join(", ") + " | active: " + (document.activeElement && document.activeElement.outerHTML.slice(0, 120)) + " | errors: " + (window.__errs || []).join("; ")`))
-			t.Fatalf("waiting for %s: %v (page: %s)", js, err, state)
-		}
-	}
+	must, waitFor := steps(t, ectx, 10*time.Second)
 	must(chromedp.Do(ectx,
 		chromedp.EmulateViewport(1400, 1700),
 		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.EditToken+"/"),

@@ -45,6 +45,9 @@ func netComments(sc *scene, ne *netEval) []string {
 	for i := range ne.n.Parts {
 		c = append(c, " "+partLine(ne, i))
 	}
+	if !ne.lay.IsZero() {
+		c = append(c, " on the board: "+ne.lay.Describe(ne.built)+" (included in the figures)")
+	}
 	return asciiOnly(c)
 }
 
@@ -112,7 +115,7 @@ func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	l, err := ne.built.Ladder()
+	l, err := ne.board.Network.Ladder()
 	if err != nil {
 		http.Error(w, "The network cannot be built: "+err.Error(), http.StatusUnprocessableEntity)
 		return
@@ -159,19 +162,19 @@ func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
 	}
 	fmt.Fprintf(bw, "* nodes: SRC faces the source (radio), LOAD the load (antenna), 0 ground\n")
 	fmt.Fprintf(bw, ".SUBCKT MATCH_%s SRC LOAD 0\n", name)
-	ps := ne.n.Parts
-	node := func(k int) string { // node between part k-1 and part k, from the load
+	els := ne.board.Network
+	node := func(k int) string { // node between element k-1 and element k, from the load
 		switch {
 		case k == 0:
 			return "LOAD"
-		case k == len(ps):
+		case k == len(els):
 			return "SRC"
 		}
 		return "N" + strconv.Itoa(k)
 	}
 	fd := ne.n.DesignHz
-	for k, p := range ne.built {
-		ref := designator(ps, k)
+	for k, p := range els {
+		ref := netlistRef(ne, k)
 		a, b := node(k), node(k+1)
 		if p.Kind.Shunt() {
 			// A shunt part hangs from this part's node; the line runs on.
@@ -243,6 +246,20 @@ func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
 	return bw.Flush()
 }
 
+// netlistRef names element k of the board's network in a netlist: the
+// part's designator, PADn for the pads at node n, TRg for the trace in gap
+// g.
+func netlistRef(ne *netEval, k int) string {
+	switch o := ne.board.Origins[k]; o.Role {
+	case match.RolePads:
+		return "PAD" + strconv.Itoa(o.Index)
+	case match.RoleTrace:
+		return "TR" + strconv.Itoa(o.Index)
+	default:
+		return designator(ne.n.Parts, o.Index)
+	}
+}
+
 func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
 	sc, ne, ok := s.activeNet(w, r)
 	if !ok {
@@ -252,6 +269,24 @@ func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
 	if err := writeNetlist(w, sc, ne); err != nil {
 		s.log.Error("export netlist", "err", err)
 	}
+}
+
+// exportNetworkFile writes the active network with its board as a network
+// file (rfmath/match's NET.json, the format `matchbench tune --network`
+// reads and `matchbench match --json` writes).
+func (s *Server) exportNetworkFile(w http.ResponseWriter, r *http.Request) {
+	_, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	b, err := match.MarshalNetwork(ne.design, ne.lay)
+	if err != nil {
+		s.log.Error("export network file", "err", err)
+		http.Error(w, "The network cannot be written.", http.StatusInternalServerError)
+		return
+	}
+	attachment(w, safeName(ne.n.Name)+".json", "application/json")
+	w.Write(b)
 }
 
 // partsRows are the parts list: designator, kind, value, series,
@@ -314,13 +349,16 @@ func (sc *scene) powerRows() ([]web.PowerRow, string) {
 	if len(bands) == 0 {
 		bands = []match.Band{{LoHz: ne.n.DesignHz, HiHz: ne.n.DesignHz}}
 	}
-	rep, err := match.Stress(ne.load, bands, ne.built, match.StressSettings{PowerW: ne.n.PowerW})
+	rep, err := match.Stress(ne.load, bands, ne.board.Network, match.StressSettings{PowerW: ne.n.PowerW})
 	if err != nil {
 		return nil, "Stress: " + err.Error()
 	}
 	var rows []web.PowerRow
 	for k, r := range rep {
-		row := web.PowerRow{Designator: designator(ne.n.Parts, k), VPeak: units.Format(r.WorstV.VPeak, "V", 3), IRMS: units.Format(r.WorstI.IRMS, "A", 3),
+		if ne.board.Origins[k].Role != match.RolePart {
+			continue // the board's pads and traces carry no rating
+		}
+		row := web.PowerRow{Designator: designator(ne.n.Parts, ne.board.Origins[k].Index), VPeak: units.Format(r.WorstV.VPeak, "V", 3), IRMS: units.Format(r.WorstI.IRMS, "A", 3),
 			Heat: units.Format(r.WorstP.DissipationW, "W", 3), Rating: "—", At: fmtF(r.WorstV.FreqHz)}
 		if t := ratingText(r.Rating); t != "" {
 			row.Rating = t
@@ -356,7 +394,10 @@ func (s *Server) report(w http.ResponseWriter, r *http.Request) {
 		Title: ne.n.Name + " report · matchbench", Session: sc.st.Name, Network: ne.n.Name,
 		Load: fmt.Sprintf("%s S%d%d", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port), Design: fmtF(ne.n.DesignHz),
 		Generated: time.Now().Format("2006-01-02 15:04"), ChartBefore: before.String(), ChartAfter: after.String(), Plot: plotB.String(),
-		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW,
+		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW, Set: nv.Set,
+	}
+	if !ne.lay.IsZero() {
+		v.Board = ne.lay.Describe(ne.built)
 	}
 	s.render(w, r, http.StatusOK, web.ReportPage(v))
 }

@@ -47,13 +47,18 @@ type anim struct {
 // room fans the events of one session out to its websocket connections.
 // It renders each event once per capability and shares the bytes.
 type room struct {
-	s   *Server
-	sid string
-	sub *sessions.Subscription
+	s     *Server
+	sid   string
+	sub   *sessions.Subscription
+	share *sessionShare // the session's; the room draws in its slot
+	// redraw asks the room to redraw its pages at the latest state: a
+	// derived result they show as computing is ready.
+	redraw chan struct{}
 
 	mu    sync.Mutex
 	conns map[*conn]struct{}
 	last  *scene // the scene of the latest state, reused while the structure is unchanged
+	lastV int64  // the version of the update sent last
 	key   string
 	done  chan struct{}
 }
@@ -71,7 +76,7 @@ func (s *Server) join(c *conn) (*room, error) {
 		if err != nil {
 			return nil, err
 		}
-		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{})}
+		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{}), share: s.share(c.sid), redraw: make(chan struct{}, 1)}
 		s.rooms[c.sid] = rm
 		go rm.run()
 	}
@@ -97,7 +102,21 @@ func (s *Server) leave(rm *room, c *conn) {
 
 func (rm *room) run() {
 	defer close(rm.done)
-	for ev := range rm.sub.C {
+	for {
+		var ev sessions.Event
+		select {
+		case e, ok := <-rm.sub.C:
+			if !ok {
+				rm.ended() // tokens.go: overflow, re-issued links, shutdown
+				return
+			}
+			ev = e
+		case <-rm.redraw:
+			rm.share.drawing(context.Background())
+			rm.redrawAll()
+			rm.share.done()
+			continue
+		}
 		// Events that arrived while the last one was being sent go out as
 		// one update: a room that falls behind a fast drag sends the latest
 		// state, not every step of the way.
@@ -114,9 +133,65 @@ func (rm *room) run() {
 				break drain
 			}
 		}
+		rm.share.drawing(context.Background())
 		rm.broadcast(batch)
+		rm.share.done()
 	}
-	rm.ended() // tokens.go: overflow, re-issued links, shutdown
+}
+
+// askRedraw asks the room to redraw its pages; asks that come while one
+// waits are one.
+func (rm *room) askRedraw() {
+	select {
+	case rm.redraw <- struct{}{}:
+	default:
+	}
+}
+
+// redrawAll draws the session's latest state afresh (with the derived
+// results the cache now holds) and sends it to every page as a full update
+// at that version, unless the page has an update as new already.
+//
+// The state is the one the room sent last, so that a redraw never overtakes
+// an update still to be sent (whose animation it would swallow); a room
+// that has sent none yet takes the store's.
+func (rm *room) redrawAll() {
+	rm.mu.Lock()
+	var st *sessions.State
+	v := rm.lastV
+	if rm.last != nil {
+		st = rm.last.st
+	}
+	rm.mu.Unlock()
+	if st == nil {
+		var err error
+		if st, v, err = rm.s.store.State(context.Background(), rm.sid); err != nil {
+			return // the room ends with the session
+		}
+	}
+	sc := rm.s.scene(rm.sid, st)
+	rm.mu.Lock()
+	if rm.last != nil && rm.last.st == st {
+		sc.prev = rm.last.prev
+		rm.last = sc
+	}
+	rm.mu.Unlock()
+	msgs := map[string][]byte{} // by capability and page view, as broadcast
+	for _, c := range rm.snapshot() {
+		pv := c.currentView()
+		key := strconv.Itoa(int(c.cap)) + "/" + pv.key()
+		b, ok := msgs[key]
+		if !ok {
+			var err error
+			b, err = json.Marshal(outMsg{Type: "update", V: v, Op: "derived",
+				Frags: rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: c.cap, Token: c.token}, v, pv)})
+			if err != nil {
+				return
+			}
+			msgs[key] = b
+		}
+		c.queueRedraw(v, b)
+	}
 }
 
 // maxBatch bounds the events merged into one update.
@@ -144,6 +219,9 @@ func (rm *room) closeAll(reason string) {
 // connection.
 func (rm *room) broadcast(batch []sessions.Event) {
 	ev := batch[len(batch)-1]
+	rm.mu.Lock()
+	rm.lastV = ev.Version
+	rm.mu.Unlock()
 	conns := rm.snapshot()
 	msgs := map[string][]byte{} // by capability and view
 	for _, c := range conns {
@@ -188,6 +266,12 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 			moved = append(moved, e.MarkerID)
 		}
 	}
+	if onlyAmpPoints(batch) {
+		if frags := rm.s.ampPointFrags(sc); frags != nil {
+			msg.Frags = frags
+			return msg
+		}
+	}
 	if onlyMarkers {
 		for i, id := range moved {
 			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit, v)
@@ -212,20 +296,29 @@ func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 		return prev, prev.prev
 	}
 	key := structureKey(st)
+	back := prev.animationBase()
 	if prev != nil && rm.key == key {
 		c := *prev
-		c.st, c.prev = st, prev
+		c.st, c.prev = st, back
 		sc = &c
 	} else {
 		sc = rm.s.scene(rm.sid, st)
-		sc.prev = prev
+		sc.prev = back
 		rm.key = key
-	}
-	if prev != nil {
-		prev.prev = nil // keep one scene back, not the whole history
 	}
 	rm.last = sc
 	return sc, prev
+}
+
+// animationBase is what a scene keeps of the scene before it: the state
+// and the active network, from which stepAnimation starts a step. The
+// traces, plots and drawings of the scene before are not kept, so a room
+// holds one scene's worth of series, not two. A nil scene gives nil.
+func (sc *scene) animationBase() *scene {
+	if sc == nil {
+		return nil
+	}
+	return &scene{sid: sc.sid, st: sc.st, net: sc.net}
 }
 
 // structureKey identifies everything of a state except its markers: when
@@ -233,6 +326,11 @@ func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 func structureKey(st *sessions.State) string {
 	c := *st
 	c.Markers = nil
+	if c.Amp != nil { // the terminations are drawn from the state itself
+		a := *c.Amp
+		a.GammaS, a.GammaL = nil, nil
+		c.Amp = &a
+	}
 	b, _ := json.Marshal(&c)
 	return string(b)
 }
@@ -281,7 +379,10 @@ func (s *Server) fullFrags(sc *scene, a access, ver int64, pv *pageView) []frag 
 		frag{ID: "bands-panel", HTML: renderString(web.BandsPanel(v))},
 		frag{ID: "chart-panel", HTML: renderString(web.ChartPanel(v))},
 		frag{ID: "network-panel", HTML: renderString(web.NetworkPanel(v))},
+		frag{ID: "sets-panel", HTML: renderString(web.SetsPanel(v))},
+		frag{ID: "tuning-panel", HTML: renderString(web.TuningPanel(v))},
 		frag{ID: "refplane-panel", HTML: renderString(web.RefPlanePanel(v))},
+		frag{ID: "amp-panel", HTML: renderString(web.AmpPanel(v))},
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)
 	return out

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -32,33 +33,49 @@ type netEval struct {
 	design match.Network // the parts as typed, with their models
 	built  match.Network // the parts at their standard values (as typed where they have none)
 	snaps  bool          // some part's standard value differs from its typed one
-	load   match.Load
-	sweep  *rfmath.Sweep
-	port   int
-	z0     float64
-	gLoad  []complex128
-	ideal  []complex128 // Γ with the values as typed
-	buy    []complex128 // Γ with standard values; nil when no part snaps
-	toLoad []float64    // share of the available power at the load, as built
-	err    error
+	// lay is the network's board (zero without one); board is built placed
+	// on it and typed the design as typed placed on it (match.Layout.Place):
+	// the networks every figure, trace and export judges. Without a board
+	// they are built and design themselves. boardErr says why a stored
+	// board is left out.
+	lay      match.Layout
+	board    match.Placed
+	typed    match.Network
+	boardErr string
+	load     match.Load
+	sweep    *rfmath.Sweep
+	port     int
+	z0       float64
+	gLoad    []complex128
+	ideal    []complex128 // Γ with the values as typed
+	buy      []complex128 // Γ with standard values; nil when no part snaps
+	toLoad   []float64    // share of the available power at the load, as built
+	set      *setEval     // the load set the network is judged across, or nil
+	// stageSide is "source" or "load" for a network of the session's
+	// transistor stage, whose load is then the device's port with the
+	// other network in place (adaptStage, amp.go); "" otherwise.
+	stageSide string
+	err       error
 }
 
 // evalNetwork evaluates n over the sweep it sits on.
 func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 	ne := prepareNetwork(n, sc.all[n.SweepID])
+	adaptStage(sc.st, ne)
 	if ne.err != nil {
 		return ne
 	}
 	var err error
-	if ne.ideal, ne.toLoad, err = match.Response(ne.load, ne.design, nil, nil); err != nil {
+	if ne.ideal, ne.toLoad, err = match.Response(ne.load, ne.typed, nil, nil); err != nil {
 		ne.err = err
 		return ne
 	}
 	if ne.snaps {
-		if ne.buy, ne.toLoad, err = match.Response(ne.load, ne.built, nil, nil); err != nil {
+		if ne.buy, ne.toLoad, err = match.Response(ne.load, ne.board.Network, nil, nil); err != nil {
 			ne.err = err
 		}
 	}
+	sc.evalSet(ne)
 	return ne
 }
 
@@ -78,9 +95,46 @@ func prepareNetwork(n *sessions.Network, sw *rfmath.Sweep) *netEval {
 	ne.built, ne.snaps = ne.design.Built(), ne.design.HasSnaps()
 	if _, err := ne.built.Circuit(); err != nil {
 		ne.err = err
+		return ne
 	}
+	ne.placeOnBoard()
 	return ne
 }
+
+// placeOnBoard places the network on its stored board (see netEval); a
+// board that no longer fits the parts is left out with a note.
+func (ne *netEval) placeOnBoard() {
+	ne.board, ne.typed = match.Placed{Network: ne.built}, ne.design
+	for i := range ne.built {
+		ne.board.Origins = append(ne.board.Origins, match.Origin{Role: match.RolePart, Index: i})
+	}
+	lay, err := ne.n.Layout.Board(len(ne.n.Parts))
+	if err != nil {
+		ne.boardErr = "the board is left out: " + err.Error()
+		return
+	}
+	if lay.IsZero() {
+		return
+	}
+	b, err1 := lay.Place(ne.built)
+	t, err2 := lay.Place(ne.design)
+	if err1 != nil || err2 != nil {
+		ne.boardErr = "the board is left out: " + errors.Join(err1, err2).Error()
+		return
+	}
+	ne.lay, ne.board, ne.typed = lay, b, t.Network
+}
+
+// elem returns the index in the board's network of part i.
+func (ne *netEval) elem(i int) int {
+	if e := ne.board.Element(match.RolePart, i); e >= 0 {
+		return e
+	}
+	return i
+}
+
+// elementName names element j of the board's network (match.Placed.Name).
+func (ne *netEval) elementName(j int) string { return ne.board.Name(ne.design, j) }
 
 // designOf adapts the stored network's parts to the design type that the
 // search, the yield, the panel and the exports all judge: the one adapter
@@ -126,11 +180,21 @@ func (ne *netEval) pathAt(override int, ov, frac, chartZ0 float64) ([]chartsvg.P
 	if ne.err != nil {
 		return nil, nil
 	}
-	tracks := ne.built.Path(ne.n.DesignHz, ne.loadAt(ne.n.DesignHz), ne.z0, pathSamples, override, ov, frac)
+	if override >= 0 {
+		override = ne.elem(override)
+	}
+	tracks := ne.board.Network.Path(ne.n.DesignHz, ne.loadAt(ne.n.DesignHz), ne.z0, pathSamples, override, ov, frac)
 	segs := make([]chartsvg.PathSegment, 0, len(tracks))
 	var handles []chartsvg.Marker
-	for i, pts := range tracks {
+	for j, pts := range tracks {
 		pts = toChart(pts, ne.z0, chartZ0)
+		o := ne.board.Origins[j]
+		if o.Role != match.RolePart {
+			// The board's pads and traces: steps of the path without a handle.
+			segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: boardColour})
+			continue
+		}
+		i := o.Index
 		p := ne.n.Parts[i]
 		col := partColours[i%len(partColours)]
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col})
@@ -139,27 +203,18 @@ func (ne *netEval) pathAt(override int, ov, frac, chartZ0 float64) ([]chartsvg.P
 	return segs, handles
 }
 
+// boardColour draws the steps of the board's pads and traces on the
+// matching path.
+const boardColour = "#9e9e9e"
+
 // designator names part i as a parts list would: L1, C2, R3, TL1, TS1, T1,
-// counted by kind from the load.
+// counted by kind from the load (match.Network.Designator).
 func designator(parts []sessions.Part, i int) string {
-	prefix := func(p sessions.Part) string {
-		switch p.Kind {
-		case sessions.PartLine:
-			return "TL"
-		case sessions.PartStubOpen, sessions.PartStubShort:
-			return "TS"
-		case sessions.PartTransformer:
-			return "T"
-		}
-		return string(p.Kind.Component())
+	n := make(match.Network, len(parts))
+	for j, p := range parts {
+		n[j].Kind = p.Kind
 	}
-	want, n := prefix(parts[i]), 0
-	for j := 0; j <= i; j++ {
-		if prefix(parts[j]) == want {
-			n++
-		}
-	}
-	return want + strconv.Itoa(n)
+	return n.Designator(i)
 }
 
 // netTraces are the chart traces of the active network against its load's
@@ -227,7 +282,13 @@ func (sc *scene) metrics() (match.Metrics, []int, error) {
 	if len(bands) == 0 {
 		return sc.metricsRes, idx, nil
 	}
-	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.built)
+	if ne.set != nil {
+		var sm match.SetMetrics
+		sm, sc.metricsErr = match.EvaluateSet(ne.set.members, bands, ne.board.Network)
+		sc.metricsRes, sc.setRes = sm.Metrics, &sm
+		return sc.metricsRes, idx, sc.metricsErr
+	}
+	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.board.Network)
 	return sc.metricsRes, idx, sc.metricsErr
 }
 
@@ -310,6 +371,7 @@ func (sc *scene) networkView() web.NetworkView {
 	for i := range v.Loads {
 		v.Loads[i].Selected = v.Loads[i].Value == n.SweepID
 	}
+	v.StageNote = stageNote(ne)
 	if ne.err != nil {
 		v.Error = plainWords(ne.err.Error())
 		return v
@@ -345,12 +407,29 @@ func (sc *scene) networkView() web.NetworkView {
 			v.Metrics = append(v.Metrics, web.NetMetricRow{Band: b.Name, Note: "outside the load's sweep"})
 			continue
 		}
-		v.Metrics = append(v.Metrics, metricRow(b.Name, m.Bands[idx[i]]))
+		row := metricRow(b.Name, m.Bands[idx[i]])
+		if sm := sc.setRes; sm != nil && ne.set != nil {
+			// The worst binding member in this band.
+			for k, mm := range sm.Members {
+				if !ne.set.members[k].Advisory && mm.Bands[idx[i]].MarginDB == m.Bands[idx[i]].MarginDB {
+					row.Req += " · worst: " + ne.set.refs[k].Name
+					break
+				}
+			}
+		}
+		v.Metrics = append(v.Metrics, row)
+	}
+	if ne.set != nil && sc.setRes != nil {
+		bands, _ := ne.netBands(sc.st, false)
+		v.Set = web.NetSetView{Name: ne.set.set.Name, Kind: ne.set.set.Kind, Members: memberRows(ne.set, *sc.setRes, bands)}
+	}
+	for _, s := range sc.st.LoadSets {
+		v.Sets = append(v.Sets, web.Option{Value: s.ID, Label: s.Name, Selected: s.ID == n.SetID})
 	}
 	v.HasBuy = ne.buy != nil
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
-	v.Limits = sc.limitsView()
+	v.Limits = sc.limits()
 	v.Yield = sc.yieldView()
 	return v
 }
@@ -391,7 +470,7 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 	case "network.add":
 		return sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f["sweepId"]}, nil
 	case "network.set":
-		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"]}
+		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"], SetID: f["setId"]}
 		if s := strings.TrimSpace(f["design"]); s != "" {
 			v, err := units.ParseFrequency(s)
 			if err != nil {
@@ -591,7 +670,7 @@ func (ne *netEval) dragValue(id string, target complex128) (float64, error) {
 		return 0, fmt.Errorf("no part %q in the active network", id)
 	}
 	fd := ne.n.DesignHz
-	v, err := ne.built.DragValue(i, fd, ne.loadAt(fd), ne.z0, target)
+	v, err := ne.board.Network.DragValue(ne.elem(i), fd, ne.loadAt(fd), ne.z0, target)
 	if err != nil {
 		return 0, fmt.Errorf("a %s cannot be dragged on the chart; type its value", kindLabels[ne.n.Parts[i].Kind])
 	}
@@ -654,7 +733,7 @@ func stepAnimation(prev, sc *scene, ev sessions.Event, v *pageView) *anim {
 			val = from * math.Pow(to/from, t)
 		}
 		segs, _ := ne.pathAt(i, val, 1, z0)
-		if _, err := ne.built.MorphTo(resp, i, val, fs, gl, ne.z0); err != nil {
+		if _, err := ne.board.Network.MorphTo(resp, ne.elem(i), val, fs, gl, ne.z0); err != nil {
 			return nil
 		}
 		pts := toChart(append([]complex128(nil), resp...), ne.z0, z0)

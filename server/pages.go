@@ -1,6 +1,7 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/csv"
 	"encoding/json"
@@ -11,6 +12,8 @@ import (
 	"net/http"
 	"path"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/a-h/templ"
 	"github.com/go-chi/chi/v5"
@@ -139,6 +142,12 @@ func (s *Server) page(w http.ResponseWriter, r *http.Request) {
 	}
 	sc := s.scene(a.SessionID, st)
 	v := s.sessionView(r, a, sc, ver)
+	if sc.derivedPending() {
+		// A result still computing: the page says it is one version behind,
+		// so that its websocket's hello asks for a catch-up, which brings
+		// the result if it came meanwhile (later ones come as redraws).
+		v.Version = ver - 1
+	}
 	s.render(w, r, http.StatusOK, web.SessionPage(v))
 }
 
@@ -150,6 +159,10 @@ type uploadReply struct {
 }
 
 func writeJSON(w http.ResponseWriter, status int, v any) {
+	if r, ok := v.(uploadReply); ok {
+		r.Error = clip(r.Error, maxReplyText)
+		v = r
+	}
 	w.Header().Set("Content-Type", "application/json")
 	w.WriteHeader(status)
 	json.NewEncoder(w).Encode(v)
@@ -168,6 +181,10 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	r.Body = http.MaxBytesReader(w, r.Body, limit+64<<10)
 	f, hdr, err := r.FormFile("file")
 	if err != nil {
+		if errors.Is(err, errTooSlow) {
+			writeJSON(w, http.StatusRequestTimeout, uploadReply{Error: tooSlowMsg(s.cfg)})
+			return
+		}
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
 			writeJSON(w, http.StatusRequestEntityTooLarge, uploadReply{Error: fmt.Sprintf("the file is larger than the upload limit of %d MB", limit>>20)})
@@ -178,6 +195,10 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	}
 	defer f.Close()
 	raw, err := io.ReadAll(io.LimitReader(f, limit+1))
+	if errors.Is(err, errTooSlow) {
+		writeJSON(w, http.StatusRequestTimeout, uploadReply{Error: tooSlowMsg(s.cfg)})
+		return
+	}
 	if err != nil {
 		writeJSON(w, http.StatusBadRequest, uploadReply{Error: "the upload was cut off: " + err.Error()})
 		return
@@ -187,6 +208,10 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	name := path.Base(strings.ReplaceAll(hdr.Filename, "\\", "/"))
+	if n := utf8.RuneCountInString(name); n > maxFileNameRunes {
+		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: fmt.Sprintf("the file name %s has %d characters; rename the file to at most %d", quoteClipped(name, maxEcho), n, maxFileNameRunes)})
+		return
+	}
 	sw, err := parseSweep(name, raw, s.cfg.FileLimits)
 	if err != nil {
 		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: plainWords(err.Error())})
@@ -197,7 +222,7 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	})
 	if err != nil {
 		status, msg := errorStatus(err)
-		if status == http.StatusInternalServerError {
+		if status >= 500 {
 			s.log.Error("upload", "err", err)
 		}
 		writeJSON(w, status, uploadReply{Error: plainWords(msg)})
@@ -206,16 +231,26 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	writeJSON(w, http.StatusOK, uploadReply{SweepID: ev.SweepID, Version: ev.Version})
 }
 
+// maxFileNameRunes bounds an uploaded file's name, as the store bounds
+// every name it keeps.
+const maxFileNameRunes = 200
+
+// tooSlowMsg says why an upload was cut off.
+func tooSlowMsg(cfg Config) string {
+	return fmt.Sprintf("the upload arrived too slowly and was cut off: after the first %v a file must arrive at %d kB/s or more, without pauses longer than %v",
+		cfg.BodyGrace, cfg.BodyMinRate>>10, cfg.BodyGrace)
+}
+
 // parseSweep reads an uploaded file by the ending of its name.
 // Zero fields of lim take touchstone's defaults.
 func parseSweep(name string, raw []byte, lim touchstone.Limits) (*rfmath.Sweep, error) {
 	if strings.EqualFold(path.Ext(name), ".csv") {
-		return touchstone.ReadCSV(strings.NewReader(string(raw)), name, lim)
+		return touchstone.ReadCSV(bytes.NewReader(raw), name, lim)
 	}
 	if _, ok := touchstone.PortsFromName(name); !ok && !strings.EqualFold(path.Ext(name), ".ts") {
 		return nil, fmt.Errorf("%s: the name must end in .sNp (e.g. .s1p, .s2p), .ts or .csv so the reader knows the format", name)
 	}
-	tf, err := touchstone.Read(strings.NewReader(string(raw)), name, lim)
+	tf, err := touchstone.Read(bytes.NewReader(raw), name, lim)
 	if err != nil {
 		return nil, err
 	}
@@ -235,19 +270,33 @@ func errorStatus(err error) (int, string) {
 		return http.StatusNotFound, "not found"
 	case errors.Is(err, sessions.ErrInvalid), errors.Is(err, sessions.ErrConflict):
 		return http.StatusUnprocessableEntity, err.Error()
+	case errors.Is(err, sessions.ErrDiskFull):
+		return http.StatusInsufficientStorage, "the change was not stored: the disk of the computer running matchbench is full. Free some space there and try again; nothing stored before was lost"
 	}
 	return http.StatusInternalServerError, "the server could not store the change; see its log"
 }
 
 func (s *Server) fail(w http.ResponseWriter, r *http.Request, err error) {
 	status, msg := errorStatus(err)
-	if status == http.StatusInternalServerError {
+	if status >= 500 {
 		s.log.Error("request failed", "route", chi.RouteContext(r.Context()).RoutePattern(), "err", err)
 	}
 	http.Error(w, msg, status)
 }
 
+// attachment marks the answer as a download named name. Control and
+// bidirectional control characters are left out of the name (names stored
+// by older builds may hold them), so the saved file's name reads as it is.
 func attachment(w http.ResponseWriter, name, ctype string) {
+	name = strings.Map(func(r rune) rune {
+		if unicode.IsControl(r) || unicode.Is(unicode.Bidi_Control, r) {
+			return -1
+		}
+		return r
+	}, name)
+	if name == "" {
+		name = "download"
+	}
 	w.Header().Set("Content-Type", ctype)
 	w.Header().Set("Content-Disposition", mime.FormatMediaType("attachment", map[string]string{"filename": name}))
 }

@@ -20,10 +20,14 @@ import (
 )
 
 // corrections caches corrected sweeps by session, sweep and plane: sweeps
-// are immutable, so a plane always gives the same result.
+// are immutable, so a plane always gives the same result. It holds at most
+// maxCorrections entries and limit bytes of numbers (maxCorrectionBytes
+// when zero); when a new one would not fit it starts again empty.
 type corrections struct {
-	mu sync.Mutex
-	m  map[string]corrected
+	mu    sync.Mutex
+	m     map[string]corrected
+	bytes int64
+	limit int64
 }
 
 type corrected struct {
@@ -31,7 +35,18 @@ type corrected struct {
 	err error
 }
 
-const maxCorrections = 128
+const (
+	maxCorrections     = 128
+	maxCorrectionBytes = 64 << 20
+)
+
+// sweepBytes is the size of a sweep's numbers.
+func sweepBytes(s *rfmath.Sweep) int64 {
+	if s == nil {
+		return 0
+	}
+	return int64(8*len(s.FreqHz) + 8*len(s.Z0) + 16*len(s.Data))
+}
 
 // corrected returns sweep ref of session sid with its reference plane
 // applied: the fixture removed at the analyser side, then the port
@@ -50,11 +65,22 @@ func (s *Server) corrected(sid string, ref sessions.SweepRef, raw *rfmath.Sweep)
 	}
 	s.corr.mu.Unlock()
 	out, err := s.applyPlane(sid, rp, raw)
-	s.corr.mu.Lock()
-	if s.corr.m == nil || len(s.corr.m) >= maxCorrections {
-		s.corr.m = map[string]corrected{}
+	n := sweepBytes(out)
+	if out == raw {
+		n = 0
 	}
-	s.corr.m[key] = corrected{out, err}
+	s.corr.mu.Lock()
+	limit := s.corr.limit
+	if limit <= 0 {
+		limit = maxCorrectionBytes
+	}
+	if s.corr.m == nil || len(s.corr.m) >= maxCorrections || s.corr.bytes+n > limit {
+		s.corr.m, s.corr.bytes = map[string]corrected{}, 0
+	}
+	if n <= limit {
+		s.corr.m[key] = corrected{out, err}
+		s.corr.bytes += n
+	}
 	s.corr.mu.Unlock()
 	return out, err
 }

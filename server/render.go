@@ -2,11 +2,13 @@ package server
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -63,15 +65,24 @@ type scene struct {
 	metricsRes  match.Metrics
 	metricsIdx  []int
 	metricsErr  error
+	setRes      *match.SetMetrics // the figures on each member, when the network is judged across a set
 
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
 	yieldMsg  string
 
+	// Filled by fillDerived (derivedscene.go) from the derived-results cache.
+	yieldPending bool            // the Monte Carlo is computing
+	limitsV      *web.LimitsView // the limits, or "computing…"
+	jobCtx       context.Context // a derived job's context (jobContext)
+
 	tdrDone bool // tdrP and tdrNote hold the time-domain view
 	tdrP    *plot
 	tdrNote string
 	prev    *scene // the scene before, while a room renders an event
+
+	amp   *ampEval   // the amplifier view, or nil (amp.go)
+	stage *stageEval // the transistor stage, or nil (amp.go)
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
@@ -132,6 +143,8 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	if n := st.Active(); n != nil {
 		sc.net = sc.evalNetwork(n)
 	}
+	s.fillDerived(sc)
+	s.evalAmp(sc)
 	return sc
 }
 
@@ -220,11 +233,13 @@ func (sc *scene) chartTraces(v *pageView) []chartsvg.Trace {
 }
 
 // thinSeries keeps, of a long series, the first, lowest, highest and last
-// point of each of 4·plotWidth frequency columns: what the plot can show
-// (chartsvg thins again to its pixels), at a fraction of the memory that a
-// room's cached scene holds between renders.
+// point of each of plotWidth frequency columns: what the plot can show
+// (chartsvg thins the same way to its pixels, and a series spans at most
+// the plot's width, so a column is at most a pixel wide), at a fraction of
+// the memory that a room's cached scene holds between renders. A series of
+// at most 4·plotWidth points is kept whole.
 func thinSeries(s chartsvg.Series) chartsvg.Series {
-	const cols = 4 * plotWidth
+	const cols = plotWidth
 	n := len(s.FreqHz)
 	if n <= 4*cols {
 		return s
@@ -253,7 +268,8 @@ func thinSeries(s chartsvg.Series) chartsvg.Series {
 		}
 		start = end
 	}
-	s.FreqHz, s.Y = fs, ys
+	// Exact-size copies: the scratch above is sized for the worst case.
+	s.FreqHz, s.Y = slices.Clone(fs), slices.Clone(ys)
 	return s
 }
 
@@ -325,6 +341,7 @@ func (sc *scene) renderChartView(w io.Writer, v *pageView) error {
 	z0 := v.z0()
 	traces := append(sc.cloudTraces(z0), sc.chartTraces(v)...)
 	traces = append(traces, sc.netTracesAt(z0)...)
+	traces = append(traces, sc.setTraces(z0)...)
 	markers := sc.chartMarkers(v)
 	var path []chartsvg.PathSegment
 	if sc.net != nil {
@@ -544,7 +561,10 @@ func (s *Server) panelsView(a access, sc *scene, ver int64, v *pageView) web.Ses
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
 		Network:    sc.networkView(),
+		Sets:       sc.setsView(),
+		Tuning:     sc.tuningView(),
 		RefPlane:   sc.refPlaneView(),
+		Amp:        sc.ampView(),
 		Span:       sc.spanView(v),
 		ChartBar:   sc.chartBar(v),
 		Resonances: sc.resonanceView(v),

@@ -108,8 +108,24 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 		}
 		set.Model = fam
 	}
-	load := ne.load
+	members := []match.Member{{Name: sweepName(sc.st, ne.n.SweepID), Load: ne.load}}
+	setID := ""
+	if f["target"] == "set" && ne.set != nil {
+		members, setID = ne.set.members, ne.set.set.ID
+	}
 	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
+	lay, board := ne.lay, ne.n.Layout
+	switch {
+	case lay.IsZero():
+		board = nil
+	case len(members) > 1:
+		// The search across a set judges the parts alone; each design is
+		// then shown on the network's board by the panel.
+		lay, board = match.Layout{}, nil
+		desc += ", parts alone (the board is not searched across a set)"
+	default:
+		desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, lay.Describe(ne.built))
+	}
 
 	s.search.mu.Lock()
 	if s.search.jobs == nil {
@@ -124,7 +140,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 	s.search.jobs[sc.sid] = job
 	s.search.mu.Unlock()
 
-	sid, sweepID, port := sc.sid, ne.n.SweepID, ne.port
+	sid, sweepID, port, stageSide := sc.sid, ne.n.SweepID, ne.port, ne.stageSide
 	go func() {
 		defer close(job.done)
 		defer cancel()
@@ -141,7 +157,12 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			}
 		}
 		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.Search(ctx, load, bands, set)
+		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) {
+			if !lay.IsZero() {
+				return match.SearchOnBoard(ctx, members[0].Load, bands, set, lay)
+			}
+			return match.SearchSet(ctx, members, bands, set)
+		})
 		if err != nil {
 			msg := "the search failed: " + plainDetail(err.Error())
 			if errors.Is(err, context.Canceled) {
@@ -152,7 +173,7 @@ func (s *Server) startSearch(sc *scene, f map[string]string) error {
 			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
 			return
 		}
-		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
+		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board, StageSide: stageSide}
 		for _, d := range res.Designs {
 			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
 			for _, p := range d.Network {
@@ -341,8 +362,15 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		if r == nil || idx >= len(r.Designs) {
 			return sessions.Change{}, fmt.Errorf("no such design")
 		}
+		setID := r.SetID
+		if setID != "" && sc.st.LoadSetIndex(setID) < 0 {
+			setID = "" // the set is gone: the design lands on its sweep alone
+		}
+		if ch, ok := stagePartsChange(sc.st, r, idx); ok { // amp.go: into the stage's network
+			return ch, nil
+		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
-			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts}, nil
+			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID, Layout: r.Layout.For(len(r.Designs[idx].Parts))}, nil
 	case "synth.use", "stub.use", "qw.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
@@ -443,7 +471,8 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		row.Bands = "the searched sweep is gone"
 		return row
 	}
-	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts}, sw)
+	ne := prepareNetwork(&sessions.Network{ID: stageNetworkID(sc.st, r), SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
+	adaptStage(sc.st, ne) // a stage side's design is judged in the stage, as it was searched
 	bands, _ := ne.netBands(sc.st, true)
 	if ne.err != nil || len(bands) == 0 {
 		row.Bands = "no band with a requirement inside the sweep"
@@ -452,7 +481,23 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		}
 		return row
 	}
-	m, err := match.Evaluate(ne.load, bands, ne.built)
+	var m match.Metrics
+	var err error
+	if r.SetID != "" {
+		se, serr := sc.loadSetOf(r.SetID)
+		if serr != nil {
+			row.Bands = serr.Error()
+			return row
+		}
+		var sm match.SetMetrics
+		sm, err = match.EvaluateSet(se.members, bands, ne.board.Network)
+		m = sm.Metrics
+		if err == nil && sm.WorstMember >= 0 {
+			row.Parts += " (worst on " + se.refs[sm.WorstMember].Name + ")"
+		}
+	} else {
+		m, err = match.Evaluate(ne.load, bands, ne.board.Network)
+	}
 	if err != nil {
 		row.Bands = err.Error()
 		return row

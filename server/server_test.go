@@ -10,6 +10,7 @@ import (
 	"log/slog"
 	"math"
 	"mime/multipart"
+	"net"
 	"net/http"
 	"net/http/httptest"
 	"strings"
@@ -138,26 +139,34 @@ func TestPages(t *testing.T) {
 }
 
 // A visitor from the lab network sees no session list and cannot start one.
+// lanRequest is a request from a colleague's computer on the lab network
+// (192.0.2.7, TEST-NET-1 of RFC 5737: never routed) to the server's address
+// there (192.0.2.1:8080), as net/http's server would hand it over.
+func lanRequest(method, target string, body io.Reader) *http.Request {
+	req := httptest.NewRequest(method, target, body)
+	req.RemoteAddr = "192.0.2.7:50000"
+	req.Host = "192.0.2.1:8080"
+	local := &net.TCPAddr{IP: net.IPv4(192, 0, 2, 1), Port: 8080}
+	return req.WithContext(context.WithValue(req.Context(), http.LocalAddrContextKey, local))
+}
+
 func TestStartPageFromLAN(t *testing.T) {
 	t.Parallel()
 	f := newFixture(t, 11)
-	req := httptest.NewRequest("GET", "/", nil)
-	req.RemoteAddr = "192.0.2.7:50000" // TEST-NET-1 (RFC 5737): never routed
+	req := lanRequest("GET", "/", nil)
 	rec := httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != 200 || strings.Contains(rec.Body.String(), "bench test") || !strings.Contains(rec.Body.String(), "Ask for a link") {
 		t.Errorf("LAN start page: %d, lists sessions or lacks the note:\n%.300s", rec.Code, rec.Body.String())
 	}
-	req = httptest.NewRequest("POST", "/sessions", strings.NewReader("name=x"))
+	req = lanRequest("POST", "/sessions", strings.NewReader("name=x"))
 	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-	req.RemoteAddr = "192.0.2.7:50000"
 	rec = httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != http.StatusForbidden {
 		t.Errorf("LAN create: %d, want 403", rec.Code)
 	}
-	req = httptest.NewRequest("GET", "/open/"+f.sess.ID, nil)
-	req.RemoteAddr = "192.0.2.7:50000"
+	req = lanRequest("GET", "/open/"+f.sess.ID, nil)
 	rec = httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != http.StatusForbidden {

@@ -26,6 +26,8 @@ func BenchmarkDragViewers(b *testing.B) {
 			// The token bucket guards against a flooding page; the benchmark
 			// is that page on purpose.
 			f.srv.cfg.MsgPerSecond, f.srv.cfg.MsgBurst = 1e9, 1e9
+			f.srv.cfg.SessionMsgPerSecond, f.srv.cfg.SessionMsgBurst = 1e9, 1e9
+			f.srv.cfg.MaxConnsPerToken = 1000
 			ed := wsDial(b, f, f.sess.EditToken)
 			benchHello(b, ed)
 			seen := make([]chan int64, nv)

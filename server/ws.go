@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"net/http"
 	"net/url"
 	"strings"
@@ -55,6 +56,7 @@ type conn struct {
 	token string
 	cap   sessions.Capability
 	send  chan []byte
+	share *sessionShare // the session's
 
 	mu      sync.Mutex
 	ops     []inMsg // pending changes; a drag replaces the pending drag of its marker
@@ -90,11 +92,19 @@ func (s *Server) upgrader() *websocket.Upgrader {
 
 func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
 	a := accessFrom(r.Context())
+	release, err := s.admitConn(a.SessionID, a.Token, remoteIP(r))
+	if err != nil {
+		le := err.(*limitError)
+		http.Error(w, le.msg, le.status)
+		return
+	}
+	defer release()
 	ws, err := s.upgrader().Upgrade(w, r, nil)
 	if err != nil {
 		return // the upgrader has answered
 	}
-	c := &conn{s: s, ws: ws, sid: a.SessionID, token: a.Token, cap: a.Cap, send: make(chan []byte, sendQueue), wake: make(chan struct{}, 1), done: make(chan struct{})}
+	c := &conn{s: s, ws: ws, sid: a.SessionID, token: a.Token, cap: a.Cap, share: s.share(a.SessionID),
+		send: make(chan []byte, sendQueue), wake: make(chan struct{}, 1), done: make(chan struct{})}
 	rm, err := s.join(c)
 	if err != nil {
 		ws.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(websocket.CloseGoingAway, "server shutting down"), time.Now().Add(time.Second))
@@ -140,10 +150,13 @@ func (c *conn) isDone() bool {
 	}
 }
 
+// reply sends m, its text cut to maxReplyText: an error names what was
+// wrong, not the whole of a client's input.
 func (c *conn) reply(m outMsg) {
 	if m.Type == "error" {
 		m.Msg = plainWords(m.Msg) // words.go: the engineer's words, SI frequencies
 	}
+	m.Msg = clip(m.Msg, maxReplyText)
 	b, _ := json.Marshal(m)
 	c.queue(b)
 }
@@ -218,8 +231,14 @@ func (c *conn) reader() {
 			c.reply(outMsg{Type: "error", Msg: "the message is not JSON of the expected shape: " + err.Error()})
 			continue
 		}
-		if !bucket.take(time.Now()) {
+		now := time.Now()
+		if !bucket.take(now) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
+			continue
+		}
+		if cost := sessionCost(m.Type); cost > 0 && !c.share.take(now, cost) {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: fmt.Sprintf(
+				"this session's pages together send more than the %g messages a second one session may: slow down", c.s.cfg.SessionMsgPerSecond)})
 			continue
 		}
 		switch m.Type {
@@ -241,14 +260,22 @@ func (c *conn) reader() {
 				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many changes waiting: slow down"})
 			}
 		default:
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + strconvQuote(m.Type)})
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown message type " + quoteClipped(m.Type, maxEcho)})
 		}
 	}
 }
 
-func strconvQuote(s string) string {
-	b, _ := json.Marshal(s)
-	return string(b)
+// sessionCost is what a message of type typ takes from its session's
+// fair share: nothing for a keep-alive, catchUpCost for a hello (which may
+// redraw the whole page), one for anything else.
+func sessionCost(typ string) float64 {
+	switch typ {
+	case "ping":
+		return 0
+	case "hello":
+		return catchUpCost
+	}
+	return 1
 }
 
 // push queues m. A marker drag replaces the drag of the same marker still
@@ -276,18 +303,21 @@ func (c *conn) push(m inMsg) bool {
 }
 
 func isDrag(m inMsg) bool {
-	return (m.Type == "change" && m.Change != nil && m.Change.Op == sessions.OpMarkerMove) ||
+	return (m.Type == "change" && m.Change != nil && (m.Change.Op == sessions.OpMarkerMove || m.Change.Op == sessions.OpAmpPoint)) ||
 		(m.Type == "partdrag" && m.Change != nil) || m.Type == "view"
 }
 
-// dragKey is what a drag moves: one marker or one part, or the page's view
-// (a wheel zoom or a pan sends many; only the latest is drawn).
+// dragKey is what a drag moves: one marker, one part or one termination
+// of the amplifier view, or the page's view (a wheel zoom or a pan sends
+// many; only the latest is drawn).
 func dragKey(m inMsg) string {
-	if m.Type == "view" {
+	switch {
+	case m.Type == "view":
 		return "v"
-	}
-	if m.Type == "partdrag" {
+	case m.Type == "partdrag":
 		return "p:" + m.Change.PartID
+	case m.Change.Op == sessions.OpAmpPoint:
+		return "a:" + m.Change.Plane
 	}
 	return "m:" + m.Change.MarkerID
 }
@@ -339,7 +369,7 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 			}
 			c.reply(outMsg{Type: "ack", ID: m.ID})
 		default:
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + strconvQuote(m.Action)})
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + quoteClipped(m.Action, maxEcho)})
 		}
 		return
 	case m.Type == "form" && m.Form == "search.start":
@@ -357,6 +387,44 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 		sc, err := c.scene(ctx)
 		if err == nil {
 			ch, err = sc.searchChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	case m.Type == "form" && m.Form == "stage.search":
+		sc, err := c.scene(ctx)
+		if err == nil {
+			err = c.s.startStageSearch(sc, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+		c.reply(outMsg{Type: "ack", ID: m.ID})
+		return
+	case m.Type == "form" && ampForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.ampChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	case m.Type == "form" && setForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.setChange(m.Form, m.Fields)
+		}
+		if err != nil {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+			return
+		}
+	case m.Type == "form" && tuneForms[m.Form]:
+		sc, err := c.scene(ctx)
+		if err == nil {
+			ch, err = sc.tuneChange(ctx, m.Form, m.Fields)
 		}
 		if err != nil {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
@@ -399,8 +467,8 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 	default:
 		ch = *m.Change
 		ch.Raw, ch.Sweep = nil, nil
-		if ch.Op == sessions.OpSweepAdd {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "sweeps are added by uploading a file"})
+		if why, ok := serverOnlyOps[ch.Op]; ok {
+			c.reply(outMsg{Type: "error", ID: m.ID, Msg: why})
 			return
 		}
 		if err := c.snapToShown(ctx, &ch); err != nil { // view.go: a chart point to a frequency
@@ -411,7 +479,7 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 	ev, err := c.s.store.ApplyAs(ctx, c.cap, c.sid, ch)
 	if err != nil {
 		status, msg := errorStatus(err)
-		if status == http.StatusInternalServerError {
+		if status >= 500 {
 			c.s.log.Error("apply", "op", ch.Op, "err", err)
 		}
 		c.reply(outMsg{Type: "error", ID: m.ID, Msg: msg})
@@ -420,9 +488,20 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 	c.reply(outMsg{Type: "ack", ID: m.ID, V: ev.Version})
 }
 
+// serverOnlyOps are the ops that only the server makes, with why a page's
+// is refused: a page could otherwise store numbers of its own making as a
+// measurement or as the result of a search.
+var serverOnlyOps = map[string]string{
+	sessions.OpSweepAdd:    "sweeps are added by uploading a file",
+	sessions.OpSearchStore: "search results come only from the server's own search: start one with the search form",
+}
+
 // networkForms are the forms whose fields need the session's current scene
 // (the active network's parts and design frequency).
 var networkForms = map[string]bool{"network.add": true, "network.set": true, "part.add": true, "part.set": true, "part.params": true}
+
+// setForms save and remove load sets; they need the session's sweeps.
+var setForms = map[string]bool{"set.save": true, "set.remove": true}
 
 // searchForms turn a found design or solution into a network.
 var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.use": true, "qw.use": true}
@@ -431,12 +510,17 @@ var searchForms = map[string]bool{"search.use": true, "synth.use": true, "stub.u
 // the scene (the sweeps, corrected or raw).
 var planeForms = map[string]bool{"refplane.set": true, "refplane.fit": true, "tdr.set": true, "tdr.gate": true}
 
-// scene returns the scene of the session's current state.
+// scene returns the scene of the session's current state, built in the
+// session's drawing slot.
 func (c *conn) scene(ctx context.Context) (*scene, error) {
 	st, _, err := c.s.store.State(ctx, c.sid)
 	if err != nil {
 		return nil, err
 	}
+	if !c.share.drawing(ctx) {
+		return nil, ctx.Err()
+	}
+	defer c.share.done()
 	return c.s.scene(c.sid, st), nil
 }
 
@@ -464,14 +548,18 @@ func (c *conn) activeNetwork(ctx context.Context) (*netEval, error) {
 		return nil, err
 	}
 	ne := prepareNetwork(n, sw)
+	adaptStage(st, ne)
 	return ne, ne.err
 }
 
 // catchUp sends a full update when the page's version is not the session's.
-// It holds sendMu throughout, so that the room's updates queue either
-// before the catch-up (and it overtakes them) or after it (and those it
-// already covers are skipped).
+// It draws in the session's drawing slot, taken before sendMu as the room
+// takes it, and holds sendMu throughout, so that the room's updates queue
+// either before the catch-up (and it overtakes them) or after it (and those
+// it already covers are skipped).
 func (c *conn) catchUp(v int64) {
+	c.share.drawing(context.Background())
+	defer c.share.done()
 	c.sendMu.Lock()
 	defer c.sendMu.Unlock()
 	cu, err := c.s.store.Since(context.Background(), c.sid, v)
@@ -498,14 +586,19 @@ type bucket struct {
 
 func newBucket(rate, burst float64) *bucket { return &bucket{rate: rate, burst: burst, tokens: burst} }
 
-func (b *bucket) take(now time.Time) bool {
-	if !b.last.IsZero() {
+func (b *bucket) take(now time.Time) bool { return b.takeN(now, 1) }
+
+// takeN takes n tokens at time now, or none and reports false.
+func (b *bucket) takeN(now time.Time, n float64) bool {
+	if !b.last.IsZero() && now.After(b.last) {
 		b.tokens = min(b.burst, b.tokens+now.Sub(b.last).Seconds()*b.rate)
 	}
-	b.last = now
-	if b.tokens < 1 {
+	if now.After(b.last) {
+		b.last = now
+	}
+	if b.tokens < n {
 		return false
 	}
-	b.tokens--
+	b.tokens -= n
 	return true
 }

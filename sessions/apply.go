@@ -30,7 +30,9 @@ type Event struct {
 	// the part added, changed, moved or removed.
 	NetworkID string `json:"networkId,omitempty"`
 	PartID    string `json:"partId,omitempty"`
-	Gesture   string `json:"gesture,omitempty"`
+	// SetID is the load set saved or removed.
+	SetID   string `json:"setId,omitempty"`
+	Gesture string `json:"gesture,omitempty"`
 	// Unchanged is set (by Apply only) when the change left the state as it
 	// was, so nothing was committed or published and Version is the
 	// current one.
@@ -221,9 +223,7 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 	relaxed := st.fullSync && coalescible[ch.Op] && ch.Gesture != ""
 	err = st.txSync(ctx, h, relaxed, func(ctx context.Context, tx *sql.Tx) error {
 		if s := r.newSweep; s != nil {
-			if _, err := tx.ExecContext(ctx,
-				`INSERT INTO sweeps (session_id, id, file_name, created_at, parsed, raw) VALUES (?, ?, ?, ?, ?, ?)`,
-				h.id, s.id, s.fileName, time.Now().UnixMilli(), s.parsed, s.raw); err != nil {
+			if err := insertSweep(ctx, tx, h.id, s); err != nil {
 				return err
 			}
 		}
@@ -267,8 +267,9 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 		return Event{}, st.dbErr(ch.Op, err)
 	}
 	if s := r.newSweep; s != nil {
-		st.cacheSweep(sweepKey{h.id, s.id}, s.sweep)
+		st.sweeps.put(sweepKey{h.id, s.id}, s.sweep)
 	}
+	st.forgetRemoved(h.id, h.state, r.next)
 	if !coalesce {
 		h.maxStep = step
 		h.minStep = minStep
@@ -308,9 +309,20 @@ func (st *Store) undoRedo(ctx context.Context, h *hub, op string) (Event, error)
 	if err != nil {
 		return Event{}, st.dbErr(op, err)
 	}
+	st.forgetRemoved(h.id, h.state, ev.State)
 	h.set(ev.State, js, ev.Version, pos)
 	h.publish(ev, st.lim.ReplayEvents)
 	return ev, nil
+}
+
+// forgetRemoved drops from the sweep cache the sweeps listed in before and
+// not in after: an undo that brings one back decodes it again.
+func (st *Store) forgetRemoved(sid string, before, after *State) {
+	for _, s := range before.Sweeps {
+		if after.SweepIndex(s.ID) < 0 {
+			st.sweeps.drop(sweepKey{sid, s.ID})
+		}
+	}
 }
 
 // commitState writes the session row for a new state and marks the sweeps
@@ -360,11 +372,9 @@ func (st *Store) purgeSweeps(ctx context.Context, tx *sql.Tx, sid string) error 
 	if err := rows.Err(); err != nil {
 		return err
 	}
-	st.sweepMu.Lock()
 	for _, id := range gone {
-		delete(st.sweeps, sweepKey{sid, id})
+		st.sweeps.drop(sweepKey{sid, id})
 	}
-	st.sweepMu.Unlock()
 	return nil
 }
 

@@ -104,11 +104,20 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		if err != nil {
 			return r, err
 		}
-		sw := ch.Sweep.Clone()
-		next.Sweeps = append(next.Sweeps, SweepRef{
+		ref := SweepRef{
 			ID: id, Name: name, FileName: fileName, Color: color, Visible: true,
-			Ports: sw.Ports, Points: sw.Len(), FminHz: sw.FreqHz[0], FmaxHz: sw.FreqHz[sw.Len()-1],
-		})
+			Ports: ch.Sweep.Ports, Points: ch.Sweep.Len(), FminHz: ch.Sweep.FreqHz[0], FmaxHz: ch.Sweep.FreqHz[ch.Sweep.Len()-1],
+		}
+		total := ref.DataBytes()
+		for _, s := range cur.Sweeps {
+			total += s.DataBytes()
+		}
+		if total > lim.SweepBytes {
+			return r, invalid(op, "sweep", "the session's sweeps would hold %.1f MB of numbers with this one (%.1f MB), more than the limit of %.1f MB a session; remove a sweep first",
+				float64(total)/1e6, float64(ref.DataBytes())/1e6, float64(lim.SweepBytes)/1e6)
+		}
+		sw := ch.Sweep.Clone()
+		next.Sweeps = append(next.Sweeps, ref)
 		r.ev.SweepID = id
 		r.newSweep = &newSweep{
 			id: id, fileName: fileName, raw: slices.Clone(ch.Raw), parsed: encodeSweep(sw), sweep: sw,
@@ -153,6 +162,7 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		}
 		next.Sweeps = slices.Delete(next.Sweeps, i, i+1)
 		next.Markers = slices.DeleteFunc(next.Markers, func(m Marker) bool { return m.SweepID == ch.SweepID })
+		dropFromSets(next, ch.SweepID)
 
 	case OpMarkerAdd:
 		i, err := sweepOf(ch.SweepID)
@@ -368,6 +378,9 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 		if _, err := sweepOf(res.SweepID); err != nil {
 			return r, err
 		}
+		if res.SetID != "" && cur.LoadSetIndex(res.SetID) < 0 {
+			return r, notFound(op, "search.setId", "load set", res.SetID)
+		}
 		if len(res.Designs) > 20 {
 			return r, invalid(op, "search.designs", "%d designs; at most 20 are kept", len(res.Designs))
 		}
@@ -385,6 +398,10 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 				}
 			}
 		}
+		var err error
+		if res.Layout, err = checkLayout(op, res.Layout, lim.PartsPerNetwork); err != nil {
+			return r, err
+		}
 		next.Search = &res
 
 	case OpSearchClear:
@@ -395,11 +412,27 @@ func (st *Store) compute(sid string, cur *State, ch *Change) (result, error) {
 			return r, err
 		}
 
+	case OpSetSave, OpSetRemove:
+		if err := computeSet(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
+	case OpNetworkLayout, OpTuneStore, OpTuneUse:
+		if err := computeTune(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
+	case OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts:
+		if err := computeAmp(cur, next, ch, &r, lim); err != nil {
+			return r, err
+		}
+
 	case "":
 		return r, invalid("(no op)", "op", "missing")
 	default:
 		return r, invalid(op, "op", "unknown op %q", op)
 	}
+	tidyAmp(next)
 	return r, nil
 }
 
@@ -557,8 +590,19 @@ func text(op, field, s string, required bool, maxRunes int) (string, error) {
 	if i := strings.IndexFunc(s, unicode.IsControl); i >= 0 {
 		return "", invalid(op, field, "control character %U at byte %d", []rune(s[i:])[0], i)
 	}
+	if i := strings.IndexFunc(s, isBidiControl); i >= 0 {
+		return "", invalid(op, field, "bidirectional control character %U at byte %d: it can make a name read differently from what it is (a file name's ending shown reversed, say)", []rune(s[i:])[0], i)
+	}
 	return s, nil
 }
+
+// isBidiControl reports whether r is a bidirectional control character:
+// Unicode's Bidi_Control property (PropList.txt, through Go's unicode
+// tables: U+061C, U+200E–U+200F, U+202A–U+202E, U+2066–U+2069), the
+// embeddings, overrides, isolates and marks of the Bidirectional Algorithm
+// (Unicode Standard Annex #9). Names holding them are refused:
+// "report\u202Efdp.exe" shows as "reportexe.pdf".
+func isBidiControl(r rune) bool { return unicode.Is(unicode.Bidi_Control, r) }
 
 // checkColor accepts "#rrggbb" (any case) and returns it in lower case.
 func checkColor(op, c string) (string, error) {

@@ -56,7 +56,10 @@ type SessionView struct {
 	Bands    []BandRow
 	Options  ChartOptions
 	Network  NetworkView
+	Sets     SetsView
+	Tuning   TuningView
 	RefPlane RefPlaneView
+	Amp      AmpPanelView // ampview.go
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
 	// What the page's own view shows (the page changes it without
@@ -238,6 +241,44 @@ type NetworkView struct {
 	Search     SearchView
 	Limits     LimitsView
 	Yield      YieldView
+	// Set is the load set the network is judged across (Name "" for none),
+	// and Sets every set of the session as a choice.
+	Set  NetSetView
+	Sets []Option
+	// StageNote says what a network of the transistor stage matches.
+	StageNote string
+}
+
+// NetSetView shows the active network on each member of its load set.
+type NetSetView struct {
+	Name, Kind string
+	Members    []MemberRow
+}
+
+// MemberRow is the network's figures on one member of its set.
+type MemberRow struct {
+	Name, Color, Margin string
+	Bands               []string
+	Pass, Worst         bool
+	Advisory            bool
+}
+
+// SetsView is the load sets panel: the sets and the sweeps to group.
+type SetsView struct {
+	Sets   []SetRow
+	Sweeps []Option
+}
+
+// SetRow is one load set.
+type SetRow struct {
+	ID, Name, Kind string
+	Members        []SetMemberRow
+}
+
+// SetMemberRow is one sweep of a set.
+type SetMemberRow struct {
+	SweepID, Name, Color, Weight string
+	Must                         bool
 }
 
 // PartRow is one part of the network, in order from the load.
@@ -297,6 +338,8 @@ type ReportView struct {
 	Parts                                            [][]string
 	Power                                            []PowerRow
 	PowerW                                           string
+	Set                                              NetSetView // the network on each member of its load set, if any
+	Board                                            string     // the board the figures include, in words; "" for none
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
@@ -376,4 +419,47 @@ type YieldView struct {
 type SensRow struct {
 	Designator, Tol, Low, High, Share string
 	Most                              bool
+}
+
+// TuningView is the bench-tuning panel: the active network's board, the
+// form that fits a re-measured board, and every round so far.
+type TuningView struct {
+	Active    bool   // a network is active and can be fitted
+	Network   string // its name
+	Board     string // its board in words
+	BoardNote string // why a stored board is left out, if it is
+	// The form's defaults: the network's board.
+	Footprint, Pad, Traces string
+	Sweeps                 []Option // sweeps that may be the board as built
+	Rounds                 []TuneRoundRow
+}
+
+// TuneRoundRow is one round of tuning as stored.
+type TuneRoundRow struct {
+	ID          string
+	Num         int
+	Network     string
+	Built       string
+	Parts       string
+	Board       string
+	Bands       string
+	Fit         string
+	Params      []TuneParamRow
+	Warnings    []string
+	AsBuilt     string
+	AsBuiltPass bool
+	Swaps       []TuneSwapRow
+	Chosen      string
+}
+
+// TuneParamRow is one fitted number of the board.
+type TuneParamRow struct {
+	Name, Nominal, Value, Sigma, Note string
+}
+
+// TuneSwapRow is one suggested swap with its predicted figures.
+type TuneSwapRow struct {
+	Index                               int
+	Change, Worst, Power, Margin, Yield string
+	Pass, Best, Chosen                  bool
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/optimize"
@@ -102,10 +103,18 @@ func ParseObjective(s string) (Objective, error) {
 	return 0, fmt.Errorf("match: objective %q: want power or rl", s)
 }
 
-// Design is a network found by [Search], with how it does.
+// Design is a network found by [Search], with how it does: Metrics is the
+// worst case over the binding members of the set (the load itself for
+// Search), Members each member's own metrics, and WorstMember and WorstBand
+// where its least margin falls.
 type Design struct {
 	Network Network
 	Metrics
+	Members                []Metrics
+	WorstMember, WorstBand int
+	// MeanPowerToLoad is the weighted mean power to the load over the
+	// binding members (see [SetMetrics]).
+	MeanPowerToLoad float64
 }
 
 // Result is what [Search] and [Exhaustive] return.
@@ -222,8 +231,21 @@ func (s *Settings) defaults() Settings {
 // The search stops and returns ctx.Err() when ctx is done. Other errors
 // are about the load, the bands or the settings.
 func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	return SearchSet(ctx, []Member{{Load: l}}, bands, s)
+}
+
+// SearchSet is [Search] across a set of loads: the key of a network is its
+// worst over every point of every band on every binding member (each on its
+// own measured points), so the best design meets every requirement in every
+// condition (or on every board) first and then delivers the most power to
+// the load in the worst of them. Every cut of Search bounds the worst case
+// over the points, so it holds for the worst over the members as well: with
+// the whole ranges searched the result is exact ([Result.Exact]) and equals
+// [ExhaustiveSet]. With one member it is Search. Each design carries every
+// member's metrics and where its least margin falls.
+func SearchSet(ctx context.Context, members []Member, bands []Band, s *Settings) (*Result, error) {
 	set := s.defaults()
-	e, err := newEngine(l, bands, &set)
+	e, err := newEngine(members, bands, &set)
 	if err != nil {
 		return nil, err
 	}
@@ -235,8 +257,14 @@ func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, er
 // band point, and keeps the best of each shape by the same key. Settings.Window, Budget
 // and Progress are ignored. It is slow by design.
 func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	return ExhaustiveSet(ctx, []Member{{Load: l}}, bands, s)
+}
+
+// ExhaustiveSet is [Exhaustive] across a set of loads, the plain search
+// [SearchSet] is checked against.
+func ExhaustiveSet(ctx context.Context, members []Member, bands []Band, s *Settings) (*Result, error) {
 	set := s.defaults()
-	e, err := newEngine(l, bands, &set)
+	e, err := newEngine(members, bands, &set)
 	if err != nil {
 		return nil, err
 	}
@@ -390,7 +418,8 @@ func kindTab(k Kind) int {
 // engine holds the data of one search: the band points and the tables of
 // part impedances at them.
 type engine struct {
-	l      Load
+	sj     *setJudge // the members, and the evaluator of results
+	z0     float64   // the set's reference
 	bands  []Band
 	pts    points
 	K      int
@@ -413,10 +442,28 @@ type ranger interface {
 	Range(k parts.Kind) (lo, hi float64)
 }
 
-func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
-	pts, err := bandPoints(l, bands)
+func newEngine(members []Member, bands []Band, set *Settings) (*engine, error) {
+	sj, err := newSetJudge(members, bands)
 	if err != nil {
 		return nil, err
+	}
+	// The points of every binding member, one after the other.
+	var pts points
+	for i, m := range sj.members {
+		if m.Advisory {
+			continue
+		}
+		p, err := bandPoints(m.Load, bands)
+		if err != nil {
+			return nil, fmt.Errorf("member %s: %w", m.name(i), err)
+		}
+		pts.freqHz = append(pts.freqHz, p.freqHz...)
+		pts.gamma = append(pts.gamma, p.gamma...)
+		pts.minRLdB = append(pts.minRLdB, p.minRLdB...)
+		pts.minPower = append(pts.minPower, p.minPower...)
+		for range p.freqHz {
+			pts.member = append(pts.member, i)
+		}
 	}
 	if set.MinParts < 1 || set.MaxParts > 4 || set.MinParts > set.MaxParts {
 		return nil, fmt.Errorf("match: parts %d to %d; want 1 ≤ min ≤ max ≤ 4", set.MinParts, set.MaxParts)
@@ -424,7 +471,7 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 	if set.Top < 1 {
 		return nil, fmt.Errorf("match: top %d; want at least 1", set.Top)
 	}
-	e := &engine{l: l, bands: bands, pts: pts, K: len(pts.freqHz), obj: set.Objective}
+	e := &engine{sj: sj, z0: sj.members[0].Load.Z0Ohm, bands: bands, pts: pts, K: len(pts.freqHz), obj: set.Objective}
 	for j, name := range []string{set.LSeries, set.CSeries} {
 		if e.ser[j], err = parts.Lookup(name); err != nil {
 			return nil, err
@@ -444,8 +491,8 @@ func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
 	}
 
 	// Value ranges.
-	z0 := l.Z0Ohm
-	fLo, fHi := pts.freqHz[0], pts.freqHz[e.K-1]
+	z0 := e.z0
+	fLo, fHi := slices.Min(pts.freqHz), slices.Max(pts.freqHz)
 	wLo, wHi := 2*math.Pi*fLo, 2*math.Pi*fHi
 	def := [2][2]float64{
 		{z0 / 25 / wHi, 25 * z0 / wLo},         // L: ωL within [Z0/25, 25·Z0]
@@ -851,11 +898,12 @@ func (e *engine) result(res *Result, tops [][]Kind, best []candidate, set *Setti
 	res.Objective = set.Objective
 	for _, t := range order {
 		n := e.network(tops[t], best[t].idx, set.Model)
-		m, err := Evaluate(e.l, e.bands, n)
+		c, err := n.Circuit()
 		if err != nil {
 			return nil, err
 		}
-		res.Designs = append(res.Designs, Design{Network: n, Metrics: m})
+		m := e.sj.metrics(c)
+		res.Designs = append(res.Designs, Design{Network: n, Metrics: m.Metrics, Members: m.Members, WorstMember: m.WorstMember, WorstBand: m.WorstBand, MeanPowerToLoad: m.MeanPowerToLoad})
 	}
 	return res, nil
 }
@@ -929,7 +977,7 @@ func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
 		}
 		var sc score
 		for _, k := range sub {
-			g, gt := c.PowerAt(e.pts.freqHz[k], e.pts.gamma[k], e.l.Z0Ohm)
+			g, gt := c.PowerAt(e.pts.freqHz[k], e.pts.gamma[k], e.z0)
 			q := (real(g)*real(g) + imag(g)*imag(g)) * e.wt[k]
 			if pm := e.pmin[k]; pm > 0 {
 				q = math.Max(q, pm/math.Max(gt, 1e-300))
@@ -982,25 +1030,38 @@ func (e *engine) subsample(m int) []int {
 		}
 		return s
 	}
-	per := max(2, m/len(e.bands))
-	var s []int
-	for _, b := range e.bands {
-		var in []int
-		for k, f := range e.pts.freqHz {
-			if f >= b.LoHz && f <= b.HiHz {
-				in = append(in, k)
-			}
+	// Spread over every binding member and band, each its edges and points
+	// between them.
+	groups := 0
+	for i, mm := range e.sj.members {
+		if !mm.Advisory && slices.Contains(e.pts.member, i) {
+			groups += len(e.bands)
 		}
-		if len(in) <= per {
-			s = append(s, in...)
+	}
+	per := max(2, m/groups)
+	var s []int
+	for i, mm := range e.sj.members {
+		if mm.Advisory {
 			continue
 		}
-		for i := range per {
-			s = append(s, in[i*(len(in)-1)/(per-1)])
+		for _, b := range e.bands {
+			var in []int
+			for k, f := range e.pts.freqHz {
+				if e.pts.member[k] == i && f >= b.LoHz && f <= b.HiHz {
+					in = append(in, k)
+				}
+			}
+			if len(in) <= per {
+				s = append(s, in...)
+				continue
+			}
+			for j := range per {
+				s = append(s, in[j*(len(in)-1)/(per-1)])
+			}
 		}
 	}
 	sort.Ints(s)
-	return s
+	return slices.Compact(s)
 }
 
 // starts returns the starting points (log values) of the continuous phase
@@ -1021,18 +1082,20 @@ func (e *engine) starts(top []Kind, lo, hi []float64) [][]float64 {
 		}
 	}
 	out := [][]float64{mid}
-	centres := []float64{math.Sqrt(e.pts.freqHz[0] * e.pts.freqHz[e.K-1])}
+	centres := []float64{math.Sqrt(slices.Min(e.pts.freqHz) * slices.Max(e.pts.freqHz))}
+	// The L-networks of the first binding member.
+	first := e.sj.members[e.pts.member[0]].Load
 	if len(e.bands) > 1 {
 		for _, b := range e.bands {
 			centres = append(centres, math.Sqrt(b.LoHz*b.HiHz))
 		}
 	}
 	for _, fc := range centres {
-		zl, ok := e.l.ZAt(fc)
+		zl, ok := first.ZAt(fc)
 		if !ok {
 			continue
 		}
-		sols, _, err := LNetworks(zl, complex(e.l.Z0Ohm, 0), fc)
+		sols, _, err := LNetworks(zl, complex(e.z0, 0), fc)
 		if err != nil {
 			continue
 		}

@@ -67,8 +67,10 @@ type YieldResult struct {
 	// most margin alone.
 	MostSensitive int
 	// Traces holds Γ at every frequency of the load for the first
-	// Settings.Traces builds.
-	Traces [][]complex128
+	// Settings.Traces builds; TraceMembers the member of a set each was
+	// judged on (see [YieldSet]).
+	Traces       [][]complex128
+	TraceMembers []int
 }
 
 // Corner is a build with every part at one end of its tolerance.
@@ -105,6 +107,19 @@ type Sensitivity struct {
 // It returns ctx.Err() if ctx is done, and errors about the load, the
 // bands or the settings.
 func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
+	return YieldSet(ctx, []Member{{Load: l}}, Conditions, bands, n, s)
+}
+
+// YieldSet is [Yield] across a set of loads. For a set of Conditions a
+// build passes when it meets every requirement on every binding member.
+// For a Lot each build is judged against one binding member drawn at
+// random by weight (from a source seeded by the same seed), so the
+// yield counts both the parts' tolerances and the lot's spread; the
+// nominal, the corners and the sensitivities are judged on the worst
+// member. Traces are on the first binding member's frequencies for
+// Conditions, on the drawn member's for a Lot (TraceMembers says which).
+// With one member it is Yield.
+func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
 	var set YieldSettings
 	if s != nil {
 		set = *s
@@ -137,12 +152,20 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			}
 		}
 	}
-	j, err := newJudge(l, bands)
+	sj, err := newSetJudge(members, bands)
 	if err != nil {
 		return nil, err
 	}
 	if _, err := n.Circuit(); err != nil {
 		return nil, err
+	}
+	var binding []int
+	var wsum float64
+	for i, m := range sj.members {
+		if !m.Advisory {
+			binding = append(binding, i)
+			wsum += m.Weight
+		}
 	}
 	// A build's parts: every value drawn is positive, so it always builds.
 	margin := func(b Network) Metrics {
@@ -150,7 +173,7 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 		if err != nil {
 			return Metrics{MarginDB: math.Inf(-1)}
 		}
-		return j.metrics(c)
+		return sj.metrics(c).Metrics
 	}
 	res := &YieldResult{Builds: set.Builds, Nominal: margin(n)}
 
@@ -176,6 +199,9 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 	}
 	b := n.Clone()
 	margins := make([]float64, set.Builds)
+	// The lot's draws have their own source, so that the parts' values are
+	// the same builds as for one load with the same seed.
+	pick := rand.New(rand.NewPCG(set.Seed^0x5bd1e995, set.Seed))
 	for k := range set.Builds {
 		if k%256 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -185,14 +211,32 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 		for i := range b {
 			b[i].Value = draw[i]()
 		}
-		m := margin(b)
+		c, err := b.Circuit()
+		if err != nil {
+			return nil, err
+		}
+		who := binding[0]
+		var m Metrics
+		if kind == Lot {
+			x := pick.Float64() * wsum
+			for _, i := range binding {
+				who = i
+				if x -= sj.members[i].Weight; x < 0 {
+					break
+				}
+			}
+			m = sj.judges[who].metrics(c)
+		} else {
+			m = sj.metrics(c).Metrics
+		}
 		margins[k] = m.MarginDB
 		if m.Meets() {
 			res.Passed++
 		}
 		if k < set.Traces {
-			c, _ := b.Circuit()
+			l := sj.members[who].Load
 			res.Traces = append(res.Traces, c.GammaTo(nil, l.FreqHz, l.Gamma, l.Z0Ohm))
+			res.TraceMembers = append(res.TraceMembers, who)
 		}
 	}
 	if set.Builds > 0 {

@@ -38,8 +38,9 @@ import (
 // Words that may also appear are s11, s, gamma, refl, reflection,
 // coefficient and rho. Real/imaginary columns are used if present, then
 // dB/angle, then magnitude/angle. A header with other names is an error
-// that lists the names found and the names expected. Under ';' a number may
-// use a decimal comma. Frequencies must increase strictly.
+// that lists the names found and the names expected. Numbers are decimal,
+// as in a Touchstone file (no hexadecimal, Inf or NaN); under ';' a number
+// may use a decimal comma. Frequencies must increase strictly.
 func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	lim = lim.withDefaults()
 	buf, err := readAll(r, name, lim.MaxBytes)
@@ -91,7 +92,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		}
 	}
 	if best == 0 {
-		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", header))
+		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", found(header)))
 	}
 
 	cr := csv.NewReader(bytes.NewReader(text))
@@ -128,7 +129,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			x, ok := csvNumber(rec[idx], sep)
 			if !ok {
 				line, col := cr.FieldPos(idx)
-				return nil, perr(line, col, syntaxf("expected a number in column %q, found %q", cols.names[k], rec[idx]))
+				return nil, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.names[k]), found(rec[idx])))
 			}
 			v[k] = x
 		}
@@ -138,7 +139,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", v[0]))
 		}
 		if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
-			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", rec[cols.freq]))
+			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
 		}
 		if len(s.FreqHz) >= lim.MaxPoints {
 			return nil, perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", lim.MaxPoints))
@@ -175,24 +176,31 @@ func csvZ0(text string) (float64, bool, error) {
 		if f[i] != "z0" && f[i] != "r" {
 			continue
 		}
-		v, err := strconv.ParseFloat(strings.TrimSuffix(f[i+1], "ohm"), 64)
+		v, err := parseNumber([]byte(strings.TrimSuffix(f[i+1], "ohm")))
 		if err != nil {
+			if f[i] == "z0" { // "r" may start a word of any comment
+				return 0, false, syntaxf("Z0 must be followed by the reference resistance in ohms as a decimal number, found %q", f[i+1])
+			}
 			continue
 		}
 		if !(v > 0) || math.IsInf(v, 0) {
-			return 0, false, syntaxf("reference resistance %s must be a positive number of ohms", f[i+1])
+			return 0, false, syntaxf("reference resistance %s must be a positive number of ohms", found(f[i+1]))
 		}
 		return v, true, nil
 	}
 	return 0, false, nil
 }
 
+// csvNumber reads a number of a CSV field by the rules of the Touchstone
+// reader (digits, sign, point and exponent; no hexadecimal, Inf, NaN or
+// underscores, which strconv.ParseFloat would take), with a decimal comma
+// under sep ';'.
 func csvNumber(s string, sep rune) (float64, bool) {
 	s = strings.TrimSpace(s)
 	if sep == ';' && strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
-	v, err := strconv.ParseFloat(s, 64)
+	v, err := parseNumber([]byte(s))
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, false
 	}
@@ -236,7 +244,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 			kind, ok := csvWords[w]
 			if !ok {
 				if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
-					return nil, unsupportedf("CSV import reads 1-port data (S11) only; column %q names %s", name, strings.ToUpper(w))
+					return nil, unsupportedf("CSV import reads 1-port data (S11) only; column %q names %s", found(name), found(strings.ToUpper(w)))
 				}
 				kind = "?"
 			}
@@ -282,7 +290,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 			continue
 		}
 		if _, dup := idx[role]; dup {
-			return nil, syntaxf("two columns are %s columns (%q and %q)", role, rec[idx[role]], name)
+			return nil, syntaxf("two columns are %s columns (%q and %q)", role, found(rec[idx[role]]), found(name))
 		}
 		idx[role] = i
 		if role == "freq" && unit != "" {
@@ -312,7 +320,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		if allNumbers {
 			return nil, syntaxf("expected a header row naming the columns, found numbers; a header needs %s", csvExpected)
 		}
-		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", rec, csvExpected)
+		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", foundList(rec), csvExpected)
 	}
 	c.freq = f
 	c.names = [3]string{rec[f], rec[c.a], rec[c.b]}

@@ -500,7 +500,7 @@ func (p *parser) notNumber(line []byte, start int) error {
 func parseNumber(tok []byte) (float64, error) {
 	for _, c := range tok {
 		if charClass[c] != clsNum {
-			return 0, syntaxf("expected a number, found %q", string(tok))
+			return 0, syntaxf("expected a number, found %q", found(tok))
 		}
 	}
 	return parseScanned(tok)
@@ -518,9 +518,9 @@ func parseScanned(tok []byte) (float64, error) {
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
-			return 0, syntaxf("number %s is out of the range of float64", string(tok))
+			return 0, syntaxf("number %s is out of the range of float64", found(tok))
 		}
-		return 0, syntaxf("expected a number, found %q", string(tok))
+		return 0, syntaxf("expected a number, found %q", found(tok))
 	}
 	return v, nil
 }
@@ -557,7 +557,7 @@ func (p *parser) optionLine(line []byte, i int) error {
 		low := strings.ToLower(f.text)
 		if u, ok := units[low]; ok {
 			if haveUnit {
-				return p.errAt(f.col, syntaxf("the option line gives the frequency unit twice (%s)", f.text))
+				return p.errAt(f.col, syntaxf("the option line gives the frequency unit twice (%s)", found(f.text)))
 			}
 			p.unit, haveUnit = u, true
 			continue
@@ -565,14 +565,14 @@ func (p *parser) optionLine(line []byte, i int) error {
 		switch low {
 		case "s", "y", "z":
 			if haveParam {
-				return p.errAt(f.col, syntaxf("the option line gives the parameter type twice (%s)", f.text))
+				return p.errAt(f.col, syntaxf("the option line gives the parameter type twice (%s)", found(f.text)))
 			}
 			p.param, haveParam = low[0]-'a'+'A', true
 		case "h", "g":
-			return p.errAt(f.col, unsupportedf("%s-parameters are not supported: matchbench reads S-, Y- and Z-parameters", strings.ToUpper(low)))
+			return p.errAt(f.col, unsupportedf("%s-parameters are not supported: matchbench reads S-, Y- and Z-parameters", found(strings.ToUpper(low))))
 		case "ri", "ma", "db":
 			if haveFormat {
-				return p.errAt(f.col, syntaxf("the option line gives the format twice (%s)", f.text))
+				return p.errAt(f.col, syntaxf("the option line gives the format twice (%s)", found(f.text)))
 			}
 			p.format, haveFormat = map[string]byte{"ri": 'R', "ma": 'M', "db": 'D'}[low], true
 		case "r":
@@ -586,7 +586,7 @@ func (p *parser) optionLine(line []byte, i int) error {
 					break
 				}
 				if !(v > 0) || math.IsInf(v, 0) {
-					return p.errAt(fields[k+1].col, syntaxf("reference resistance %s must be a positive number of ohms", fields[k+1].text))
+					return p.errAt(fields[k+1].col, syntaxf("reference resistance %s must be a positive number of ohms", found(fields[k+1].text)))
 				}
 				k++
 				p.refs = append(p.refs, v)
@@ -595,7 +595,7 @@ func (p *parser) optionLine(line []byte, i int) error {
 				return p.errAt(f.col, syntaxf("R must be followed by the reference resistance in ohms"))
 			}
 		default:
-			return p.errAt(f.col, syntaxf("unknown option-line field %q: expected a frequency unit (Hz, kHz, MHz, GHz), a parameter (S, Y, Z), a format (RI, MA, DB) or R followed by the reference resistance", f.text))
+			return p.errAt(f.col, syntaxf("unknown option-line field %q: expected a frequency unit (Hz, kHz, MHz, GHz), a parameter (S, Y, Z), a format (RI, MA, DB) or R followed by the reference resistance", found(f.text)))
 		}
 	}
 	if !haveR {
@@ -624,7 +624,7 @@ func (p *parser) startV1(col int) error {
 	p.file.Version = "1.1"
 	n, ok := PortsFromName(p.name)
 	if !ok {
-		return p.errAt(col, syntaxf("a file without [Version] is version 1, whose port count comes from the file name: expected a name ending in .s1p, .s2p, … .sNp, got %q", filepath.Base(p.name)))
+		return p.errAt(col, syntaxf("a file without [Version] is version 1, whose port count comes from the file name: expected a name ending in .s1p, .s2p, … .sNp, got %q", found(filepath.Base(p.name))))
 	}
 	if n > p.lim.MaxPorts {
 		return p.errAt(col, limitf("the file name gives %d ports, more than the MaxPorts limit of %d", n, p.lim.MaxPorts))
@@ -938,13 +938,13 @@ func (p *parser) keywordLine(line []byte, i int) error {
 	switch p.version {
 	case 0:
 		if name != "version" {
-			return p.errAt(col, syntaxf("a file with keywords must start with [Version] 2.0 or 2.1, found [%s]", name))
+			return p.errAt(col, syntaxf("a file with keywords must start with [Version] 2.0 or 2.1, found [%s]", found(name)))
 		}
 	case 1:
-		return p.errAt(col, syntaxf("keyword [%s] in a version 1 file (no [Version] before the option line): a version 2 file must start with [Version]", name))
+		return p.errAt(col, syntaxf("keyword [%s] in a version 1 file (no [Version] before the option line): a version 2 file must start with [Version]", found(name)))
 	}
 	if p.state == stEnded {
-		return p.errAt(col, syntaxf("keyword [%s] after [End]: [End] must be the last keyword", name))
+		return p.errAt(col, syntaxf("keyword [%s] after [End]: [End] must be the last keyword", found(name)))
 	}
 	if p.refPending {
 		return p.errAt(col, syntaxf("[Reference] on line %d needs %d values, one per port; found %d", p.refKwLine, p.ports, len(p.keyRefs)))
@@ -954,7 +954,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 	}
 	noArgs := func() error {
 		if len(args) > 0 {
-			return p.errAt(args[0].col, syntaxf("[%s] takes no argument, found %q", name, args[0].text))
+			return p.errAt(args[0].col, syntaxf("[%s] takes no argument, found %q", found(name), found(args[0].text)))
 		}
 		return nil
 	}
@@ -971,7 +971,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 	}
 	if name != "version" {
 		if !p.haveOpt {
-			return p.errAt(col, syntaxf("expected the option line (# <unit> <parameter> <format> R <n>) after [Version], found [%s]", name))
+			return p.errAt(col, syntaxf("expected the option line (# <unit> <parameter> <format> R <n>) after [Version], found [%s]", found(name)))
 		}
 		switch name {
 		case "number of ports", "begin information", "end information", "end":
@@ -1004,7 +1004,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 			return err
 		}
 		if a.text != "2.0" && a.text != "2.1" {
-			return p.errAt(a.col, syntaxf("expected [Version] 2.0 or 2.1, found %q", a.text))
+			return p.errAt(a.col, syntaxf("expected [Version] 2.0 or 2.1, found %q", found(a.text)))
 		}
 		p.version, p.ver21 = 2, a.text == "2.1"
 		p.file.Version = a.text
@@ -1015,7 +1015,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 		}
 		n, err := strconv.Atoi(a.text)
 		if err != nil || n < 1 {
-			return p.errAt(a.col, syntaxf("expected a positive whole number of ports, found %q", a.text))
+			return p.errAt(a.col, syntaxf("expected a positive whole number of ports, found %q", found(a.text)))
 		}
 		if n > p.lim.MaxPorts {
 			return p.errAt(a.col, limitf("%d ports is more than the MaxPorts limit of %d", n, p.lim.MaxPorts))
@@ -1033,7 +1033,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 			return err
 		}
 		if a.text != "12_21" && a.text != "21_12" {
-			return p.errAt(a.col, syntaxf("expected [Two-Port Data Order] 12_21 or 21_12, found %q", a.text))
+			return p.errAt(a.col, syntaxf("expected [Two-Port Data Order] 12_21 or 21_12, found %q", found(a.text)))
 		}
 		p.order = a.text
 	case "number of frequencies", "number of noise frequencies":
@@ -1046,7 +1046,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 		}
 		n, err := strconv.Atoi(a.text)
 		if err != nil || n < 1 {
-			return p.errAt(a.col, syntaxf("expected a positive whole number of frequencies, found %q", a.text))
+			return p.errAt(a.col, syntaxf("expected a positive whole number of frequencies, found %q", found(a.text)))
 		}
 		if n > p.lim.MaxPoints {
 			return p.errAt(a.col, limitf("%d frequencies is more than the MaxPoints limit of %d", n, p.lim.MaxPoints))
@@ -1074,7 +1074,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 		}
 		m := strings.ToLower(a.text)
 		if m != "full" && m != "lower" && m != "upper" {
-			return p.errAt(a.col, syntaxf("expected [Matrix Format] Full, Lower or Upper, found %q", a.text))
+			return p.errAt(a.col, syntaxf("expected [Matrix Format] Full, Lower or Upper, found %q", found(a.text)))
 		}
 		p.matrix = m
 	case "mixed-mode order":
@@ -1126,7 +1126,7 @@ func (p *parser) keywordLine(line []byte, i int) error {
 	case "end information":
 		return p.errAt(col, syntaxf("[End Information] without [Begin Information]"))
 	default:
-		return p.errAt(col, syntaxf("unknown keyword [%s]; expected one of %s", name, knownKeywords))
+		return p.errAt(col, syntaxf("unknown keyword [%s]; expected one of %s", found(name), knownKeywords))
 	}
 	return nil
 }

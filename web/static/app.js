@@ -436,6 +436,7 @@ document.addEventListener("click", (ev) => {
 	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index, ...lineSettings() } }); break;
 	case "qw-use": send({ type: "form", form: "qw.use", fields: { index: d.index, ...lineSettings() } }); break;
 	case "search-cancel": send({ type: "action", action: "search-cancel" }); break;
+	case "tune-use": send({ type: "form", form: "tune.use", fields: { tuneId: d.tune, index: d.index } }); break;
 	default: send({ type: "action", action: d.action, fields: { ...d } });
 	}
 });
@@ -548,6 +549,21 @@ document.addEventListener("input", (ev) => {
 	});
 });
 document.addEventListener("focusout", () => { if (!sliding) setTimeout(flushPending, 0); });
+
+// ---- amplifier panel: dragging a termination (server/amp.go, web/amp.templ) ----
+// The Γs handle of the source-plane chart and the ΓL handle of the
+// load-plane chart drag like a marker: at most one amp.point change per
+// animation frame, one gesture (one undo step) per drag. The server
+// answers with the two handles and the readout.
+document.addEventListener("pointerdown", (ev) => {
+	const fig = ev.target.closest(".amp-chart[data-plane]");
+	if (!fig || !canEdit || !ev.target.closest("g.handle")) return;
+	startDrag("amp", fig.dataset.plane, ev, fig.querySelector("svg"));
+});
+document.addEventListener("pointermove", (ev) => {
+	if (!drag || drag.kind !== "amp") return;
+	queueMove({ op: "amp.point", plane: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
+});
 
 // ---- uploads ----
 
