@@ -101,20 +101,38 @@ func (c *Chart) RenderSpot(w io.Writer, s Spot) error {
 func (c *Chart) regions(sw *writer, l layout) {
 	sw.s(`<g`)
 	c.id(sw, "regions")
-	if len(c.Regions) > 0 {
-		// The regions' own clip: the shown disc.
-		sw.s(` clip-path="url(#`)
-		sw.text(c.IDPrefix)
-		sw.s(`rclip)"><defs><clipPath`)
-		c.id(sw, "rclip")
-		sw.s(`><circle r="`)
-		sw.num(l.rpx)
-		sw.s(`"/></clipPath></defs>`)
+	if len(c.Regions) == 0 {
+		sw.s(`></g>`)
+		sw.maybeFlush()
+		return
+	}
+	// The regions' own clip: the shown disc, or, on a chart zoomed off
+	// Γ = 0, the unit disc inside the chart's clip of the shown disc.
+	off := !l.centred()
+	sw.s(` clip-path="url(#`)
+	sw.text(c.IDPrefix)
+	sw.s(`rclip)"><defs><clipPath`)
+	c.id(sw, "rclip")
+	sw.s(`><circle`)
+	if off {
+		o := l.o()
+		sw.numAttr("cx", o.x)
+		sw.numAttr("cy", o.y)
+		sw.numAttr("r", l.k)
 	} else {
+		sw.numAttr("r", l.rpx)
+	}
+	sw.s(`/></clipPath></defs>`)
+	if off {
+		sw.s(`<g`)
+		c.clipAttr(sw, l)
 		sw.b('>')
 	}
 	for i := range c.Regions {
 		c.region(sw, l, &c.Regions[i])
+	}
+	if off {
+		sw.s(`</g>`)
 	}
 	sw.s(`</g>`)
 	sw.maybeFlush()
@@ -219,7 +237,7 @@ func (c *Chart) region(sw *writer, l layout, r *Region) {
 // labelPoint returns where a region's label goes: its outline's point
 // nearest the origin (a line's Center; a circle's point toward the origin,
 // or its top when it is centred there), when that lies inside the shown
-// disc.
+// disc and inside the chart.
 func (r *Region) labelPoint(l layout) (complex128, bool) {
 	var p complex128
 	switch {
@@ -231,11 +249,17 @@ func (r *Region) labelPoint(l layout) (complex128, bool) {
 		d := r.Center / complex(cmplx.Abs(r.Center), 0)
 		p = r.Center - d*complex(r.Radius, 0)
 	}
-	return p, cmplx.Abs(p) <= 0.97*l.zoom
+	return p, cmplx.Abs(p-l.c) <= 0.97*l.zoom && cmplx.Abs(p) <= 0.97
 }
 
-// discPath appends the shown disc as a closed path.
+// discPath appends the shown disc as a closed path: the disc of radius
+// zoom about its centre when that lies on Γ = 0, else the unit disc (the
+// regions' clip keeps the shown part of it).
 func discPath(sw *writer, l layout) {
+	if !l.centred() {
+		circlePath(sw, l, 0, 1)
+		return
+	}
 	r := l.zoom
 	arcPath(sw, l, r, complex(-r, 0), complex(r, 0), complex(-r, 0), 0)
 	sw.b('z')

@@ -194,6 +194,72 @@ func TestRegionsGeometry(t *testing.T) {
 	}
 }
 
+// On a chart zoomed off Γ = 0 (Chart.Centre) the regions are drawn for
+// the disc shown: a label whose point lies in that disc is written though
+// it is far from Γ = 0, the whole-disc shading is the unit disc (arcs
+// about Γ = 0 of radius 1, not the zoom's radius about Γ = 0, which would
+// miss most of the disc shown), and the layer is clipped to the unit disc
+// inside the chart's clip of the shown disc.
+func TestRegionsOffCentre(t *testing.T) {
+	t.Parallel()
+	c := Chart{SizePx: 500, NoLegend: true, Zoom: 0.3, Centre: 0.6, Regions: []Region{
+		{ID: "near", Center: 0.6, Radius: 0.1, Shade: ShadeInside, Label: "near"},
+		{ID: "far", Center: complex(-0.6, 0), Radius: 0.1, Label: "far"},
+		{ID: "all", Center: 0.6, Radius: 0.05, Shade: ShadeAll},
+	}}
+	var b bytes.Buffer
+	if err := c.Render(&b, nil, nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	root := parseSVG(t, b.String())
+	k, ctr := c.Scale(), c.ShownCentre()
+	toG := func(p pt) complex128 { return complex(p.x/k, -p.y/k) + ctr }
+	tol := 0.06 / k
+	if !strings.Contains(root.byID("region-near").allText(), "near") {
+		t.Error("the label of a region inside the shown disc is missing")
+	}
+	if strings.Contains(root.byID("region-far").allText(), "far") {
+		t.Error("a region outside the shown disc is labelled")
+	}
+	var shade *element
+	root.byID("region-all").walk(func(e *element) {
+		if e.name == "path" && e.attr["fill-opacity"] != "" {
+			shade = e
+		}
+	})
+	if shade == nil {
+		t.Fatal("ShadeAll drew no shading")
+	}
+	_, arcs := pathPoints(t, shade.attr["d"])
+	if len(arcs) == 0 {
+		t.Fatal("the shading has no arcs")
+	}
+	for _, a := range arcs {
+		o, _ := a.centre()
+		if cmplx.Abs(toG(o)) > 5*tol || math.Abs(a.r/k-1) > 5*tol {
+			t.Errorf("whole-disc shading arc about %v of radius %g, want the unit circle", toG(o), a.r/k)
+		}
+	}
+	var clip *element
+	root.byID("rclip").walk(func(e *element) {
+		if e.name == "circle" {
+			clip = e
+		}
+	})
+	if clip == nil {
+		t.Fatal("no clip circle for the regions")
+	}
+	cx, _ := strconv.ParseFloat(clip.attr["cx"], 64)
+	cy, _ := strconv.ParseFloat(clip.attr["cy"], 64)
+	r, _ := strconv.ParseFloat(clip.attr["r"], 64)
+	if cmplx.Abs(toG(pt{cx, cy})) > tol || math.Abs(r/k-1) > tol {
+		t.Errorf("regions clipped to the circle about %v of radius %g, want the unit circle", toG(pt{cx, cy}), r/k)
+	}
+	if !strings.Contains(b.String(), `<g clip-path="url(#clip)"><g id="region-near"`) {
+		t.Error("the regions are not inside the chart's clip of the shown disc")
+	}
+}
+
 // fmtSscanTranslate reads "translate(x y)".
 func fmtSscanTranslate(s string, x, y *float64) (int, error) {
 	s = strings.TrimSuffix(strings.TrimPrefix(s, "translate("), ")")
