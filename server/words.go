@@ -18,7 +18,11 @@ import (
 func plainWords(msg string) string {
 	msg = plainDetail(msg)
 	if first, _, _ := strings.Cut(msg, " "); msg != "" && !strings.ContainsAny(first, ".:/") {
-		msg = strings.ToUpper(msg[:1]) + msg[1:] // not a file's name and line
+		// Not a file's name and line. Only a Latin letter: a symbol's
+		// case is its meaning (μ, Γ), and a byte of one is not a letter.
+		if c := msg[0]; c >= 'a' && c <= 'z' {
+			msg = string(c-'a'+'A') + msg[1:]
+		}
 	}
 	return msg
 }

@@ -22,6 +22,12 @@ func TestPlainWords(t *testing.T) {
 		{"bad.s1p:4: want 3 numbers, found 2", "bad.s1p:4: want 3 numbers, found 2"},
 		{"rfmath: half-power edge outside the sweep: above 2.3328177109592986e+09 Hz",
 			"Half-power edge outside the sweep: above 2.33282 GHz"},
+		// A message that starts with a symbol keeps it whole and in its
+		// case (μ is not Μ, ω is not Ω); a Latin letter is capitalised.
+		{"Γs lies outside the chart", "Γs lies outside the chart"},
+		{"μ is below 1 at 1.5e+09 Hz", "μ is below 1 at 1.5 GHz"},
+		{"ω below the sweep", "ω below the sweep"},
+		{"set up a stage on a 2-port sweep first", "Set up a stage on a 2-port sweep first"},
 	} {
 		if got := plainWords(tc.in); got != tc.want {
 			t.Errorf("plainWords(%q)\n  = %q\nwant %q", tc.in, got, tc.want)
