@@ -320,3 +320,48 @@ func TestRequestsPerAddr(t *testing.T) {
 		t.Error("the places did not come back when the stalled uploads ended")
 	}
 }
+
+// A page's view is drawn in its session's drawing slot, as every other
+// drawing: while the slot is held no view is drawn, and the view comes
+// when it is free.
+func TestViewDrawnInSlot(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 101)
+	c := wsDial(t, f, f.sess.ViewToken)
+	got := make(chan outMsg, 4)
+	go func() {
+		for {
+			var m outMsg
+			if err := c.ReadJSON(&m); err != nil {
+				close(got)
+				return
+			}
+			got <- m
+		}
+	}()
+	sh := f.srv.share(f.sess.ID)
+	sh.drawing(context.Background())
+	c.WriteJSON(inMsg{Type: "view", ID: 5, Fields: map[string]string{"vid": "v1", "z0": "75"}})
+	select {
+	case m := <-got:
+		if m.Type == "view" {
+			t.Error("a view was drawn while the session's drawing slot was held")
+		}
+	case <-time.After(300 * time.Millisecond):
+	}
+	sh.done()
+	deadline := time.After(10 * time.Second)
+	for {
+		select {
+		case m, ok := <-got:
+			if !ok {
+				t.Fatal("the connection ended")
+			}
+			if m.Type == "view" && m.ID == 5 {
+				return
+			}
+		case <-deadline:
+			t.Fatal("no view once the slot was free")
+		}
+	}
+}

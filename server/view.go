@@ -299,6 +299,13 @@ func (c *conn) sendView(ctx context.Context, id int64) {
 		c.reply(outMsg{Type: "error", ID: id, Msg: "the session could not be read"})
 		return
 	}
+	// Drawn in the session's drawing slot, as every other drawing of its
+	// pages (limits.go sessionShare): a page flooding view changes keeps
+	// one core at most.
+	if !c.share.drawing(ctx) {
+		return
+	}
+	defer c.share.done()
 	pv := c.currentView()
 	sc := c.s.scene(c.sid, st)
 	v := c.s.panelsView(access{SessionID: c.sid, Cap: c.cap, Token: c.token}, sc, ver, pv)
