@@ -44,8 +44,13 @@ func pointToChart(g complex128, from, to float64) complex128 {
 	return one[0]
 }
 
+// maxDispRefs is how many chart references a scene keeps its renormalised
+// traces for.
+const maxDispRefs = 4
+
 // dispGamma returns the trace as the chart at chartZ0 draws it, computed
-// once per scene and reference.
+// once per scene and reference (for at most maxDispRefs references at a
+// time).
 func (sc *scene) dispGamma(t *trace, chartZ0 float64) []complex128 {
 	if t.z0 == chartZ0 {
 		return t.gamma
@@ -55,7 +60,9 @@ func (sc *scene) dispGamma(t *trace, chartZ0 float64) []complex128 {
 		return g
 	}
 	g := toChart(t.gamma, t.z0, chartZ0)
-	if sc.disp == nil {
+	if sc.disp == nil || len(sc.disp) >= maxDispRefs*max(len(sc.traces), 1) {
+		// Pages may type one reference after another: the scene keeps
+		// the traces of a few references, not of every one asked for.
 		sc.disp = map[string][]complex128{}
 	}
 	sc.disp[key] = g

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"math"
 	"math/cmplx"
+	"slices"
 	"strconv"
 
 	"matchbench/chartsvg"
@@ -52,6 +53,41 @@ func init() {
 	}
 	add(quantity{"power", "pct", "in % of the available power", "Power to the load, % of the available power", "to the load", "%", false})
 	add(quantity{"power", "pdb", "in dB of the available power", "Power to the load, dB of the available power", "to the load", "dB", false})
+}
+
+// A scene keeps its plots for at most maxViewsKept page views and its
+// series for at most maxSeriesKept quantities and spans (each page's view
+// has its own, and a page that zooms or pans sends many): beyond that it
+// starts afresh, so a room's scene stays within a bounded memory however
+// its pages look at it.
+const (
+	maxViewsKept  = 32
+	maxSeriesKept = 48
+)
+
+// thinSpan thins series s for a plot of the span lo–hi: the points inside
+// the span and one either side (the curve runs to the frame), thinned as
+// thinSeries does, so that a narrow span keeps a column a pixel.
+func thinSpan(s chartsvg.Series, lo, hi float64) chartsvg.Series {
+	n := len(s.FreqHz)
+	if n == 0 {
+		return s
+	}
+	a, _ := slices.BinarySearch(s.FreqHz, lo) // the first point at or above lo
+	b, at := slices.BinarySearch(s.FreqHz, hi)
+	if at {
+		b++ // the first point above hi
+	}
+	a, b = max(a-1, 0), min(b, n-1)
+	if a > 0 || b < n-1 {
+		s.FreqHz, s.Y = s.FreqHz[a:b+1], s.Y[a:b+1]
+		if len(s.FreqHz) <= 4*plotWidth {
+			// Copies, so that the scene does not hold the whole series.
+			s.FreqHz, s.Y = slices.Clone(s.FreqHz), slices.Clone(s.Y)
+			return s
+		}
+	}
+	return thinSeries(s)
 }
 
 // plotSlot is one plot of the page and what it shows by default.
@@ -128,7 +164,7 @@ func (sc *scene) plotsFor(v *pageView) []plot {
 	for _, s := range sc.slots() {
 		c := v.choice(s.id, s.def)
 		q := quantities[c.Q]
-		series, bands, note := sc.quantitySeries(c.Q, v)
+		series, bands, note := sc.quantitySeries(c.Q, v, lo, hi)
 		title := q.title
 		if note != "" {
 			title += " (" + note + ")"
@@ -144,7 +180,7 @@ func (sc *scene) plotsFor(v *pageView) []plot {
 	if p, _ := sc.tdrPlot(); p != nil {
 		out = append(out, *p)
 	}
-	if sc.plotsC == nil {
+	if sc.plotsC == nil || len(sc.plotsC) >= maxViewsKept {
 		sc.plotsC = map[string][]plot{}
 	}
 	sc.plotsC[key] = out
@@ -153,12 +189,18 @@ func (sc *scene) plotsFor(v *pageView) []plot {
 
 // quantitySeries returns the series and bands of quantity key over every
 // visible sweep that has its parameter (and the active network's response
-// for its load's reflection), with a note when none has it.
-func (sc *scene) quantitySeries(key string, v *pageView) ([]chartsvg.Series, []chartsvg.Band, string) {
+// for its load's reflection), with a note when none has it. The series are
+// thinned for the span lo–hi (thinSpan): a span narrower than the sweeps
+// keeps its own, finer, series.
+func (sc *scene) quantitySeries(key string, v *pageView, lo, hi float64) ([]chartsvg.Series, []chartsvg.Band, string) {
 	q := quantities[key]
 	ck := key
 	if q.kind == "gd" {
 		ck += ":" + strconv.Itoa(v.aperture())
+	}
+	whole := lo <= sc.fmin && hi >= sc.fmax
+	if !whole {
+		ck += "@" + strconv.FormatFloat(lo, 'g', -1, 64) + "-" + strconv.FormatFloat(hi, 'g', -1, 64)
 	}
 	bands := sc.quantityBands(q)
 	if s, ok := sc.seriesC[ck]; ok {
@@ -215,7 +257,7 @@ func (sc *scene) quantitySeries(key string, v *pageView) ([]chartsvg.Series, []c
 					y[k] *= 1e9
 				}
 			}
-			out = append(out, thinSeries(chartsvg.Series{ID: t.ref.ID + "-" + q.param, Name: t.ref.Name + " " + q.param, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: y}))
+			out = append(out, chartsvg.Series{ID: t.ref.ID + "-" + q.param, Name: t.ref.Name + " " + q.param, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: y})
 		}
 		if len(out) == 0 {
 			note = "no 2-port sweep is shown"
@@ -237,10 +279,13 @@ func (sc *scene) quantitySeries(key string, v *pageView) ([]chartsvg.Series, []c
 			}
 		}
 		out = append(out,
-			thinSeries(chartsvg.Series{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true}),
-			thinSeries(chartsvg.Series{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with}))
+			chartsvg.Series{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true},
+			chartsvg.Series{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with})
 	}
-	if sc.seriesC == nil {
+	for i := range out {
+		out[i] = thinSpan(out[i], lo, hi)
+	}
+	if sc.seriesC == nil || len(sc.seriesC) >= maxSeriesKept {
 		sc.seriesC, sc.seriesNote = map[string][]chartsvg.Series{}, map[string]string{}
 	}
 	sc.seriesC[ck], sc.seriesNote[ck] = out, note
@@ -248,12 +293,12 @@ func (sc *scene) quantitySeries(key string, v *pageView) ([]chartsvg.Series, []c
 }
 
 // reflSeries returns the series of reflection quantity q for one trace of
-// reflection coefficients gamma against z0Ohm.
+// reflection coefficients gamma against z0Ohm, not thinned.
 func reflSeries(q quantity, id, name, color string, freq []float64, gamma []complex128, z0Ohm float64, dashed bool, aperture int) []chartsvg.Series {
 	n := len(gamma)
 	y := make([]float64, n)
 	mk := func(suffix, nameSuffix string, y []float64, dashed bool) chartsvg.Series {
-		return thinSeries(chartsvg.Series{ID: id + suffix, Name: name + nameSuffix, Color: color, FreqHz: freq, Y: y, Dashed: dashed})
+		return chartsvg.Series{ID: id + suffix, Name: name + nameSuffix, Color: color, FreqHz: freq, Y: y, Dashed: dashed}
 	}
 	z := func(g complex128) complex128 { return rfmath.ZFromGamma(g, complex(z0Ohm, 0)) }
 	switch q.kind {

@@ -234,8 +234,8 @@ func (sc *scene) chartTraces(v *pageView) []chartsvg.Trace {
 
 // thinSeries keeps, of a long series, the first, lowest, highest and last
 // point of each of plotWidth frequency columns: what the plot can show
-// (chartsvg thins the same way to its pixels, and a series spans at most
-// the plot's width, so a column is at most a pixel wide), at a fraction of
+// (chartsvg thins the same way to its pixels, and a series is cut to the
+// plot's span first, thinSpan, so a column is at most a pixel wide), at a fraction of
 // the memory that a room's cached scene holds between renders. A series of
 // at most 4·plotWidth points is kept whole.
 func thinSeries(s chartsvg.Series) chartsvg.Series {

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"math/cmplx"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -234,5 +235,85 @@ func TestExportCarriesView(t *testing.T) {
 	_, plot := get(t, f.ts.URL+"/s/"+f.sess.EditToken+"/export/plot-refl.svg?plot.refl=S11:vswr&spanLo=150M&spanHi=170M")
 	if !strings.Contains(plot, "VSWR from S11") || !strings.Contains(plot, `data-f0="150000000"`) {
 		t.Errorf("exported plot does not carry the view: %.400s", plot)
+	}
+}
+
+// A narrow span keeps its own detail: the plots of a span of 1 % of a
+// 20,001-point sweep hold every measured point inside it (some 130), where
+// the series thinned for the whole sweep keep only a few a pixel column of
+// the whole (at most 4 × 640 × 1 % ≈ 26 there).
+func TestSpanThinnedForItself(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 20001)
+	st, _, err := f.store.State(context.Background(), f.sess.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := f.srv.scene(f.sess.ID, st)
+	lo, hi := 150e6, 151.5e6
+	inSpan := func(s chartsvg.Series) int {
+		n := 0
+		for _, fHz := range s.FreqHz {
+			if fHz >= lo && fHz <= hi {
+				n++
+			}
+		}
+		return n
+	}
+	sw := sc.traces[0].sweep
+	want := 0
+	for _, fHz := range sw.FreqHz {
+		if fHz >= lo && fHz <= hi {
+			want++
+		}
+	}
+	for _, p := range sc.plotsFor(nil) {
+		if p.id == "refl" && (len(p.series[0].Y) > 4*plotWidth || inSpan(p.series[0]) >= want) {
+			t.Fatalf("whole-sweep series: %d points, %d in the span of %d: the case tells nothing apart", len(p.series[0].Y), inSpan(p.series[0]), want)
+		}
+	}
+	for _, p := range sc.plotsFor(&pageView{SpanLo: lo, SpanHi: hi}) {
+		if p.id != "refl" {
+			continue
+		}
+		s := p.series[0]
+		if got := inSpan(s); got != want {
+			t.Errorf("the span's series holds %d of its %d measured points", got, want)
+		}
+		if len(s.Y) > want+2 {
+			t.Errorf("the span's series holds %d points, more than the span's %d and one either side", len(s.Y), want)
+		}
+	}
+}
+
+// TestViewCachesBounded checks that a scene's caches by page view stay
+// bounded however many views its pages ask for: plots per view, series
+// per quantity and span, traces renormalised per chart reference.
+func TestViewCachesBounded(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 2001)
+	st, _, err := f.store.State(context.Background(), f.sess.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := f.srv.scene(f.sess.ID, st)
+	for i := range 200 {
+		lo := 110e6 + 1e5*float64(i)
+		sc.plotsFor(&pageView{ID: "v" + strconv.Itoa(i), SpanLo: lo, SpanHi: lo + 20e6})
+		sc.dispGamma(sc.traces[0], 20+float64(i))
+	}
+	if len(sc.plotsC) > maxViewsKept || len(sc.seriesC) > maxSeriesKept || len(sc.seriesNote) > maxSeriesKept {
+		t.Errorf("after 200 views the scene keeps plots of %d views and %d series (bounds %d, %d)", len(sc.plotsC), len(sc.seriesC), maxViewsKept, maxSeriesKept)
+	}
+	if len(sc.disp) > maxDispRefs*len(sc.traces) {
+		t.Errorf("after 200 chart references the scene keeps %d renormalised traces (bound %d)", len(sc.disp), maxDispRefs*len(sc.traces))
+	}
+	// What is kept is still right: the latest view's plots are those of
+	// its span.
+	v := &pageView{ID: "last", SpanLo: 200e6, SpanHi: 210e6}
+	for _, p := range sc.plotsFor(v) {
+		if p.p.XMin != 200e6 || p.p.XMax != 210e6 {
+			t.Errorf("plot %s spans %g–%g after the caches were renewed", p.id, p.p.XMin, p.p.XMax)
+		}
 	}
 }
