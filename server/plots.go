@@ -9,14 +9,15 @@ import (
 
 	"matchbench/chartsvg"
 	"matchbench/rfmath"
+	"matchbench/rfmath/amp"
 	"matchbench/web"
 )
 
 // quantity is one thing a plot can show: a figure of one S-parameter of
 // every visible sweep that has it, or the power that reaches the load.
 type quantity struct {
-	param  string // "S11", "S22" (reflections), "S21", "S12" (transmissions), "power"
-	kind   string // "db", "rl", "vswr", "rx", "zmag", "zphase", "phase", "gd", "pct", "pdb"
+	param  string // "S11", "S22" (reflections), "S21", "S12" (transmissions), "K" (a 2-port's stability), "power"
+	kind   string // "db", "rl", "vswr", "rx", "zmag", "zphase", "phase", "gd", "kmu", "pct", "pdb"
 	label  string // the choice in the plot's selector
 	title  string // the plot's title
 	ylabel string
@@ -51,6 +52,7 @@ func init() {
 		add(quantity{p, "phase", "phase", "Phase of " + p, "∠" + p, "°", false})
 		add(quantity{p, "gd", "group delay", "Group delay of " + p, "Group delay", "ns", true})
 	}
+	add(quantity{"K", "kmu", "Rollett K and μ", "Stability of a 2-port: Rollett K solid, μ dashed (unconditionally stable where μ > 1)", "K, μ", "", true})
 	add(quantity{"power", "pct", "in % of the available power", "Power to the load, % of the available power", "to the load", "%", false})
 	add(quantity{"power", "pdb", "in dB of the available power", "Power to the load, dB of the available power", "to the load", "dB", false})
 }
@@ -262,6 +264,34 @@ func (sc *scene) quantitySeries(key string, v *pageView, lo, hi float64) ([]char
 		if len(out) == 0 {
 			note = "no 2-port sweep is shown"
 		}
+	case "K":
+		// The figures of the amplifier panel's stability plot
+		// (amp.StabilityTo), for every 2-port sweep shown.
+		var f []float64
+		for _, t := range sc.traces {
+			if t.port != 1 || t.sweep.Ports != 2 {
+				continue
+			}
+			st := amp.StabilityTo(nil, t.sweep)
+			k, mu := make([]float64, len(st)), make([]float64, len(st))
+			for i, x := range st {
+				k[i], mu[i] = x.K, x.Mu
+			}
+			out = append(out, chartsvg.Series{ID: t.ref.ID + "-k", Name: t.ref.Name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: k},
+				chartsvg.Series{ID: t.ref.ID + "-mu", Name: t.ref.Name + " μ", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: mu, Dashed: true, NoLegend: true})
+			if len(t.sweep.FreqHz) > len(f) {
+				f = t.sweep.FreqHz
+			}
+		}
+		if len(out) == 0 {
+			note = "no 2-port sweep is shown"
+			break
+		}
+		one := make([]float64, len(f))
+		for i := range one {
+			one[i] = 1
+		}
+		out = append(out, chartsvg.Series{ID: "k-one", Name: "1: unconditionally stable above (μ)", Color: "#8a8a8a", FreqHz: f, Y: one, Dashed: true})
 	case "power":
 		ne := sc.net
 		if !sc.hasNetResponse() {
@@ -353,7 +383,7 @@ func (sc *scene) quantityBands(q quantity) []chartsvg.Band {
 		cb := chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz}
 		rl, pw := b.MinReturnLossDB, b.MinPowerToLoad
 		switch {
-		case q.param == "S21" || q.param == "S12":
+		case q.param == "S21" || q.param == "S12" || q.param == "K":
 		case q.kind == "db" && rl > 0:
 			cb.Limit, cb.HasLimit = -rl, true
 		case q.kind == "rl" && rl > 0:
@@ -437,6 +467,8 @@ func (sc *scene) quantityGroups(current string) []web.OptGroup {
 				label = "S21, transmission 1 → 2"
 			case "S12":
 				label = "S12, transmission 2 → 1"
+			case "K":
+				label = "Stability of a 2-port"
 			case "power":
 				label = "Power to the load"
 			}
@@ -445,8 +477,11 @@ func (sc *scene) quantityGroups(current string) []web.OptGroup {
 			order = append(order, q.param)
 		}
 		label := q.param + ": " + q.label
-		if q.param == "power" {
+		switch q.param {
+		case "power":
 			label = "power to the load " + q.label
+		case "K":
+			label = q.label
 		}
 		g.Options = append(g.Options, web.Option{Value: k, Label: label, Selected: k == current})
 	}

@@ -317,3 +317,77 @@ func TestViewCachesBounded(t *testing.T) {
 		}
 	}
 }
+
+// TestStabilityQuantity checks the plots' 2-port stability choice: on a
+// sweep of the bipolar device of Pozar's stability-circle example (S11
+// 0.894∠−60.6°, S12 0.020∠62.4°, S21 3.122∠123.6°, S22 0.781∠−27.6°; the
+// book's K = 0.607, rfmath/amp TestPozarStabilityExample) it draws K =
+// 0.607132 and μ by Edwards–Sinsky's closed form (REFERENCE-CHECKS AM-2,
+// computed here), with the line at 1; it is offered only with a 2-port
+// sweep shown.
+func TestStabilityQuantity(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 101)
+	ctx := context.Background()
+	st, _, _ := f.store.State(ctx, f.sess.ID)
+	for _, g := range f.srv.scene(f.sess.ID, st).quantityGroups("S11:db") {
+		for _, o := range g.Options {
+			if o.Value == "K:kmu" {
+				t.Error("the stability choice is offered without a 2-port sweep")
+			}
+		}
+	}
+	p := func(mag, deg float64) complex128 { return cmplx.Rect(mag, deg*math.Pi/180) }
+	s := [4]complex128{p(0.894, -60.6), p(0.020, 62.4), p(3.122, 123.6), p(0.781, -27.6)}
+	sw := rfmath.NewSweep(3, 2, 50)
+	for k := range 3 {
+		sw.FreqHz[k] = 1.8e9 + 0.1e9*float64(k)
+		sw.Set(k, 0, 0, s[0])
+		sw.Set(k, 0, 1, s[1])
+		sw.Set(k, 1, 0, s[2])
+		sw.Set(k, 1, 1, s[3])
+	}
+	if _, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpSweepAdd, Name: "bjt", FileName: "bjt.s2p", Raw: []byte("!\n"), Sweep: sw}); err != nil {
+		t.Fatal(err)
+	}
+	st, _, _ = f.store.State(ctx, f.sess.ID)
+	sc := f.srv.scene(f.sess.ID, st)
+	offered := false
+	for _, g := range sc.quantityGroups("S11:db") {
+		for _, o := range g.Options {
+			offered = offered || o.Value == "K:kmu"
+		}
+	}
+	if !offered {
+		t.Error("the stability choice is not offered with a 2-port sweep shown")
+	}
+	delta := s[0]*s[3] - s[1]*s[2]
+	mu := (1 - cmplx.Abs(s[0])*cmplx.Abs(s[0])) / (cmplx.Abs(s[3]-delta*cmplx.Conj(s[0])) + cmplx.Abs(s[1]*s[2]))
+	series, _, note := sc.quantitySeries("K:kmu", nil, sc.fmin, sc.fmax)
+	got := map[string][]float64{}
+	for _, se := range series {
+		got[se.ID] = se.Y
+	}
+	var kID, muID string
+	for id := range got {
+		switch {
+		case strings.HasSuffix(id, "-k"):
+			kID = id
+		case strings.HasSuffix(id, "-mu"):
+			muID = id
+		}
+	}
+	if note != "" || kID == "" || muID == "" || got["k-one"] == nil {
+		t.Fatalf("series %v, note %q", got, note)
+	}
+	for i := range got[kID] {
+		if math.Abs(got[kID][i]-0.607132) > 1e-6 || math.Abs(got[muID][i]-mu) > 1e-9 || got["k-one"][i] != 1 {
+			t.Errorf("point %d: K %g, μ %g (want 0.607132, %g), line %g", i, got[kID][i], got[muID][i], mu, got["k-one"][i])
+		}
+	}
+	for _, p := range sc.plotsFor(&pageView{Plots: map[string]plotChoice{"p3": {Q: "K:kmu"}}}) {
+		if p.id == "p3" && !strings.Contains(p.title, "Rollett K") {
+			t.Errorf("the stability plot is titled %q", p.title)
+		}
+	}
+}
