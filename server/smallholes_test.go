@@ -110,6 +110,35 @@ func TestPageSearchResultRefused(t *testing.T) {
 	}
 }
 
+// A page cannot store a tuning round or a stage design of its own making
+// either: those too are results of the server's own computations (the fit
+// of a board, the stage search).
+func TestPageComputedResultsRefused(t *testing.T) {
+	t.Parallel()
+	f := newFixture(t, 11)
+	c := wsDial(t, f, f.sess.EditToken)
+	_, v0, _ := f.store.State(context.Background(), f.sess.ID)
+	for i, tc := range []struct {
+		ch   sessions.Change
+		want string
+	}{
+		{sessions.Change{Op: sessions.OpTuneStore, Tune: &sessions.TuneRound{LoadSweepID: f.sweep, BuiltSweepID: f.sweep, Port: 1,
+			Parts: []sessions.Part{{Kind: sessions.PartSeriesL, Value: 1e-9}}}}, "server's own fit"},
+		{sessions.Change{Op: sessions.OpStageStore, AmpChange: sessions.AmpChange{StageSearch: &sessions.StageSearchResult{Settings: "forged"}}}, "server's own stage search"},
+	} {
+		id := int64(20 + i)
+		c.WriteJSON(inMsg{Type: "change", ID: id, Change: &tc.ch})
+		m := readUntil(t, c, func(m outMsg) bool { return m.ID == id })
+		if m.Type != "error" || !strings.Contains(m.Msg, tc.want) {
+			t.Errorf("%s: answer %+v; want an error saying %q", tc.ch.Op, m, tc.want)
+		}
+	}
+	st, v1, _ := f.store.State(context.Background(), f.sess.ID)
+	if len(st.Tuning) != 0 || v1 != v0 {
+		t.Errorf("a forged result was stored (%d tuning rounds, version %d → %d)", len(st.Tuning), v0, v1)
+	}
+}
+
 // A file whose name holds a bidirectional control character is refused
 // with the reason; a download's file name never carries one.
 func TestBidiNamesRefused(t *testing.T) {

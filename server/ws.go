@@ -494,6 +494,8 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 var serverOnlyOps = map[string]string{
 	sessions.OpSweepAdd:    "sweeps are added by uploading a file",
 	sessions.OpSearchStore: "search results come only from the server's own search: start one with the search form",
+	sessions.OpTuneStore:   "tuning rounds come only from the server's own fit: fit the board as built with the tuning form",
+	sessions.OpStageStore:  "stage designs come only from the server's own stage search: start one with the stage form",
 }
 
 // networkForms are the forms whose fields need the session's current scene

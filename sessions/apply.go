@@ -228,8 +228,7 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 			}
 		}
 		if coalesce {
-			if _, err := tx.ExecContext(ctx,
-				`UPDATE history SET after = ?, version = ? WHERE session_id = ? AND step = ?`,
+			if _, err := st.execTx(ctx, tx, qHistoryAfter,
 				string(after), ev.Version, h.id, step); err != nil {
 				return err
 			}
@@ -241,9 +240,7 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 				}
 				purge = true
 			}
-			if _, err := tx.ExecContext(ctx,
-				`INSERT INTO history (session_id, step, op, gesture, sweep_id, marker_id, band_id, version, before, after, sweep_ids)
-				 VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			if _, err := st.execTx(ctx, tx, qHistoryInsert,
 				h.id, step, ch.Op, ch.Gesture, ev.SweepID, ev.MarkerID, ev.BandID, ev.Version,
 				string(h.stateJSON), string(after), sweepIDs(h.state, r.next)); err != nil {
 				return err
@@ -328,8 +325,7 @@ func (st *Store) forgetRemoved(sid string, before, after *State) {
 // commitState writes the session row for a new state and marks the sweeps
 // that left or came back with it.
 func (st *Store) commitState(ctx context.Context, tx *sql.Tx, h *hub, next *State, js []byte, version, undoPos int64) error {
-	if _, err := tx.ExecContext(ctx,
-		`UPDATE sessions SET name = ?, state = ?, version = ?, undo_pos = ? WHERE id = ?`,
+	if _, err := st.execTx(ctx, tx, qSessionCommit,
 		next.Name, string(js), version, undoPos, h.id); err != nil {
 		return err
 	}
@@ -425,10 +421,10 @@ func (st *Store) txSync(ctx context.Context, h *hub, relaxed bool, f func(contex
 	st.writeMu.Lock()
 	defer st.writeMu.Unlock()
 	if relaxed {
-		if _, err := st.wdb.ExecContext(ctx, "PRAGMA synchronous=NORMAL"); err != nil {
+		if _, err := st.execW(ctx, qSyncNormal); err != nil {
 			relaxed = false // stay FULL: only slower
 		} else {
-			defer st.wdb.ExecContext(ctx, "PRAGMA synchronous=FULL")
+			defer st.execW(ctx, qSyncFull)
 		}
 	}
 	tx, err := st.wdb.BeginTx(ctx, nil)

@@ -70,6 +70,7 @@ type Store struct {
 	hubs   map[string]*hub
 
 	sweeps *sweepCache
+	stmts  map[string]*sql.Stmt // the change path's prepared statements (stmts.go); fixed after open
 }
 
 // Open opens the store in dataDir with default options; see [OpenWith].
@@ -132,6 +133,7 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 	if err := migrate(context.Background(), st.wdb, st.aead); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
+	st.prepareStmts(context.Background())
 	if st.rdb, err = sql.Open("sqlite", dsn(path, syncMode, false)); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
@@ -219,6 +221,7 @@ func (st *Store) closeDB() error {
 		errs = append(errs, st.rdb.Close())
 	}
 	if st.wdb != nil {
+		st.closeStmts()
 		errs = append(errs, st.wdb.Close())
 	}
 	return errors.Join(errs...)
