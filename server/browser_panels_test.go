@@ -190,7 +190,7 @@ func TestBrowserWordsAndStates(t *testing.T) {
 	}
 	// The Chu comparison for an 8 mm sphere.
 	p.submit(`#network-panel .find form[data-form="network.set"]`, map[string]string{"radius": "8mm"})
-	p.wait(`!!document.querySelector('[data-testid="chu"]')`)
+	p.wait(`!!document.querySelector('[data-testid="chu"]') && !document.querySelector('[data-testid="chu"]').textContent.includes("computing")`)
 	chu := js[string](p, `document.querySelector('[data-testid="chu"]').textContent`)
 	if !strings.Contains(chu, "Chu limit for a sphere of radius 8 mm") || !strings.Contains(chu, "× the limit") {
 		t.Errorf("Chu comparison %q, want a result", chu)
@@ -213,7 +213,9 @@ func TestBrowserWordsAndStates(t *testing.T) {
 		apply(t, st, sid, sessions.Change{Op: sessions.OpNetworkAdd, SweepID: id, DesignHz: 866.5e6})
 	})
 	fp := openPage(t, fts, fse, false, 1366, 1200)
-	fp.wait(`!!document.querySelector('[data-testid="bode-fano"]')`)
+	// The limits come from the derived-results pool: the panel says
+	// "computing…" until they are drawn in.
+	fp.wait(`!!document.querySelector('[data-testid="bode-fano"]') && !document.querySelector('[data-testid="bode-fano"]').textContent.includes("computing")`)
 	poor := js[string](fp, `(document.querySelector('[data-testid="bode-fano-poor"]') || {}).textContent || ""`)
 	fit := js[string](fp, `document.querySelector('[data-testid="bode-fano"]').textContent`)
 	var e float64

@@ -103,6 +103,10 @@ func TestBrowserTuningRound(t *testing.T) {
 		t.Fatal("a round before any fit")
 	}
 
+	// The limits are computed in the derived-results pool and the page is
+	// redrawn when they arrive, replacing the file input: upload after.
+	waitFor(`!document.body.textContent.includes("computing…")`)
+
 	// Upload the re-measurement; the tuning form offers it.
 	// (The panel redraw that adds the sweep replaces the upload's status
 	// line, so the form's list is what tells that it arrived.)
