@@ -44,7 +44,7 @@ func TestBrowserAmplifierPanel(t *testing.T) {
 	}
 	text := func(sel string) string {
 		t.Helper()
-		s, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(sel)))
+		s, err := textIn(ectx, sel)
 		must(err)
 		return strings.TrimSpace(s)
 	}

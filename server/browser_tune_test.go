@@ -89,7 +89,7 @@ func TestBrowserTuningRound(t *testing.T) {
 	}
 	text := func(sel string) string {
 		t.Helper()
-		s, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(sel)))
+		s, err := textIn(ectx, sel)
 		must(err)
 		return s
 	}
