@@ -369,7 +369,7 @@ func BenchmarkBrowser(b *testing.B) {
 			if _, err := chromedp.Run(ctx, chromedp.Evaluate[any](`window.__mb.frames = []; window.__mb.long = []; window.__mb.record(true)`)); err != nil {
 				b.Fatal(err)
 			}
-			if err := chromedp.Do(ctx, chromedp.Click(chromedp.CSS(`[data-testid="add-series_L"]`)),
+			if err := chromedp.Do(ctx, chromedp.Evaluate[chromedp.Void](`document.querySelector('[data-testid="add-series_L"]').click()`),
 				chromedp.Poll[chromedp.Void](fmt.Sprintf(`document.querySelectorAll('[data-testid="part-row"]').length === %d`, n+1)),
 				chromedp.Sleep(900*time.Millisecond)); err != nil {
 				b.Fatal(err)
