@@ -2,9 +2,7 @@ package sessions
 
 import (
 	"math"
-	"path"
 	"slices"
-	"sort"
 	"strconv"
 	"strings"
 	"unicode"
@@ -130,7 +128,8 @@ func markerOf(cur *State, op string, r *result, id string) (int, error) {
 	return i, nil
 }
 
-// computeSessionRename applies session.rename: the session takes the name given.
+// computeSessionRename applies session.rename: the session takes the name
+// given.
 func computeSessionRename(cur, next *State, ch *Change, r *result, lim Limits) error {
 	op := ch.Op
 	name, err := text(op, "name", ch.Name, true, lim.TextRunes)
@@ -138,277 +137,6 @@ func computeSessionRename(cur, next *State, ch *Change, r *result, lim Limits) e
 		return err
 	}
 	next.Name = name
-	return nil
-}
-
-// computeSweepAdd applies sweep.add: the sweep uploaded joins the session
-// under a new id, named after the name given, else its file name, else its
-// place, and coloured with the colour given or the first one no sweep has.
-// It is refused past the session's count or bytes of sweeps. The sweep's
-// rows go in r.newSweep, stored with the state.
-func computeSweepAdd(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	if len(cur.Sweeps) >= lim.SweepsPerSession {
-		return invalid(op, "", "the session already has %d sweeps, the limit", len(cur.Sweeps))
-	}
-	if ch.Sweep == nil {
-		return invalid(op, "sweep", "missing")
-	}
-	if err := ch.Sweep.Validate(); err != nil {
-		return invalid(op, "sweep", "%v", err)
-	}
-	fileName, err := text(op, "fileName", ch.FileName, false, lim.TextRunes)
-	if err != nil {
-		return err
-	}
-	name, err := text(op, "name", ch.Name, false, lim.TextRunes)
-	if err != nil {
-		return err
-	}
-	if name == "" {
-		name = strings.TrimSuffix(fileName, path.Ext(fileName))
-	}
-	if name == "" {
-		name = "Sweep " + strconv.Itoa(len(cur.Sweeps)+1)
-	}
-	color := ch.Color
-	if color == "" {
-		color = pickColor(cur.Sweeps)
-	} else if color, err = checkColor(op, color); err != nil {
-		return err
-	}
-	id, err := uniqueID(func(id string) bool { return cur.SweepIndex(id) >= 0 })
-	if err != nil {
-		return err
-	}
-	ref := SweepRef{
-		ID: id, Name: name, FileName: fileName, Color: color, Visible: true,
-		Ports: ch.Sweep.Ports, Points: ch.Sweep.Len(), FminHz: ch.Sweep.FreqHz[0], FmaxHz: ch.Sweep.FreqHz[ch.Sweep.Len()-1],
-	}
-	total := ref.DataBytes()
-	for _, s := range cur.Sweeps {
-		total += s.DataBytes()
-	}
-	if total > lim.SweepBytes {
-		return invalid(op, "sweep", "the session's sweeps would hold %.1f MB of numbers with this one (%.1f MB), more than the limit of %.1f MB a session; remove a sweep first",
-			float64(total)/1e6, float64(ref.DataBytes())/1e6, float64(lim.SweepBytes)/1e6)
-	}
-	sw := ch.Sweep.Clone()
-	next.Sweeps = append(next.Sweeps, ref)
-	r.ev.SweepID = id
-	r.newSweep = &newSweep{
-		id: id, fileName: fileName, raw: slices.Clone(ch.Raw), parsed: encodeSweep(sw), sweep: sw,
-	}
-	if r.newSweep.raw == nil {
-		r.newSweep.raw = []byte{}
-	}
-	return nil
-}
-
-// computeSweepRename applies sweep.rename: the sweep takes the name given.
-func computeSweepRename(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	name, err := text(op, "name", ch.Name, true, lim.TextRunes)
-	if err != nil {
-		return err
-	}
-	next.Sweeps[i].Name = name
-	return nil
-}
-
-// computeSweepColor applies sweep.color: the sweep takes the colour given.
-func computeSweepColor(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	color, err := checkColor(op, ch.Color)
-	if err != nil {
-		return err
-	}
-	next.Sweeps[i].Color = color
-	return nil
-}
-
-// computeSweepVisible applies sweep.visible: the sweep is shown or hidden.
-func computeSweepVisible(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	next.Sweeps[i].Visible = ch.Visible
-	return nil
-}
-
-// computeSweepRemove applies sweep.remove: the sweep goes, with its markers
-// and its places in the load sets.
-func computeSweepRemove(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	next.Sweeps = slices.Delete(next.Sweeps, i, i+1)
-	next.Markers = slices.DeleteFunc(next.Markers, func(m Marker) bool { return m.SweepID == ch.SweepID })
-	dropFromSets(next, ch.SweepID)
-	return nil
-}
-
-// computeMarkerAdd applies marker.add: a new marker on a trace of a sweep (port 1
-// unless given), at the point of the trace nearest the Γ point given,
-// else at the frequency given, pinned into the sweep. It is refused past
-// the trace's count of markers.
-func (st *Store) computeMarkerAdd(sid string, cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	ref := cur.Sweeps[i]
-	port := ch.Port
-	if port == 0 {
-		port = 1
-	}
-	if port < 1 || port > ref.Ports {
-		return invalid(op, "port", "port %d of sweep %q, which has %d port(s)", ch.Port, ref.ID, ref.Ports)
-	}
-	n := 0
-	for _, m := range cur.Markers {
-		if m.SweepID == ref.ID && m.Port == port {
-			n++
-		}
-	}
-	if n >= lim.MarkersPerTrace {
-		return invalid(op, "", "trace S%d%d of sweep %q already has %d markers, the limit", port, port, ref.ID, n)
-	}
-	label, err := text(op, "label", ch.Label, false, lim.TextRunes)
-	if err != nil {
-		return err
-	}
-	var f float64
-	if ch.Gamma != nil {
-		if f, err = st.snapFreq(op, sid, ref, port, *ch.Gamma, 0, -1); err != nil {
-			return err
-		}
-	} else if f, err = pinFreq(op, ref, ch.FreqHz); err != nil {
-		return err
-	}
-	id, err := uniqueID(func(id string) bool { return cur.MarkerIndex(id) >= 0 })
-	if err != nil {
-		return err
-	}
-	next.Markers = append(next.Markers, Marker{ID: id, SweepID: ref.ID, Port: port, FreqHz: f, Label: label})
-	r.ev.MarkerID = id
-	return nil
-}
-
-// computeMarkerMove applies marker.move: the marker moves to the point of
-// its trace nearest the Γ point given, searched near where it is (see
-// [Change].Window), else to the frequency given, pinned into the sweep.
-func (st *Store) computeMarkerMove(sid string, cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := markerOf(cur, op, r, ch.MarkerID)
-	if err != nil {
-		return err
-	}
-	m := cur.Markers[i]
-	ref := cur.Sweeps[cur.SweepIndex(m.SweepID)]
-	var f float64
-	if ch.Gamma != nil {
-		if ch.Window < 0 {
-			return invalid(op, "window", "%d is negative", ch.Window)
-		}
-		f, err = st.snapFreq(op, sid, ref, m.Port, *ch.Gamma, m.FreqHz, ch.Window)
-	} else {
-		f, err = pinFreq(op, ref, ch.FreqHz)
-	}
-	if err != nil {
-		return err
-	}
-	next.Markers[i].FreqHz = f
-	r.ev.Gesture = ch.Gesture
-	return nil
-}
-
-// computeMarkerStep applies marker.step: the marker moves Steps measured points
-// along its sweep.
-func (st *Store) computeMarkerStep(sid string, cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := markerOf(cur, op, r, ch.MarkerID)
-	if err != nil {
-		return err
-	}
-	if ch.Steps == 0 {
-		return invalid(op, "steps", "must not be 0")
-	}
-	m := cur.Markers[i]
-	sw, err := st.sweep(sid, m.SweepID)
-	if err != nil {
-		return err
-	}
-	next.Markers[i].FreqHz = sw.sw.FreqHz[stepIndex(sw.sw, m.FreqHz, ch.Steps)]
-	return nil
-}
-
-// computeMarkerLabel applies marker.label: the marker takes the label given.
-func computeMarkerLabel(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := markerOf(cur, op, r, ch.MarkerID)
-	if err != nil {
-		return err
-	}
-	label, err := text(op, "label", ch.Label, false, lim.TextRunes)
-	if err != nil {
-		return err
-	}
-	next.Markers[i].Label = label
-	return nil
-}
-
-// computeMarkerRemove applies marker.remove.
-func computeMarkerRemove(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := markerOf(cur, op, r, ch.MarkerID)
-	if err != nil {
-		return err
-	}
-	next.Markers = slices.Delete(next.Markers, i, i+1)
-	return nil
-}
-
-// computeMarkerToDip applies marker.to_dip: the marker moves to the deepest
-// dip of its trace, within LoHz–HiHz when either is given.
-func (st *Store) computeMarkerToDip(sid string, cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := markerOf(cur, op, r, ch.MarkerID)
-	if err != nil {
-		return err
-	}
-	m := cur.Markers[i]
-	ref := cur.Sweeps[cur.SweepIndex(m.SweepID)]
-	lo, hi := ref.FminHz, ref.FmaxHz
-	if ch.LoHz != 0 || ch.HiHz != 0 {
-		if err := checkRange(op, ch.LoHz, ch.HiHz); err != nil {
-			return err
-		}
-		lo, hi = max(lo, ch.LoHz), min(hi, ch.HiHz)
-	}
-	e, err := st.sweep(sid, m.SweepID)
-	if err != nil {
-		return err
-	}
-	k := deepestDip(e.sw.FreqHz, e.trace(m.Port), lo, hi)
-	if k < 0 {
-		return invalid(op, "loHz", "no measured point of sweep %q (%g–%g Hz) lies within %g–%g Hz",
-			ref.ID, ref.FminHz, ref.FmaxHz, ch.LoHz, ch.HiHz)
-	}
-	next.Markers[i].FreqHz = e.sw.FreqHz[k]
 	return nil
 }
 
@@ -484,21 +212,6 @@ func computeChartSet(cur, next *State, ch *Change, r *result, lim Limits) error 
 	return nil
 }
 
-// computeSweepRefPlane applies sweep.refplane: the sweep's reference plane.
-func computeSweepRefPlane(cur, next *State, ch *Change, r *result, lim Limits) error {
-	op := ch.Op
-	i, err := sweepOf(cur, op, r, ch.SweepID)
-	if err != nil {
-		return err
-	}
-	rp, err := checkRefPlane(op, cur, ch.SweepID, ch.RefPlane)
-	if err != nil {
-		return err
-	}
-	next.Sweeps[i].RefPlane = rp
-	return nil
-}
-
 // computeTDRSet applies tdr.set: the time-domain view's settings.
 func computeTDRSet(cur, next *State, ch *Change, r *result, lim Limits) error {
 	op := ch.Op
@@ -518,8 +231,8 @@ func computeTDRSet(cur, next *State, ch *Change, r *result, lim Limits) error {
 	return nil
 }
 
-// computeSearchStore applies search.store: a search's result, its designs' parts
-// checked and copied without their ids.
+// computeSearchStore applies search.store: a search's result, its designs'
+// parts checked and copied without their ids.
 func computeSearchStore(cur, next *State, ch *Change, r *result, lim Limits) error {
 	op := ch.Op
 	if ch.Search == nil {
@@ -599,89 +312,6 @@ func applyChart(op string, c *ChartSettings, p *ChartPatch, lim Limits) error {
 	return nil
 }
 
-// snapFreq returns the frequency of the point of a trace nearest to the Γ
-// point g: searched whole (window < 0) or near the point of fromHz.
-func (st *Store) snapFreq(op, sid string, ref SweepRef, port int, g Point, fromHz float64, window int) (float64, error) {
-	if !finite(g.Re) || !finite(g.Im) {
-		return 0, invalid(op, "gamma", "(%g, %g) is not a finite point", g.Re, g.Im)
-	}
-	e, err := st.sweep(sid, ref.ID)
-	if err != nil {
-		return 0, err
-	}
-	freq := e.sw.FreqHz
-	n := len(freq)
-	near := 0
-	if window >= 0 {
-		k, t, err := e.sw.Locate(min(max(fromHz, freq[0]), freq[n-1]))
-		if err != nil {
-			return 0, invalid(op, "gamma", "%v", err)
-		}
-		near = k
-		if t >= 0.5 {
-			near = k + 1
-		}
-		if window == 0 {
-			window = max(MinSnapWindow, n/SnapWindowDivisor)
-		}
-	}
-	k, t := rfmath.SnapToTrace(e.trace(port), complex(g.Re, g.Im), near, window)
-	if n == 1 {
-		return freq[0], nil
-	}
-	return freq[k] + t*(freq[k+1]-freq[k]), nil
-}
-
-// pinFreq checks that f is a finite frequency and pins it into the sweep.
-func pinFreq(op string, ref SweepRef, f float64) (float64, error) {
-	if !finite(f) {
-		return 0, invalid(op, "freqHz", "%g is not a finite frequency", f)
-	}
-	return min(max(f, ref.FminHz), ref.FmaxHz), nil
-}
-
-// stepIndex returns the index of the measured point n points from fHz
-// (n > 0 upwards), pinned into the sweep. From between two points, the first
-// step goes to the neighbour in that direction.
-func stepIndex(sw *rfmath.Sweep, fHz float64, n int) int {
-	last := sw.Len() - 1
-	fHz = min(max(fHz, sw.FreqHz[0]), sw.FreqHz[last])
-	k, t, err := sw.Locate(fHz)
-	if err != nil || last == 0 {
-		return 0
-	}
-	n = min(max(n, -last-1), last+1) // so that k+1+n cannot overflow (found by FuzzChange)
-	var j int
-	switch {
-	case t == 0:
-		j = k + n
-	case t == 1:
-		j = k + 1 + n
-	case n > 0:
-		j = k + n
-	default:
-		j = k + 1 + n
-	}
-	return min(max(j, 0), last)
-}
-
-// deepestDip returns the index of the measured point of highest return
-// loss with lo ≤ f ≤ hi (by [rfmath.DeepestDip] over those points), or −1
-// when no point lies in the range. The measured point, not the refined
-// frequency, is used so that the marker's readout shows that return loss.
-func deepestDip(freq []float64, gamma []complex128, lo, hi float64) int {
-	i0 := sort.SearchFloat64s(freq, lo)
-	i1 := sort.Search(len(freq), func(i int) bool { return freq[i] > hi })
-	if i0 >= i1 {
-		return -1
-	}
-	d := rfmath.DeepestDip(freq[i0:i1], gamma[i0:i1])
-	if d.Index < 0 {
-		return -1
-	}
-	return i0 + d.Index
-}
-
 func checkRange(op string, lo, hi float64) error {
 	if !finite(lo) || lo < 0 {
 		return invalid(op, "loHz", "%g is not a finite frequency ≥ 0", lo)
@@ -724,26 +354,5 @@ func text(op, field, s string, required bool, maxRunes int) (string, error) {
 // (Unicode Standard Annex #9). Names holding them are refused:
 // "report\u202Efdp.exe" shows as "reportexe.pdf".
 func isBidiControl(r rune) bool { return unicode.Is(unicode.Bidi_Control, r) }
-
-// checkColor accepts "#rrggbb" (any case) and returns it in lower case.
-func checkColor(op, c string) (string, error) {
-	if len(c) != 7 || c[0] != '#' {
-		return "", invalid(op, "color", "%q is not a colour of the form #rrggbb", c)
-	}
-	if _, err := strconv.ParseUint(c[1:], 16, 32); err != nil {
-		return "", invalid(op, "color", "%q is not a colour of the form #rrggbb", c)
-	}
-	return strings.ToLower(c), nil
-}
-
-// pickColor returns the first palette colour no sweep uses, or cycles.
-func pickColor(sweeps []SweepRef) string {
-	for _, c := range Palette {
-		if !slices.ContainsFunc(sweeps, func(s SweepRef) bool { return s.Color == c }) {
-			return c
-		}
-	}
-	return Palette[len(sweeps)%len(Palette)]
-}
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
