@@ -503,15 +503,9 @@ func (b bounded) inverse(v float64) float64 {
 // layout that does not fit n ([ErrLayout]), a part that cannot be built
 // ([ErrPart]).
 func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFit, error) {
-	var set FitSettings
-	if s != nil {
-		set = *s
-	}
-	if set.MaxCorrelation == 0 {
-		set.MaxCorrelation = 0.99
-	}
-	if !(set.MaxCorrelation > 0 && set.MaxCorrelation < 1) {
-		return nil, fmt.Errorf("%w: correlation limit %g; want between 0 and 1", ErrBuilt, set.MaxCorrelation)
+	set, err := fitSettings(s)
+	if err != nil {
+		return nil, err
 	}
 	if err := load.validate(); err != nil {
 		return nil, fmt.Errorf("load: %w", err)
@@ -529,38 +523,111 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 	if err != nil {
 		return nil, err
 	}
-	specs := set.Params
-	if specs == nil {
-		if specs, err = DefaultParams(n, lay); err != nil {
-			return nil, err
+	m := &fitModel{skel: skel, z0: load.Z0Ohm}
+	if err := m.addParams(n, lay, set); err != nil {
+		return nil, err
+	}
+	lo, hi := m.addPoints(load, built, set)
+	P := len(m.params)
+	if len(m.freqHz) < P+2 {
+		return nil, fmt.Errorf("%w: the sweeps share %d points from %s to %s; %d parameters need at least %d",
+			ErrBuilt, len(m.freqHz), units.FormatFrequency(lo, 6), units.FormatFrequency(hi, 6), P, P+2)
+	}
+
+	res := &BoardFit{Design: n.Clone(), Layout: lay, Points: len(m.freqHz), FitLoHz: m.freqHz[0], FitHiHz: m.freqHz[len(m.freqHz)-1]}
+	vals := make([]float64, P)
+	var free []int
+	for i, p := range m.params {
+		vals[i] = p.Nominal
+		if !p.Held {
+			free = append(free, i)
 		}
 	}
-	m := &fitModel{skel: skel, z0: load.Z0Ohm}
+	res.NominalRMSResidual, _ = m.misfit(vals)
+	sNoise := m.fit(vals, free)
+
+	// Figures at the fit.
+	res.RMSResidual, res.MaxResidual = m.misfit(vals)
+	res.ResidualSigma = sNoise
+	res.Free = append([]int(nil), free...)
+	sigma := make([]float64, P)
+	var pairs [][2]int
+	if len(free) > 0 {
+		N := 2 * len(m.freqHz)
+		jac := mat.NewDense(N, len(free), nil)
+		m.jacobian(jac, vals, free)
+		id := identify(jac, set.MaxCorrelation)
+		res.Correlation, res.Condition = id.corr, id.cond
+		post := m.posterior(jac, free, sNoise)
+		for c, i := range free {
+			sigma[i] = post[c]
+		}
+		pairs = id.pairs
+	}
+	res.Params = m.judge(vals, sigma)
+	res.Warnings = fitWarnings(res, free, pairs)
+	res.Evaluations = m.evals
+	res.Board = m.fittedBoard(res.Params, vals)
+	res.Fitted = m.fittedLayout(lay, vals)
+	return res, nil
+}
+
+// fitSettings returns s with its defaults filled in, or an error for a
+// correlation limit outside (0, 1).
+func fitSettings(s *FitSettings) (FitSettings, error) {
+	var set FitSettings
+	if s != nil {
+		set = *s
+	}
+	if set.MaxCorrelation == 0 {
+		set.MaxCorrelation = 0.99
+	}
+	if !(set.MaxCorrelation > 0 && set.MaxCorrelation < 1) {
+		return set, fmt.Errorf("%w: correlation limit %g; want between 0 and 1", ErrBuilt, set.MaxCorrelation)
+	}
+	return set, nil
+}
+
+// addParams adds the parameters of the settings (by default
+// [DefaultParams] of n on lay) to m, each with its element of the
+// skeleton; a parameter listed twice, or none at all, is an error.
+func (m *fitModel) addParams(n Network, lay Layout, set FitSettings) error {
+	specs := set.Params
+	if specs == nil {
+		var err error
+		if specs, err = DefaultParams(n, lay); err != nil {
+			return err
+		}
+	}
 	seen := map[[2]int]bool{}
 	for _, sp := range specs {
-		p, e, err := paramOf(sp, n, lay, skel)
+		p, e, err := paramOf(sp, n, lay, m.skel)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if set.NoPriors {
 			p.Prior = math.Inf(1)
 		}
 		key := [2]int{int(sp.Kind), sp.Index}
 		if seen[key] {
-			return nil, fmt.Errorf("%w: %s listed twice", ErrBuilt, p.Name)
+			return fmt.Errorf("%w: %s listed twice", ErrBuilt, p.Name)
 		}
 		seen[key] = true
 		m.params = append(m.params, p)
 		m.elem = append(m.elem, e)
 	}
 	if len(m.params) == 0 {
-		return nil, fmt.Errorf("%w: no parameter to fit", ErrBuilt)
+		return fmt.Errorf("%w: no parameter to fit", ErrBuilt)
 	}
+	return nil
+}
 
-	// The points: the built sweep's, within the load's range and the
-	// settings' band, the load interpolated there and the built reflection
-	// brought to the load's reference.
-	lo, hi := load.FreqHz[0], load.FreqHz[len(load.FreqHz)-1]
+// addPoints adds the fit's points to m: the built sweep's, within the
+// load's range and the settings' band (lo to hi, returned), with the load
+// interpolated there and the built reflection brought to the load's
+// reference. Points where either is not finite are left out.
+func (m *fitModel) addPoints(load, built Load, set FitSettings) (lo, hi float64) {
+	lo, hi = load.FreqHz[0], load.FreqHz[len(load.FreqHz)-1]
 	if set.LoHz > 0 {
 		lo = math.Max(lo, set.LoHz)
 	}
@@ -584,29 +651,17 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 		m.gLoad = append(m.gLoad, gl)
 		m.gMeas = append(m.gMeas, gm)
 	}
-	P := len(m.params)
-	if len(m.freqHz) < P+2 {
-		return nil, fmt.Errorf("%w: the sweeps share %d points from %s to %s; %d parameters need at least %d",
-			ErrBuilt, len(m.freqHz), units.FormatFrequency(lo, 6), units.FormatFrequency(hi, 6), P, P+2)
-	}
+	return lo, hi
+}
 
-	res := &BoardFit{Design: n.Clone(), Layout: lay, Points: len(m.freqHz), FitLoHz: m.freqHz[0], FitHiHz: m.freqHz[len(m.freqHz)-1]}
-	vals := make([]float64, P)
-	var free []int
-	for i, p := range m.params {
-		vals[i] = p.Nominal
-		if !p.Held {
-			free = append(free, i)
-		}
-	}
+// fit moves the free parameters of vals (in place) to the fit and returns
+// the residual standard deviation s, found by iteration (see above): it
+// starts at a typical analyser noise of 0.002 in Γ (from memory) and is
+// taken again from each fit's residual until it settles; the points'
+// weights are taken again from each fit's network.
+func (m *fitModel) fit(vals []float64, free []int) float64 {
 	N := 2 * len(m.freqHz)
 	r := make([]float64, N)
-	res.NominalRMSResidual, _ = m.misfit(vals)
-
-	// The fit, with s found by iteration (see above): it starts at a
-	// typical analyser noise of 0.002 in Γ (from memory) and is taken again
-	// from each fit's residual until it settles; the points' weights are
-	// taken again from each fit's network.
 	sNoise, ss := 0.002, 0.0
 	m.weigh(vals)
 	for it := 0; ; it++ {
@@ -622,26 +677,14 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 			break
 		}
 	}
+	return sNoise
+}
 
-	// Figures at the fit.
-	res.RMSResidual, res.MaxResidual = m.misfit(vals)
-	res.ResidualSigma = sNoise
-	res.Free = append([]int(nil), free...)
-	var warnings []string
-	var pairs [][2]int
-	sigma := make([]float64, P)
-	if len(free) > 0 {
-		jac := mat.NewDense(N, len(free), nil)
-		m.jacobian(jac, vals, free)
-		id := identify(jac, set.MaxCorrelation)
-		res.Correlation, res.Condition = id.corr, id.cond
-		post := m.posterior(jac, free, sNoise)
-		for c, i := range free {
-			sigma[i] = post[c]
-		}
-		pairs = id.pairs
-	}
-	res.Params = make([]FitParam, P)
+// judge returns the parameters of m at their fitted values vals, each
+// free one with its uncertainty sigma and whether it ended at a bound or
+// is left undetermined.
+func (m *fitModel) judge(vals, sigma []float64) []FitParam {
+	out := make([]FitParam, len(m.params))
 	for i, p := range m.params {
 		p.Value = vals[i]
 		if !p.Held {
@@ -651,8 +694,17 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 			p.Undetermined = math.IsInf(p.Sigma, 1) || math.IsNaN(p.Sigma) || (!math.IsInf(p.Prior, 1) && p.Sigma > 0.7*p.Prior) ||
 				p.Sigma > 0.5*math.Max(math.Abs(p.Value), math.Abs(p.Nominal))
 		}
-		res.Params[i] = p
+		out[i] = p
 	}
+	return out
+}
+
+// fitWarnings returns the warnings of the fit res: the pairs of free
+// parameters the sweep hardly tells apart ([pairWarnings]), the other
+// parameters it leaves undetermined, those that ended at a bound, and a
+// residual too large for the model to describe the board.
+func fitWarnings(res *BoardFit, free []int, pairs [][2]int) []string {
+	var warnings []string
 	pw, covered := pairWarnings(res.Params, free, pairs, res.Correlation)
 	warnings = append(warnings, pw...)
 	for i, p := range res.Params {
@@ -668,28 +720,39 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 		warnings = append(warnings, fmt.Sprintf("the fitted board still differs from the measurement by %.3g in Γ (rms; %.3g at worst): the model does not describe this board well; check the parts' places and that both sweeps share one reference plane",
 			res.RMSResidual, res.MaxResidual))
 	}
-	res.Warnings = warnings
-	res.Evaluations = m.evals
-	res.Board = Placed{Network: m.network(vals), Nodes: skel.Nodes, NodePads: skel.NodePads, PartNodes: skel.PartNodes, NodePadCF: append([]float64(nil), skel.NodePadCF...)}
+	return warnings
+}
+
+// fittedBoard returns the board as fitted: the placed network at vals
+// (pads and traces of zero left out, with their origins) and the pad
+// capacitance of each node as fitted.
+func (m *fitModel) fittedBoard(params []FitParam, vals []float64) Placed {
+	skel := m.skel
+	b := Placed{Network: m.network(vals), Nodes: skel.Nodes, NodePads: skel.NodePads, PartNodes: skel.PartNodes, NodePadCF: append([]float64(nil), skel.NodePadCF...)}
 	for j, o := range skel.Origins {
 		if o.Role != RolePart && !(m.valueOf(j, vals) > 0) {
 			continue
 		}
-		res.Board.Origins = append(res.Board.Origins, o)
+		b.Origins = append(b.Origins, o)
 	}
-	for i, p := range res.Params {
+	for i, p := range params {
 		if p.Kind == ParamPads {
-			res.Board.NodePadCF[p.Index] = vals[i]
+			b.NodePadCF[p.Index] = vals[i]
 		}
 	}
-	res.Fitted = Layout{Footprint: lay.Footprint}
+	return b
+}
+
+// fittedLayout returns the layout lay with each trace's length as fitted.
+func (m *fitModel) fittedLayout(lay Layout, vals []float64) Layout {
+	out := Layout{Footprint: lay.Footprint}
 	for _, t := range lay.Traces {
-		if e := skel.Element(RoleTrace, t.Gap); e >= 0 {
+		if e := m.skel.Element(RoleTrace, t.Gap); e >= 0 {
 			t.LengthM = m.valueOf(e, vals)
 		}
-		res.Fitted.Traces = append(res.Fitted.Traces, t)
+		out.Traces = append(out.Traces, t)
 	}
-	return res, nil
+	return out
 }
 
 // pairWarnings says which pairs of the free parameters (indices into
