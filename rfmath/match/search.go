@@ -735,16 +735,14 @@ const progressPerShape = 1000
 func (e *engine) search(ctx context.Context, set *Settings) (*Result, error) {
 	tops := topologies(set.MinParts, set.MaxParts)
 	res := &Result{Topologies: len(tops)}
-	walkers := make([]*walker, len(tops))
-	best := make([]candidate, len(tops))
-	for t := range best {
-		best[t].ratio = math.Inf(1)
+	s := shapeSearch{set: set, tops: tops, walkers: make([]*walker, len(tops)), best: make([]candidate, len(tops)), index: map[string]int{}}
+	for t := range s.best {
+		s.best[t].ratio = math.Inf(1)
 	}
-	index := map[string]int{}
 	var space float64
 	for t, top := range tops {
-		walkers[t] = newWalker(e, top)
-		index[fmt.Sprint(top)] = t
+		s.walkers[t] = newWalker(e, top)
+		s.index[fmt.Sprint(top)] = t
 		c := 1.0
 		for _, n := range e.counts(top) {
 			c *= float64(n)
@@ -757,105 +755,158 @@ func (e *engine) search(ctx context.Context, set *Settings) (*Result, error) {
 	prog.report()
 
 	for n := set.MinParts; n <= set.MaxParts; n++ {
-		// The mode, chosen per number of parts.
-		win := set.Window
-		if win == 0 {
-			sz := 0.0
-			for _, top := range tops {
-				if len(top) == n {
-					c := 1.0
-					for _, m := range e.counts(top) {
-						c *= float64(m)
-					}
-					sz += c
-				}
-			}
-			if sz <= set.Budget {
-				win = -1
-			} else {
-				win = defaultWindow
-			}
-		}
+		win := e.window(tops, n, set)
 		if win >= 0 {
 			res.Exact, res.Window = false, win
 		}
-		var size []int
 		centres := map[int][]centre{}
-		// Phase 1: continuous optima, and the best networks of one part
-		// fewer with a part added at either end; first incumbents.
-		for t, top := range tops {
-			if len(top) != n {
-				continue
-			}
-			if err := ctx.Err(); err != nil {
-				return nil, err
-			}
-			size = append(size, t)
-			for _, c := range e.continuous(top, set.Model) {
-				centres[t] = append(centres[t], centre{idx: c})
-			}
-			if n > 1 {
-				for _, at := range []int{0, n - 1} {
-					sub := append(append([]Kind(nil), top[:at]...), top[at+1:]...)
-					u, ok := index[fmt.Sprint(sub)]
-					if !ok || best[u].idx == nil {
-						continue
-					}
-					c := centre{idx: make([]int, n), full: make([]bool, n)}
-					copy(c.idx[:at], best[u].idx[:at])
-					copy(c.idx[at+1:], best[u].idx[at:])
-					c.full[at] = true
-					centres[t] = append(centres[t], c)
-				}
-			}
-			w := walkers[t]
-			w.thr, w.best = math.Inf(1), math.Inf(1)
-			for _, c := range centres[t] {
-				w.setBox(boxAround(c.idx, c.full, 2))
-				if err := w.run(ctx, nil); err != nil {
-					return nil, err
-				}
-			}
-			best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+		size, err := e.incumbents(ctx, &s, n, centres)
+		if err != nil {
+			return nil, err
 		}
-
-		// Phase 2: exact enumeration, the most promising shapes first.
-		sort.SliceStable(size, func(a, b int) bool { return best[size[a]].ratio < best[size[b]].ratio })
-		for _, t := range size {
-			w := walkers[t]
-			w.best = best[t].ratio
-			w.bestIdx = append(w.bestIdx[:0], best[t].idx...)
-			w.thr = math.Min(w.best, topExcluding(best, t, set.Top))
-			var boxes []box
-			if win < 0 {
-				boxes = []box{boxAround(make([]int, n), nil, -1)}
-			} else {
-				for _, c := range centres[t] {
-					boxes = append(boxes, boxAround(c.idx, c.full, win))
-				}
-			}
-			units := 0
-			for _, b := range boxes {
-				w.setBox(b)
-				units += w.units()
-			}
-			prog.startShape(units)
-			for _, b := range boxes {
-				w.setBox(b)
-				if err := w.run(ctx, prog); err != nil {
-					return nil, err
-				}
-			}
-			prog.endShape()
-			if w.best < best[t].ratio {
-				best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
-			}
-			res.Checked += w.checked
+		checked, err := e.enumerate(ctx, &s, n, win, size, centres, prog)
+		if err != nil {
+			return nil, err
 		}
+		res.Checked += checked
 	}
 	prog.done = prog.total
 	prog.report()
-	return e.result(res, tops, best, set)
+	return e.result(res, tops, s.best, set)
+}
+
+// shapeSearch is the state of one [engine.search] across its shapes: the
+// settings, the shapes and a walker of each, the best candidate of each so
+// far and each shape's index by its name. It lives on the search's stack:
+// the engine, the result and the progress are held apart and passed where
+// they are needed, so that what they share with the heap does not move it
+// there.
+type shapeSearch struct {
+	set     *Settings
+	tops    [][]Kind
+	walkers []*walker
+	best    []candidate
+	index   map[string]int
+}
+
+// window returns the mode of the shapes of n parts: set.Window when given,
+// else the whole ranges (−1) when their combinations fit set.Budget and
+// windows of defaultWindow steps when they do not.
+func (e *engine) window(tops [][]Kind, n int, set *Settings) int {
+	if set.Window != 0 {
+		return set.Window
+	}
+	sz := 0.0
+	for _, top := range tops {
+		if len(top) == n {
+			c := 1.0
+			for _, m := range e.counts(top) {
+				c *= float64(m)
+			}
+			sz += c
+		}
+	}
+	if sz <= set.Budget {
+		return -1
+	}
+	return defaultWindow
+}
+
+// incumbents runs phase 1 of Search on the shapes of n parts: it returns
+// those shapes, puts the centres of each in centres ([engine.centres]),
+// and sets each shape's best candidate to the best within ±2 steps of its
+// centres.
+func (e *engine) incumbents(ctx context.Context, s *shapeSearch, n int, centres map[int][]centre) ([]int, error) {
+	var size []int
+	for t, top := range s.tops {
+		if len(top) != n {
+			continue
+		}
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		size = append(size, t)
+		centres[t] = e.centres(s, top)
+		w := s.walkers[t]
+		w.thr, w.best = math.Inf(1), math.Inf(1)
+		for _, c := range centres[t] {
+			w.setBox(boxAround(c.idx, c.full, 2))
+			if err := w.run(ctx, nil); err != nil {
+				return nil, err
+			}
+		}
+		s.best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+	}
+	return size, nil
+}
+
+// centres returns the points of shape top to search around: its rounded
+// continuous optima, and the best networks of one part fewer with a part
+// added at either end (that part over its whole range).
+func (e *engine) centres(s *shapeSearch, top []Kind) []centre {
+	n := len(top)
+	var out []centre
+	for _, c := range e.continuous(top, s.set.Model) {
+		out = append(out, centre{idx: c})
+	}
+	if n > 1 {
+		for _, at := range []int{0, n - 1} {
+			sub := append(append([]Kind(nil), top[:at]...), top[at+1:]...)
+			u, ok := s.index[fmt.Sprint(sub)]
+			if !ok || s.best[u].idx == nil {
+				continue
+			}
+			c := centre{idx: make([]int, n), full: make([]bool, n)}
+			copy(c.idx[:at], s.best[u].idx[:at])
+			copy(c.idx[at+1:], s.best[u].idx[at:])
+			c.full[at] = true
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// enumerate runs phase 2 of Search on the shapes size of n parts, the
+// most promising first: each shape's whole ranges (win < 0) or the
+// windows of win steps around its centres, against its incumbent and the
+// other shapes' best, reporting to prog. It returns the count of networks
+// checked.
+func (e *engine) enumerate(ctx context.Context, s *shapeSearch, n, win int, size []int, centres map[int][]centre, prog *progress) (int64, error) {
+	var checked int64
+	best := s.best
+	sort.SliceStable(size, func(a, b int) bool { return best[size[a]].ratio < best[size[b]].ratio })
+	for _, t := range size {
+		w := s.walkers[t]
+		w.best = best[t].ratio
+		w.bestIdx = append(w.bestIdx[:0], best[t].idx...)
+		w.thr = math.Min(w.best, topExcluding(best, t, s.set.Top))
+		var boxes []box
+		if win < 0 {
+			boxes = []box{boxAround(make([]int, n), nil, -1)}
+		} else {
+			for _, c := range centres[t] {
+				boxes = append(boxes, boxAround(c.idx, c.full, win))
+			}
+		}
+		units := 0
+		for _, b := range boxes {
+			w.setBox(b)
+			units += w.units()
+		}
+		prog.startShape(units)
+		for _, b := range boxes {
+			w.setBox(b)
+			if err := w.run(ctx, prog); err != nil {
+				return 0, err
+			}
+		}
+		prog.endShape()
+		if w.best < best[t].ratio {
+			best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+		}
+		checked += w.checked
+	}
+	return checked, nil
 }
 
 // topExcluding returns the top-th smallest ratio among the shapes other
