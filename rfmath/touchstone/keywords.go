@@ -12,6 +12,8 @@ func keywordName(b []byte) string {
 	return strings.ToLower(strings.Join(strings.Fields(string(b)), " "))
 }
 
+// knownKeywords lists the version 2 keywords, for the error about an
+// unknown one.
 var knownKeywords = "[Version], [Number of Ports], [Two-Port Data Order], [Number of Frequencies], [Number of Noise Frequencies], [Reference], [Matrix Format], [Mixed-Mode Order], [Network Data], [Noise Data], [Begin Information], [End Information], [End]"
 
 // keyword is a version 2 keyword line: its name (lower case, inner blanks

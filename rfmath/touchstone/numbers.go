@@ -18,6 +18,7 @@ const (
 	clsBang         // '!' starts a comment
 )
 
+// charClass is the byte class of every byte.
 var charClass = func() (t [256]uint8) {
 	for c := 0x20; c <= 0x7E; c++ {
 		t[c] = clsText
@@ -107,6 +108,7 @@ scan:
 	return p.errAt(p.cols[0], syntaxf("numbers outside a data block: network data must follow [Network Data] and noise data [Noise Data]"))
 }
 
+// notNumber reports the word at line[start] that is not a number.
 func (p *parser) notNumber(line []byte, start int) error {
 	end := start
 	for end < len(line) && charClass[line[end]] != clsBlank && charClass[line[end]] != clsBang {
@@ -305,6 +307,7 @@ func polar(mag, deg float64) complex128 {
 	return complex(mag*c, mag*s)
 }
 
+// finite reports whether both parts of v are finite.
 func finite(v complex128) bool {
 	return !math.IsInf(real(v), 0) && !math.IsInf(imag(v), 0) && !math.IsNaN(real(v)) && !math.IsNaN(imag(v))
 }

@@ -30,6 +30,8 @@ type Limits struct {
 // DefaultLimits holds the default of every limit.
 var DefaultLimits = Limits{MaxBytes: 64 << 20, MaxPorts: 16, MaxPoints: 2_000_000}
 
+// withDefaults returns l with the default of every field that is not
+// positive.
 func (l Limits) withDefaults() Limits {
 	if l.MaxBytes <= 0 {
 		l.MaxBytes = DefaultLimits.MaxBytes
@@ -188,11 +190,13 @@ const (
 	stEnded          // after [End]
 )
 
+// unitInfo is a frequency unit: its name as written and its size in Hz.
 type unitInfo struct {
 	name string
 	mul  float64
 }
 
+// units are the frequency units of the option line, by lower-case name.
 var units = map[string]unitInfo{
 	"hz":  {"Hz", 1},
 	"khz": {"kHz", 1e3},
@@ -200,6 +204,7 @@ var units = map[string]unitInfo{
 	"ghz": {"GHz", 1e9},
 }
 
+// parser reads one Touchstone file held whole in buf, line by line.
 type parser struct {
 	name string
 	buf  []byte
@@ -258,6 +263,7 @@ type parser struct {
 	cols []int
 }
 
+// errAt reports err at column col of the current line.
 func (p *parser) errAt(col int, err error) error {
 	return &ParseError{File: p.name, Line: p.line, Column: col, Err: err}
 }
@@ -290,6 +296,7 @@ func (p *parser) next() ([]byte, bool) {
 	return line, true
 }
 
+// run reads every line of the input and returns the file.
 func (p *parser) run() (*File, error) {
 	// A lone CR ends a line too (the specification allows CR or CR LF).
 	for i := bytes.IndexByte(p.buf, '\r'); i >= 0; {
@@ -317,6 +324,8 @@ func (p *parser) run() (*File, error) {
 	return &p.file, nil
 }
 
+// handle reads one line: a line of the information block, a comment, the
+// option line, a keyword or numbers.
 func (p *parser) handle(line []byte) error {
 	if p.inInfo {
 		content, err := p.textLine(line)
@@ -378,6 +387,8 @@ func (p *parser) comment(line []byte, i int) error {
 	return nil
 }
 
+// badByte reports the byte c at line[i], which a Touchstone file may not
+// hold.
 func (p *parser) badByte(i int, c byte) error {
 	return p.errAt(i+1, syntaxf("byte 0x%02X is not allowed: a Touchstone file holds printable ASCII (0x20–0x7E), tabs and line ends only", c))
 }
@@ -490,6 +501,9 @@ func (p *parser) startV1(col int) error {
 	return nil
 }
 
+// startV1Data sets up the network data of a version 1 file once its
+// option line is read: the references of the ports and the layout of a
+// frequency point.
 func (p *parser) startV1Data() error {
 	if len(p.refs) > 1 && p.param != 'S' {
 		return p.errAt(1, unsupportedf("%c-parameters with per-port reference resistances in a version 1 file: the normalisation of such data is not defined here; use S-parameters or a version 2 file", p.param))
@@ -503,6 +517,7 @@ func (p *parser) startV1Data() error {
 	return nil
 }
 
+// field is a blank-separated word of a line and the column it starts at.
 type field struct {
 	text string
 	col  int
