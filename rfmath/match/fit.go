@@ -4,12 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"slices"
-	"sort"
-	"strings"
 
 	"gonum.org/v1/gonum/mat"
-	"gonum.org/v1/gonum/optimize"
 
 	"matchbench/rfmath"
 	"matchbench/rfmath/units"
@@ -242,253 +238,6 @@ func (f *BoardFit) Param(k ParamKind, i int) (FitParam, bool) {
 	return FitParam{}, false
 }
 
-// DefaultParams returns the parameters a fit of n on layout lay frees by
-// default: the effective value of every lumped part, the pad capacitance
-// at every node that chip parts touch, and the length of every trace the
-// layout declares.
-func DefaultParams(n Network, lay Layout) ([]ParamSpec, error) {
-	pl, err := skeleton(n, lay)
-	if err != nil {
-		return nil, err
-	}
-	var out []ParamSpec
-	for i, p := range n {
-		if p.Kind.Component() != "" {
-			out = append(out, ParamSpec{Kind: ParamPart, Index: i})
-		}
-	}
-	for j, c := range pl.NodePads {
-		if c > 0 {
-			out = append(out, ParamSpec{Kind: ParamPads, Index: j})
-		}
-	}
-	for _, t := range lay.Traces {
-		if t.LengthM > 0 {
-			out = append(out, ParamSpec{Kind: ParamTrace, Index: t.Gap})
-		}
-	}
-	return out, nil
-}
-
-// placeholderPadCF stands in for a pad capacitance of zero while the
-// skeleton of a fit is built, so that every node with pads has an element.
-const placeholderPadCF = 1e-15
-
-// skeleton places n on lay with an element for the pads of every node that
-// has any, even when the footprint has no capacitance.
-func skeleton(n Network, lay Layout) (Placed, error) {
-	s := lay
-	if !(s.Footprint.PadCF > 0) {
-		s.Footprint.PadCF = placeholderPadCF
-	}
-	pl, err := s.Place(n)
-	if err != nil {
-		return Placed{}, err
-	}
-	for j := range pl.NodePadCF {
-		pl.NodePadCF[j] = float64(pl.NodePads[j]) * lay.Footprint.PadCF
-	}
-	for j, o := range pl.Origins {
-		if o.Role == RolePads {
-			pl.Network[j].Value = pl.NodePadCF[o.Index]
-		}
-	}
-	return pl, nil
-}
-
-// fitModel evaluates the placed network over the fit's points for given
-// parameter values.
-type fitModel struct {
-	skel   Placed
-	params []FitParam
-	elem   []int // per parameter: its element in skel.Network
-	freqHz []float64
-	gLoad  []complex128
-	gMeas  []complex128
-	w      []float64 // per point: the weight 1/√(1 + |∂Γin/∂ΓL|²)
-	z0     float64
-	evals  int
-	lad    rfmath.Ladder
-}
-
-// network returns the placed network with the parameters at vals (every
-// parameter, in order); pads and traces of zero are left out.
-func (m *fitModel) network(vals []float64) Network {
-	n := m.skel.Network.Clone()
-	for i, e := range m.elem {
-		n[e].Value = vals[i]
-	}
-	out := n[:0]
-	for j, p := range n {
-		if o := m.skel.Origins[j]; o.Role != RolePart && !(p.Value > 0) {
-			continue
-		}
-		out = append(out, p)
-	}
-	return out
-}
-
-// circuit returns the placed network with the parameters at vals,
-// compiled; ok is false when it cannot be built.
-func (m *fitModel) circuit(vals []float64) (rfmath.Circuit, bool) {
-	m.evals++
-	n := m.network(vals)
-	m.lad = m.lad[:0]
-	for _, p := range n {
-		e, err := p.Element(p.Value)
-		if err != nil {
-			return rfmath.Circuit{}, false
-		}
-		m.lad = append(m.lad, e)
-	}
-	return m.lad.Circuit(), true
-}
-
-// residuals fills r (two per point: the real and imaginary parts of
-// Γ_model − Γ_built, times the point's weight) for the parameter values
-// vals and returns their sum of squares; +Inf when the network cannot be
-// built.
-func (m *fitModel) residuals(r []float64, vals []float64) float64 {
-	c, ok := m.circuit(vals)
-	if !ok {
-		for k := range r {
-			r[k] = math.Inf(1)
-		}
-		return math.Inf(1)
-	}
-	ss := 0.0
-	for k, f := range m.freqHz {
-		d := c.GammaAt(f, m.gLoad[k], m.z0) - m.gMeas[k]
-		w := m.w[k]
-		r[2*k], r[2*k+1] = w*real(d), w*imag(d)
-		ss += r[2*k]*r[2*k] + r[2*k+1]*r[2*k+1]
-	}
-	return ss
-}
-
-// misfit returns the rms and the largest |Γ_model − Γ_built| over the
-// points, unweighted.
-func (m *fitModel) misfit(vals []float64) (rms, worst float64) {
-	c, ok := m.circuit(vals)
-	if !ok {
-		return math.Inf(1), math.Inf(1)
-	}
-	ss := 0.0
-	for k, f := range m.freqHz {
-		e := cmplx.Abs(c.GammaAt(f, m.gLoad[k], m.z0) - m.gMeas[k])
-		ss += e * e
-		worst = math.Max(worst, e)
-	}
-	return math.Sqrt(ss / float64(len(m.freqHz))), worst
-}
-
-// weigh sets each point's weight from the network at vals (see
-// FitBoard): the load's noise reaches the model through the network as
-// ∂Γin/∂ΓL, so a point's residual has variance σ²·(1 + |∂Γin/∂ΓL|²) when
-// the two sweeps share one noise σ.
-func (m *fitModel) weigh(vals []float64) {
-	if m.w == nil {
-		m.w = make([]float64, len(m.freqHz))
-	}
-	c, ok := m.circuit(vals)
-	for k, f := range m.freqHz {
-		m.w[k] = 1
-		if !ok {
-			continue
-		}
-		// Γin is a Möbius map of ΓL, so the derivative is the complex one.
-		const h = 1e-6
-		d := (c.GammaAt(f, m.gLoad[k]+h, m.z0) - c.GammaAt(f, m.gLoad[k]-h, m.z0)) / (2 * h)
-		if t := cmplx.Abs(d); !math.IsNaN(t) && !math.IsInf(t, 0) {
-			m.w[k] = 1 / math.Sqrt(1+t*t)
-		}
-	}
-}
-
-// step returns the finite-difference step of parameter i at value v.
-func (m *fitModel) step(i int, v float64) float64 {
-	switch m.params[i].Kind {
-	case ParamPads:
-		return 1e-5 * math.Max(v, 0.05e-12)
-	case ParamTrace:
-		return 1e-5 * math.Max(v, 0.5e-3)
-	}
-	return 1e-5 * v
-}
-
-// scale returns a typical size of parameter i, to make the columns of a
-// Jacobian comparable.
-func (m *fitModel) scale(i int) float64 {
-	p := m.params[i]
-	return math.Max(math.Abs(p.Nominal), (p.Hi-p.Lo)/20)
-}
-
-// jacobian fills jac (rows: the data residuals; columns: the parameters
-// free) by central differences at vals in the parameters' own units,
-// one-sided at a bound.
-func (m *fitModel) jacobian(jac *mat.Dense, vals []float64, free []int) {
-	rows, _ := jac.Dims()
-	rp := make([]float64, rows)
-	rm := make([]float64, rows)
-	v := append([]float64(nil), vals...)
-	for c, i := range free {
-		h := m.step(i, vals[i])
-		up, dn := vals[i]+h, vals[i]-h
-		p := m.params[i]
-		if up > p.Hi {
-			up = vals[i]
-		}
-		if dn < p.Lo {
-			dn = vals[i]
-		}
-		v[i] = up
-		m.residuals(rp, v)
-		v[i] = dn
-		m.residuals(rm, v)
-		v[i] = vals[i]
-		for k := range rows {
-			jac.Set(k, c, (rp[k]-rm[k])/(up-dn))
-		}
-	}
-}
-
-// bounded is the change of variable that keeps a parameter within its
-// bounds: θ = lo + (hi − lo)·(1 + sin x)/2, on log θ for part values.
-type bounded struct {
-	lo, hi float64
-	log    bool
-}
-
-func (b bounded) value(x float64) float64 {
-	t := (1 + math.Sin(x)) / 2
-	if b.log {
-		return math.Exp(math.Log(b.lo) + (math.Log(b.hi)-math.Log(b.lo))*t)
-	}
-	return b.lo + (b.hi-b.lo)*t
-}
-
-// deriv returns dθ/dx at x.
-func (b bounded) deriv(x float64) float64 {
-	dt := math.Cos(x) / 2
-	if b.log {
-		return b.value(x) * (math.Log(b.hi) - math.Log(b.lo)) * dt
-	}
-	return (b.hi - b.lo) * dt
-}
-
-// inverse returns x for θ, moved a little inside the bounds so that the
-// fit can leave a bound it starts on.
-func (b bounded) inverse(v float64) float64 {
-	var t float64
-	if b.log {
-		t = (math.Log(v) - math.Log(b.lo)) / (math.Log(b.hi) - math.Log(b.lo))
-	} else {
-		t = (v - b.lo) / (b.hi - b.lo)
-	}
-	t = math.Min(math.Max(t, 0.02), 0.98)
-	return math.Asin(2*t - 1)
-}
-
 // FitBoard fits the board as built (see above): load is the load measured
 // alone, built the sweep of the board with the network n fitted (measured
 // at the source end, against any real reference: it is brought to the
@@ -503,15 +252,9 @@ func (b bounded) inverse(v float64) float64 {
 // layout that does not fit n ([ErrLayout]), a part that cannot be built
 // ([ErrPart]).
 func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFit, error) {
-	var set FitSettings
-	if s != nil {
-		set = *s
-	}
-	if set.MaxCorrelation == 0 {
-		set.MaxCorrelation = 0.99
-	}
-	if !(set.MaxCorrelation > 0 && set.MaxCorrelation < 1) {
-		return nil, fmt.Errorf("%w: correlation limit %g; want between 0 and 1", ErrBuilt, set.MaxCorrelation)
+	set, err := fitSettings(s)
+	if err != nil {
+		return nil, err
 	}
 	if err := load.validate(); err != nil {
 		return nil, fmt.Errorf("load: %w", err)
@@ -529,38 +272,111 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 	if err != nil {
 		return nil, err
 	}
-	specs := set.Params
-	if specs == nil {
-		if specs, err = DefaultParams(n, lay); err != nil {
-			return nil, err
+	m := &fitModel{skel: skel, z0: load.Z0Ohm}
+	if err := m.addParams(n, lay, set); err != nil {
+		return nil, err
+	}
+	lo, hi := m.addPoints(load, built, set)
+	P := len(m.params)
+	if len(m.freqHz) < P+2 {
+		return nil, fmt.Errorf("%w: the sweeps share %d points from %s to %s; %d parameters need at least %d",
+			ErrBuilt, len(m.freqHz), units.FormatFrequency(lo, 6), units.FormatFrequency(hi, 6), P, P+2)
+	}
+
+	res := &BoardFit{Design: n.Clone(), Layout: lay, Points: len(m.freqHz), FitLoHz: m.freqHz[0], FitHiHz: m.freqHz[len(m.freqHz)-1]}
+	vals := make([]float64, P)
+	var free []int
+	for i, p := range m.params {
+		vals[i] = p.Nominal
+		if !p.Held {
+			free = append(free, i)
 		}
 	}
-	m := &fitModel{skel: skel, z0: load.Z0Ohm}
+	res.NominalRMSResidual, _ = m.misfit(vals)
+	sNoise := m.fit(vals, free)
+
+	// Figures at the fit.
+	res.RMSResidual, res.MaxResidual = m.misfit(vals)
+	res.ResidualSigma = sNoise
+	res.Free = append([]int(nil), free...)
+	sigma := make([]float64, P)
+	var pairs [][2]int
+	if len(free) > 0 {
+		N := 2 * len(m.freqHz)
+		jac := mat.NewDense(N, len(free), nil)
+		m.jacobian(jac, vals, free)
+		id := identify(jac, set.MaxCorrelation)
+		res.Correlation, res.Condition = id.corr, id.cond
+		post := m.posterior(jac, free, sNoise)
+		for c, i := range free {
+			sigma[i] = post[c]
+		}
+		pairs = id.pairs
+	}
+	res.Params = m.judge(vals, sigma)
+	res.Warnings = fitWarnings(res, free, pairs)
+	res.Evaluations = m.evals
+	res.Board = m.fittedBoard(res.Params, vals)
+	res.Fitted = m.fittedLayout(lay, vals)
+	return res, nil
+}
+
+// fitSettings returns s with its defaults filled in, or an error for a
+// correlation limit outside (0, 1).
+func fitSettings(s *FitSettings) (FitSettings, error) {
+	var set FitSettings
+	if s != nil {
+		set = *s
+	}
+	if set.MaxCorrelation == 0 {
+		set.MaxCorrelation = 0.99
+	}
+	if !(set.MaxCorrelation > 0 && set.MaxCorrelation < 1) {
+		return set, fmt.Errorf("%w: correlation limit %g; want between 0 and 1", ErrBuilt, set.MaxCorrelation)
+	}
+	return set, nil
+}
+
+// addParams adds the parameters of the settings (by default
+// [DefaultParams] of n on lay) to m, each with its element of the
+// skeleton; a parameter listed twice, or none at all, is an error.
+func (m *fitModel) addParams(n Network, lay Layout, set FitSettings) error {
+	specs := set.Params
+	if specs == nil {
+		var err error
+		if specs, err = DefaultParams(n, lay); err != nil {
+			return err
+		}
+	}
 	seen := map[[2]int]bool{}
 	for _, sp := range specs {
-		p, e, err := paramOf(sp, n, lay, skel)
+		p, e, err := paramOf(sp, n, lay, m.skel)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if set.NoPriors {
 			p.Prior = math.Inf(1)
 		}
 		key := [2]int{int(sp.Kind), sp.Index}
 		if seen[key] {
-			return nil, fmt.Errorf("%w: %s listed twice", ErrBuilt, p.Name)
+			return fmt.Errorf("%w: %s listed twice", ErrBuilt, p.Name)
 		}
 		seen[key] = true
 		m.params = append(m.params, p)
 		m.elem = append(m.elem, e)
 	}
 	if len(m.params) == 0 {
-		return nil, fmt.Errorf("%w: no parameter to fit", ErrBuilt)
+		return fmt.Errorf("%w: no parameter to fit", ErrBuilt)
 	}
+	return nil
+}
 
-	// The points: the built sweep's, within the load's range and the
-	// settings' band, the load interpolated there and the built reflection
-	// brought to the load's reference.
-	lo, hi := load.FreqHz[0], load.FreqHz[len(load.FreqHz)-1]
+// addPoints adds the fit's points to m: the built sweep's, within the
+// load's range and the settings' band (lo to hi, returned), with the load
+// interpolated there and the built reflection brought to the load's
+// reference. Points where either is not finite are left out.
+func (m *fitModel) addPoints(load, built Load, set FitSettings) (lo, hi float64) {
+	lo, hi = load.FreqHz[0], load.FreqHz[len(load.FreqHz)-1]
 	if set.LoHz > 0 {
 		lo = math.Max(lo, set.LoHz)
 	}
@@ -584,29 +400,17 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 		m.gLoad = append(m.gLoad, gl)
 		m.gMeas = append(m.gMeas, gm)
 	}
-	P := len(m.params)
-	if len(m.freqHz) < P+2 {
-		return nil, fmt.Errorf("%w: the sweeps share %d points from %s to %s; %d parameters need at least %d",
-			ErrBuilt, len(m.freqHz), units.FormatFrequency(lo, 6), units.FormatFrequency(hi, 6), P, P+2)
-	}
+	return lo, hi
+}
 
-	res := &BoardFit{Design: n.Clone(), Layout: lay, Points: len(m.freqHz), FitLoHz: m.freqHz[0], FitHiHz: m.freqHz[len(m.freqHz)-1]}
-	vals := make([]float64, P)
-	var free []int
-	for i, p := range m.params {
-		vals[i] = p.Nominal
-		if !p.Held {
-			free = append(free, i)
-		}
-	}
+// fit moves the free parameters of vals (in place) to the fit and returns
+// the residual standard deviation s, found by iteration (see above): it
+// starts at a typical analyser noise of 0.002 in Γ (from memory) and is
+// taken again from each fit's residual until it settles; the points'
+// weights are taken again from each fit's network.
+func (m *fitModel) fit(vals []float64, free []int) float64 {
 	N := 2 * len(m.freqHz)
 	r := make([]float64, N)
-	res.NominalRMSResidual, _ = m.misfit(vals)
-
-	// The fit, with s found by iteration (see above): it starts at a
-	// typical analyser noise of 0.002 in Γ (from memory) and is taken again
-	// from each fit's residual until it settles; the points' weights are
-	// taken again from each fit's network.
 	sNoise, ss := 0.002, 0.0
 	m.weigh(vals)
 	for it := 0; ; it++ {
@@ -622,26 +426,14 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 			break
 		}
 	}
+	return sNoise
+}
 
-	// Figures at the fit.
-	res.RMSResidual, res.MaxResidual = m.misfit(vals)
-	res.ResidualSigma = sNoise
-	res.Free = append([]int(nil), free...)
-	var warnings []string
-	var pairs [][2]int
-	sigma := make([]float64, P)
-	if len(free) > 0 {
-		jac := mat.NewDense(N, len(free), nil)
-		m.jacobian(jac, vals, free)
-		id := identify(jac, set.MaxCorrelation)
-		res.Correlation, res.Condition = id.corr, id.cond
-		post := m.posterior(jac, free, sNoise)
-		for c, i := range free {
-			sigma[i] = post[c]
-		}
-		pairs = id.pairs
-	}
-	res.Params = make([]FitParam, P)
+// judge returns the parameters of m at their fitted values vals, each
+// free one with its uncertainty sigma and whether it ended at a bound or
+// is left undetermined.
+func (m *fitModel) judge(vals, sigma []float64) []FitParam {
+	out := make([]FitParam, len(m.params))
 	for i, p := range m.params {
 		p.Value = vals[i]
 		if !p.Held {
@@ -651,8 +443,17 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 			p.Undetermined = math.IsInf(p.Sigma, 1) || math.IsNaN(p.Sigma) || (!math.IsInf(p.Prior, 1) && p.Sigma > 0.7*p.Prior) ||
 				p.Sigma > 0.5*math.Max(math.Abs(p.Value), math.Abs(p.Nominal))
 		}
-		res.Params[i] = p
+		out[i] = p
 	}
+	return out
+}
+
+// fitWarnings returns the warnings of the fit res: the pairs of free
+// parameters the sweep hardly tells apart ([pairWarnings]), the other
+// parameters it leaves undetermined, those that ended at a bound, and a
+// residual too large for the model to describe the board.
+func fitWarnings(res *BoardFit, free []int, pairs [][2]int) []string {
+	var warnings []string
 	pw, covered := pairWarnings(res.Params, free, pairs, res.Correlation)
 	warnings = append(warnings, pw...)
 	for i, p := range res.Params {
@@ -668,437 +469,37 @@ func FitBoard(load, built Load, n Network, lay Layout, s *FitSettings) (*BoardFi
 		warnings = append(warnings, fmt.Sprintf("the fitted board still differs from the measurement by %.3g in Γ (rms; %.3g at worst): the model does not describe this board well; check the parts' places and that both sweeps share one reference plane",
 			res.RMSResidual, res.MaxResidual))
 	}
-	res.Warnings = warnings
-	res.Evaluations = m.evals
-	res.Board = Placed{Network: m.network(vals), Nodes: skel.Nodes, NodePads: skel.NodePads, PartNodes: skel.PartNodes, NodePadCF: append([]float64(nil), skel.NodePadCF...)}
+	return warnings
+}
+
+// fittedBoard returns the board as fitted: the placed network at vals
+// (pads and traces of zero left out, with their origins) and the pad
+// capacitance of each node as fitted.
+func (m *fitModel) fittedBoard(params []FitParam, vals []float64) Placed {
+	skel := m.skel
+	b := Placed{Network: m.network(vals), Nodes: skel.Nodes, NodePads: skel.NodePads, PartNodes: skel.PartNodes, NodePadCF: append([]float64(nil), skel.NodePadCF...)}
 	for j, o := range skel.Origins {
 		if o.Role != RolePart && !(m.valueOf(j, vals) > 0) {
 			continue
 		}
-		res.Board.Origins = append(res.Board.Origins, o)
+		b.Origins = append(b.Origins, o)
 	}
-	for i, p := range res.Params {
+	for i, p := range params {
 		if p.Kind == ParamPads {
-			res.Board.NodePadCF[p.Index] = vals[i]
+			b.NodePadCF[p.Index] = vals[i]
 		}
 	}
-	res.Fitted = Layout{Footprint: lay.Footprint}
+	return b
+}
+
+// fittedLayout returns the layout lay with each trace's length as fitted.
+func (m *fitModel) fittedLayout(lay Layout, vals []float64) Layout {
+	out := Layout{Footprint: lay.Footprint}
 	for _, t := range lay.Traces {
-		if e := skel.Element(RoleTrace, t.Gap); e >= 0 {
+		if e := m.skel.Element(RoleTrace, t.Gap); e >= 0 {
 			t.LengthM = m.valueOf(e, vals)
 		}
-		res.Fitted.Traces = append(res.Fitted.Traces, t)
-	}
-	return res, nil
-}
-
-// pairWarnings says which pairs of the free parameters (indices into
-// free) the sweep hardly tells apart, each parameter in one warning at
-// most: when either ends up undetermined, only their combined effect is
-// known; else their uncertainties allow for the correlation. covered marks
-// the undetermined parameters (indices into params) a warning explains.
-func pairWarnings(params []FitParam, free []int, pairs [][2]int, corr [][]float64) (out []string, covered map[int]bool) {
-	covered = map[int]bool{}
-	told := map[int]bool{}
-	for _, pr := range pairs {
-		ia, ib := free[pr[0]], free[pr[1]]
-		if told[ia] && told[ib] {
-			continue
-		}
-		told[ia], told[ib] = true, true
-		a, b := params[ia], params[ib]
-		c := fmtCorr(corr[pr[0]][pr[1]])
-		if !a.Undetermined && !b.Undetermined {
-			out = append(out, fmt.Sprintf("%s and %s are hard to tell apart in this sweep (correlation %s): their uncertainties allow for it, and their combined effect is known better than either",
-				a.Name, b.Name, c))
-			continue
-		}
-		w := fmt.Sprintf("%s and %s cannot be told apart from this sweep (correlation %s): only their combined effect is known", a.Name, b.Name, c)
-		covered[ia], covered[ib] = a.Undetermined, b.Undetermined
-		switch {
-		case b.Undetermined && !math.IsInf(b.Prior, 1) && !a.Undetermined:
-			w += fmt.Sprintf("; %s stays near its nominal %s and %s takes up the difference, with an uncertainty that allows for it",
-				b.Name, units.Format(b.Nominal, b.Unit, 3), a.Name)
-		case a.Undetermined && !math.IsInf(a.Prior, 1) && !b.Undetermined:
-			w += fmt.Sprintf("; %s stays near its nominal %s and %s takes up the difference, with an uncertainty that allows for it",
-				a.Name, units.Format(a.Nominal, a.Unit, 3), b.Name)
-		default:
-			w += ", and each one's uncertainty is large"
-		}
-		out = append(out, w)
-	}
-	return out, covered
-}
-
-// undeterminedText says what an undetermined parameter's value means.
-func undeterminedText(p FitParam) string {
-	switch {
-	case math.IsInf(p.Sigma, 1) || math.IsNaN(p.Sigma):
-		return "its value is not known"
-	case !math.IsInf(p.Prior, 1) && p.Sigma > 0.7*p.Prior:
-		return fmt.Sprintf("it stays near its nominal %s (± %s before the fit, ± %s after)",
-			units.Format(p.Nominal, p.Unit, 3), units.Format(p.Prior, p.Unit, 2), units.Format(p.Sigma, p.Unit, 2))
-	}
-	return fmt.Sprintf("%s ± %s is not a measurement of it", units.Format(p.Value, p.Unit, 3), units.Format(p.Sigma, p.Unit, 2))
-}
-
-// valueOf returns the value of skeleton element e with the parameters at
-// vals.
-func (m *fitModel) valueOf(e int, vals []float64) float64 {
-	for i, j := range m.elem {
-		if j == e {
-			return vals[i]
-		}
-	}
-	return m.skel.Network[e].Value
-}
-
-// paramOf returns the parameter of spec sp with its element in skel.
-func paramOf(sp ParamSpec, n Network, lay Layout, skel Placed) (FitParam, int, error) {
-	p := FitParam{Kind: sp.Kind, Index: sp.Index, Held: sp.Hold}
-	var e int
-	switch sp.Kind {
-	case ParamPart:
-		if sp.Index < 0 || sp.Index >= len(n) {
-			return p, 0, fmt.Errorf("%w: no part %d in a network of %d", ErrBuilt, sp.Index+1, len(n))
-		}
-		q := n[sp.Index]
-		if q.Kind.Component() == "" {
-			return p, 0, fmt.Errorf("%w: part %d is a %s; only lumped parts have an effective value to fit", ErrBuilt, sp.Index+1, q.Kind)
-		}
-		p.Name, p.Unit, p.Nominal = n.Designator(sp.Index), q.Kind.Unit(), q.Value
-		p.Lo, p.Hi = q.Value/2, 2*q.Value
-		e = skel.Element(RolePart, sp.Index)
-	case ParamPads:
-		if sp.Index < 0 || sp.Index >= skel.Nodes || skel.NodePads[sp.Index] == 0 {
-			return p, 0, fmt.Errorf("%w: node %d has no pads", ErrBuilt, sp.Index)
-		}
-		p.Name, p.Unit, p.Nominal = padName(skel, n, sp.Index), "F", skel.NodePadCF[sp.Index]
-		p.Lo, p.Hi = 0, math.Max(1e-12, 10*p.Nominal)
-		e = skel.Element(RolePads, sp.Index)
-	case ParamTrace:
-		t, ok := lay.TraceAt(sp.Index)
-		if !ok || !(t.LengthM > 0) {
-			return p, 0, fmt.Errorf("%w: the layout has no trace in gap %d", ErrBuilt, sp.Index)
-		}
-		p.Name, p.Unit, p.Nominal = traceName(n, sp.Index), "m", t.LengthM
-		p.Lo, p.Hi = 0, math.Max(10e-3, 3*t.LengthM)
-		e = skel.Element(RoleTrace, sp.Index)
-	default:
-		return p, 0, fmt.Errorf("%w: unknown parameter kind %d", ErrBuilt, sp.Kind)
-	}
-	switch {
-	case sp.Prior < 0 || sp.Kind == ParamPart && sp.Prior == 0:
-		p.Prior = math.Inf(1)
-	case sp.Prior > 0:
-		p.Prior = sp.Prior
-	case sp.Kind == ParamPads:
-		p.Prior = 0.5 * p.Nominal
-		if p.Prior == 0 {
-			p.Prior = 0.1e-12
-		}
-	default:
-		p.Prior = math.Max(0.3*p.Nominal, 1e-3)
-	}
-	if sp.Lo > 0 {
-		p.Lo = sp.Lo
-	}
-	if sp.Hi > 0 {
-		p.Hi = sp.Hi
-	}
-	if !(p.Hi > p.Lo) || p.Lo < 0 || (sp.Kind == ParamPart && !(p.Lo > 0)) || math.IsInf(p.Hi, 0) {
-		return p, 0, fmt.Errorf("%w: bounds %g to %g of %s", ErrBuilt, p.Lo, p.Hi, p.Name)
-	}
-	if p.Nominal < p.Lo || p.Nominal > p.Hi {
-		return p, 0, fmt.Errorf("%w: %s's nominal %s lies outside its bounds", ErrBuilt, p.Name, units.Format(p.Nominal, p.Unit, 3))
-	}
-	return p, e, nil
-}
-
-// padName names the pads at node j by the parts that touch it: "pad at
-// L1", "pad at C1's load end", "pads at the L1–L2 node".
-func padName(pl Placed, n Network, j int) string {
-	var names []string
-	end := ""
-	for i, p := range n {
-		if p.Kind.Component() == "" {
-			continue
-		}
-		at := pl.PartNodes[i]
-		switch {
-		case at == j && p.Kind.Shunt():
-			names = append(names, n.Designator(i))
-		case at == j:
-			names, end = append(names, n.Designator(i)), "'s load end"
-		case !p.Kind.Shunt() && at+1 == j:
-			names, end = append(names, n.Designator(i)), "'s source end"
-		}
-	}
-	switch len(names) {
-	case 0:
-		return fmt.Sprintf("pads at node %d", j)
-	case 1:
-		return "pad at " + names[0] + end
-	}
-	return "pads at the " + strings.Join(names, "–") + " node"
-}
-
-// traceName names the trace in gap g by its neighbours: "trace load–L1".
-func traceName(n Network, g int) string {
-	a, b := "load", "source"
-	if g > 0 {
-		a = n.Designator(g - 1)
-	}
-	if g < len(n) {
-		b = n.Designator(g)
-	}
-	return "trace " + a + "–" + b
-}
-
-func fmtCorr(c float64) string {
-	if math.IsNaN(c) {
-		return "undetermined"
-	}
-	return strings.Replace(fmt.Sprintf("%+.4f", c), "-", "−", 1)
-}
-
-// minimise fits the free parameters (indices into vals) in place, with
-// the prior rows weighted by the noise scale s (see above).
-func (m *fitModel) minimise(vals []float64, free []int, s float64) {
-	nf := len(free)
-	tr := make([]bounded, nf)
-	x0 := make([]float64, nf)
-	var pri []int // columns with a prior
-	for c, i := range free {
-		p := m.params[i]
-		tr[c] = bounded{lo: p.Lo, hi: p.Hi, log: p.Kind == ParamPart}
-		x0[c] = tr[c].inverse(vals[i])
-		if !math.IsInf(p.Prior, 1) {
-			pri = append(pri, c)
-		}
-	}
-	N := 2 * len(m.freqHz)
-	rows := N + len(pri)
-	work := append([]float64(nil), vals...)
-	setX := func(x []float64) {
-		for c, i := range free {
-			work[i] = tr[c].value(x[c])
-		}
-	}
-	// objective fills the residuals (data, then prior rows) at work and
-	// returns their sum of squares.
-	objective := func(r []float64) float64 {
-		ss := m.residuals(r[:N], work)
-		for j, c := range pri {
-			p := m.params[free[c]]
-			d := s * (work[free[c]] - p.Nominal) / p.Prior
-			r[N+j] = d
-			ss += d * d
-		}
-		return ss
-	}
-	r := make([]float64, rows)
-	jac := mat.NewDense(rows, nf, nil)
-	data := jac.Slice(0, N, 0, nf).(*mat.Dense)
-	// The residual and Jacobian (in x) at the last x asked for, shared by
-	// Grad and Hess.
-	var lastX []float64
-	eval := func(x []float64) {
-		if lastX != nil && slices.Equal(lastX, x) {
-			return
-		}
-		setX(x)
-		objective(r)
-		lastX = append(lastX[:0], x...)
-		m.jacobian(data, work, free)
-		for j, c := range pri {
-			jac.Set(N+j, c, s/m.params[free[c]].Prior)
-		}
-		for c := range nf {
-			d := tr[c].deriv(x[c])
-			for k := range rows {
-				jac.Set(k, c, jac.At(k, c)*d)
-			}
-		}
-	}
-	prob := optimize.Problem{
-		Func: func(x []float64) float64 {
-			setX(x)
-			return objective(make([]float64, rows))
-		},
-		Grad: func(g, x []float64) {
-			eval(x)
-			gv := mat.NewVecDense(nf, g)
-			gv.MulVec(jac.T(), mat.NewVecDense(rows, r))
-			gv.ScaleVec(2, gv)
-		},
-		Hess: func(h *mat.SymDense, x []float64) {
-			eval(x)
-			h.SymOuterK(2, jac.T())
-		},
-	}
-	copy(work, vals)
-	f0 := objective(r)
-	res, _ := optimize.Minimize(prob, x0, &optimize.Settings{
-		MajorIterations: 200,
-		Converger:       &optimize.FunctionConverge{Absolute: 1e-14 * (f0 + 1e-30), Relative: 1e-10, Iterations: 3},
-	}, &optimize.Newton{GradStopThreshold: 1e-18})
-	if res == nil || res.X == nil {
-		return
-	}
-	setX(res.X)
-	if objective(r) <= f0 {
-		copy(vals, work)
-	}
-}
-
-// posterior returns the σ of each free parameter (see above):
-// √diag((JᵀJ/s² + diag(1/σp²))⁻¹) with jac the data Jacobian of the free
-// parameters; +Inf for a parameter in a direction neither the data nor a
-// prior determine.
-func (m *fitModel) posterior(jac *mat.Dense, free []int, s float64) []float64 {
-	_, P := jac.Dims()
-	// In units of each parameter's typical size, so that the matrix is
-	// well scaled: H̃ = T·H·T.
-	t := make([]float64, P)
-	for c, i := range free {
-		t[c] = m.scale(i)
-	}
-	h := mat.NewSymDense(P, nil)
-	h.SymOuterK(1/(s*s), jac.T())
-	for a := range P {
-		for b := a; b < P; b++ {
-			h.SetSym(a, b, h.At(a, b)*t[a]*t[b])
-		}
-		if p := m.params[free[a]]; !math.IsInf(p.Prior, 1) {
-			h.SetSym(a, a, h.At(a, a)+t[a]*t[a]/(p.Prior*p.Prior))
-		}
-	}
-	out := make([]float64, P)
-	var eig mat.EigenSym
-	if !eig.Factorize(h, true) {
-		for c := range out {
-			out[c] = math.Inf(1)
-		}
-		return out
-	}
-	lam := eig.Values(nil)
-	var v mat.Dense
-	eig.VectorsTo(&v)
-	top := lam[P-1]
-	for c := range P {
-		sum := 0.0
-		for d := range P {
-			if lam[d] <= 1e-13*top {
-				if math.Abs(v.At(c, d)) > 1e-3 {
-					sum = math.Inf(1)
-					break
-				}
-				continue
-			}
-			sum += v.At(c, d) * v.At(c, d) / lam[d]
-		}
-		out[c] = t[c] * math.Sqrt(sum)
+		out.Traces = append(out.Traces, t)
 	}
 	return out
-}
-
-// identity is what the scaled Jacobian says about the free parameters:
-// their correlations, the condition number, and the pairs that cannot be
-// told apart (indices into the free list, the more correlated first).
-type identity struct {
-	corr  [][]float64
-	cond  float64
-	pairs [][2]int
-}
-
-// identify examines the Jacobian jac of the free parameters.
-func identify(jac *mat.Dense, maxCorr float64) identity {
-	rows, P := jac.Dims()
-	a := mat.NewDense(rows, P, nil)
-	a.Copy(jac)
-	for c := range P {
-		norm := mat.Norm(a.ColView(c), 2)
-		if norm > 0 {
-			for k := range rows {
-				a.Set(k, c, a.At(k, c)/norm)
-			}
-		}
-	}
-	var svd mat.SVD
-	id := identity{corr: make([][]float64, P)}
-	for i := range id.corr {
-		id.corr[i] = make([]float64, P)
-	}
-	if !svd.Factorize(a, mat.SVDThin) {
-		id.cond = math.Inf(1)
-		return id
-	}
-	s := svd.Values(nil)
-	var v mat.Dense
-	svd.VTo(&v)
-	id.cond = math.Inf(1)
-	if s[P-1] > 0 {
-		id.cond = (s[0] / s[P-1]) * (s[0] / s[P-1])
-	}
-	// (AᵀA)⁻¹ = V·Σ⁻²·Vᵀ over the directions the data determine; a
-	// direction whose singular value is below 1e-7 of the largest is not
-	// determined, and the parameters that make it up cannot be told apart.
-	cut := 1e-7 * s[0]
-	inv := mat.NewSymDense(P, nil)
-	var null []int
-	for d := range P {
-		if s[d] <= cut {
-			null = append(null, d)
-			continue
-		}
-		w := 1 / (s[d] * s[d])
-		for i := range P {
-			for j := i; j < P; j++ {
-				inv.SetSym(i, j, inv.At(i, j)+w*v.At(i, d)*v.At(j, d))
-			}
-		}
-	}
-	for i := range P {
-		for j := range P {
-			id.corr[i][j] = inv.At(i, j) / math.Sqrt(inv.At(i, i)*inv.At(j, j))
-		}
-	}
-	type pair struct {
-		a, b int
-		c    float64
-	}
-	var ps []pair
-	have := map[[2]int]bool{}
-	for _, d := range null {
-		// The two largest components of the undetermined direction.
-		var big []int
-		for i := range P {
-			if math.Abs(v.At(i, d)) > 0.2 {
-				big = append(big, i)
-			}
-		}
-		sort.Slice(big, func(x, y int) bool { return math.Abs(v.At(big[x], d)) > math.Abs(v.At(big[y], d)) })
-		if len(big) >= 2 {
-			k := [2]int{min(big[0], big[1]), max(big[0], big[1])}
-			if !have[k] {
-				have[k] = true
-				ps = append(ps, pair{k[0], k[1], 1})
-				id.corr[k[0]][k[1]], id.corr[k[1]][k[0]] = math.NaN(), math.NaN()
-			}
-		}
-	}
-	for i := range P {
-		for j := i + 1; j < P; j++ {
-			if c := math.Abs(id.corr[i][j]); c >= maxCorr && !have[[2]int{i, j}] {
-				have[[2]int{i, j}] = true
-				ps = append(ps, pair{i, j, c})
-			}
-		}
-	}
-	sort.SliceStable(ps, func(x, y int) bool { return ps[x].c > ps[y].c })
-	for _, p := range ps {
-		id.pairs = append(id.pairs, [2]int{p.a, p.b})
-	}
-	return id
 }

@@ -145,6 +145,46 @@ func (r *SwapResult) Best() (Swap, bool) {
 // the result of [FitBoard]. It returns ctx.Err() if ctx is done, and
 // errors about the load, the bands or the settings.
 func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *SwapSettings) (*SwapResult, error) {
+	set, err := swapSettings(s)
+	if err != nil {
+		return nil, err
+	}
+	j, err := newJudge(l, bands)
+	if err != nil {
+		return nil, err
+	}
+	sw, err := newSwapper(fit, set, j)
+	if err != nil {
+		return nil, err
+	}
+	res := &SwapResult{Objective: set.Objective, Carry: set.Carry}
+	base, err := sw.board.Network.Circuit()
+	if err != nil {
+		return nil, err
+	}
+	res.AsBuilt = j.metrics(base)
+	one, err := sw.singles()
+	if err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	two, err := sw.pairs(ctx)
+	if err != nil {
+		return nil, err
+	}
+	res.Tried = sw.tried
+	res.One, res.Two = sw.rank(one), sw.rank(two)
+	if err := sw.addYields(ctx, l, bands, res); err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+// swapSettings returns s with its defaults filled in, or an error for
+// steps or a count of suggestions out of range or an unknown series.
+func swapSettings(s *SwapSettings) (SwapSettings, error) {
 	var set SwapSettings
 	if s != nil {
 		set = *s
@@ -159,36 +199,50 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 		set.Series = "E24"
 	}
 	if set.Steps < 1 || set.Steps > 24 || set.Top < 1 {
-		return nil, fmt.Errorf("match: swap steps %d, top %d; want 1 to 24 steps and at least 1", set.Steps, set.Top)
+		return set, fmt.Errorf("match: swap steps %d, top %d; want 1 to 24 steps and at least 1", set.Steps, set.Top)
 	}
 	if _, err := parts.Lookup(set.Series); err != nil {
-		return nil, err
+		return set, err
 	}
-	j, err := newJudge(l, bands)
-	if err != nil {
-		return nil, err
-	}
-	design := fit.Design
-	board := fit.Board
-	// The parts that can be swapped, with the board's element of each and
-	// the candidate values.
-	type slot struct {
-		part, elem int
-		ser        *parts.Series
-		nominal    float64
-		offset     float64 // effective − nominal, carried to a new part
-		idx        int     // series index of the nominal value
-		values     []float64
-		steps      []int
-	}
-	var slots []slot
-	slotOf := map[int]int{} // part → its slot
-	elemOf := map[int]int{} // part → its element of the board
-	for i, p := range design {
+	return set, nil
+}
+
+// swapSlot is a part that can be swapped: its board element, its series,
+// its nominal value and the candidate values.
+type swapSlot struct {
+	part, elem int
+	ser        *parts.Series
+	nominal    float64
+	offset     float64 // effective − nominal, carried to a new part
+	idx        int     // series index of the nominal value
+	values     []float64
+	steps      []int
+}
+
+// swapper tries part swaps on a board as fitted: the design and the board,
+// the judge of the bands, the settings and the parts that can be swapped.
+type swapper struct {
+	set    SwapSettings
+	j      *judge
+	design Network
+	board  Placed
+	slots  []swapSlot
+	slotOf map[int]int // part → its slot
+	elemOf map[int]int // part → its element of the board
+	tried  int         // candidates judged
+}
+
+// newSwapper returns the swapper of fit: every part but a resistor that
+// has an element on the board gets a slot, with the standard values of
+// its series (the settings' where it names none) within set.Steps steps
+// of its own, each positive once any carried offset is added.
+func newSwapper(fit *BoardFit, set SwapSettings, j *judge) (*swapper, error) {
+	sw := &swapper{set: set, j: j, design: fit.Design, board: fit.Board, slotOf: map[int]int{}, elemOf: map[int]int{}}
+	for i, p := range sw.design {
 		if p.Kind.Component() == "" || p.Kind.Component() == parts.KindR {
 			continue
 		}
-		e := board.Element(RolePart, i)
+		e := sw.board.Element(RolePart, i)
 		if e < 0 {
 			continue
 		}
@@ -200,9 +254,9 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 		if err != nil {
 			return nil, err
 		}
-		sl := slot{part: i, elem: e, ser: ser, nominal: p.Value, idx: ser.Index(p.Value)}
+		sl := swapSlot{part: i, elem: e, ser: ser, nominal: p.Value, idx: ser.Index(p.Value)}
 		if set.Carry == CarryOffset {
-			sl.offset = board.Network[e].Value - p.Value
+			sl.offset = sw.board.Network[e].Value - p.Value
 		}
 		for d := -set.Steps; d <= set.Steps; d++ {
 			v := ser.Value(sl.idx + d)
@@ -215,75 +269,85 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 			sl.values = append(sl.values, v)
 			sl.steps = append(sl.steps, d)
 		}
-		slotOf[i] = len(slots)
-		elemOf[i] = e
-		slots = append(slots, sl)
+		sw.slotOf[i] = len(sw.slots)
+		sw.elemOf[i] = e
+		sw.slots = append(sw.slots, sl)
 	}
-	res := &SwapResult{Objective: set.Objective, Carry: set.Carry}
-	base, err := board.Network.Circuit()
-	if err != nil {
-		return nil, err
-	}
-	res.AsBuilt = j.metrics(base)
+	return sw, nil
+}
 
-	key := func(m Metrics) float64 { return objectiveKey(set.Objective, m) }
-	try := func(ch []Change) (Swap, error) {
-		b := board.Network.Clone()
-		next := design.Clone()
-		for _, c := range ch {
-			sl := slots[slotOf[c.Part]]
-			b[sl.elem].Value = c.To + sl.offset
-			b[sl.elem].Series = ""
-			next[c.Part].Value = c.To
-			if next[c.Part].Series == "" {
-				next[c.Part].Series = c.Series
-			}
+// try judges the changes ch made together: the board with each changed
+// part at its new value (plus any carried offset) and the design with the
+// new standard values.
+func (sw *swapper) try(ch []Change) (Swap, error) {
+	b := sw.board.Network.Clone()
+	next := sw.design.Clone()
+	for _, c := range ch {
+		sl := sw.slots[sw.slotOf[c.Part]]
+		b[sl.elem].Value = c.To + sl.offset
+		b[sl.elem].Series = ""
+		next[c.Part].Value = c.To
+		if next[c.Part].Series == "" {
+			next[c.Part].Series = c.Series
 		}
-		circ, err := b.Circuit()
-		if err != nil {
-			return Swap{}, err
+	}
+	circ, err := b.Circuit()
+	if err != nil {
+		return Swap{}, err
+	}
+	m := sw.j.metrics(circ)
+	sw.tried++
+	return Swap{Changes: ch, Network: next, Board: b, Metrics: m, key: objectiveKey(sw.set.Objective, m)}, nil
+}
+
+// change returns the change of slot sl to its k-th candidate value.
+func (sw *swapper) change(sl swapSlot, k int) Change {
+	return Change{Part: sl.part, Designator: sw.design.Designator(sl.part), Kind: sw.design[sl.part].Kind, From: sl.nominal, To: sl.values[k], Steps: sl.steps[k], Series: sl.ser.Name()}
+}
+
+// rank sorts s (in place) by the objective's key, fewer steps first among
+// equals, and returns the first set.Top.
+func (sw *swapper) rank(s []Swap) []Swap {
+	sort.SliceStable(s, func(a, b int) bool {
+		if s[a].key != s[b].key {
+			return s[a].key < s[b].key
 		}
-		m := j.metrics(circ)
-		res.Tried++
-		return Swap{Changes: ch, Network: next, Board: b, Metrics: m, key: key(m)}, nil
+		return totalSteps(s[a].Changes) < totalSteps(s[b].Changes)
+	})
+	if len(s) > sw.set.Top {
+		s = s[:sw.set.Top]
 	}
-	change := func(sl slot, k int) Change {
-		return Change{Part: sl.part, Designator: design.Designator(sl.part), Kind: design[sl.part].Kind, From: sl.nominal, To: sl.values[k], Steps: sl.steps[k], Series: sl.ser.Name()}
-	}
-	rank := func(s []Swap) []Swap {
-		sort.SliceStable(s, func(a, b int) bool {
-			if s[a].key != s[b].key {
-				return s[a].key < s[b].key
-			}
-			return totalSteps(s[a].Changes) < totalSteps(s[b].Changes)
-		})
-		if len(s) > set.Top {
-			s = s[:set.Top]
-		}
-		return s
-	}
+	return s
+}
+
+// singles returns every change of one part to one of its candidate
+// values, judged.
+func (sw *swapper) singles() ([]Swap, error) {
 	var one []Swap
-	for _, sl := range slots {
+	for _, sl := range sw.slots {
 		for k := range sl.values {
-			w, err := try([]Change{change(sl, k)})
+			w, err := sw.try([]Change{sw.change(sl, k)})
 			if err != nil {
 				return nil, err
 			}
 			one = append(one, w)
 		}
 	}
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
+	return one, nil
+}
+
+// pairs returns every change of two parts together, each to one of its
+// candidate values, judged; it returns ctx.Err() if ctx is done.
+func (sw *swapper) pairs(ctx context.Context) ([]Swap, error) {
 	var two []Swap
-	for a := range slots {
-		for b := a + 1; b < len(slots); b++ {
+	for a := range sw.slots {
+		for b := a + 1; b < len(sw.slots); b++ {
 			if err := ctx.Err(); err != nil {
 				return nil, err
 			}
-			for ka := range slots[a].values {
-				for kb := range slots[b].values {
-					w, err := try([]Change{change(slots[a], ka), change(slots[b], kb)})
+			for ka := range sw.slots[a].values {
+				for kb := range sw.slots[b].values {
+					w, err := sw.try([]Change{sw.change(sw.slots[a], ka), sw.change(sw.slots[b], kb)})
 					if err != nil {
 						return nil, err
 					}
@@ -292,29 +356,35 @@ func NextSwaps(ctx context.Context, l Load, bands []Band, fit *BoardFit, s *Swap
 			}
 		}
 	}
-	res.One, res.Two = rank(one), rank(two)
-	if set.Builds >= 0 {
-		builds := set.Builds
-		if builds == 0 {
-			builds = 500
-		}
-		for _, list := range [][]Swap{res.One, res.Two} {
-			for i := range list {
-				y, err := swapYield(ctx, l, bands, board, design, elemOf, list[i], builds)
-				if err != nil {
-					return nil, err
-				}
-				list[i].Yield = y
-			}
-		}
-	} else {
+	return two, nil
+}
+
+// addYields sets the Yield of each suggestion of res ([swapYield] over
+// set.Builds builds, 500 when zero), or NaN for every one when Builds is
+// negative.
+func (sw *swapper) addYields(ctx context.Context, l Load, bands []Band, res *SwapResult) error {
+	if sw.set.Builds < 0 {
 		for _, list := range [][]Swap{res.One, res.Two} {
 			for i := range list {
 				list[i].Yield = math.NaN()
 			}
 		}
+		return nil
 	}
-	return res, nil
+	builds := sw.set.Builds
+	if builds == 0 {
+		builds = 500
+	}
+	for _, list := range [][]Swap{res.One, res.Two} {
+		for i := range list {
+			y, err := swapYield(ctx, l, bands, sw.board, sw.design, sw.elemOf, list[i], builds)
+			if err != nil {
+				return err
+			}
+			list[i].Yield = y
+		}
+	}
+	return nil
 }
 
 // objectiveKey ranks figures by the objective o, least best, as [Search]

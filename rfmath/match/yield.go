@@ -120,37 +120,13 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 // Conditions, on the drawn member's for a Lot (TraceMembers says which).
 // With one member it is Yield.
 func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
-	var set YieldSettings
-	if s != nil {
-		set = *s
-	}
-	if set.Builds == 0 {
-		set.Builds = 1000
-	}
-	if set.Builds < 0 || set.Traces < 0 {
-		return nil, fmt.Errorf("match: %d builds, %d traces", set.Builds, set.Traces)
-	}
-	if set.Seed == 0 {
-		set.Seed = 1
+	set, err := yieldSettings(s)
+	if err != nil {
+		return nil, err
 	}
 	tol := make([]float64, len(n))
-	switch {
-	case set.Tolerances == nil:
-		for i, p := range n {
-			tol[i] = p.Tolerance().Of(p.Value)
-			if tol[i] >= p.Value {
-				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
-			}
-		}
-	case len(set.Tolerances) != len(n):
-		return nil, fmt.Errorf("match: %d tolerances for %d parts", len(set.Tolerances), len(n))
-	default:
-		for i, p := range n {
-			tol[i] = set.Tolerances[i].Of(p.Value)
-			if tol[i] >= p.Value {
-				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
-			}
-		}
+	if err := partTolerances(tol, n, set.Tolerances); err != nil {
+		return nil, err
 	}
 	sj, err := newSetJudge(members, bands)
 	if err != nil {
@@ -159,30 +135,80 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 	if _, err := n.Circuit(); err != nil {
 		return nil, err
 	}
-	var binding []int
-	var wsum float64
-	for i, m := range sj.members {
-		if !m.Advisory {
-			binding = append(binding, i)
-			wsum += m.Weight
-		}
+	res := &YieldResult{Builds: set.Builds, Nominal: buildMetrics(sj, n)}
+	b := n.Clone()
+	if err := randomBuilds(ctx, res, sj, kind, n, b, tol, set); err != nil {
+		return nil, err
 	}
-	// A build's parts: every value drawn is positive, so it always builds.
-	margin := func(b Network) Metrics {
-		c, err := b.Circuit()
-		if err != nil {
-			return Metrics{MarginDB: math.Inf(-1)}
-		}
-		return sj.metrics(c).Metrics
-	}
-	res := &YieldResult{Builds: set.Builds, Nominal: margin(n)}
+	res.WorstCorner = worstCorner(sj, n, b, tol)
+	copy(b, n)
+	res.Sensitivity, res.MostSensitive = sensitivities(sj, n, b, tol, res.Nominal.MarginDB)
+	return res, nil
+}
 
-	// Random builds.
-	src := rand.NewPCG(set.Seed, set.Seed^0x9e3779b97f4a7c15)
-	draw := make([]func() float64, len(n))
+// yieldSettings returns s with its defaults filled in, or an error for a
+// negative count of builds or traces.
+func yieldSettings(s *YieldSettings) (YieldSettings, error) {
+	var set YieldSettings
+	if s != nil {
+		set = *s
+	}
+	if set.Builds == 0 {
+		set.Builds = 1000
+	}
+	if set.Builds < 0 || set.Traces < 0 {
+		return set, fmt.Errorf("match: %d builds, %d traces", set.Builds, set.Traces)
+	}
+	if set.Seed == 0 {
+		set.Seed = 1
+	}
+	return set, nil
+}
+
+// partTolerances sets tol[i] to the ± tolerance of part i of n at its
+// value: from tols, one per part, or each part's own when tols is nil. A
+// tolerance that is not below its part's value is an error. The caller
+// makes tol (of len(n)), so that it can stay on the stack.
+func partTolerances(tol []float64, n Network, tols []parts.Tolerance) error {
+	switch {
+	case tols == nil:
+		for i, p := range n {
+			tol[i] = p.Tolerance().Of(p.Value)
+			if tol[i] >= p.Value {
+				return fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+			}
+		}
+	case len(tols) != len(n):
+		return fmt.Errorf("match: %d tolerances for %d parts", len(tols), len(n))
+	default:
+		for i, p := range n {
+			tol[i] = tols[i].Of(p.Value)
+			if tol[i] >= p.Value {
+				return fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+			}
+		}
+	}
+	return nil
+}
+
+// buildMetrics returns the figures of build b across the set (a margin of
+// −∞ when it cannot be built; every value drawn is positive, so a build
+// always builds).
+func buildMetrics(sj *setJudge, b Network) Metrics {
+	c, err := b.Circuit()
+	if err != nil {
+		return Metrics{MarginDB: math.Inf(-1)}
+	}
+	return sj.metrics(c).Metrics
+}
+
+// partDraws sets draw[i] to a draw of the value of part i of n within
+// ±tol[i] about its nominal value, spread by dist, from src. The caller
+// makes draw (of len(n)), so that it can stay on the stack.
+func partDraws(draw []func() float64, n Network, tol []float64, dist Distribution, src rand.Source) {
 	for i, p := range n {
 		v, t := p.Value, tol[i]
-		switch set.Dist {
+		switch dist {
 		case Normal:
 			d := distuv.Normal{Mu: v, Sigma: t / 3, Src: src}
 			draw[i] = func() float64 {
@@ -197,7 +223,24 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 			draw[i] = d.Rand
 		}
 	}
-	b := n.Clone()
+}
+
+// randomBuilds judges set.Builds random builds of n, in the scratch
+// network b, and fills res's count of passes, yield, margins and traces:
+// for a set of Conditions each build on every binding member, for a Lot
+// on one binding member drawn by weight.
+func randomBuilds(ctx context.Context, res *YieldResult, sj *setJudge, kind SetKind, n, b Network, tol []float64, set YieldSettings) error {
+	var binding []int
+	var wsum float64
+	for i, m := range sj.members {
+		if !m.Advisory {
+			binding = append(binding, i)
+			wsum += m.Weight
+		}
+	}
+	src := rand.NewPCG(set.Seed, set.Seed^0x9e3779b97f4a7c15)
+	draw := make([]func() float64, len(n))
+	partDraws(draw, n, tol, set.Dist, src)
 	margins := make([]float64, set.Builds)
 	// The lot's draws have their own source, so that the parts' values are
 	// the same builds as for one load with the same seed.
@@ -205,7 +248,7 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 	for k := range set.Builds {
 		if k%256 == 0 {
 			if err := ctx.Err(); err != nil {
-				return nil, err
+				return err
 			}
 		}
 		for i := range b {
@@ -213,7 +256,7 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 		}
 		c, err := b.Circuit()
 		if err != nil {
-			return nil, err
+			return err
 		}
 		who := binding[0]
 		var m Metrics
@@ -246,9 +289,13 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 		res.MedianMarginDB = margins[set.Builds/2]
 		res.P5MarginDB = margins[set.Builds*5/100]
 	}
+	return nil
+}
 
-	// Corners.
-	res.WorstCorner.MarginDB = math.Inf(1)
+// worstCorner returns the worst of the 2ⁿ builds of n with every part at
+// one end of its tolerance, built in the scratch network b.
+func worstCorner(sj *setJudge, n, b Network, tol []float64) Corner {
+	worst := Corner{MarginDB: math.Inf(1)}
 	for c := 0; c < 1<<len(n); c++ {
 		signs := make([]int, len(n))
 		for i := range b {
@@ -258,36 +305,43 @@ func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band,
 			}
 			b[i].Value = n[i].Value + float64(signs[i])*tol[i]
 		}
-		if m := margin(b).MarginDB; m < res.WorstCorner.MarginDB {
+		if m := buildMetrics(sj, b).MarginDB; m < worst.MarginDB {
 			vals := make([]float64, len(n))
 			for i := range b {
 				vals[i] = b[i].Value
 			}
-			res.WorstCorner = Corner{Signs: signs, Values: vals, MarginDB: m}
+			worst = Corner{Signs: signs, Values: vals, MarginDB: m}
 		}
 	}
+	return worst
+}
 
-	// One part at a time.
-	copy(b, n)
+// sensitivities returns what each part's tolerance alone does to the
+// margin (nominal the margin with every part at its nominal value), with
+// b, a copy of n, as scratch, and the index of the part whose tolerance
+// costs the most.
+func sensitivities(sj *setJudge, n, b Network, tol []float64, nominal float64) ([]Sensitivity, int) {
+	var out []Sensitivity
+	most := 0
 	sum := 0.0
 	for i := range n {
 		s := Sensitivity{Tolerance: tol[i]}
 		b[i].Value = n[i].Value - tol[i]
-		s.LowDB = margin(b).MarginDB
+		s.LowDB = buildMetrics(sj, b).MarginDB
 		b[i].Value = n[i].Value + tol[i]
-		s.HighDB = margin(b).MarginDB
+		s.HighDB = buildMetrics(sj, b).MarginDB
 		b[i].Value = n[i].Value
-		s.DropDB = math.Max(0, res.Nominal.MarginDB-math.Min(s.LowDB, s.HighDB))
+		s.DropDB = math.Max(0, nominal-math.Min(s.LowDB, s.HighDB))
 		sum += s.DropDB
-		res.Sensitivity = append(res.Sensitivity, s)
-		if s.DropDB > res.Sensitivity[res.MostSensitive].DropDB {
-			res.MostSensitive = i
+		out = append(out, s)
+		if s.DropDB > out[most].DropDB {
+			most = i
 		}
 	}
-	for i := range res.Sensitivity {
+	for i := range out {
 		if sum > 0 {
-			res.Sensitivity[i].Importance = res.Sensitivity[i].DropDB / sum
+			out[i].Importance = out[i].DropDB / sum
 		}
 	}
-	return res, nil
+	return out, most
 }
