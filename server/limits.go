@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"github.com/gorilla/websocket"
+	"golang.org/x/time/rate"
 )
 
 // Defaults of the limits that Config leaves zero.
@@ -147,7 +148,7 @@ func (s *Server) limitRequests(next http.Handler) http.Handler {
 //     busy with them and the other sessions keep the rest.
 type sessionShare struct {
 	mu   sync.Mutex
-	msgs *bucket
+	msgs *rate.Limiter
 	draw chan struct{}
 }
 
@@ -163,17 +164,17 @@ func (s *Server) share(sid string) *sessionShare {
 	}
 	sh := l.shares[sid]
 	if sh == nil {
-		sh = &sessionShare{msgs: newBucket(s.cfg.SessionMsgPerSecond, s.cfg.SessionMsgBurst), draw: make(chan struct{}, 1)}
+		sh = &sessionShare{msgs: newLimiter(s.cfg.SessionMsgPerSecond, s.cfg.SessionMsgBurst), draw: make(chan struct{}, 1)}
 		l.shares[sid] = sh
 	}
 	return sh
 }
 
 // take takes n message tokens at time now, or none and reports false.
-func (sh *sessionShare) take(now time.Time, n float64) bool {
+func (sh *sessionShare) take(now time.Time, n int) bool {
 	sh.mu.Lock()
 	defer sh.mu.Unlock()
-	return sh.msgs.takeN(now, n)
+	return sh.msgs.AllowN(now, n)
 }
 
 // drawing waits for the session's drawing slot, or for ctx to end (then it

@@ -490,18 +490,18 @@ func TestWebsocketBadMessages(t *testing.T) {
 
 func TestBucket(t *testing.T) {
 	t.Parallel()
-	b := newBucket(10, 3)
+	b := newLimiter(10, 3)
 	t0 := time.Unix(0, 0)
 	n := 0
 	for i := range 10 {
-		if b.take(t0.Add(time.Duration(i) * time.Millisecond)) {
+		if b.AllowN(t0.Add(time.Duration(i)*time.Millisecond), 1) {
 			n++
 		}
 	}
 	if n != 3 {
 		t.Errorf("burst let %d through, want 3", n)
 	}
-	if !b.take(t0.Add(200 * time.Millisecond)) {
+	if !b.AllowN(t0.Add(200*time.Millisecond), 1) {
 		t.Error("bucket did not refill at 10/s after 200 ms")
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"net/http"
 	"net/url"
 	"strings"
@@ -12,6 +13,7 @@ import (
 	"time"
 
 	"github.com/gorilla/websocket"
+	"golang.org/x/time/rate"
 
 	"matchbench/sessions"
 )
@@ -219,7 +221,7 @@ func (c *conn) reader() {
 	c.ws.SetReadLimit(maxMessageSize)
 	c.ws.SetReadDeadline(time.Now().Add(pongWait))
 	c.ws.SetPongHandler(func(string) error { c.ws.SetReadDeadline(time.Now().Add(pongWait)); return nil })
-	bucket := newBucket(c.s.cfg.MsgPerSecond, c.s.cfg.MsgBurst)
+	bucket := newLimiter(c.s.cfg.MsgPerSecond, c.s.cfg.MsgBurst)
 	for {
 		_, data, err := c.ws.ReadMessage()
 		if err != nil {
@@ -232,7 +234,7 @@ func (c *conn) reader() {
 			continue
 		}
 		now := time.Now()
-		if !bucket.take(now) {
+		if !bucket.AllowN(now, 1) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
 			continue
 		}
@@ -268,7 +270,7 @@ func (c *conn) reader() {
 // sessionCost is what a message of type typ takes from its session's
 // fair share: nothing for a keep-alive, catchUpCost for a hello (which may
 // redraw the whole page), one for anything else.
-func sessionCost(typ string) float64 {
+func sessionCost(typ string) int {
 	switch typ {
 	case "ping":
 		return 0
@@ -580,27 +582,10 @@ func (c *conn) catchUp(v int64) {
 	c.reply(outMsg{Type: "update", V: cu.Version, Op: "catchup", Frags: c.s.fullFrags(sc, access{SessionID: c.sid, Cap: c.cap, Token: c.token}, cu.Version, c.currentView())})
 }
 
-// bucket is a token bucket: rate tokens per second up to burst.
-type bucket struct {
-	rate, burst, tokens float64
-	last                time.Time
-}
-
-func newBucket(rate, burst float64) *bucket { return &bucket{rate: rate, burst: burst, tokens: burst} }
-
-func (b *bucket) take(now time.Time) bool { return b.takeN(now, 1) }
-
-// takeN takes n tokens at time now, or none and reports false.
-func (b *bucket) takeN(now time.Time, n float64) bool {
-	if !b.last.IsZero() && now.After(b.last) {
-		b.tokens = min(b.burst, b.tokens+now.Sub(b.last).Seconds()*b.rate)
-	}
-	if now.After(b.last) {
-		b.last = now
-	}
-	if b.tokens < n {
-		return false
-	}
-	b.tokens -= n
-	return true
+// newLimiter is the token bucket of a connection or a session: rate
+// messages a second on average, bursts of up to burst (rounded up to a whole
+// message, at least one). It takes the time as an argument (AllowN), so
+// tests step it without sleeping.
+func newLimiter(perSecond, burst float64) *rate.Limiter {
+	return rate.NewLimiter(rate.Limit(perSecond), max(1, int(math.Ceil(burst))))
 }
