@@ -1,6 +1,7 @@
 package match
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"math"
@@ -24,7 +25,7 @@ func demoTransistor(t testing.TB) (*rfmath.Sweep, []touchstone.NoisePoint) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tf, err := touchstone.Read(strings.NewReader(string(b)), "wristtag-lna-transistor.s2p", touchstone.Limits{})
+	tf, err := touchstone.Read(bytes.NewReader(b), "wristtag-lna-transistor.s2p", touchstone.Limits{})
 	if err != nil {
 		t.Fatal(err)
 	}
