@@ -48,7 +48,7 @@ func NoiseAt(pts []touchstone.NoisePoint, fHz float64) (touchstone.NoisePoint, e
 	t := (fHz - a.FreqHz) / (b.FreqHz - a.FreqHz)
 	lerp := func(x, y float64) float64 { return x + t*(y-x) }
 	ga, gb := GammaOpt(a), GammaOpt(b)
-	g := ga + complex(t, 0)*(gb-ga)
+	g := rfmath.Lerp(ga, gb, t)
 	return touchstone.NoisePoint{
 		FreqHz:      fHz,
 		NFminDB:     lerp(a.NFminDB, b.NFminDB),

@@ -464,7 +464,7 @@ func (ss *stageSearch) sourceCandidates(ctx context.Context, load Network, noise
 					return nil, n, err
 				}
 				gin := renorm(pts.gamma[k], ss.z0, z1) // against the device's reference
-				gt := amp.GammaOpt(np) + complex(t, 0)*(cmplx.Conj(gin)-amp.GammaOpt(np))
+				gt := rfmath.Lerp(amp.GammaOpt(np), cmplx.Conj(gin), t)
 				zt := rfmath.ZFromGamma(gt, complex(z1, 0))
 				l.Gamma[k] = rfmath.GammaFromZ(cmplx.Conj(zt), complex(ss.z0, 0))
 			}
