@@ -356,129 +356,24 @@ func (c *conn) applier(ctx context.Context) {
 	}
 }
 
+// apply handles one page message: its type's handler (messageHandlers)
+// makes the change, which is stored under the link's capability and
+// acknowledged with the new version; every refusal is an error message to
+// the page naming what was wrong.
 func (c *conn) apply(ctx context.Context, m inMsg) {
-	var ch sessions.Change
-	switch {
-	case m.Type == "view":
-		c.sendView(ctx, m.ID)
-		return
-	case m.Type == "action":
-		switch m.Action {
-		case "search-cancel":
-			if !c.s.cancelSearch(c.sid) {
-				c.reply(outMsg{Type: "error", ID: m.ID, Msg: "no search is running"})
-				return
-			}
-			c.reply(outMsg{Type: "ack", ID: m.ID})
-		default:
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "unknown action " + quoteClipped(m.Action, maxEcho)})
-		}
-		return
-	case m.Type == "form" && m.Form == "search.start":
-		sc, err := c.scene(ctx)
-		if err == nil {
-			err = c.s.startSearch(sc, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-		c.reply(outMsg{Type: "ack", ID: m.ID})
-		return
-	case m.Type == "form" && searchForms[m.Form]:
-		sc, err := c.scene(ctx)
-		if err == nil {
-			ch, err = sc.searchChange(m.Form, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "form" && m.Form == "stage.search":
-		sc, err := c.scene(ctx)
-		if err == nil {
-			err = c.s.startStageSearch(sc, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-		c.reply(outMsg{Type: "ack", ID: m.ID})
-		return
-	case m.Type == "form" && ampForms[m.Form]:
-		sc, err := c.scene(ctx)
-		if err == nil {
-			ch, err = sc.ampChange(m.Form, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "form" && setForms[m.Form]:
-		sc, err := c.scene(ctx)
-		if err == nil {
-			ch, err = sc.setChange(m.Form, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "form" && tuneForms[m.Form]:
-		sc, err := c.scene(ctx)
-		if err == nil {
-			ch, err = sc.tuneChange(ctx, m.Form, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "form" && (networkForms[m.Form] || planeForms[m.Form]):
-		sc, err := c.scene(ctx)
-		if err == nil && networkForms[m.Form] {
-			ch, err = sc.partChange(m.Form, m.Fields)
-		} else if err == nil {
-			ch, err = sc.refPlaneChange(c.s, m.Form, m.Fields)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "form":
-		var err error
-		ch, err = formChange(m.Form, m.Fields)
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-	case m.Type == "partdrag":
-		ne, err := c.activeNetwork(ctx)
-		var v float64
-		if err == nil && m.Change.Gamma == nil {
-			err = errors.New("a part drag needs a \"gamma\" point")
-		}
-		if err == nil {
-			// The page's chart may be at another reference than the load's.
-			g := pointToChart(complex(m.Change.Gamma.Re, m.Change.Gamma.Im), c.currentView().z0(), ne.z0)
-			v, err = ne.dragValue(m.Change.PartID, g)
-		}
-		if err != nil {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
-		ch = sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: m.Change.PartID, Value: &v, Gesture: m.Change.Gesture}
-	default:
-		ch = *m.Change
-		ch.Raw, ch.Sweep = nil, nil
-		if why, ok := serverOnlyOps[ch.Op]; ok {
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: why})
-			return
-		}
-		if err := c.snapToShown(ctx, &ch); err != nil { // view.go: a chart point to a frequency
-			c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
-			return
-		}
+	h, ok := messageHandlers[m.Type]
+	if !ok {
+		h = (*conn).changeMsg
 	}
-	ev, err := c.s.store.ApplyAs(ctx, c.cap, c.sid, ch)
+	ch, err := h(c, ctx, m)
+	if err != nil {
+		c.reply(outMsg{Type: "error", ID: m.ID, Msg: err.Error()})
+		return
+	}
+	if ch == nil {
+		return // the handler answered
+	}
+	ev, err := c.s.store.ApplyAs(ctx, c.cap, c.sid, *ch)
 	if err != nil {
 		status, msg := errorStatus(err)
 		if status >= 500 {
@@ -489,6 +384,135 @@ func (c *conn) apply(ctx context.Context, m inMsg) {
 	}
 	c.reply(outMsg{Type: "ack", ID: m.ID, V: ev.Version})
 }
+
+// A messageHandler handles one type of page message: it returns the change
+// to store (apply stores it and acknowledges it), or nil when it has
+// answered the page itself, or an error for the page.
+type messageHandler func(c *conn, ctx context.Context, m inMsg) (*sessions.Change, error)
+
+// messageHandlers is the one table from a message's type to its handler;
+// a message of any other type carries a change of its own (changeMsg).
+var messageHandlers = map[string]messageHandler{
+	"view":     (*conn).viewMsg,
+	"action":   (*conn).actionMsg,
+	"form":     (*conn).formMsg,
+	"partdrag": (*conn).partDragMsg,
+}
+
+// viewMsg redraws the page for its new view (view.go).
+func (c *conn) viewMsg(ctx context.Context, m inMsg) (*sessions.Change, error) {
+	c.sendView(ctx, m.ID)
+	return nil, nil
+}
+
+// actionMsg runs a page action that changes no state: cancelling the
+// session's search.
+func (c *conn) actionMsg(_ context.Context, m inMsg) (*sessions.Change, error) {
+	switch m.Action {
+	case "search-cancel":
+		if !c.s.cancelSearch(c.sid) {
+			return nil, errors.New("no search is running")
+		}
+		c.reply(outMsg{Type: "ack", ID: m.ID})
+		return nil, nil
+	}
+	return nil, errors.New("unknown action " + quoteClipped(m.Action, maxEcho))
+}
+
+// formMsg turns a panel's form into a change: through its entry in
+// formHandlers when the form needs the session's scene, else formChange.
+func (c *conn) formMsg(ctx context.Context, m inMsg) (*sessions.Change, error) {
+	h, ok := formHandlers[m.Form]
+	if !ok {
+		ch, err := formChange(m.Form, m.Fields)
+		return &ch, err
+	}
+	sc, err := c.scene(ctx)
+	if err != nil {
+		return nil, err
+	}
+	ch, err := h(ctx, c, sc, m.Form, m.Fields)
+	if err == nil && ch == nil {
+		c.reply(outMsg{Type: "ack", ID: m.ID}) // work started
+	}
+	return ch, err
+}
+
+// partDragMsg turns a drag of a part's point on the chart into the part's
+// new value.
+func (c *conn) partDragMsg(ctx context.Context, m inMsg) (*sessions.Change, error) {
+	ne, err := c.activeNetwork(ctx)
+	if err != nil {
+		return nil, err
+	}
+	if m.Change.Gamma == nil {
+		return nil, errors.New("a part drag needs a \"gamma\" point")
+	}
+	// The page's chart may be at another reference than the load's.
+	g := pointToChart(complex(m.Change.Gamma.Re, m.Change.Gamma.Im), c.currentView().z0(), ne.z0)
+	v, err := ne.dragValue(m.Change.PartID, g)
+	if err != nil {
+		return nil, err
+	}
+	return &sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: m.Change.PartID, Value: &v, Gesture: m.Change.Gesture}, nil
+}
+
+// changeMsg takes a change the page made itself (a marker drag, an undo),
+// refusing the ops only the server makes and snapping chart points to the
+// trace shown.
+func (c *conn) changeMsg(ctx context.Context, m inMsg) (*sessions.Change, error) {
+	ch := *m.Change
+	ch.Raw, ch.Sweep = nil, nil
+	if why, ok := serverOnlyOps[ch.Op]; ok {
+		return nil, errors.New(why)
+	}
+	if err := c.snapToShown(ctx, &ch); err != nil { // view.go: a chart point to a frequency
+		return nil, err
+	}
+	return &ch, nil
+}
+
+// A formHandler turns a form that needs the session's scene into a change,
+// or starts the form's work and returns nil (the page is acknowledged at
+// once and follows the work's progress).
+type formHandler func(ctx context.Context, c *conn, sc *scene, form string, f map[string]string) (*sessions.Change, error)
+
+// formHandlers is the one table from a form that needs the scene to its
+// handler; every other form is formChange's.
+var formHandlers = func() map[string]formHandler {
+	t := map[string]formHandler{
+		"search.start": func(_ context.Context, c *conn, sc *scene, _ string, f map[string]string) (*sessions.Change, error) {
+			return nil, c.s.startSearch(sc, f)
+		},
+		"stage.search": func(_ context.Context, c *conn, sc *scene, _ string, f map[string]string) (*sessions.Change, error) {
+			return nil, c.s.startStageSearch(sc, f)
+		},
+	}
+	of := func(change func(sc *scene, form string, f map[string]string) (sessions.Change, error)) formHandler {
+		return func(_ context.Context, _ *conn, sc *scene, form string, f map[string]string) (*sessions.Change, error) {
+			ch, err := change(sc, form, f)
+			return &ch, err
+		}
+	}
+	add := func(forms map[string]bool, h formHandler) {
+		for name := range forms {
+			t[name] = h
+		}
+	}
+	add(searchForms, of((*scene).searchChange))
+	add(ampForms, of((*scene).ampChange))
+	add(setForms, of((*scene).setChange))
+	add(networkForms, of((*scene).partChange))
+	add(tuneForms, func(ctx context.Context, _ *conn, sc *scene, form string, f map[string]string) (*sessions.Change, error) {
+		ch, err := sc.tuneChange(ctx, form, f)
+		return &ch, err
+	})
+	add(planeForms, func(_ context.Context, c *conn, sc *scene, form string, f map[string]string) (*sessions.Change, error) {
+		ch, err := sc.refPlaneChange(c.s, form, f)
+		return &ch, err
+	})
+	return t
+}()
 
 // serverOnlyOps are the ops that only the server makes, with why a page's
 // is refused: a page could otherwise store numbers of its own making as a
