@@ -63,146 +63,200 @@ func (s *Server) toSend(sid string, v any) {
 // network's load over the session's bands, reporting progress to the
 // session's pages and storing the result in the session when done.
 func (s *Server) startSearch(sc *scene, f map[string]string) error {
+	req, err := searchRequestOf(sc, f)
+	if err != nil {
+		return err
+	}
+	job, ctx, err := s.newSearchJob(sc.sid)
+	if err != nil {
+		return err
+	}
+	go s.runSearch(ctx, job, sc.sid, req)
+	return nil
+}
+
+// searchRequest is one search as the page asked for it: what is matched,
+// over which bands, with which parts, and how it is described.
+type searchRequest struct {
+	members  []match.Member
+	bands    []match.Band
+	set      *match.Settings
+	model    string  // the part family's name, "" for ideal parts
+	qL, qC   float64 // the constant Q of L and C, for the constant-Q model
+	lay      match.Layout
+	board    *sessions.Layout // the board the result is stored with
+	setID    string
+	sweepID  string
+	port     int
+	stage    string
+	desc     string
+	maxParts int
+}
+
+// searchRequestOf reads the search form against the active network: its
+// load (or its load set), its bands and board, and the part settings.
+func searchRequestOf(sc *scene, f map[string]string) (*searchRequest, error) {
 	ne := sc.net
 	if ne == nil || ne.err != nil {
-		return errors.New("start a matching network on the load first: the search matches its load")
+		return nil, errors.New("start a matching network on the load first: the search matches its load")
 	}
 	bands, _ := ne.netBands(sc.st, true)
 	if len(bands) == 0 {
-		return errors.New("add a band with a requirement (return loss or power to the load) inside the load's sweep first: the search is judged on the bands")
+		return nil, errors.New("add a band with a requirement (return loss or power to the load) inside the load's sweep first: the search is judged on the bands")
 	}
+	req := &searchRequest{bands: bands, sweepID: ne.n.SweepID, port: ne.port, stage: ne.stageSide}
+	if err := req.readParts(f); err != nil {
+		return nil, err
+	}
+	req.members = []match.Member{{Name: sweepName(sc.st, ne.n.SweepID), Load: ne.load}}
+	if f["target"] == "set" && ne.set != nil {
+		req.members, req.setID = ne.set.members, ne.set.set.ID
+	}
+	req.desc = fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", req.maxParts, req.set.LSeries, req.set.CSeries, searchModelText(req.model, req.qL, req.qC), objectiveText[req.set.Objective])
+	req.lay, req.board = ne.lay, ne.n.Layout
+	switch {
+	case req.lay.IsZero():
+		req.board = nil
+	case len(req.members) > 1:
+		// The search across a set judges the parts alone; each design is
+		// then shown on the network's board by the panel.
+		req.lay, req.board = match.Layout{}, nil
+		req.desc += ", parts alone (the board is not searched across a set)"
+	default:
+		req.desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, req.lay.Describe(ne.built))
+	}
+	return req, nil
+}
+
+// readParts reads the number of parts, the E-series, the objective and the
+// part model of the search form.
+func (req *searchRequest) readParts(f map[string]string) error {
 	n, err := strconv.Atoi(f["parts"])
 	if err != nil || n < 1 || n > 4 {
 		return &FieldError{"search.start", "parts", "Parts", fmt.Errorf("choose 1 to 4 parts")}
 	}
-	set := &match.Settings{LSeries: f["lseries"], CSeries: f["cseries"], MaxParts: n, Top: 6}
-	for _, name := range []string{set.LSeries, set.CSeries} {
+	req.maxParts = n
+	req.set = &match.Settings{LSeries: f["lseries"], CSeries: f["cseries"], MaxParts: n, Top: 6}
+	for _, name := range []string{req.set.LSeries, req.set.CSeries} {
 		if _, err := parts.Lookup(name); err != nil {
 			return &FieldError{"search.start", "series", "Series", err}
 		}
 	}
-	if set.Objective, err = match.ParseObjective(f["objective"]); err != nil {
+	if req.set.Objective, err = match.ParseObjective(f["objective"]); err != nil {
 		return &FieldError{"search.start", "objective", "Best by", err}
 	}
-	model := strings.TrimSpace(f["model"])
-	var qL, qC float64
-	switch model {
+	req.model = strings.TrimSpace(f["model"])
+	switch req.model {
 	case "", "ideal":
-		model = ""
+		req.model = ""
 	case parts.ConstantQName:
 		for _, q := range []struct {
 			field, label string
 			v            *float64
-		}{{"qL", "Q of L", &qL}, {"qC", "Q of C", &qC}} {
+		}{{"qL", "Q of L", &req.qL}, {"qC", "Q of C", &req.qC}} {
 			x, err := strconv.ParseFloat(strings.TrimSpace(f[q.field]), 64)
 			if err != nil || !(x > 0) || x > 1e6 {
 				return &FieldError{"search.start", q.field, q.label, fmt.Errorf("%q is not a Q from 0 to a million", f[q.field])}
 			}
 			*q.v = x
 		}
-		set.Model = parts.ConstantQ{QL: qL, QC: qC}
+		req.set.Model = parts.ConstantQ{QL: req.qL, QC: req.qC}
 	default:
-		fam, err := parts.LookupFamily(model)
+		fam, err := parts.LookupFamily(req.model)
 		if err != nil {
 			return &FieldError{"search.start", "model", "Model", err}
 		}
-		set.Model = fam
+		req.set.Model = fam
 	}
-	members := []match.Member{{Name: sweepName(sc.st, ne.n.SweepID), Load: ne.load}}
-	setID := ""
-	if f["target"] == "set" && ne.set != nil {
-		members, setID = ne.set.members, ne.set.set.ID
-	}
-	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
-	lay, board := ne.lay, ne.n.Layout
-	switch {
-	case lay.IsZero():
-		board = nil
-	case len(members) > 1:
-		// The search across a set judges the parts alone; each design is
-		// then shown on the network's board by the panel.
-		lay, board = match.Layout{}, nil
-		desc += ", parts alone (the board is not searched across a set)"
-	default:
-		desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, lay.Describe(ne.built))
-	}
+	return nil
+}
 
+// newSearchJob registers the session's search, or refuses a second one; the
+// job's context ends after 10 minutes or on cancel.
+func (s *Server) newSearchJob(sid string) (*searchJob, context.Context, error) {
 	s.search.mu.Lock()
+	defer s.search.mu.Unlock()
 	if s.search.jobs == nil {
 		s.search.jobs = map[string]*searchJob{}
 	}
-	if s.search.jobs[sc.sid] != nil {
-		s.search.mu.Unlock()
-		return errors.New("a search is already running for this session; cancel it or wait")
+	if s.search.jobs[sid] != nil {
+		return nil, nil, errors.New("a search is already running for this session; cancel it or wait")
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
 	job := &searchJob{cancel: cancel, done: make(chan struct{})}
-	s.search.jobs[sc.sid] = job
-	s.search.mu.Unlock()
+	s.search.jobs[sid] = job
+	return job, ctx, nil
+}
 
-	sid, sweepID, port, stageSide := sc.sid, ne.n.SweepID, ne.port, ne.stageSide
-	go func() {
-		defer close(job.done)
-		defer cancel()
-		defer func() {
-			s.search.mu.Lock()
-			delete(s.search.jobs, sid)
-			s.search.mu.Unlock()
-		}()
-		var last time.Time
-		set.Progress = func(done, total int) {
-			if now := time.Now(); now.Sub(last) > 100*time.Millisecond || done == total {
-				last = now
-				s.toSend(sid, progressMsg{Type: "progress", Done: done, Total: total, Running: true})
-			}
-		}
-		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) {
-			if !lay.IsZero() {
-				return match.SearchOnBoard(ctx, members[0].Load, bands, set, lay)
-			}
-			return match.SearchSet(ctx, members, bands, set)
-		})
-		if err != nil {
-			msg := "the search failed: " + plainDetail(err.Error())
-			if errors.Is(err, context.Canceled) {
-				msg = "the search was cancelled"
-			} else if errors.Is(err, context.DeadlineExceeded) {
-				msg = "the search took more than 10 minutes and was stopped; try fewer parts"
-			}
-			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
-			return
-		}
-		out := &sessions.SearchResult{SweepID: sweepID, SetID: setID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: board, StageSide: stageSide}
-		for _, d := range res.Designs {
-			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
-			for _, p := range d.Network {
-				sp := sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: model}
-				if model == parts.ConstantQName {
-					q := qC
-					if p.Kind.Component() == rfmath.ComponentL {
-						q = qL
-					}
-					sp.Params = map[string]float64{"q": q}
-				}
-				sd.Parts = append(sd.Parts, sp)
-			}
-			for _, b := range d.Bands {
-				sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: storable(b.WorstRLdB), MeanRLdB: storable(b.MeanRLdB)})
-			}
-			out.Designs = append(out.Designs, sd)
-		}
-		if len(res.Designs) == 0 || !res.Designs[0].Meets() {
-			out.Note = fmt.Sprintf("No network of up to %d parts meets every band's requirement.", n)
-		}
-		if _, err := s.store.ApplyAs(context.Background(), sessions.Edit, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
-			s.log.Error("store search", "err", err)
-			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: "the result could not be stored: " + err.Error()})
-			return
-		}
-		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: fmt.Sprintf("search done: %d designs, %s combinations", len(out.Designs), units.Format(res.Combinations, "", 3))})
+// runSearch runs the search in the server's pool, reports its progress to
+// the session's pages and stores the result.
+func (s *Server) runSearch(ctx context.Context, job *searchJob, sid string, req *searchRequest) {
+	defer close(job.done)
+	defer job.cancel()
+	defer func() {
+		s.search.mu.Lock()
+		delete(s.search.jobs, sid)
+		s.search.mu.Unlock()
 	}()
-	return nil
+	var last time.Time
+	req.set.Progress = func(done, total int) {
+		if now := time.Now(); now.Sub(last) > 100*time.Millisecond || done == total {
+			last = now
+			s.toSend(sid, progressMsg{Type: "progress", Done: done, Total: total, Running: true})
+		}
+	}
+	s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + req.desc})
+	res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) {
+		if !req.lay.IsZero() {
+			return match.SearchOnBoard(ctx, req.members[0].Load, req.bands, req.set, req.lay)
+		}
+		return match.SearchSet(ctx, req.members, req.bands, req.set)
+	})
+	if err != nil {
+		msg := "the search failed: " + plainDetail(err.Error())
+		if errors.Is(err, context.Canceled) {
+			msg = "the search was cancelled"
+		} else if errors.Is(err, context.DeadlineExceeded) {
+			msg = "the search took more than 10 minutes and was stopped; try fewer parts"
+		}
+		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
+		return
+	}
+	out := req.result(res)
+	if _, err := s.store.ApplyAs(context.Background(), sessions.Edit, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
+		s.log.Error("store search", "err", err)
+		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: "the result could not be stored: " + err.Error()})
+		return
+	}
+	s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: fmt.Sprintf("search done: %d designs, %s combinations", len(out.Designs), units.Format(res.Combinations, "", 3))})
+}
+
+// result is the search's result as the session stores it: each design's
+// parts (with the model searched and its Q) and figures.
+func (req *searchRequest) result(res *match.Result) *sessions.SearchResult {
+	out := &sessions.SearchResult{SweepID: req.sweepID, SetID: req.setID, Port: req.port, Settings: req.desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: req.board, StageSide: req.stage}
+	for _, d := range res.Designs {
+		sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
+		for _, p := range d.Network {
+			sp := sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: req.model}
+			if req.model == parts.ConstantQName {
+				q := req.qC
+				if p.Kind.Component() == rfmath.ComponentL {
+					q = req.qL
+				}
+				sp.Params = map[string]float64{"q": q}
+			}
+			sd.Parts = append(sd.Parts, sp)
+		}
+		for _, b := range d.Bands {
+			sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: storable(b.WorstRLdB), MeanRLdB: storable(b.MeanRLdB)})
+		}
+		out.Designs = append(out.Designs, sd)
+	}
+	if len(res.Designs) == 0 || !res.Designs[0].Meets() {
+		out.Note = fmt.Sprintf("No network of up to %d parts meets every band's requirement.", req.maxParts)
+	}
+	return out
 }
 
 // cancelSearch stops the session's search, if one runs.
