@@ -210,107 +210,15 @@ func (sc *scene) quantitySeries(key string, v *pageView, lo, hi float64) ([]char
 	}
 	var out []chartsvg.Series
 	note := ""
-	mixed := sc.mixedRefs()
 	switch q.param {
 	case "S11", "S22":
-		port := 1
-		if q.param == "S22" {
-			port = 2
-		}
-		for _, t := range sc.traces {
-			if t.port != port {
-				continue
-			}
-			name := t.ref.Name
-			if mixed {
-				name += " (" + fmtOhms(t.z0) + ")"
-			}
-			out = append(out, reflSeries(q, t.id, name, t.ref.Color, t.sweep.FreqHz, t.gamma, t.z0, port == 2, v.aperture())...)
-		}
-		if ne := sc.net; sc.hasNetResponse() && ne.port == port {
-			out = append(out, reflSeries(q, "net-"+ne.n.ID, ne.n.Name, netColour, ne.sweep.FreqHz, ne.result(), ne.z0, false, v.aperture())...)
-		}
-		if len(out) == 0 && port == 2 {
-			note = "no 2-port sweep is shown"
-		}
+		out, note = sc.reflQuantitySeries(q, v)
 	case "S21", "S12":
-		i, j := 1, 0
-		if q.param == "S12" {
-			i, j = 0, 1
-		}
-		for _, t := range sc.traces {
-			if t.port != 1 || t.sweep.Ports < 2 {
-				continue
-			}
-			s := t.sweep.Param(nil, i, j)
-			y := make([]float64, len(s))
-			switch q.kind {
-			case "db":
-				for k, g := range s {
-					y[k] = 20 * math.Log10(cmplx.Abs(g))
-				}
-			case "phase":
-				for k, g := range s {
-					y[k] = rfmath.AngleDeg(g)
-				}
-			case "gd":
-				rfmath.GroupDelayTo(y, t.sweep.FreqHz, s, v.aperture())
-				for k := range y {
-					y[k] *= 1e9
-				}
-			}
-			out = append(out, chartsvg.Series{ID: t.ref.ID + "-" + q.param, Name: t.ref.Name + " " + q.param, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: y})
-		}
-		if len(out) == 0 {
-			note = "no 2-port sweep is shown"
-		}
+		out, note = sc.transferSeries(q, v)
 	case "K":
-		// The figures of the amplifier panel's stability plot
-		// (amp.StabilityTo), for every 2-port sweep shown.
-		var f []float64
-		for _, t := range sc.traces {
-			if t.port != 1 || t.sweep.Ports != 2 {
-				continue
-			}
-			st := amp.StabilityTo(nil, t.sweep)
-			k, mu := make([]float64, len(st)), make([]float64, len(st))
-			for i, x := range st {
-				k[i], mu[i] = x.K, x.Mu
-			}
-			out = append(out, chartsvg.Series{ID: t.ref.ID + "-k", Name: t.ref.Name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: k},
-				chartsvg.Series{ID: t.ref.ID + "-mu", Name: t.ref.Name + " μ", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: mu, Dashed: true, NoLegend: true})
-			if len(t.sweep.FreqHz) > len(f) {
-				f = t.sweep.FreqHz
-			}
-		}
-		if len(out) == 0 {
-			note = "no 2-port sweep is shown"
-			break
-		}
-		one := make([]float64, len(f))
-		for i := range one {
-			one[i] = 1
-		}
-		out = append(out, chartsvg.Series{ID: "k-one", Name: "1: unconditionally stable above (μ)", Color: "#8a8a8a", FreqHz: f, Y: one, Dashed: true})
+		out, note = sc.stabilitySeries()
 	case "power":
-		ne := sc.net
-		if !sc.hasNetResponse() {
-			note = "start a matching network to see it"
-			break
-		}
-		with := make([]float64, len(ne.toLoad))
-		alone := make([]float64, len(ne.gLoad))
-		for k := range with {
-			w, a := ne.toLoad[k], rfmath.PowerDeliveredFraction(cmplx.Abs(ne.gLoad[k]))
-			if q.kind == "pct" {
-				with[k], alone[k] = 100*w, 100*a
-			} else {
-				with[k], alone[k] = -rfmath.PowerLossDB(w), -rfmath.PowerLossDB(a)
-			}
-		}
-		out = append(out,
-			chartsvg.Series{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true},
-			chartsvg.Series{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with})
+		out, note = sc.powerSeries(q)
 	}
 	for i := range out {
 		out[i] = thinSpan(out[i], lo, hi)
@@ -320,6 +228,126 @@ func (sc *scene) quantitySeries(key string, v *pageView, lo, hi float64) ([]char
 	}
 	sc.seriesC[ck], sc.seriesNote[ck] = out, note
 	return out, bands, note
+}
+
+// reflQuantitySeries is quantity q of the reflection at port 1 (S11) or
+// port 2 (S22) of every trace shown, and of the network's response at its
+// port; a trace's reference is named when the traces' references differ.
+func (sc *scene) reflQuantitySeries(q quantity, v *pageView) ([]chartsvg.Series, string) {
+	port := 1
+	if q.param == "S22" {
+		port = 2
+	}
+	mixed := sc.mixedRefs()
+	var out []chartsvg.Series
+	for _, t := range sc.traces {
+		if t.port != port {
+			continue
+		}
+		name := t.ref.Name
+		if mixed {
+			name += " (" + fmtOhms(t.z0) + ")"
+		}
+		out = append(out, reflSeries(q, t.id, name, t.ref.Color, t.sweep.FreqHz, t.gamma, t.z0, port == 2, v.aperture())...)
+	}
+	if ne := sc.net; sc.hasNetResponse() && ne.port == port {
+		out = append(out, reflSeries(q, "net-"+ne.n.ID, ne.n.Name, netColour, ne.sweep.FreqHz, ne.result(), ne.z0, false, v.aperture())...)
+	}
+	if len(out) == 0 && port == 2 {
+		return nil, "no 2-port sweep is shown"
+	}
+	return out, ""
+}
+
+// transferSeries is quantity q (dB, phase or group delay in ns) of S21 or
+// S12 of every 2-port sweep shown.
+func (sc *scene) transferSeries(q quantity, v *pageView) ([]chartsvg.Series, string) {
+	i, j := 1, 0
+	if q.param == "S12" {
+		i, j = 0, 1
+	}
+	var out []chartsvg.Series
+	for _, t := range sc.traces {
+		if t.port != 1 || t.sweep.Ports < 2 {
+			continue
+		}
+		s := t.sweep.Param(nil, i, j)
+		y := make([]float64, len(s))
+		switch q.kind {
+		case "db":
+			for k, g := range s {
+				y[k] = 20 * math.Log10(cmplx.Abs(g))
+			}
+		case "phase":
+			for k, g := range s {
+				y[k] = rfmath.AngleDeg(g)
+			}
+		case "gd":
+			rfmath.GroupDelayTo(y, t.sweep.FreqHz, s, v.aperture())
+			for k := range y {
+				y[k] *= 1e9
+			}
+		}
+		out = append(out, chartsvg.Series{ID: t.ref.ID + "-" + q.param, Name: t.ref.Name + " " + q.param, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: y})
+	}
+	if len(out) == 0 {
+		return nil, "no 2-port sweep is shown"
+	}
+	return out, ""
+}
+
+// stabilitySeries is the figures of the amplifier panel's stability plot
+// (amp.StabilityTo) for every 2-port sweep shown: Rollett K solid,
+// Edwards–Sinsky μ dashed, and the line at 1.
+func (sc *scene) stabilitySeries() ([]chartsvg.Series, string) {
+	var out []chartsvg.Series
+	var f []float64
+	for _, t := range sc.traces {
+		if t.port != 1 || t.sweep.Ports != 2 {
+			continue
+		}
+		st := amp.StabilityTo(nil, t.sweep)
+		k, mu := make([]float64, len(st)), make([]float64, len(st))
+		for i, x := range st {
+			k[i], mu[i] = x.K, x.Mu
+		}
+		out = append(out, chartsvg.Series{ID: t.ref.ID + "-k", Name: t.ref.Name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: k},
+			chartsvg.Series{ID: t.ref.ID + "-mu", Name: t.ref.Name + " μ", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: mu, Dashed: true, NoLegend: true})
+		if len(t.sweep.FreqHz) > len(f) {
+			f = t.sweep.FreqHz
+		}
+	}
+	if len(out) == 0 {
+		return nil, "no 2-port sweep is shown"
+	}
+	one := make([]float64, len(f))
+	for i := range one {
+		one[i] = 1
+	}
+	return append(out, chartsvg.Series{ID: "k-one", Name: "1: unconditionally stable above (μ)", Color: "#8a8a8a", FreqHz: f, Y: one, Dashed: true}), ""
+}
+
+// powerSeries is the power to the load across the network's sweep, in % or
+// dB, through the network and of the load alone.
+func (sc *scene) powerSeries(q quantity) ([]chartsvg.Series, string) {
+	ne := sc.net
+	if !sc.hasNetResponse() {
+		return nil, "start a matching network to see it"
+	}
+	with := make([]float64, len(ne.toLoad))
+	alone := make([]float64, len(ne.gLoad))
+	for k := range with {
+		w, a := ne.toLoad[k], rfmath.PowerDeliveredFraction(cmplx.Abs(ne.gLoad[k]))
+		if q.kind == "pct" {
+			with[k], alone[k] = 100*w, 100*a
+		} else {
+			with[k], alone[k] = -rfmath.PowerLossDB(w), -rfmath.PowerLossDB(a)
+		}
+	}
+	return []chartsvg.Series{
+		{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true},
+		{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with},
+	}, ""
 }
 
 // reflSeries returns the series of reflection quantity q for one trace of
