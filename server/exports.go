@@ -48,29 +48,7 @@ func netComments(sc *scene, ne *netEval) []string {
 	if !ne.lay.IsZero() {
 		c = append(c, " on the board: "+ne.lay.Describe(ne.built)+" (included in the figures)")
 	}
-	return asciiOnly(c)
-}
-
-// asciiOnly replaces what Touchstone does not allow in comments.
-func asciiOnly(lines []string) []string {
-	out := make([]string, len(lines))
-	for i, l := range lines {
-		var b strings.Builder
-		for _, r := range l {
-			switch {
-			case r == 'Ω':
-				b.WriteString("ohm")
-			case r == 'µ':
-				b.WriteString("u")
-			case r >= 0x20 && r <= 0x7e:
-				b.WriteRune(r)
-			default:
-				b.WriteByte('?')
-			}
-		}
-		out[i] = b.String()
-	}
-	return out
+	return touchstone.CommentLines(c)
 }
 
 func sweepName(st *sessions.State, id string) string {

@@ -1,7 +1,6 @@
 package server
 
 import (
-	"bytes"
 	"context"
 	"encoding/csv"
 	"encoding/json"
@@ -241,20 +240,11 @@ func tooSlowMsg(cfg Config) string {
 		cfg.BodyGrace, cfg.BodyMinRate>>10, cfg.BodyGrace)
 }
 
-// parseSweep reads an uploaded file by the ending of its name.
-// Zero fields of lim take touchstone's defaults.
+// parseSweep reads an uploaded file by the ending of its name
+// (touchstone.ReadNamed, as the command line reads files). Zero fields of
+// lim take touchstone's defaults.
 func parseSweep(name string, raw []byte, lim touchstone.Limits) (*rfmath.Sweep, error) {
-	if strings.EqualFold(path.Ext(name), ".csv") {
-		return touchstone.ReadCSV(bytes.NewReader(raw), name, lim)
-	}
-	if _, ok := touchstone.PortsFromName(name); !ok && !strings.EqualFold(path.Ext(name), ".ts") {
-		return nil, fmt.Errorf("%s: the name must end in .sNp (e.g. .s1p, .s2p), .ts or .csv so the reader knows the format", name)
-	}
-	tf, err := touchstone.Read(bytes.NewReader(raw), name, lim)
-	if err != nil {
-		return nil, err
-	}
-	return tf.Sweep, nil
+	return touchstone.ReadNamedBytes(name, raw, lim)
 }
 
 // errorStatus maps a store error to a status and a message for the client.

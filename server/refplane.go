@@ -226,7 +226,7 @@ func (sc *scene) refPlaneChange(s *Server, form string, f map[string]string) (se
 		}
 		var b bytes.Buffer
 		name := sweepName(sc.st, td.SweepID) + " gated"
-		if err := touchstone.Write(&b, g, touchstone.WriteOptions{Comments: asciiOnly([]string{
+		if err := touchstone.Write(&b, g, touchstone.WriteOptions{Comments: touchstone.CommentLines([]string{
 			fmt.Sprintf(" %s gated in time: centre %s, span %s (round trip), %s window", sweepName(sc.st, td.SweepID),
 				units.Format(td.GateCentreS, "s", 4), units.Format(td.GateSpanS, "s", 4), td.Window)})}); err != nil {
 			return sessions.Change{}, err
