@@ -116,7 +116,7 @@ func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
 	if s.tokenRevoked(a) {
 		c.closeReload("the links of this session were re-issued")
 	}
-	go c.applier(ctx)
+	s.appliers.Go(func() { c.applier(ctx) })
 	c.reader()
 	cancel()
 	s.leave(rm, c)
@@ -231,7 +231,7 @@ func (c *conn) reader() {
 			c.reply(outMsg{Type: "error", Msg: "the message is not JSON of the expected shape: " + err.Error()})
 			continue
 		}
-		now := time.Now()
+		now := c.s.clock()
 		if !bucket.take(now) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
 			continue
@@ -584,6 +584,14 @@ func (c *conn) catchUp(v int64) {
 type bucket struct {
 	rate, burst, tokens float64
 	last                time.Time
+}
+
+// clock is the time the message buckets read: Config.now, else time.Now.
+func (s *Server) clock() time.Time {
+	if s.cfg.now != nil {
+		return s.cfg.now()
+	}
+	return time.Now()
 }
 
 func newBucket(rate, burst float64) *bucket { return &bucket{rate: rate, burst: burst, tokens: burst} }
