@@ -362,7 +362,8 @@ func TestTokensNotLogged(t *testing.T) {
 	}
 }
 
-// twoPointFile writes a 1-port RI file of the given frequency lines.
+// tsFile returns a Touchstone file of the option line header and the given
+// data lines.
 func tsFile(header string, lines ...string) []byte {
 	return []byte(header + "\n" + strings.Join(lines, "\n") + "\n")
 }

@@ -67,7 +67,7 @@ type Config struct {
 	MsgPerSecond, MsgBurst float64
 	// SessionMsgPerSecond and SessionMsgBurst bound the messages into one
 	// session from all its pages together (its fair share; see
-	// sessionBucket); zero means DefaultSessionMsgPerSec and
+	// sessionShare); zero means DefaultSessionMsgPerSec and
 	// DefaultSessionMsgBurst.
 	SessionMsgPerSecond, SessionMsgBurst float64
 	// MaxConnsPerSession, MaxConnsPerToken and MaxConnsPerAddr bound the
