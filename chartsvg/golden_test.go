@@ -2,9 +2,14 @@ package chartsvg
 
 import (
 	"bytes"
+	"encoding/xml"
+	"errors"
 	"flag"
+	"io"
 	"os"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -98,35 +103,61 @@ func firstDiff(a, b string) string {
 }
 
 // TestWriteDemo writes the demo chart and plots of the synthetic sweeps to
-// SVG files, when -demo-dir is given:
+// SVG files (to -demo-dir when given, to look at them, else to a temporary
+// folder) and reads each back: it must be an SVG document holding every
+// trace, marker, series, band and title it was drawn with.
 //
 //	go test ./chartsvg -run TestWriteDemo -demo-dir=/tmp/matchbench-demo
 func TestWriteDemo(t *testing.T) {
-	if *demoDir == "" {
-		t.Skip("no -demo-dir given")
+	t.Parallel()
+	dir := *demoDir
+	if dir == "" {
+		dir = t.TempDir()
 	}
-	if err := os.MkdirAll(*demoDir, 0o755); err != nil {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
 		t.Fatal(err)
 	}
 	c, tr, mk, path := fullChart(10001)
-	files := map[string]func(*os.File) error{
-		"chart.svg": func(f *os.File) error { return c.Render(f, tr, mk, path) },
-		"chart-zoom.svg": func(f *os.File) error {
+	ids := func(prefix string, tr []Trace) []string {
+		var out []string
+		for _, x := range tr {
+			out = append(out, prefix+x.ID)
+		}
+		return out
+	}
+	markerIDs := func(prefix string, mk []Marker) []string {
+		var out []string
+		for _, m := range mk {
+			out = append(out, prefix+m.ID)
+		}
+		return out
+	}
+	chartWant := append(append(ids("trace-", tr), markerIDs("mk-", mk)...), "match-path")
+	files := []struct {
+		name   string
+		render func(*os.File) error
+		ids    []string // element ids the file must hold
+		text   []string // text the file must hold
+		attrs  []string // attributes (name="value") of its root
+	}{
+		{"chart.svg", func(f *os.File) error { return c.Render(f, tr, mk, path) },
+			chartWant, []string{"Reflection coefficient chart"}, []string{`data-gamma-radius="1"`}},
+		{"chart-zoom.svg", func(f *os.File) error {
 			z := c
 			z.Zoom, z.AdmittanceGrid = 0.4, false
 			return z.Render(f, tr, mk, path)
-		},
-		"return-loss.svg": func(f *os.File) error {
+		}, chartWant, []string{"Reflection coefficient chart"}, []string{`data-gamma-radius="0.4"`}},
+		{"return-loss.svg", func(f *os.File) error {
 			p := Plot{Title: "Return loss", YLabel: "Return loss", YUnit: "dB"}
 			return p.Render(f, rlSeries(tr), []Band{{Name: "2.4 GHz ISM", LoHz: 2.4e9, HiHz: 2.4835e9, Limit: 10, HasLimit: true}},
 				plotMarkers(mk))
-		},
-		"impedance.svg": func(f *os.File) error {
+		}, append(ids("series-", tr), markerIDs("pmk-", mk)...), []string{"Return loss", "2.4 GHz ISM"}, nil},
+		{"impedance.svg", func(f *os.File) error {
 			r, x := rxSeries(tr[1])
 			p := Plot{Title: "Impedance, port extension removed", YLabel: "Impedance", YUnit: "Ω"}
 			return p.Render(f, []Series{r, x}, nil, plotMarkers(mk[:2]))
-		},
-		"vswr.svg": func(f *os.File) error {
+		}, append([]string{"series-r", "series-x"}, markerIDs("pmk-", mk[:2])...), []string{"Impedance, port extension removed"}, nil},
+		{"vswr.svg", func(f *os.File) error {
 			s := rlSeries(tr)
 			for i := range s {
 				for j, rl := range s[i].Y {
@@ -136,21 +167,86 @@ func TestWriteDemo(t *testing.T) {
 			}
 			p := Plot{Title: "VSWR", YLabel: "VSWR", LogY: true, YMin: 1, YMax: 20}
 			return p.Render(f, s, []Band{{Name: "2.4 GHz ISM", LoHz: 2.4e9, HiHz: 2.4835e9, Limit: 2, HasLimit: true}}, plotMarkers(mk))
-		},
+		}, append(ids("series-", tr), markerIDs("pmk-", mk)...), []string{"VSWR", "2.4 GHz ISM"}, nil},
 	}
-	for name, render := range files {
-		f, err := os.Create(filepath.Join(*demoDir, name))
+	for _, fc := range files {
+		name := filepath.Join(dir, fc.name)
+		f, err := os.Create(name)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if err := render(f); err != nil {
+		if err := fc.render(f); err != nil {
 			t.Fatal(err)
 		}
 		if err := f.Close(); err != nil {
 			t.Fatal(err)
 		}
-		t.Logf("wrote %s", filepath.Join(*demoDir, name))
+		t.Logf("wrote %s", name)
+
+		b, err := os.ReadFile(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		root, got, text, err := svgContent(b)
+		if err != nil {
+			t.Errorf("%s: not a well-formed document: %v", fc.name, err)
+			continue
+		}
+		if root.Name.Local != "svg" {
+			t.Errorf("%s: root element <%s>, want <svg>", fc.name, root.Name.Local)
+		}
+		for _, id := range fc.ids {
+			if !got[id] {
+				t.Errorf("%s: no element with id %q", fc.name, id)
+			}
+		}
+		for _, s := range fc.text {
+			if !strings.Contains(text, s) {
+				t.Errorf("%s: no text %q", fc.name, s)
+			}
+		}
+		for _, a := range fc.attrs {
+			k, v, _ := strings.Cut(a, "=")
+			if !slices.ContainsFunc(root.Attr, func(x xml.Attr) bool { return x.Name.Local == k && strconv.Quote(x.Value) == v }) {
+				t.Errorf("%s: root element lacks %s", fc.name, a)
+			}
+		}
 	}
+}
+
+// svgContent parses the XML document b and returns its root element, the
+// ids of its elements and its character data.
+func svgContent(b []byte) (root xml.StartElement, ids map[string]bool, text string, err error) {
+	ids = map[string]bool{}
+	var sb strings.Builder
+	d := xml.NewDecoder(bytes.NewReader(b))
+	seenRoot := false
+	for {
+		tok, err := d.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return root, nil, "", err
+		}
+		switch e := tok.(type) {
+		case xml.StartElement:
+			if !seenRoot {
+				root, seenRoot = e.Copy(), true
+			}
+			for _, a := range e.Attr {
+				if a.Name.Local == "id" {
+					ids[a.Value] = true
+				}
+			}
+		case xml.CharData:
+			sb.Write(e)
+		}
+	}
+	if !seenRoot {
+		return root, nil, "", errors.New("no element")
+	}
+	return root, ids, sb.String(), nil
 }
 
 func plotMarkers(mk []Marker) []PlotMarker {

@@ -382,7 +382,7 @@ func TestInterpolationHelpers(t *testing.T) {
 // dB (arithmetic; the wiggle stands in for measurement noise of about
 // 0.1 dB). The edges must be the outermost crossings of the threshold,
 // interpolated linearly in |Γ| (Γ is real and positive) as in
-// TestDipRefinement.
+// TestDipDeepestOnTrace.
 func TestDipsChatter(t *testing.T) {
 	t.Parallel()
 	freq := grid(3, 7, 801)

@@ -15,7 +15,7 @@ func TestLimitsAndYield(t *testing.T) {
 	t.Parallel()
 	f, nid := netFixture(t)
 	ctx := context.Background()
-	st, _, _ := f.store.State(ctx, f.sess.ID)
+	st := stateOf(t, f)
 	sc := f.srv.scene(f.sess.ID, st)
 	lv := sc.limitsView()
 	// A 200 Ω resistor has no reactance, so no RLC model fits it: the panel
@@ -30,7 +30,7 @@ func TestLimitsAndYield(t *testing.T) {
 	if _, err := f.store.Apply(ctx, f.sess.ID, ch); err != nil {
 		t.Fatal(err)
 	}
-	st, _, _ = f.store.State(ctx, f.sess.ID)
+	st = stateOf(t, f)
 	f.srv.scene(f.sess.ID, st) // asks for the Monte Carlo
 	settle(t, f.srv)
 	a, b := f.srv.scene(f.sess.ID, st), f.srv.scene(f.sess.ID, st)
@@ -46,9 +46,9 @@ func TestLimitsAndYield(t *testing.T) {
 	if !strings.Contains(svg.String(), `id="trace-mc-0"`) {
 		t.Error("the chart does not draw the tolerance builds")
 	}
-	off, _ := a.partChange("network.set", map[string]string{"networkId": nid, "yield": "off"})
-	if off.YieldBuilds != -1 {
-		t.Errorf("yield off: %+v", off)
+	off, err := a.partChange("network.set", map[string]string{"networkId": nid, "yield": "off"})
+	if err != nil || off.YieldBuilds != -1 {
+		t.Errorf("yield off: %+v, %v", off, err)
 	}
 	if _, err := a.partChange("network.set", map[string]string{"networkId": nid, "radius": "12 parsecs"}); err == nil {
 		t.Error("a bad radius was accepted")
@@ -63,11 +63,26 @@ func TestBodeFanoInPanel(t *testing.T) {
 	t.Parallel()
 	f := newFixture(t, 301)
 	ctx := context.Background()
-	f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 150e6, HiHz: 170e6, MinReturnLossDB: 10})
-	f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f.sweep})
-	st, _, _ := f.store.State(ctx, f.sess.ID)
+	if _, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 150e6, HiHz: 170e6, MinReturnLossDB: 10}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f.sweep}); err != nil {
+		t.Fatal(err)
+	}
+	st := stateOf(t, f)
 	lv := f.srv.scene(f.sess.ID, st).limitsView()
 	if !strings.Contains(lv.BodeFano, "series RLC") || !strings.Contains(lv.BodeFano, "10.9 dB") || !lv.Feasible {
 		t.Errorf("Bode–Fano in the panel: %q (feasible %v); want a series RLC and 10.9 dB", lv.BodeFano, lv.Feasible)
 	}
+}
+
+// stateOf returns the fixture's session state, failing t if it cannot be
+// read.
+func stateOf(t testing.TB, f *fixture) *sessions.State {
+	t.Helper()
+	st, _, err := f.store.State(context.Background(), f.sess.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return st
 }

@@ -29,16 +29,21 @@ func roomConns(s *Server, sid string) int {
 	return len(rm.snapshot())
 }
 
-// waitFor polls cond every 10 ms until it holds or d has passed.
+// waitFor polls cond every 10 ms until it holds, returning at once when it
+// does, or until d has passed.
 func waitFor(d time.Duration, cond func() bool) bool {
-	end := time.Now().Add(d)
-	for time.Now().Before(end) {
-		if cond() {
-			return true
+	deadline := time.NewTimer(d)
+	defer deadline.Stop()
+	tick := time.NewTicker(10 * time.Millisecond)
+	defer tick.Stop()
+	for !cond() {
+		select {
+		case <-tick.C:
+		case <-deadline.C:
+			return cond()
 		}
-		time.Sleep(10 * time.Millisecond)
 	}
-	return cond()
+	return true
 }
 
 // dialSmall opens a websocket whose socket has a small receive buffer, so
@@ -195,7 +200,9 @@ func TestVanishMidDrag(t *testing.T) {
 	if !waitFor(5*time.Second, func() bool { return roomConns(f.srv, f.sess.ID) == 0 }) {
 		t.Fatal("the vanished page's connection is still in the room")
 	}
-	time.Sleep(50 * time.Millisecond) // let an apply in progress finish
+	// The connection's applier may still be applying what it had queued:
+	// wait until it has returned.
+	f.srv.appliers.Wait()
 	st, v, _ := f.store.State(ctx, f.sess.ID)
 	committed := int(v - v0)
 	if committed < 5 || committed > 8 {
@@ -256,10 +263,17 @@ func TestReconnectCatchUp(t *testing.T) {
 	if up.V != v0+3 || up.Op != "catchup" {
 		t.Fatalf("catch-up: %+v, want version %d", up.Op, v0+3)
 	}
+	named := false
 	for _, fr := range up.Frags {
-		if fr.ID == "session-name" && !strings.Contains(fr.HTML, "third") {
-			t.Errorf("catch-up shows the name %q", fr.HTML)
+		if fr.ID == "session-name" {
+			named = true
+			if !strings.Contains(fr.HTML, "third") {
+				t.Errorf("catch-up shows the name %q", fr.HTML)
+			}
 		}
+	}
+	if !named {
+		t.Errorf("the catch-up holds no session-name fragment (it has %d fragments)", len(up.Frags))
 	}
 	// Then it follows live changes from there.
 	if _, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpSessionRename, Name: "fourth"}); err != nil {

@@ -30,7 +30,10 @@ func netFixture(t *testing.T) (*fixture, string) {
 		t.Fatal(err)
 	}
 	ctx := context.Background()
-	se, _ := st.Create(ctx, "L-3")
+	se, err := st.Create(ctx, "L-3")
+	if err != nil {
+		t.Fatal(err)
+	}
 	sw := rfmath.NewSweep(101, 1, 50)
 	for k := range sw.FreqHz {
 		sw.FreqHz[k] = 50e6 + 1e6*float64(k)
@@ -40,7 +43,9 @@ func netFixture(t *testing.T) (*fixture, string) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 95e6, HiHz: 105e6, MinReturnLossDB: 10})
+	if _, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 95e6, HiHz: 105e6, MinReturnLossDB: 10}); err != nil {
+		t.Fatal(err)
+	}
 	nev, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpNetworkAdd, Name: "Lsec", SweepID: ev.SweepID, DesignHz: 100e6,
 		Parts: []sessions.Part{{Kind: sessions.PartShuntC, Value: 13.783e-12}, {Kind: sessions.PartSeriesL, Value: 137.83e-9}}})
 	if err != nil {
@@ -64,7 +69,7 @@ func zDomain(f, c, l float64) complex128 {
 func TestNetworkEvaluation(t *testing.T) {
 	t.Parallel()
 	f, _ := netFixture(t)
-	st, _, _ := f.store.State(context.Background(), f.sess.ID)
+	st := stateOf(t, f)
 	sc := f.srv.scene(f.sess.ID, st)
 	ne := sc.net
 	if ne == nil || ne.err != nil {
@@ -92,7 +97,7 @@ func TestNetworkEvaluation(t *testing.T) {
 func TestMatchingPathArcs(t *testing.T) {
 	t.Parallel()
 	f, _ := netFixture(t)
-	st, _, _ := f.store.State(context.Background(), f.sess.ID)
+	st := stateOf(t, f)
 	ne := f.srv.scene(f.sess.ID, st).net
 	for _, frac := range []float64{1, 0.4} {
 		segs, handles := ne.path(1, 137.83e-9*frac, 1)
@@ -133,7 +138,10 @@ func fetch(t *testing.T, url string) string {
 		t.Fatal(err)
 	}
 	defer res.Body.Close()
-	b, _ := io.ReadAll(res.Body)
+	b, err := io.ReadAll(res.Body)
+	if err != nil {
+		t.Fatalf("%s: %v", url, err)
+	}
 	if res.StatusCode != 200 {
 		t.Fatalf("%s: %d %s", url, res.StatusCode, b)
 	}
@@ -235,10 +243,14 @@ func TestNetworkOverWebsocket(t *testing.T) {
 	f := newFixture(t, 301)
 	ed := wsDial(t, f, f.sess.EditToken)
 	vw := wsDial(t, f, f.sess.ViewToken)
-	vw.WriteJSON(inMsg{Type: "hello", V: 0})
+	if err := vw.WriteJSON(inMsg{Type: "hello", V: 0}); err != nil {
+		t.Fatal(err)
+	}
 	readUntil(t, vw, func(m outMsg) bool { return m.Type == "update" })
 	send := func(m inMsg) outMsg {
-		ed.WriteJSON(m)
+		if err := ed.WriteJSON(m); err != nil {
+			t.Fatal(err)
+		}
 		return readUntil(t, ed, func(o outMsg) bool { return (o.Type == "ack" || o.Type == "error") && o.ID == m.ID })
 	}
 	if a := send(inMsg{Type: "form", ID: 1, Form: "network.add", Fields: map[string]string{"sweepId": f.sweep}}); a.Type != "ack" {
@@ -256,7 +268,7 @@ func TestNetworkOverWebsocket(t *testing.T) {
 			t.Error("the viewer's network panel offers the add buttons")
 		}
 	}
-	st, _, _ := f.store.State(context.Background(), f.sess.ID)
+	st := stateOf(t, f)
 	n := st.Active()
 	// Default value: |X| = Z0 at the design frequency (175 MHz, the centre).
 	if want := 1 / (2 * math.Pi * n.DesignHz * 50); len(n.Parts) != 1 || math.Abs(n.Parts[0].Value-want) > 1e-6*want {
@@ -270,19 +282,21 @@ func TestNetworkOverWebsocket(t *testing.T) {
 		t.Errorf("a value in the wrong unit: %+v", a)
 	}
 	// Drag the part's point to where 4.7 pF puts it: the value follows.
-	st, _, _ = f.store.State(context.Background(), f.sess.ID)
+	st = stateOf(t, f)
 	sc := f.srv.scene(f.sess.ID, st)
 	g0 := sc.net.loadAt(sc.net.n.DesignHz)
 	target := rfmath.Ladder{rfmath.ShuntC{CF: 4.7e-12}}.InputGamma(sc.net.n.DesignHz, g0, 50)
 	if a := send(inMsg{Type: "partdrag", ID: 5, Change: &sessions.Change{PartID: pid, Gamma: &sessions.Point{Re: real(target), Im: imag(target)}, Gesture: "d"}}); a.Type != "ack" {
 		t.Fatalf("partdrag: %+v", a)
 	}
-	st, _, _ = f.store.State(context.Background(), f.sess.ID)
+	st = stateOf(t, f)
 	if v := st.Active().Parts[0].Value; math.Abs(v-4.7e-12) > 1e-6*4.7e-12 {
 		t.Errorf("after the drag C1 = %g, want 4.7 pF", v)
 	}
 	// The viewer may not build.
-	vw.WriteJSON(inMsg{Type: "partdrag", ID: 9, Change: &sessions.Change{PartID: pid, Gamma: &sessions.Point{}}})
+	if err := vw.WriteJSON(inMsg{Type: "partdrag", ID: 9, Change: &sessions.Change{PartID: pid, Gamma: &sessions.Point{}}}); err != nil {
+		t.Fatal(err)
+	}
 	if e := readUntil(t, vw, func(m outMsg) bool { return m.Type == "error" }); !strings.Contains(e.Msg, "view-only") {
 		t.Errorf("viewer partdrag: %+v", e)
 	}
@@ -296,7 +310,7 @@ func TestPartFigures(t *testing.T) {
 	t.Parallel()
 	f, _ := netFixture(t)
 	ctx := context.Background()
-	st, _, _ := f.store.State(ctx, f.sess.ID)
+	st := stateOf(t, f)
 	sc := f.srv.scene(f.sess.ID, st)
 	pid := st.Active().Parts[1].ID
 	ch, err := sc.partChange("part.params", map[string]string{"partId": pid, "q": "20", "qRef": "100M", "tol": "5"})
@@ -306,7 +320,7 @@ func TestPartFigures(t *testing.T) {
 	if _, err := f.store.Apply(ctx, f.sess.ID, ch); err != nil {
 		t.Fatal(err)
 	}
-	st, _, _ = f.store.State(ctx, f.sess.ID)
+	st = stateOf(t, f)
 	p := st.Active().Parts[1]
 	if p.Params["q"] != 20 || p.Params["qRefHz"] != 100e6 || p.Params["tolRel"] != 0.05 {
 		t.Fatalf("params %+v", p.Params)
@@ -323,9 +337,14 @@ func TestPartFigures(t *testing.T) {
 	if nv.Parts[1].Q != "20" || nv.Parts[1].Tol != "5" || !strings.Contains(nv.Parts[1].ModelNote, "Q 20") {
 		t.Errorf("part row %+v", nv.Parts[1])
 	}
-	ch, _ = sc.partChange("part.params", map[string]string{"partId": pid, "q": "", "qRef": "", "tol": ""})
-	f.store.Apply(ctx, f.sess.ID, ch)
-	st, _, _ = f.store.State(ctx, f.sess.ID)
+	ch, err = sc.partChange("part.params", map[string]string{"partId": pid, "q": "", "qRef": "", "tol": ""})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.store.Apply(ctx, f.sess.ID, ch); err != nil {
+		t.Fatal(err)
+	}
+	st = stateOf(t, f)
 	if len(st.Active().Parts[1].Params) != 0 {
 		t.Errorf("cleared params %+v", st.Active().Parts[1].Params)
 	}
@@ -360,7 +379,10 @@ func TestDesignOf(t *testing.T) {
 	// below √(13·15) = 13.96, so 13 pF; 137.83 nH lies below √(130·150) =
 	// 139.6, so 130 nH. The match is then off, but not far.
 	n.Parts[0].ESeries, n.Parts[1].ESeries = "E24", "E24"
-	d, _ := designOf(&n)
+	d, err := designOf(&n)
+	if err != nil {
+		t.Fatal(err)
+	}
 	if got := d[0].BuyValue(); math.Abs(got-13e-12) > 1e-18 {
 		t.Errorf("E24 value of 13.783 pF = %g, want 13 pF", got)
 	}

@@ -362,7 +362,8 @@ func TestTokensNotLogged(t *testing.T) {
 	}
 }
 
-// twoPointFile writes a 1-port RI file of the given frequency lines.
+// tsFile returns a Touchstone file of the option line header and the given
+// data lines.
 func tsFile(header string, lines ...string) []byte {
 	return []byte(header + "\n" + strings.Join(lines, "\n") + "\n")
 }
@@ -543,11 +544,32 @@ func TestWebsocketMessageTooBig(t *testing.T) {
 	readUntil(t, other, func(m outMsg) bool { return m.Type == "update" && m.V == v0+1 })
 }
 
+// fakeClock is a clock that moves only when told to.
+type fakeClock struct {
+	mu sync.Mutex
+	t  time.Time
+}
+
+func (c *fakeClock) now() time.Time {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return c.t
+}
+
+func (c *fakeClock) advance(d time.Duration) {
+	c.mu.Lock()
+	c.t = c.t.Add(d)
+	c.mu.Unlock()
+}
+
 // Messages beyond the rate are refused with "slow down" while the
-// connection stays open; once the bucket refills they pass again.
+// connection stays open; once the bucket refills they pass again. The
+// buckets read a fake clock: the 30 messages arrive at one instant, and
+// the pause is the clock moved on.
 func TestWebsocketRate(t *testing.T) {
 	t.Parallel()
-	f := newFixtureOpts(t, 11, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst = 2, 5 })
+	clk := &fakeClock{t: time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)}
+	f := newFixtureOpts(t, 11, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst, c.now = 2, 5, clk.now })
 	c := wsDial(t, f, f.sess.EditToken)
 	// Every message of an unknown type is answered, with "unknown message
 	// type" when it passes the bucket and "slow down" when it does not.
@@ -566,7 +588,11 @@ func TestWebsocketRate(t *testing.T) {
 	if refused < 15 || refused > 25 {
 		t.Errorf("%d of 30 messages refused, want most but not all", refused)
 	}
-	time.Sleep(600 * time.Millisecond) // a token back
+	// With no time passing, exactly the burst passes.
+	if refused != 25 {
+		t.Errorf("%d of 30 messages sent at one instant refused, want 25 (a burst of 5 passes)", refused)
+	}
+	clk.advance(600 * time.Millisecond) // 1.2 tokens back at 2/s
 	c.WriteJSON(inMsg{Type: "change", ID: 99, Change: &sessions.Change{Op: sessions.OpSessionRename, Name: "calm"}})
 	if m := readUntil(t, c, func(m outMsg) bool { return m.ID == 99 }); m.Type != "ack" {
 		t.Errorf("after a pause: %+v, want an ack", m)

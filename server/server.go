@@ -83,6 +83,10 @@ type Config struct {
 	// derived results (Monte Carlo, limits) and runs the searches; zero
 	// means one less than the CPUs, at least one.
 	DerivedWorkers int
+
+	// now is the clock the message buckets read (time.Now when nil); a
+	// test sets it to a fake one.
+	now func() time.Time
 }
 
 // Server serves the app. Create it with New.
@@ -102,6 +106,10 @@ type Server struct {
 	derived  *derivedCache // heavy results by session and inputs (derived.go)
 	searches chan struct{} // slots of the searches running
 	noise    noiseCache    // amp.go
+
+	// appliers counts the connections' appliers still running (a test
+	// waits on it for the changes a closed connection had queued).
+	appliers sync.WaitGroup
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.

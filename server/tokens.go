@@ -38,11 +38,11 @@ func (s *Server) reissue(w http.ResponseWriter, r *http.Request) {
 }
 
 // ended runs when the store ends a room's subscription, which happens when
-// the room fell behind (ErrOverflow), the session's links were re-issued
-// (ErrTokensReissued), the session was deleted (ErrDeleted) or the store
-// closed (ErrClosed). The room leaves the server's map first, so a page
-// that connects from now on gets a fresh room, and then closes every
-// connection it had:
+// the room fell behind (sessions.ErrOverflow), the session's links were
+// re-issued (sessions.ErrTokensReissued), the session was deleted
+// (sessions.ErrDeleted) or the store closed (sessions.ErrClosed). The
+// room leaves the server's map first, so a page that connects from now on
+// gets a fresh room, and then closes every connection it had:
 //
 //	fell behind       close "fell behind; reloading": the page reconnects
 //	                  and catches up from its version

@@ -118,7 +118,7 @@ func (s *Server) websocket(w http.ResponseWriter, r *http.Request) {
 	if s.tokenRevoked(a) {
 		c.closeReload("the links of this session were re-issued")
 	}
-	go c.applier(ctx)
+	s.appliers.Go(func() { c.applier(ctx) })
 	c.reader()
 	cancel()
 	s.leave(rm, c)
@@ -233,7 +233,7 @@ func (c *conn) reader() {
 			c.reply(outMsg{Type: "error", Msg: "the message is not JSON of the expected shape: " + err.Error()})
 			continue
 		}
-		now := time.Now()
+		now := c.s.clock()
 		if !bucket.AllowN(now, 1) {
 			c.reply(outMsg{Type: "error", ID: m.ID, Msg: "too many messages: slow down"})
 			continue
@@ -612,4 +612,12 @@ func (c *conn) catchUp(v int64) {
 // tests step it without sleeping.
 func newLimiter(perSecond, burst float64) *rate.Limiter {
 	return rate.NewLimiter(rate.Limit(perSecond), max(1, int(math.Ceil(burst))))
+}
+
+// clock is the time the message limiters read: Config.now, else time.Now.
+func (s *Server) clock() time.Time {
+	if s.cfg.now != nil {
+		return s.cfg.now()
+	}
+	return time.Now()
 }

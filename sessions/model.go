@@ -365,7 +365,10 @@ type SearchResult struct {
 	// load) or "rl" (return loss only); "" for results stored before it.
 	Objective string   `json:"objective,omitempty"`
 	Designs   []Design `json:"designs"`
-	Note      string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+	// Note is shown with the designs: that no network of up to the
+	// searched number of parts meets every band's requirement, when the
+	// best design does not.
+	Note string `json:"note,omitempty"`
 	// Layout, when set, is the board the designs were judged on (the
 	// searched network's); a design made a network takes it.
 	Layout *Layout `json:"layout,omitempty"`

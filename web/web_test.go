@@ -102,13 +102,17 @@ func TestSessionPageEditAndView(t *testing.T) {
 func TestStartPage(t *testing.T) {
 	t.Parallel()
 	var b bytes.Buffer
-	StartPage(StartView{Local: true, Sessions: []SessionRow{{Name: "<x>", EditHref: "/open/a", ViewHref: "/open/a?view=1"}}}).Render(context.Background(), &b)
+	if err := StartPage(StartView{Local: true, Sessions: []SessionRow{{Name: "<x>", EditHref: "/open/a", ViewHref: "/open/a?view=1"}}}).Render(context.Background(), &b); err != nil {
+		t.Fatal(err)
+	}
 	doc := parse(t, b.Bytes())
 	if len(byTestID(doc, "session-list")) != 1 || len(byTestID(doc, "new-session")) != 1 || strings.Contains(b.String(), "<x>") {
 		t.Errorf("local start page:\n%s", b.String())
 	}
 	b.Reset()
-	StartPage(StartView{Local: false}).Render(context.Background(), &b)
+	if err := StartPage(StartView{Local: false}).Render(context.Background(), &b); err != nil {
+		t.Fatal(err)
+	}
 	doc = parse(t, b.Bytes())
 	if len(byTestID(doc, "session-list")) != 0 || len(byTestID(doc, "new-session")) != 0 {
 		t.Error("a visitor from the network sees the session list")

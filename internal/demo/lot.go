@@ -34,8 +34,8 @@ import (
 // LotBands are the production limits of the Fieldnode US boards.
 var LotBands = []Band{{"US ISM 902–928 MHz", 902e6, 928e6, 10}}
 
-// lotMatch is the nominal matching network: series L at the antenna, shunt
-// C at the radio side.
+// lotSeriesLH and lotShuntCF are the nominal matching network: series L at
+// the antenna, shunt C at the radio side.
 const (
 	lotSeriesLH = 3.3e-9
 	lotShuntCF  = 6.8e-12

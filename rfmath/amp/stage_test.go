@@ -154,7 +154,8 @@ func TestStageMatchedDesigns(t *testing.T) {
 	}
 }
 
-// hrNoise is an independent noise analysis of a chain of 2-ports by noise
+// hrChain (with hrCascade) is an independent noise analysis of a chain of
+// 2-ports by noise
 // correlation matrices in chain (ABCD) form (H. Hillbrand and P. H. Russer,
 // "An efficient method for computer aided noise analysis of linear
 // amplifier networks", IEEE Trans. CAS-23(4), 1976; from memory), each
@@ -230,7 +231,7 @@ func randomLossy(rnd *rand.Rand, fHz float64) rfmath.Ladder {
 }
 
 // The stage's noise figure (Friis with available gains) agrees with the
-// correlation-matrix analysis of the whole chain (hrNoise above) for
+// correlation-matrix analysis of the whole chain (hrChain above) for
 // random lossy networks on both sides, random devices and random noise
 // parameters (seeded), half of them with the device against references
 // of 25 and 75 Ω between 50 Ω terminations: two independent methods. The

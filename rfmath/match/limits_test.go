@@ -89,7 +89,7 @@ func TestBodeFanoBands(t *testing.T) {
 	}
 
 	// Two bands share the bound: Σ Δω·ρ = π/(RC); a requirement of
-	// BestRL in both has zero margin, 1 dB more is infeasible.
+	// BestRLdB in both has zero margin, 1 dB more is infeasible.
 	two := []Band{{2.0e9, 2.1e9, 0, 0}, {2.4e9, 2.6e9, 0, 0}}
 	lim = BodeFano(rc, two)
 	rho := math.Pi / (200 * 2e-12) / (2 * math.Pi * 0.3e9)

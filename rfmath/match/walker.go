@@ -8,7 +8,7 @@ import (
 // walker enumerates the networks of one shape within a box of table rows
 // (phase 2 of Search). Levels are the parts from the load: level p is
 // Network[p]. The state after level p at point k, the normalised voltage
-// and current (v, i) carried from the load (see [Circuit.GammaAt]), is
+// and current (v, i) carried from the load (see [rfmath.Circuit.GammaAt]), is
 // cached for every level but the last, and is valid while stamp[p][k]
 // equals gen[p]; gen[p] takes a new value from a global clock whenever
 // level p's part changes, which also happens after any change below it.

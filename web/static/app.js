@@ -2,6 +2,16 @@
 // messages; the server answers with drawn fragments that replace nodes in
 // place. No framework, no build step; all drawing and maths are on the
 // server.
+//
+// The module is in sections: the page's state, the websocket, fragments
+// and updates, the dispatch of buttons, controls and forms (the handler
+// tables keyed by data-action and data-change), the chart's geometry, and
+// then one section per panel (chart and markers, sweeps, bands, network,
+// search, reference plane, tuning, amplifier), the page's own view, zoom
+// and pan, and the span drag. A panel's section registers its own entries
+// in the handler tables with onAction and onChange.
+
+// ---- the page's state and notices ----
 
 const body = document.body;
 const token = body.dataset.token;
@@ -112,6 +122,8 @@ function handle(msg) {
 	}
 }
 
+// ---- fragments and updates ----
+
 // Updates land in order: one that comes while an animation plays waits
 // for it, so an older step's fragments never overwrite a newer one's.
 const updates = [];
@@ -147,20 +159,6 @@ function afterFrags() {
 	const svg = chartSVG();
 	if (svg && !isDefaultView() && (svg.dataset.tag || "") !== view.vid && !viewInFlight) sendView();
 	clearPreview();
-}
-
-// showProgress shows a running search's progress bar and status.
-function showProgress(msg) {
-	const row = $("#search-progress-row");
-	if (!row) return;
-	row.hidden = false;
-	const bar = $("#search-progress");
-	if (bar && msg.total > 0) { bar.max = msg.total; bar.value = msg.done; }
-	const st = $("#search-status");
-	if (st) st.textContent = msg.msg || (msg.total > 0 ? `${Math.round(100 * msg.done / msg.total)} %` : "");
-	const c = $("#search-cancel");
-	if (c) c.hidden = !msg.running;
-	if (bar) bar.hidden = !msg.running;
 }
 
 // applyFrag replaces the element whose id is frag.id with frag.html. SVG
@@ -224,8 +222,22 @@ function applyFrag(frag) {
 	}
 }
 
-// ---- animation of matching steps: frames of SVG for one layer ----
+// Fields marked data-keep keep what was typed in them when their panel is
+// drawn again.
+const kept = {};
+document.addEventListener("input", (ev) => {
+	const k = ev.target.dataset && ev.target.dataset.keep;
+	if (k) kept[k] = ev.target.value;
+});
 
+function restoreKept() {
+	document.querySelectorAll("[data-keep]").forEach((e) => {
+		if (kept[e.dataset.keep] !== undefined && document.activeElement !== e) e.value = kept[e.dataset.keep];
+	});
+}
+
+// playAnimation plays the frames of a matching step: SVG for one layer of
+// the chart, frame after frame over anim.ms.
 function playAnimation(anim, done) {
 	const frames = anim.frames || [];
 	if (!frames.length) { done(); return; }
@@ -240,21 +252,155 @@ function playAnimation(anim, done) {
 	requestAnimationFrame(step);
 }
 
-// ---- chart interaction ----
+// ---- dispatch: buttons, controls and forms ----
+//
+// A button's data-action and a control's data-change name an entry of the
+// handler tables; each panel's section registers its own. An action or
+// change with no entry is a mistake of the page: it is reported on the
+// console and nothing is sent. A form with data-form is sent as it is
+// (form, fieldsOf); one with data-view-form changes the page's own view; any
+// other form is a plain one that takes the page elsewhere.
+
+const actions = new Map(); // data-action → handler(button's dataset)
+const changes = new Map(); // data-change → handler(control)
+
+function onAction(name, fn) { actions.set(name, fn); }
+function onChange(name, fn) { changes.set(name, fn); }
+
+// form sends the form message name with its fields; it returns whether the
+// message left.
+function form(name, fields) { return send({ type: "form", form: name, fields }); }
+
+// fieldsOf reads the fields of the form element f: every named element (a
+// checkbox as "true" or "false"), or, given names, only those.
+function fieldsOf(f, names) {
+	const out = {};
+	const value = (el) => el.type === "checkbox" ? String(el.checked) : el.value;
+	if (names) {
+		for (const n of names) {
+			const e = f.elements.namedItem(n);
+			if (e) out[n] = value(e);
+		}
+		return out;
+	}
+	for (const el of f.elements) {
+		if (!el.name) continue;
+		out[el.name] = value(el);
+	}
+	return out;
+}
+
+document.addEventListener("click", (ev) => {
+	selectFromReadout(ev.target);
+	if (markFromResonance(ev.target)) return;
+	const va = ev.target.closest("button[data-view-action]");
+	if (va) { viewAction(va); return; }
+	const b = ev.target.closest("button[data-action]");
+	if (!b || !canEdit) return;
+	const fn = actions.get(b.dataset.action);
+	if (!fn) {
+		console.warn(`matchbench: no handler for data-action "${b.dataset.action}"; nothing sent`);
+		return;
+	}
+	fn(b.dataset);
+});
+
+document.addEventListener("change", (ev) => {
+	const el = ev.target;
+	if (el.id === "file-input") {
+		if (el.files.length) {
+			upload(el.files);
+			el.value = "";
+		}
+		return;
+	}
+	if (!el.dataset) return;
+	if (viewChange(el)) return;
+	if (!canEdit) return;
+	if (partChange(el)) return;
+	const name = el.dataset.change;
+	if (!name) return;
+	const fn = changes.get(name);
+	if (!fn) {
+		console.warn(`matchbench: no handler for data-change "${name}"; nothing sent`);
+		return;
+	}
+	fn(el);
+});
+
+document.addEventListener("submit", (ev) => {
+	const vf = ev.target.closest("form[data-view-form]");
+	if (vf) { ev.preventDefault(); viewForm(vf); return; }
+	const f = ev.target.closest("form[data-form]");
+	if (!f) {
+		leaving = true;
+		return;
+	}
+	ev.preventDefault();
+	if (!canEdit) return;
+	form(f.dataset.form, fieldsOf(f));
+});
+
+document.addEventListener("keydown", (ev) => {
+	if (!canEdit) return;
+	const tag = (ev.target.tagName || "").toLowerCase();
+	if (tag === "input" || tag === "select" || tag === "textarea") return;
+	if ((ev.ctrlKey || ev.metaKey) && ev.key.toLowerCase() === "z") {
+		change({ op: ev.shiftKey ? "redo" : "undo" });
+		ev.preventDefault();
+		return;
+	}
+	if (!selectedMarker) return;
+	if (ev.key === "ArrowRight" || ev.key === "ArrowLeft") {
+		const n = (ev.key === "ArrowRight" ? 1 : -1) * (ev.shiftKey ? 10 : 1);
+		change({ op: "marker.step", markerId: selectedMarker, steps: n });
+		ev.preventDefault();
+	}
+});
+
+onAction("undo", () => change({ op: "undo" }));
+onAction("redo", () => change({ op: "redo" }));
+
+// ---- geometry: from the screen into a drawing ----
 
 function chartSVG() { return $("#chart svg"); }
 
-// toGamma turns a pointer position into Γ on the chart as drawn: its
-// scale and the Γ at its middle (a zoomed chart may be panned) are on the
-// root element; getScreenCTM takes in any preview transform of a zoom.
-function toGamma(svg, clientX, clientY) {
+// svgPoint maps the client point (clientX, clientY) into the user units of
+// svg as it is drawn now; getScreenCTM takes in any preview transform of a
+// zoom. Every client point read on the chart or a plot goes through it.
+function svgPoint(svg, clientX, clientY) {
 	const pt = svg.createSVGPoint();
 	pt.x = clientX; pt.y = clientY;
-	const p = pt.matrixTransform(svg.getScreenCTM().inverse());
+	return pt.matrixTransform(svg.getScreenCTM().inverse());
+}
+
+// toGamma turns a pointer position into Γ on the chart as drawn: its
+// scale and the Γ at its middle (a zoomed chart may be panned) are on the
+// root element.
+function toGamma(svg, clientX, clientY) {
+	const p = svgPoint(svg, clientX, clientY);
 	const k = Number(svg.dataset.gammaScale || svg.getAttribute("data-gamma-scale"));
 	const [cre, cim] = (svg.dataset.gammaCentre || "0 0").split(" ").map(Number);
 	return { re: cre + p.x / k, im: cim - p.y / k };
 }
+
+// plotFreq turns a pointer x on a plot into a frequency, from the plot's
+// data-x0/x1 (user units) and data-f0/f1 (Hz) attributes.
+function plotFreq(svg, clientX, clientY) {
+	const p = svgPoint(svg, clientX, clientY);
+	const x0 = Number(svg.dataset.x0), x1 = Number(svg.dataset.x1);
+	const f0 = Number(svg.dataset.f0), f1 = Number(svg.dataset.f1);
+	if (!(x1 > x0) || !(f1 > f0)) return 0;
+	const t = Math.min(1, Math.max(0, (p.x - x0) / (x1 - x0)));
+	return f0 + t * (f1 - f0);
+}
+
+// ---- chart and markers: placing, selecting, stepping and dragging ----
+//
+// A click on a trace places a marker; a marker drags along its trace on the
+// chart or along a plot's frequency axis, a part's point along its circle.
+// A drag's moves follow pointerrawupdate where the browser has it, at most
+// about one a frame, the first at once (queueMove).
 
 function markerIDOf(el, prefix) {
 	const g = el.closest(`[id^="${prefix}"]`);
@@ -271,6 +417,27 @@ function restoreSelection() {
 		tr.classList.toggle("selected", tr.dataset.marker === selectedMarker);
 	});
 }
+
+// selectFromReadout selects the marker of a clicked readout row.
+function selectFromReadout(target) {
+	const row = target.closest("#readout-body tr[data-marker]");
+	if (row) select(row.dataset.marker);
+}
+
+// markFromResonance places a marker at a clicked row of the resonance
+// table; it returns whether the click was on one.
+function markFromResonance(target) {
+	const res = target.closest("tr[data-mark-sweep]");
+	if (!res) return false;
+	const d = res.dataset;
+	if (!canEdit) viewOnly("placing a marker");
+	else change({ op: "marker.add", sweepId: d.markSweep, port: Number(d.markPort), freqHz: Number(d.markF) });
+	return true;
+}
+
+onAction("step", (d) => change({ op: "marker.step", markerId: d.marker, steps: Number(d.steps) }));
+onAction("dip", (d) => change({ op: "marker.to_dip", markerId: d.marker }));
+onAction("remove-marker", (d) => change({ op: "marker.remove", markerId: d.marker }));
 
 // drag holds the state of one pointer drag of a marker.
 let drag = null;
@@ -396,199 +563,12 @@ document.addEventListener(moveEvent, (ev) => {
 document.addEventListener("pointerup", (ev) => { endPan(); endSpanDrag(ev); endDrag(); });
 document.addEventListener("pointercancel", () => { endPan(); endSpanDrag(null); endDrag(); });
 
-// plotFreq turns a pointer x on a plot into a frequency, from the plot's
-// data-x0/x1 (user units) and data-f0/f1 (Hz) attributes.
-function plotFreq(svg, clientX, clientY) {
-	const pt = svg.createSVGPoint();
-	pt.x = clientX; pt.y = clientY;
-	const p = pt.matrixTransform(svg.getScreenCTM().inverse());
-	const x0 = Number(svg.dataset.x0), x1 = Number(svg.dataset.x1);
-	const f0 = Number(svg.dataset.f0), f1 = Number(svg.dataset.f1);
-	if (!(x1 > x0) || !(f1 > f0)) return 0;
-	const t = Math.min(1, Math.max(0, (p.x - x0) / (x1 - x0)));
-	return f0 + t * (f1 - f0);
-}
+// ---- sweeps: uploads, showing, renaming, recolouring, removing ----
 
-document.addEventListener("keydown", (ev) => {
-	if (!canEdit) return;
-	const tag = (ev.target.tagName || "").toLowerCase();
-	if (tag === "input" || tag === "select" || tag === "textarea") return;
-	if ((ev.ctrlKey || ev.metaKey) && ev.key.toLowerCase() === "z") {
-		change({ op: ev.shiftKey ? "redo" : "undo" });
-		ev.preventDefault();
-		return;
-	}
-	if (!selectedMarker) return;
-	if (ev.key === "ArrowRight" || ev.key === "ArrowLeft") {
-		const n = (ev.key === "ArrowRight" ? 1 : -1) * (ev.shiftKey ? 10 : 1);
-		change({ op: "marker.step", markerId: selectedMarker, steps: n });
-		ev.preventDefault();
-	}
-});
-
-// ---- buttons, inputs and forms ----
-
-document.addEventListener("click", (ev) => {
-	const row = ev.target.closest("#readout-body tr[data-marker]");
-	if (row) select(row.dataset.marker);
-	const res = ev.target.closest("tr[data-mark-sweep]");
-	if (res) {
-		const d = res.dataset;
-		if (!canEdit) viewOnly("placing a marker");
-		else change({ op: "marker.add", sweepId: d.markSweep, port: Number(d.markPort), freqHz: Number(d.markF) });
-		return;
-	}
-	const va = ev.target.closest("button[data-view-action]");
-	if (va) { viewAction(va); return; }
-	const b = ev.target.closest("button[data-action]");
-	if (!b || !canEdit) return;
-	const d = b.dataset;
-	switch (d.action) {
-	case "undo": change({ op: "undo" }); break;
-	case "redo": change({ op: "redo" }); break;
-	case "step": change({ op: "marker.step", markerId: d.marker, steps: Number(d.steps) }); break;
-	case "dip": change({ op: "marker.to_dip", markerId: d.marker }); break;
-	case "remove-marker": change({ op: "marker.remove", markerId: d.marker }); break;
-	case "remove-sweep": change({ op: "sweep.remove", sweepId: d.sweep }); break;
-	case "remove-band": change({ op: "band.remove", bandId: d.band }); break;
-	case "part-add": send({ type: "form", form: "part.add", fields: { kind: d.kind } }); break;
-	case "part-move": change({ op: "part.move", partId: d.part, index: Number(d.index) }); break;
-	case "part-remove": change({ op: "part.remove", partId: d.part }); break;
-	case "search-use": send({ type: "form", form: "search.use", fields: { index: d.index } }); break;
-	case "synth-use": send({ type: "form", form: "synth.use", fields: { index: d.index } }); break;
-	case "stub-use": send({ type: "form", form: "stub.use", fields: { index: d.index, ...lineSettings() } }); break;
-	case "qw-use": send({ type: "form", form: "qw.use", fields: { index: d.index, ...lineSettings() } }); break;
-	case "search-cancel": send({ type: "action", action: "search-cancel" }); break;
-	case "tune-use": send({ type: "form", form: "tune.use", fields: { tuneId: d.tune, index: d.index } }); break;
-	default: send({ type: "action", action: d.action, fields: { ...d } });
-	}
-});
-
-document.addEventListener("change", (ev) => {
-	const el = ev.target;
-	if (!el.dataset) return;
-	if (viewChange(el)) return;
-	if (!canEdit) return;
-	const d = el.dataset;
-	if (d.partValue) {
-		clearTimeout(typeTimer);
-		if (lastTyped[d.partValue] === el.value.trim() && !el.classList.contains("invalid")) {
-			// Sent as it was typed: show it as the server wrote it back.
-			el.value = el.getAttribute("value");
-			return;
-		}
-		partSet(d.partValue, { value: el.value, gesture: typeGesture(d.partValue) });
-		return;
-	}
-	if (d.partFine) {
-		sliding = false;
-		fineSlide = null;
-		flushPending();
-		return;
-	}
-	if (d.partSeries !== undefined && d.partSeries) { partSet(d.partSeries, { series: el.value }); return; }
-	if (d.partModel) { partSet(d.partModel, { model: el.value }); return; }
-	if (d.partSlider) {
-		sliding = false;
-		partSet(d.partSlider, { log: el.value, gesture: slide && slide.el === el ? slide.gesture : "" });
-		slide = null;
-		flushPending();
-		return;
-	}
-	if (d.change === "network.select") { change({ op: "network.select", networkId: el.value }); return; }
-	if (!d.change) return;
-	const op = el.dataset.change;
-	const ch = { op, sweepId: el.dataset.sweep };
-	if (op === "sweep.visible") ch.visible = el.checked;
-	else if (op === "sweep.color") ch.color = el.value;
-	else if (op === "sweep.rename") ch.name = el.value;
-	change(ch);
-});
-
-document.addEventListener("submit", (ev) => {
-	const vf = ev.target.closest("form[data-view-form]");
-	if (vf) { ev.preventDefault(); viewForm(vf); return; }
-	const form = ev.target.closest("form[data-form]");
-	if (!form) {
-		leaving = true;
-		return;
-	}
-	ev.preventDefault();
-	if (!canEdit) return;
-	const fields = {};
-	for (const el of form.elements) {
-		if (!el.name) continue;
-		fields[el.name] = el.type === "checkbox" ? String(el.checked) : el.value;
-	}
-	send({ type: "form", form: form.dataset.form, fields });
-});
-
-// lineSettings are the line figures typed for the stub and quarter-wave
-// solutions.
-function lineSettings() {
-	const f = $("#line-settings");
-	const out = {};
-	if (!f) return out;
-	for (const n of ["vf", "loss", "lossRef"]) {
-		const e = f.elements.namedItem(n);
-		if (e) out[n] = e.value;
-	}
-	return out;
-}
-
-// Fields marked data-keep keep what was typed in them when their panel is
-// drawn again.
-const kept = {};
-document.addEventListener("input", (ev) => {
-	const k = ev.target.dataset && ev.target.dataset.keep;
-	if (k) kept[k] = ev.target.value;
-});
-
-function restoreKept() {
-	document.querySelectorAll("[data-keep]").forEach((e) => {
-		if (kept[e.dataset.keep] !== undefined && document.activeElement !== e) e.value = kept[e.dataset.keep];
-	});
-}
-
-function partSet(partId, fields) {
-	send({ type: "form", form: "part.set", fields: { partId, ...fields } });
-}
-
-// A part's slider drags its value: one gesture per slide, at most one
-// message per frame.
-let slide = null;
-document.addEventListener("input", (ev) => {
-	const el = ev.target;
-	if (!canEdit || !el.dataset) return;
-	if (el.dataset.partValue) { typed(el); return; }
-	if (el.dataset.partFine) { fine(el); return; }
-	if (!el.dataset.partSlider) return;
-	sliding = true;
-	if (!slide || slide.el !== el) slide = { el, gesture: `s${Date.now().toString(36)}`, raf: 0 };
-	if (slide.raf) return;
-	slide.raf = requestAnimationFrame(() => {
-		slide.raf = 0;
-		partSet(el.dataset.partSlider, { log: el.value, gesture: slide.gesture });
-	});
-});
-document.addEventListener("focusout", () => { if (!sliding) setTimeout(flushPending, 0); });
-
-// ---- amplifier panel: dragging a termination (server/amp.go, web/amp.templ) ----
-// The Γs handle of the source-plane chart and the ΓL handle of the
-// load-plane chart drag like a marker: at most one amp.point change per
-// animation frame, one gesture (one undo step) per drag. The server
-// answers with the two handles and the readout.
-document.addEventListener("pointerdown", (ev) => {
-	const fig = ev.target.closest(".amp-chart[data-plane]");
-	if (!fig || !canEdit || !ev.target.closest("g.handle")) return;
-	startDrag("amp", fig.dataset.plane, ev, fig.querySelector("svg"));
-});
-document.addEventListener("pointermove", (ev) => {
-	if (!drag || drag.kind !== "amp") return;
-	queueMove({ op: "amp.point", plane: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
-});
-
-// ---- uploads ----
+onAction("remove-sweep", (d) => change({ op: "sweep.remove", sweepId: d.sweep }));
+onChange("sweep.visible", (el) => change({ op: "sweep.visible", sweepId: el.dataset.sweep, visible: el.checked }));
+onChange("sweep.color", (el) => change({ op: "sweep.color", sweepId: el.dataset.sweep, color: el.value }));
+onChange("sweep.rename", (el) => change({ op: "sweep.rename", sweepId: el.dataset.sweep, name: el.value }));
 
 // The files are copied out of the picker's live list first: the picker is
 // cleared at once so that the same file can be chosen again, and a live
@@ -647,14 +627,6 @@ function showUploadLog() {
 	}
 }
 
-// The sweeps' "plane…" links open that sweep's reference-plane settings.
-document.addEventListener("click", (ev) => {
-	const a = ev.target.closest && ev.target.closest("a[data-open-plane]");
-	if (!a) return;
-	const d = document.getElementById(`plane-${a.dataset.openPlane}`);
-	if (d) { d.open = true; d.scrollIntoView({ block: "center" }); ev.preventDefault(); }
-});
-
 document.addEventListener("click", (ev) => {
 	const x = ev.target.closest("button[data-dismiss-upload]");
 	if (!x) return;
@@ -684,11 +656,217 @@ document.addEventListener("drop", (ev) => {
 	d.classList.remove("over");
 	if (ev.dataTransfer && ev.dataTransfer.files.length) upload(ev.dataTransfer.files);
 });
-document.addEventListener("change", (ev) => {
-	if (ev.target.id === "file-input" && ev.target.files.length) {
-		upload(ev.target.files);
-		ev.target.value = "";
+
+// ---- bands ----
+
+onAction("remove-band", (d) => change({ op: "band.remove", bandId: d.band }));
+
+// ---- network panel: networks, parts and their values ----
+//
+// A part's value is typed (sent as it is typed once it ends in a prefix or
+// unit), slid on its logarithmic slider or on the fine ±10 % slider, or
+// snapped to a series and model; each is a part.set form (partSet).
+
+onAction("part-add", (d) => form("part.add", { kind: d.kind }));
+onAction("part-move", (d) => change({ op: "part.move", partId: d.part, index: Number(d.index) }));
+onAction("part-remove", (d) => change({ op: "part.remove", partId: d.part }));
+onChange("network.select", (el) => change({ op: "network.select", networkId: el.value }));
+
+function partSet(partId, fields) {
+	return form("part.set", { partId, ...fields });
+}
+
+// partChange handles a changed control of a part's row; it returns false
+// for others.
+function partChange(el) {
+	const d = el.dataset;
+	if (d.partValue) {
+		clearTimeout(typeTimer);
+		if (lastTyped[d.partValue] === el.value.trim() && !el.classList.contains("invalid")) {
+			// Sent as it was typed: show it as the server wrote it back.
+			el.value = el.getAttribute("value");
+			return true;
+		}
+		partSet(d.partValue, { value: el.value, gesture: typeGesture(d.partValue) });
+		return true;
 	}
+	if (d.partFine) {
+		sliding = false;
+		fineSlide = null;
+		flushPending();
+		return true;
+	}
+	if (d.partSeries !== undefined && d.partSeries) { partSet(d.partSeries, { series: el.value }); return true; }
+	if (d.partModel) { partSet(d.partModel, { model: el.value }); return true; }
+	if (d.partSlider) {
+		sliding = false;
+		partSet(d.partSlider, { log: el.value, gesture: slide && slide.el === el ? slide.gesture : "" });
+		slide = null;
+		flushPending();
+		return true;
+	}
+	return false;
+}
+
+// A part's slider drags its value: one gesture per slide, at most one
+// message per frame.
+let slide = null;
+document.addEventListener("input", (ev) => {
+	const el = ev.target;
+	if (!canEdit || !el.dataset) return;
+	if (el.dataset.partValue) { typed(el); return; }
+	if (el.dataset.partFine) { fine(el); return; }
+	if (!el.dataset.partSlider) return;
+	sliding = true;
+	if (!slide || slide.el !== el) slide = { el, gesture: `s${Date.now().toString(36)}`, raf: 0 };
+	if (slide.raf) return;
+	slide.raf = requestAnimationFrame(() => {
+		slide.raf = 0;
+		partSet(el.dataset.partSlider, { log: el.value, gesture: slide.gesture });
+	});
+});
+document.addEventListener("focusout", () => { if (!sliding) setTimeout(flushPending, 0); });
+
+// Typing a part's value: the figures answer as it is typed.
+//
+// A value is sent half a second after the last key once it ends in a
+// prefix or unit (3.9n, 1.2 pF, 0.25λ): a bare number is most likely
+// unfinished. The typing of one field is one undo step. A value the server
+// refuses is marked on the field, not announced.
+
+const typing = new Map(); // message id → field
+const lastTyped = {}; // part → the text last sent while typing
+let typeTimer = 0;
+let typeGestures = {};
+
+function typeGesture(partId) {
+	if (!typeGestures[partId]) typeGestures[partId] = `t${Date.now().toString(36)}${partId}`;
+	return typeGestures[partId];
+}
+
+document.addEventListener("focusin", (ev) => {
+	if (ev.target.dataset && ev.target.dataset.partValue) typeGestures = {};
+});
+
+// Leaving a field whose typing was applied shows the value as the server
+// wrote it back ("160n" becomes "160 nH"). A field refocused after its
+// panel was redrawn fires no change event, so this is done on focusout.
+document.addEventListener("focusout", (ev) => {
+	const el = ev.target;
+	const id = el.dataset && el.dataset.partValue;
+	if (!id || lastTyped[id] !== el.value.trim() || el.classList.contains("invalid")) return;
+	clearTimeout(typeTimer);
+	el.value = el.getAttribute("value");
+});
+
+function typed(el) {
+	clearTimeout(typeTimer);
+	const text = el.value.trim();
+	if (!/[a-zA-Zµμλ\u03a9]\s*$/.test(text)) return;
+	typeTimer = setTimeout(() => {
+		const id = nextID;
+		if (partSet(el.dataset.partValue, { value: text, gesture: typeGesture(el.dataset.partValue) })) {
+			typing.set(id, el.dataset.partValue);
+			lastTyped[el.dataset.partValue] = text;
+		}
+	}, 500);
+}
+
+function typingField(id) {
+	return document.querySelector(`[data-part-value="${CSS.escape(typing.get(id) || "")}"]`);
+}
+
+function typingError(id, msg) {
+	const el = typingField(id);
+	typing.delete(id);
+	if (el) { el.classList.add("invalid"); el.title = msg; }
+}
+
+function typingOK(id) {
+	const el = typingField(id);
+	typing.delete(id);
+	if (el) { el.classList.remove("invalid"); el.title = ""; }
+}
+
+// The fine slider: ±10 % about the value it started from.
+
+let fineSlide = null;
+
+function fine(el) {
+	const id = el.dataset.partFine;
+	sliding = true;
+	if (!fineSlide || fineSlide.el !== el) {
+		fineSlide = { el, base: Number(el.dataset.partBase), gesture: `f${Date.now().toString(36)}`, raf: 0 };
+	}
+	if (fineSlide.raf) return;
+	fineSlide.raf = requestAnimationFrame(() => {
+		fineSlide.raf = 0;
+		const x = Number(el.value);
+		partSet(id, { log: String(fineSlide.base + Math.log10(1 + 0.1 * x)), gesture: fineSlide.gesture });
+	});
+}
+
+// ---- search: the network search, its progress, and the solutions ----
+//
+// A running search reports its progress; its designs, the L-networks, the
+// stubs and the quarter-wave lines go into the network with "use" (the
+// line solutions with the line figures typed beside them).
+
+onAction("search-use", (d) => form("search.use", { index: d.index }));
+onAction("synth-use", (d) => form("synth.use", { index: d.index }));
+onAction("stub-use", (d) => form("stub.use", { index: d.index, ...lineSettings() }));
+onAction("qw-use", (d) => form("qw.use", { index: d.index, ...lineSettings() }));
+onAction("search-cancel", () => send({ type: "action", action: "search-cancel" }));
+
+// lineSettings are the line figures typed for the stub and quarter-wave
+// solutions.
+function lineSettings() {
+	const f = $("#line-settings");
+	return f ? fieldsOf(f, ["vf", "loss", "lossRef"]) : {};
+}
+
+// showProgress shows a running search's progress bar and status.
+function showProgress(msg) {
+	const row = $("#search-progress-row");
+	if (!row) return;
+	row.hidden = false;
+	const bar = $("#search-progress");
+	if (bar && msg.total > 0) { bar.max = msg.total; bar.value = msg.done; }
+	const st = $("#search-status");
+	if (st) st.textContent = msg.msg || (msg.total > 0 ? `${Math.round(100 * msg.done / msg.total)} %` : "");
+	const c = $("#search-cancel");
+	if (c) c.hidden = !msg.running;
+	if (bar) bar.hidden = !msg.running;
+}
+
+// ---- reference plane ----
+
+// The sweeps' "plane…" links open that sweep's reference-plane settings.
+document.addEventListener("click", (ev) => {
+	const a = ev.target.closest && ev.target.closest("a[data-open-plane]");
+	if (!a) return;
+	const d = document.getElementById(`plane-${a.dataset.openPlane}`);
+	if (d) { d.open = true; d.scrollIntoView({ block: "center" }); ev.preventDefault(); }
+});
+
+// ---- bench tuning ----
+
+// A suggested swap of a tuning round becomes the next network.
+onAction("tune-use", (d) => form("tune.use", { tuneId: d.tune, index: d.index }));
+
+// ---- amplifier panel: dragging a termination (server/amp.go, web/amp.templ) ----
+// The Γs handle of the source-plane chart and the ΓL handle of the
+// load-plane chart drag like a marker: at most one amp.point change per
+// animation frame, one gesture (one undo step) per drag. The server
+// answers with the two handles and the readout.
+document.addEventListener("pointerdown", (ev) => {
+	const fig = ev.target.closest(".amp-chart[data-plane]");
+	if (!fig || !canEdit || !ev.target.closest("g.handle")) return;
+	startDrag("amp", fig.dataset.plane, ev, fig.querySelector("svg"));
+});
+document.addEventListener("pointermove", (ev) => {
+	if (!drag || drag.kind !== "amp") return;
+	queueMove({ op: "amp.point", plane: drag.id, gamma: toGamma(drag.svg, ev.clientX, ev.clientY), gesture: drag.gesture });
 });
 
 // ---- the page's own view: chart reference, zoom and pan, plots, span ----
@@ -888,6 +1066,8 @@ function startPan(ev, svg) {
 	ev.preventDefault();
 }
 
+// movePan moves the chart's middle by the pointer's displacement (a
+// distance on the screen, not a point: it needs no svgPoint).
 function movePan(ev) {
 	const g = chartGeometry(pan.svg);
 	const kD = g.k * view.zoom / g.zoom;
@@ -945,84 +1125,7 @@ function endSpanDrag(ev) {
 	sendView();
 }
 
-// ---- typing a part's value: the figures answer as it is typed ----
-//
-// A value is sent half a second after the last key once it ends in a
-// prefix or unit (3.9n, 1.2 pF, 0.25λ): a bare number is most likely
-// unfinished. The typing of one field is one undo step. A value the server
-// refuses is marked on the field, not announced.
-
-const typing = new Map(); // message id → field
-const lastTyped = {}; // part → the text last sent while typing
-let typeTimer = 0;
-let typeGestures = {};
-
-function typeGesture(partId) {
-	if (!typeGestures[partId]) typeGestures[partId] = `t${Date.now().toString(36)}${partId}`;
-	return typeGestures[partId];
-}
-
-document.addEventListener("focusin", (ev) => {
-	if (ev.target.dataset && ev.target.dataset.partValue) typeGestures = {};
-});
-
-// Leaving a field whose typing was applied shows the value as the server
-// wrote it back ("160n" becomes "160 nH"). A field refocused after its
-// panel was redrawn fires no change event, so this is done on focusout.
-document.addEventListener("focusout", (ev) => {
-	const el = ev.target;
-	const id = el.dataset && el.dataset.partValue;
-	if (!id || lastTyped[id] !== el.value.trim() || el.classList.contains("invalid")) return;
-	clearTimeout(typeTimer);
-	el.value = el.getAttribute("value");
-});
-
-function typed(el) {
-	clearTimeout(typeTimer);
-	const text = el.value.trim();
-	if (!/[a-zA-Zµμλ\u03a9]\s*$/.test(text)) return;
-	typeTimer = setTimeout(() => {
-		const id = nextID;
-		if (send({ type: "form", form: "part.set", fields: { partId: el.dataset.partValue, value: text, gesture: typeGesture(el.dataset.partValue) } })) {
-			typing.set(id, el.dataset.partValue);
-			lastTyped[el.dataset.partValue] = text;
-		}
-	}, 500);
-}
-
-function typingField(id) {
-	return document.querySelector(`[data-part-value="${CSS.escape(typing.get(id) || "")}"]`);
-}
-
-function typingError(id, msg) {
-	const el = typingField(id);
-	typing.delete(id);
-	if (el) { el.classList.add("invalid"); el.title = msg; }
-}
-
-function typingOK(id) {
-	const el = typingField(id);
-	typing.delete(id);
-	if (el) { el.classList.remove("invalid"); el.title = ""; }
-}
-
-// ---- the fine slider: ±10 % about the value it started from ----
-
-let fineSlide = null;
-
-function fine(el) {
-	const id = el.dataset.partFine;
-	sliding = true;
-	if (!fineSlide || fineSlide.el !== el) {
-		fineSlide = { el, base: Number(el.dataset.partBase), gesture: `f${Date.now().toString(36)}`, raf: 0 };
-	}
-	if (fineSlide.raf) return;
-	fineSlide.raf = requestAnimationFrame(() => {
-		fineSlide.raf = 0;
-		const x = Number(el.value);
-		partSet(id, { log: String(fineSlide.base + Math.log10(1 + 0.1 * x)), gesture: fineSlide.gesture });
-	});
-}
+// ---- start ----
 
 updateExportLinks();
 
