@@ -83,16 +83,16 @@ func prepareNetwork(n *sessions.Network, sw *rfmath.Sweep) *netEval {
 }
 
 // designOf adapts the stored network's parts to the design type that the
-// search, the yield, the panel and the exports all judge: the one adapter
-// from stored parts to rfmath.
+// search, the yield, the panel and the exports all judge, each by the one
+// adapter from a stored part to rfmath ([sessions.Part.Design]).
 func designOf(n *sessions.Network) (match.Network, error) {
 	out := make(match.Network, len(n.Parts))
 	for i, p := range n.Parts {
-		m, err := parts.LookupModel(p.Model)
+		d, err := p.Design()
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", designator(n.Parts, i), err)
 		}
-		out[i] = match.Part{Kind: p.Kind, Value: p.Value, Series: p.ESeries, Model: m, Params: p.Params}
+		out[i] = d
 	}
 	return out, nil
 }
