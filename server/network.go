@@ -320,6 +320,9 @@ func (sc *scene) networkView() web.NetworkView {
 		v.Metrics = append(v.Metrics, metricRow(b.Name, m.Bands[idx[i]]))
 	}
 	v.HasBuy = ne.buy != nil
+	if svg, err := sc.schematicSVG("net-"); err == nil {
+		v.Schematic = svg
+	}
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
 	v.Limits = sc.limitsView()

@@ -2,7 +2,6 @@ package server
 
 import (
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -67,7 +66,12 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 }
 
 func (s *Server) start(w http.ResponseWriter, r *http.Request) {
-	v := web.StartView{Local: isLoopback(r)}
+	s.render(w, r, http.StatusOK, web.StartPage(s.startView(r, "")))
+}
+
+// startView builds the start page, with msg as its error when not empty.
+func (s *Server) startView(r *http.Request, msg string) web.StartView {
+	v := web.StartView{Local: isLoopback(r), Error: msg}
 	if s.cfg.LAN {
 		v.LAN = s.cfg.ShareHosts
 	}
@@ -90,7 +94,7 @@ func (s *Server) start(w http.ResponseWriter, r *http.Request) {
 			})
 		}
 	}
-	s.render(w, r, http.StatusOK, web.StartPage(v))
+	return v
 }
 
 // openLocal sends the bench computer's own user to a session by its id
@@ -281,24 +285,30 @@ func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
 	http.Error(w, "no such plot", http.StatusNotFound)
 }
 
+// exportMarkers sends the markers' readouts as CSV. Labels and sweep
+// names are the user's text: a cell that a spreadsheet would run as a
+// formula is neutralised (safeCell); the numbers are written as they are.
 func (s *Server) exportMarkers(w http.ResponseWriter, r *http.Request) {
 	sc, ok := s.requestScene(w, r)
 	if !ok {
 		return
 	}
-	attachment(w, safeName(sc.st.Name)+"-markers.csv", "text/csv; charset=utf-8")
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
-		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"})
+	rows := [][]string{{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
+		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"}}
 	for _, m := range sc.readouts() {
 		ro := m.ro
-		cw.Write([]string{
+		rows = append(rows, []string{
 			fmt.Sprint(m.num), m.label, m.sweepName, fmt.Sprintf("S%d%d", m.port, m.port),
 			g(ro.FreqHz), g(real(ro.Z)), g(imag(ro.Z)), g(ro.GammaMag), g(ro.GammaDeg),
 			g(ro.ReturnLossDB), g(ro.VSWR), g(ro.MismatchLossDB), g(ro.Q), ro.Equiv.Kind, g(ro.Equiv.Value),
 		})
 	}
-	cw.Flush()
+	b, err := csvBytes(rows, func(col int) bool { return col >= 4 && col != 13 })
+	if err != nil {
+		s.exportFailed(w, "markers list", err)
+		return
+	}
+	send(w, safeName(sc.st.Name)+"-markers.csv", "text/csv; charset=utf-8", b)
 }
 
 // requestScene builds the scene of the request's session, answering the

@@ -305,29 +305,42 @@ func (sc *scene) computeTDR() (*plot, string) {
 	return &plot{id: "tdr", title: "Time domain", p: rp, series: series, bands: bands}, note
 }
 
+// planeSteps says what a sweep's reference plane does, step by step, in
+// the order they are applied: the panel, the report and the exported
+// files' headers use these words.
+func planeSteps(st *sessions.State, rp *sessions.RefPlane) []string {
+	var steps []string
+	if rp.FixtureSweepID != "" {
+		steps = append(steps, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
+	}
+	if rp.DelayS != 0 {
+		steps = append(steps, "port extension of "+units.Format(rp.DelayS, "s", 4)+" (one way)")
+	}
+	if rp.LossDB != 0 {
+		steps = append(steps, fmt.Sprintf("port extension loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
+	}
+	if rp.FlatLossDB != 0 {
+		steps = append(steps, fmt.Sprintf("port extension flat loss %.3g dB", rp.FlatLossDB))
+	}
+	if rp.RenormOhm > 0 {
+		steps = append(steps, "renormalised to "+units.Format(rp.RenormOhm, "Ω", 4))
+	}
+	return steps
+}
+
 // refPlaneView builds the reference-plane and time-domain panels.
 func (sc *scene) refPlaneView() web.RefPlaneView {
 	v := web.RefPlaneView{}
 	for _, ref := range sc.st.Sweeps {
 		o := web.RefPlaneRow{ID: ref.ID, Name: ref.Name, Ports: ref.Ports}
 		if rp := ref.RefPlane; rp != nil {
-			var parts []string
-			if rp.FixtureSweepID != "" {
-				parts = append(parts, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(sc.st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
+			o.Summary = strings.Join(planeSteps(sc.st, rp), "; ")
+			base := "sweeps/" + ref.ID + "/corrected."
+			o.Exports = []web.Option{
+				{Value: base + "s" + strconv.Itoa(ref.Ports) + "p", Label: "Touchstone 1.1 (.s" + strconv.Itoa(ref.Ports) + "p)"},
+				{Value: base + "ts", Label: "Touchstone 2.1 (.ts)"},
+				{Value: base + "csv", Label: "CSV"},
 			}
-			if rp.DelayS != 0 {
-				parts = append(parts, "delay "+units.Format(rp.DelayS, "s", 4))
-			}
-			if rp.LossDB != 0 {
-				parts = append(parts, fmt.Sprintf("loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
-			}
-			if rp.FlatLossDB != 0 {
-				parts = append(parts, fmt.Sprintf("flat loss %.3g dB", rp.FlatLossDB))
-			}
-			if rp.RenormOhm > 0 {
-				parts = append(parts, "shown in "+units.Format(rp.RenormOhm, "Ω", 4))
-			}
-			o.Summary = strings.Join(parts, "; ")
 			o.Delay = units.Format(rp.DelayS, "s", 5)
 			o.Loss = strconv.FormatFloat(rp.LossDB, 'g', 5, 64)
 			o.LossRef = fmtF(rp.LossRefHz)

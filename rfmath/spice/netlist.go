@@ -147,7 +147,7 @@ func Write(w io.Writer, n match.Network, opt Options) ([]PartSummary, error) {
 
 	var out bytes.Buffer
 	for _, c := range opt.Comments {
-		fmt.Fprintf(&out, "* %s\n", ascii(c))
+		fmt.Fprintf(&out, "* %s\n", ascii(strings.TrimSpace(c)))
 	}
 	fmt.Fprintf(&out, "* Subcircuit %s: pin SRC faces the source, pin LOAD the load; node 0 is ground (not a pin).\n", name)
 	fmt.Fprintf(&out, "* The network sits in a line of reference %s ohm. Parts are listed from the load toward the source.\n", value(opt.Fit.Z0Ohm))
