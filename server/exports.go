@@ -104,6 +104,10 @@ func asciiOnly(lines []string) []string {
 				b.WriteString("u")
 			case r == '–' || r == '−':
 				b.WriteByte('-')
+			case r == '·':
+				b.WriteByte('-')
+			case r == '≥':
+				b.WriteString(">=")
 			case r == '√':
 				b.WriteString("sqrt ")
 			case r == '∝':

@@ -405,7 +405,7 @@ func ascii(s string) string {
 			b.WriteString("ohm")
 		case r == 'µ' || r == 'μ':
 			b.WriteString("u")
-		case r == '–' || r == '—' || r == '−':
+		case r == '–' || r == '—' || r == '−' || r == '·':
 			b.WriteByte('-')
 		case r >= 0x20 && r <= 0x7e:
 			b.WriteRune(r)
