@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"matchbench/rfmath"
@@ -75,6 +76,30 @@ func (f *freqFlag) Set(s string) error {
 	return nil
 }
 
+// quantityFlag is a flag of a physical quantity in unit, with an SI prefix
+// and the unit optional, as frequencies are typed: "8mm", "0.8cm" and
+// "0.008" for a length in metres, "500mW" for a power.
+type quantityFlag struct {
+	unit string
+	v    float64
+}
+
+func (q *quantityFlag) String() string {
+	if q == nil || q.v == 0 {
+		return ""
+	}
+	return units.Format(q.v, q.unit, 6)
+}
+
+func (q *quantityFlag) Set(s string) error {
+	v, err := units.ParseValue(s, q.unit)
+	if err != nil {
+		return err
+	}
+	q.v = v
+	return nil
+}
+
 // loadedSweep is a sweep read from disk with what the file said about it.
 type loadedSweep struct {
 	Path     string
@@ -116,10 +141,10 @@ func defaultDataDir() string {
 }
 
 // writeSweepFile writes s to path as CSV (.csv, 1-port), Touchstone 2
-// (.ts) or Touchstone 1 (.sNp, N the port count), through a temporary file
-// renamed into place, so a failed write leaves no half file. opt.Version
-// zero means by the ending; comments that are not printable ASCII are
-// dropped from Touchstone headers.
+// (.ts) or Touchstone 1 (.sNp, N the port count; version 2 when the ports'
+// references differ), through a temporary file renamed into place, so a
+// failed write leaves no half file. opt.Version zero means by the ending;
+// comments that are not printable ASCII are dropped from Touchstone headers.
 func writeSweepFile(path string, s *rfmath.Sweep, opt touchstone.WriteOptions) error {
 	ext := strings.ToLower(filepath.Ext(path))
 	switch {
@@ -140,8 +165,11 @@ func writeSweepFile(path string, s *rfmath.Sweep, opt touchstone.WriteOptions) e
 		if n != s.Ports {
 			return usagef("%s names a %d-port file but the sweep has %d ports: name it .s%dp", path, n, s.Ports, s.Ports)
 		}
-		if opt.Version == 0 {
-			opt.Version = 1
+		// Version 0 lets the writer choose: 1, or 2 when the ports'
+		// references differ, which version 1 cannot hold.
+		if opt.Version == 1 && !slices.Equal(s.Z0, slices.Repeat(s.Z0[:1], s.Ports)) {
+			return usagef("%s: Touchstone version 1 has one reference resistance for every port, but this sweep's ports have %s Ω: write --version 2, or renormalise to one reference first (matchbench deembed --z0)",
+				path, strings.Trim(strings.Join(strings.Fields(fmt.Sprint(s.Z0)), ", "), "[]"))
 		}
 	}
 	var ascii []string

@@ -17,12 +17,15 @@ import (
 
 	"matchbench/rfmath"
 	"matchbench/rfmath/limits"
+	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
 )
 
 // checkReport is what `matchbench check --json` prints. Keys are part of the
 // command-line contract; add, never rename.
 type checkReport struct {
+	// Network is the network file each load was judged through, if any.
+	Network string          `json:"network,omitempty"`
 	Bands   []bandJSON      `json:"bands"`
 	Files   []checkFileJSON `json:"files"`
 	Summary checkSummary    `json:"summary"`
@@ -126,6 +129,7 @@ func runCheck(_ context.Context, args []string, stdout, stderr io.Writer) error 
 	fs.Var(limitFlag{limits.Power, &lims}, "min-power", "least share of the available power the load takes over the band: a `percentage` (80%) or a loss (1dB) (repeatable)")
 	limitFile := fs.String("limits", "", "read bands and limits from this limit `file` (see the README for its format)")
 	port := fs.Int("port", 1, "check the reflection S(N,N) of this `port` of multi-port files")
+	netPath := fs.String("network", "", "judge each file through this matching network: a network `file` (NET.json) as `match --json`, `tune` and the web app write it; each file is then the load the network is fitted to")
 	asJSON := fs.Bool("json", false, "print one JSON object")
 	fs.Usage = func() {
 		fmt.Fprintf(stderr, "usage: matchbench check %s\n\n", checkUsage)
@@ -148,7 +152,23 @@ func runCheck(_ context.Context, args []string, stdout, stderr io.Writer) error 
 	if *port < 1 {
 		return usagef("--port %d: ports count from 1", *port)
 	}
-	rep := checkFiles(files, bands, *port)
+	var through *placedNetwork
+	if *netPath != "" {
+		data, err := os.ReadFile(*netPath)
+		if err != nil {
+			return usagef("--network: %v", err)
+		}
+		nets, lays, err := match.UnmarshalNetworks(data)
+		if err != nil {
+			return usagef("--network %s: %v", *netPath, err)
+		}
+		p, err := lays[0].Place(nets[0])
+		if err != nil {
+			return usagef("--network %s: %v", *netPath, err)
+		}
+		through = &placedNetwork{path: *netPath, net: p.Network}
+	}
+	rep := checkFiles(files, bands, *port, through)
 	if *asJSON {
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
@@ -216,8 +236,11 @@ func checkBands(bandArgs []string, lims []limits.Band, limitFile string) ([]limi
 
 // checkFiles reads and checks every file, several at once, and returns the
 // report with the files in the order given.
-func checkFiles(files []string, bands []limits.Band, port int) *checkReport {
+func checkFiles(files []string, bands []limits.Band, port int, through *placedNetwork) *checkReport {
 	rep := &checkReport{Files: make([]checkFileJSON, len(files))}
+	if through != nil {
+		rep.Network = through.path
+	}
 	for _, b := range bands {
 		rep.Bands = append(rep.Bands, bandJSON{LoHz: b.LoHz, HiHz: b.HiHz, Kind: b.Kind.String(), Value: b.Value, MinReturnLossDB: b.MinReturnLossDB(), Label: b.Label})
 	}
@@ -230,7 +253,7 @@ func checkFiles(files []string, bands []limits.Band, port int) *checkReport {
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				rep.Files[i], results[i] = checkFile(files[i], bands, port)
+				rep.Files[i], results[i] = checkFile(files[i], bands, port, through)
 			}
 		}()
 	}
@@ -286,8 +309,41 @@ func checkFiles(files []string, bands []limits.Band, port int) *checkReport {
 	return rep
 }
 
-// checkFile reads one file and checks it against the bands.
-func checkFile(path string, bands []limits.Band, port int) (checkFileJSON, []limits.Result) {
+// placedNetwork is a matching network the files are judged through.
+type placedNetwork struct {
+	path string
+	net  match.Network
+}
+
+// checkThrough checks the load g at freqHz, seen through the network n,
+// against each band: the band's requirement (a return loss, a VSWR as its
+// return loss, or a least power to the load) judged by match.Evaluate, the
+// evaluator of every design's band figures, so that the network's loss
+// counts in the power to the load. A band outside the sweep is not covered.
+func checkThrough(freqHz []float64, g []complex128, z0 float64, bands []limits.Band, n match.Network) []limits.Result {
+	load := match.Load{FreqHz: freqHz, Gamma: g, Z0Ohm: z0}
+	out := make([]limits.Result, len(bands))
+	for i, b := range bands {
+		r := limits.Result{Band: b, MarginDB: math.NaN()}
+		req := b.Requirement()
+		m, err := match.Evaluate(load, []match.Band{{LoHz: b.LoHz, HiHz: b.HiHz, MinReturnLossDB: req.MinReturnLossDB, MinPowerToLoad: req.MinPowerToLoad}}, n)
+		if err == nil {
+			f := m.Bands[0]
+			r.Covered, r.Points = true, f.Points
+			r.WorstHz, r.WorstReturnLossDB, r.WorstPowerToLoad, r.MarginDB = f.WorstRLHz, f.WorstRLdB, f.WorstPowerToLoad, f.MarginDB
+			if b.Kind == limits.Power {
+				r.WorstHz = f.WorstPowerHz
+			}
+			r.Pass = r.MarginDB >= 0
+		}
+		out[i] = r
+	}
+	return out
+}
+
+// checkFile reads one file and checks it against the bands, through the
+// network when there is one.
+func checkFile(path string, bands []limits.Band, port int, through *placedNetwork) (checkFileJSON, []limits.Result) {
 	out := checkFileJSON{File: path}
 	ls, err := loadSweep(path)
 	if err != nil {
@@ -300,7 +356,12 @@ func checkFile(path string, bands []limits.Band, port int) (checkFileJSON, []lim
 		return out, nil
 	}
 	g := s.Param(nil, port-1, port-1)
-	res := limits.Check(s.FreqHz, g, bands)
+	var res []limits.Result
+	if through != nil {
+		res = checkThrough(s.FreqHz, g, s.Z0[port-1], bands, through.net)
+	} else {
+		res = limits.Check(s.FreqHz, g, bands)
+	}
 	out.Pass = true
 	for i, r := range res {
 		out.Bands = append(out.Bands, bandResultJSON{Band: i, Covered: r.Covered, Pass: r.Pass, FreqHz: r.WorstHz, ReturnLossDB: jsonNum(r.WorstReturnLossDB),
@@ -317,6 +378,9 @@ func checkFile(path string, bands []limits.Band, port int) (checkFileJSON, []lim
 
 func printCheck(w io.Writer, rep *checkReport, bands []limits.Band) {
 	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
+	if rep.Network != "" {
+		fmt.Fprintf(w, "Each file is the load, seen through the network of %s (its parts' losses count in the power to the load):\n", rep.Network)
+	}
 	for _, f := range rep.Files {
 		switch {
 		case f.Error != "":
@@ -357,19 +421,6 @@ func printCheck(w io.Writer, rep *checkReport, bands []limits.Band) {
 			fmt.Fprintf(w, "Worst board: %s, margin %s dB at %s\n", s.WorstFile, signed(m), ff(s.WorstHz))
 		}
 	}
-}
-
-// signed writes a margin with its sign: +1.52, −0.83.
-func signed(v float64) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "+∞"
-	case math.IsInf(v, -1):
-		return "−∞"
-	case v < 0:
-		return fmt.Sprintf("−%.2f", -v)
-	}
-	return fmt.Sprintf("+%.2f", v)
 }
 
 var _ flag.Value = limitFlag{}

@@ -279,3 +279,62 @@ func BenchmarkCheck1000(b *testing.B) {
 		}
 	}
 }
+
+// TestCheckThroughNetwork judges the wrist tag's three invented
+// conditions through the network the set search chose (match --json, a
+// network file): all three fail 10 dB alone and pass through it, and each
+// file's figures are those match prints for that member (one evaluator,
+// match.Evaluate).
+func TestCheckThroughNetwork(t *testing.T) {
+	t.Parallel()
+	files := []string{"testdata/demo/wristtag-antenna.s1p", "testdata/demo/wristtag-wrist.s1p", "testdata/demo/wristtag-enclosure.s1p"}
+	code, out, errOut := runCLI(t, append(append([]string{"match"}, files...), "--band", "2.4G:2.4835G", "--parts", "3", "--builds", "0", "--top", "1", "--json")...)
+	if code != 0 {
+		t.Fatalf("match: %d %s", code, errOut)
+	}
+	net := filepath.Join(t.TempDir(), "net.json")
+	if err := os.WriteFile(net, []byte(out), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var ds []struct {
+		Members []struct {
+			Bands []struct {
+				WorstRLdB        float64 `json:"worst_rl_db"`
+				WorstPowerToLoad float64 `json:"worst_power_to_load"`
+			} `json:"bands"`
+		} `json:"members"`
+	}
+	if err := json.Unmarshal([]byte(out), &ds); err != nil {
+		t.Fatal(err)
+	}
+	code, _, _ = runCLI(t, append(append([]string{"check"}, files...), "--band", "2.4G:2.4835G", "--rl", "10")...)
+	if code != 1 {
+		t.Errorf("alone: exit %d, want 1 (every file fails)", code)
+	}
+	code, out, errOut = runCLI(t, append(append([]string{"check"}, files...), "--band", "2.4G:2.4835G", "--rl", "10", "--network", net, "--json")...)
+	if code != 0 {
+		t.Fatalf("through the network: exit %d: %s %s", code, out, errOut)
+	}
+	var rep struct {
+		Network string `json:"network"`
+		Files   []struct {
+			Pass  bool `json:"pass"`
+			Worst struct {
+				ReturnLossDB float64 `json:"worst_return_loss_db"`
+				PowerToLoad  float64 `json:"worst_power_to_load"`
+			} `json:"worst"`
+		} `json:"files"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	for i, f := range rep.Files {
+		m := ds[0].Members[i].Bands[0]
+		if !f.Pass || f.Worst.ReturnLossDB != m.WorstRLdB || f.Worst.PowerToLoad != m.WorstPowerToLoad || rep.Network != net {
+			t.Errorf("file %d: %+v; match says %+v", i, f, m)
+		}
+	}
+	if code, _, errOut := runCLI(t, "check", files[0], "--band", "2.4G:2.4835G", "--rl", "10", "--network", "nope.json"); code != exitUsage || !strings.Contains(errOut, "nope.json") {
+		t.Errorf("missing network file: %d %q", code, errOut)
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"math"
 	"path/filepath"
 	"strconv"
+	"strings"
 
 	"matchbench/rfmath/deembed"
 	"matchbench/rfmath/touchstone"
@@ -14,6 +15,23 @@ import (
 )
 
 const deembedUsage = "IN OUT [--fixture F.s2p [--fixture-port 1|2]] [--fixture2 F.s2p [--fixture2-port 1|2]] [--delay 1.26ns] [--loss DB] [--auto-open OPEN.s1p | --auto-short SHORT.s1p] [--port N] [--z0 OHMS]"
+
+// delaySE writes the standard error of a fitted delay to two significant
+// digits; below 1 fs, far finer than any analyser resolves (a fit to exact
+// data), as "< 1 fs".
+func delaySE(se float64) string {
+	if se < 0.5e-15 {
+		return "< 1 fs"
+	}
+	return units.Format(se, "s", 2)
+}
+
+// asciiPlusMinus is plusMinus in ASCII, for the steps that also go into a
+// Touchstone header, which holds printable ASCII only: "+ 0.0000",
+// "- 0.0123".
+func asciiPlusMinus(v float64, digits int) string {
+	return strings.Replace(plusMinus(v, digits), "−", "-", 1)
+}
 
 // deembedSteps records what was done, for the report and the file header.
 type deembedSteps []string
@@ -123,9 +141,9 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 			return fmt.Errorf("%s: %w", path, err)
 		}
 		ext = fit.Extension
-		steps.add("fitted on the %s end %s: delay %s (+/- %s), loss %.4f dB at %s (sqrt f) + %.4f dB flat; residual %.2f deg, %.3f dB rms; offset %.2f deg",
-			std, filepath.Base(path), units.Format(ext.DelayS, "s", 6), units.Format(fit.DelaySE, "s", 2), ext.LossDB, units.FormatFrequency(ext.LossRefHz, 4),
-			ext.FlatLossDB, fit.PhaseRMSDeg, fit.MagRMSDB, fit.OffsetDeg)
+		steps.add("fitted on the %s end %s: delay %s (+/- %s), loss %s dB at %s (sqrt f) %s dB flat; residual %s deg, %s dB rms; offset %s deg",
+			std, filepath.Base(path), units.Format(ext.DelayS, "s", 6), delaySE(fit.DelaySE), fmtNum(ext.LossDB, 4), units.FormatFrequency(ext.LossRefHz, 4),
+			asciiPlusMinus(ext.FlatLossDB, 4), fmtNum(fit.PhaseRMSDeg, 2), fmtNum(fit.MagRMSDB, 3), fmtNum(fit.OffsetDeg, 2))
 	}
 	if ext.DelayS != 0 || ext.LossDB != 0 || ext.FlatLossDB != 0 {
 		exts := make([]deembed.Extension, s.Ports)
@@ -139,7 +157,7 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 		if *port != 0 {
 			where = fmt.Sprintf("port %d", *port)
 		}
-		steps.add("port extension at %s: delay %s, loss %.4g dB at %s + %.4g dB flat", where, units.Format(ext.DelayS, "s", 6), ext.LossDB, units.FormatFrequency(ext.LossRefHz, 4), ext.FlatLossDB)
+		steps.add("port extension at %s: delay %s, loss %s dB at %s %s dB flat", where, units.Format(ext.DelayS, "s", 6), fmtNum(ext.LossDB, 4), units.FormatFrequency(ext.LossRefHz, 4), asciiPlusMinus(ext.FlatLossDB, 4))
 	}
 
 	// 3. Reference.

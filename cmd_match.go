@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -33,6 +35,12 @@ type matchDesignJSON struct {
 	Stress           []stressJSON    `json:"stress,omitempty"`
 	Model            string          `json:"model"`
 	Search           *searchInfoJSON `json:"search,omitempty"`
+	// A search across several files: each member's figures, and the member
+	// and band of least margin.
+	Members     []memberJSON `json:"members,omitempty"`
+	WorstMember string       `json:"worst_member,omitempty"`
+	WorstBand   *int         `json:"worst_band,omitempty"`
+	MeanPower   *jsonNum     `json:"weighted_mean_power_to_load,omitempty"`
 }
 
 type matchBandJSON struct {
@@ -66,6 +74,17 @@ func bandJSONOf(b match.BandResult) matchBandJSON {
 	}
 }
 
+type memberJSON struct {
+	File             string          `json:"file"`
+	Advisory         bool            `json:"advisory,omitempty"`
+	Weight           float64         `json:"weight"`
+	WorstRLdB        jsonNum         `json:"worst_rl_db"`
+	WorstPowerToLoad jsonNum         `json:"worst_power_to_load"`
+	MarginDB         jsonNum         `json:"margin_db"`
+	Meets            bool            `json:"meets"`
+	Bands            []matchBandJSON `json:"bands"`
+}
+
 type limitJSON struct {
 	Fit           string  `json:"fit"`
 	FitErrorGamma float64 `json:"fit_error_gamma"`
@@ -91,11 +110,11 @@ type searchInfoJSON struct {
 }
 
 func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet("match", "FILE --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--top 5] [--json]", stderr)
+	fs := newFlagSet("match", "FILE [FILE ...] | --set DIR --band LO:HI[:RL] [--band ...] [--rl DB] [--min-power 80%] [--series E24] [--parts 3] [--ideal | --size 0402 | --q L=30,C=300] [--objective power|rl] [--lot] [--top 5] [--builds 1000] [--power 1W] [--radius 8mm] [--json]", stderr)
 	var bandArgs listFlag
 	fs.Var(&bandArgs, "band", "a band to match, `LO:HI[:RL]` (SI prefixes: 2.40G:2.4835G, or 863M:870M:12 with its own return loss); repeatable")
 	rl := fs.Float64("rl", 10, "required return `loss` in dB for bands that do not give their own")
-	series := fs.String("series", "E24", "E-`series` of the part values (E6, E12, E24, E48, E96), or one per kind: L=E12,C=E24")
+	series := fs.String("series", "E24", "E-`series` of the part values (E6, E12, E24, E48, E96, E192), or one per kind: L=E12,C=E24")
 	nParts := fs.Int("parts", 3, "largest `number` of parts in a ladder (1 to 4); smaller ladders are searched too")
 	ideal := fs.Bool("ideal", false, "lossless parts without parasitics (to compare with hand calculations)")
 	size := fs.String("size", "0402", "case `size` whose typical part models to use (0402, 0603; typical values from memory, not a vendor's data)")
@@ -105,15 +124,29 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	top := fs.Int("top", 5, "number of designs to print (the best of each ladder shape)")
 	window := fs.Int("window", 0, "search only ±`N` standard values around each continuous optimum (0: the whole range when it is small enough; -1: always the whole range)")
 	builds := fs.Int("builds", 1000, "Monte Carlo `builds` per design for the yield under typical tolerances (0: none)")
-	power := fs.Float64("power", 0, "input `watts`: print each part's peak voltage and RMS current in the best design and warn above its rating")
-	radius := fs.Float64("radius", 0, "radius in `metres` of the sphere around the antenna: compare the sweep's Q with the Chu limit")
+	var power, radius quantityFlag
+	power.unit, radius.unit = "W", "m"
+	fs.Var(&power, "power", "input `power` (0.5, 500mW, 2W): print each part's peak voltage and RMS current in the best design and warn above its rating")
+	fs.Var(&radius, "radius", "`radius` of the sphere around the antenna (8mm, 0.8cm, 0.008): compare the sweep's Q with the Chu limit")
 	asJSON := fs.Bool("json", false, "print a JSON array of designs")
+	setDir := fs.String("set", "", "match every sweep file in this `folder` at once (a set of conditions or a lot), as if each were given")
+	lot := fs.Bool("lot", false, "the files are boards of a lot: the yield judges each build on one board drawn at random (by weight), not on every file")
+	var advisory, weights listFlag
+	fs.Var(&advisory, "advisory", "a `FILE` of the set that is judged and shown but does not bind the design (repeatable)")
+	fs.Var(&weights, "weight", "`FILE=W`: the weight of one file of the set in a lot's draws and the weighted mean (default 1; repeatable)")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
-	if len(pos) != 1 {
-		return usagef("want one sweep file, got %d arguments", len(pos))
+	if *setDir != "" {
+		more, err := setFiles(*setDir)
+		if err != nil {
+			return err
+		}
+		pos = append(pos, more...)
+	}
+	if len(pos) == 0 {
+		return usagef("want a sweep file (or several, or --set DIR)")
 	}
 	if math.IsNaN(*rl) || math.IsInf(*rl, 0) {
 		return usagef("--rl %g: not a number of dB", *rl)
@@ -139,7 +172,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *top < 1 {
 		return usagef("--top %d: want at least 1", *top)
 	}
-	if *builds < 0 || *power < 0 || *radius < 0 || math.IsNaN(*power) || math.IsNaN(*radius) {
+	if *builds < 0 || power.v < 0 || radius.v < 0 {
 		return usagef("--builds, --power and --radius must not be negative")
 	}
 	obj, err := match.ParseObjective(*objective)
@@ -175,29 +208,25 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		model, modelName = fam, "typical "+fam.Name
 	}
 
-	ls, err := loadSweep(pos[0])
+	members, err := loadMembers(pos, advisory, weights, bands)
 	if err != nil {
 		return err
 	}
-	load, err := match.LoadFromSweep(ls.Sweep, 0)
-	if err != nil {
-		return err
-	}
-	for _, b := range bands {
-		if b.LoHz < load.FreqHz[0] || b.HiHz > load.FreqHz[len(load.FreqHz)-1] {
-			return usagef("--band %s lies outside the sweep (%s to %s)", b,
-				units.FormatFrequency(load.FreqHz[0], 6), units.FormatFrequency(load.FreqHz[len(load.FreqHz)-1], 6))
-		}
+	load := members[0].Load
+	isSet := len(members) > 1
+	kind := match.Conditions
+	if *lot {
+		kind = match.Lot
 	}
 
 	set := &match.Settings{LSeries: lSer, CSeries: cSer, Model: model, MaxParts: *nParts, Top: *top, Window: *window, Objective: obj}
 	t0 := time.Now()
-	res, err := match.Search(ctx, load, bands, set)
+	res, err := match.SearchSet(ctx, members, bands, set)
 	if err != nil {
 		return err
 	}
 	took := time.Since(t0)
-	lim, fit, limErr := match.BodeFanoOf(load, bands)
+	lim, fit, limErr := match.BodeFanoOfSet(members, bands)
 
 	designs := make([]matchDesignJSON, len(res.Designs))
 	for i, d := range res.Designs {
@@ -214,8 +243,26 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		for _, b := range d.Bands {
 			j.Bands = append(j.Bands, bandJSONOf(b))
 		}
+		if isSet {
+			for mi, mm := range d.Members {
+				mj := memberJSON{File: members[mi].Name, Advisory: members[mi].Advisory, Weight: members[mi].Weight,
+					WorstRLdB: jsonNum(mm.WorstRLdB), WorstPowerToLoad: jsonNum(mm.WorstPowerToLoad), MarginDB: jsonNum(mm.MarginDB), Meets: mm.Meets()}
+				if mj.Weight == 0 {
+					mj.Weight = 1
+				}
+				for _, b := range mm.Bands {
+					mj.Bands = append(mj.Bands, bandJSONOf(b))
+				}
+				j.Members = append(j.Members, mj)
+			}
+			if d.WorstMember >= 0 {
+				wb := d.WorstBand
+				mp := jsonNum(d.MeanPowerToLoad)
+				j.WorstMember, j.WorstBand, j.MeanPower = members[d.WorstMember].Name, &wb, &mp
+			}
+		}
 		if *builds > 0 {
-			y, err := match.Yield(ctx, load, bands, d.Network, &match.YieldSettings{Builds: *builds})
+			y, err := match.YieldSet(ctx, members, kind, bands, d.Network, &match.YieldSettings{Builds: *builds})
 			if err != nil {
 				return err
 			}
@@ -226,8 +273,8 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		if i == 0 {
 			j.Search = &searchInfoJSON{res.Objective.String(), res.Exact, res.Window, res.Combinations, took.Seconds()}
-			if *power > 0 {
-				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: *power})
+			if power.v > 0 {
+				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: power.v})
 				if err != nil {
 					return err
 				}
@@ -240,12 +287,12 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	var chu *match.Chu
 	var chuErr error
-	if *radius > 0 {
+	if radius.v > 0 {
 		lo, hi := bands[0].LoHz, bands[0].HiHz
 		for _, b := range bands {
 			lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
 		}
-		c, err := match.ChuCompare(load, math.Sqrt(lo*hi), *radius)
+		c, err := match.ChuCompare(load, math.Sqrt(lo*hi), radius.v)
 		chu, chuErr = &c, err
 	}
 
@@ -261,12 +308,15 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		}
 		return nil
 	}
-	printMatch(stdout, ls.Path, load, bands, res, designs, modelName, lSer, cSer, took)
+	printMatch(stdout, members, bands, res, designs, modelName, lSer, cSer, took)
 	fmt.Fprintln(stdout)
 	if limErr != nil {
 		fmt.Fprintf(stdout, "Bode–Fano: no RC, RL or RLC model fits the load near the bands (%v).\n", limErr)
 	} else {
-		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %.3f in Γ).\n", fit, fit.RMSGammaError)
+		fmt.Fprintf(stdout, "Bode–Fano: near the bands the load looks like a %s (fit error %s in Γ).\n", fit, fmtNum(fit.RMSGammaError, 3))
+		if !fit.Trusted() {
+			fmt.Fprintf(stdout, "  The fit misses the load by more than %s in Γ: too poor to trust the limit below.\n", fmtSig(match.FitTrustRMSGamma, 2))
+		}
 		fmt.Fprintf(stdout, "  No lossless network of any order can hold more than %s dB across all the bands at once", fmtDB(lim.BestRLdB))
 		fmt.Fprintf(stdout, " (largest common margin over the requirements: %s dB)", signed(lim.MaxMarginDB))
 		if lim.BestRLdB >= 60 {
@@ -286,19 +336,23 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chuErr)
 			if limErr == nil && fit.ResonanceHz() > 0 {
 				f0 := fit.ResonanceHz()
-				ka := match.KA(*radius, f0)
+				ka := match.KA(radius.v, f0)
 				ratio := fit.Q() / match.ChuQ(ka)
-				fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %.3g; a sphere of radius %s there has ka = %.3f, so Q ≥ %.3g (Chu; McLean 1996): %.2f × the limit%s.\n",
-					fit.RLC, units.FormatFrequency(f0, 6), fit.Q(), units.Format(*radius, "m", 3), ka, match.ChuQ(ka), ratio, belowChu(ratio))
+				fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
+					fit.RLC, units.FormatFrequency(f0, 6), fmtSig(fit.Q(), 3), units.Format(radius.v, "m", 3), fmtNum(ka, 3), fmtSig(match.ChuQ(ka), 3), fmtNum(ratio, 2), belowChu(ratio))
 			}
 		} else {
-			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %.3f, so Q ≥ %.3g.\n",
-				units.Format(*radius, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), chu.KA, chu.ChuQ)
-			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %.3g (%.2f × the limit%s).\n", chu.Measured.Q, chu.Ratio, belowChu(chu.Ratio))
+			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %s, so Q ≥ %s.\n",
+				units.Format(radius.v, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3))
+			how := ""
+			if chu.SlopeQ {
+				how = ", from the impedance's slope as a half-power edge lies beyond the sweep"
+			}
+			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %s%s (%s × the limit%s).\n", fmtSig(chu.Measured.Q, 3), how, fmtNum(chu.Ratio, 2), belowChu(chu.Ratio))
 		}
 	}
-	if *power > 0 {
-		printStress(stdout, designs[0], *power)
+	if power.v > 0 {
+		printStress(stdout, designs[0], power.v)
 	}
 	return nil
 }
@@ -328,10 +382,20 @@ func unmetNote(best match.Design, lim match.Limit, limErr error) string {
 	return s
 }
 
-func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, res *match.Result, designs []matchDesignJSON, model, lSer, cSer string, took time.Duration) {
+func printMatch(w io.Writer, members []match.Member, bands []match.Band, res *match.Result, designs []matchDesignJSON, model, lSer, cSer string, took time.Duration) {
 	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
-	fmt.Fprintf(w, "%s: S11, %d points, %s to %s, reference %s\n", path, len(load.FreqHz),
-		ff(load.FreqHz[0]), ff(load.FreqHz[len(load.FreqHz)-1]), units.Format(load.Z0Ohm, "Ω", 4))
+	for _, m := range members {
+		load := m.Load
+		role := ""
+		if m.Advisory {
+			role = " (advisory: judged, does not bind)"
+		}
+		fmt.Fprintf(w, "%s: S11, %d points, %s to %s, reference %s%s\n", m.Name, len(load.FreqHz),
+			ff(load.FreqHz[0]), ff(load.FreqHz[len(load.FreqHz)-1]), units.Format(load.Z0Ohm, "Ω", 4), role)
+	}
+	if len(members) > 1 {
+		fmt.Fprintf(w, "A set of %d loads: every figure below is the worst over the binding loads, each judged on its own points\n", len(members))
+	}
 	var bs []string
 	for _, b := range bands {
 		bs = append(bs, b.String())
@@ -354,7 +418,7 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 	}
 	fmt.Fprintf(w, "Best by: %s\n", goal)
 	fmt.Fprintf(w, "Searched %d ladder shapes, %.3g networks, %s, in %s\n", res.Topologies, res.Combinations, mode, took.Round(time.Millisecond))
-	if len(res.Designs) > 0 {
+	if len(res.Designs) > 0 && len(members) == 1 {
 		fmt.Fprint(w, "No network:")
 		for _, b := range res.Designs[0].Bands {
 			fmt.Fprintf(w, "  %s–%s worst RL %s, worst power to the load %s;", ff(b.LoHz), ff(b.HiHz), units.FormatDB(b.Unmatched.WorstRLdB), units.FormatShare(b.Unmatched.WorstPowerToLoad))
@@ -402,6 +466,105 @@ func printMatch(w io.Writer, path string, load match.Load, bands []match.Band, r
 	if designs[0].Yield != nil {
 		fmt.Fprintln(w, "(yield: share of random builds meeting every requirement, with typical tolerances ±2 % or ±0.1 nH, ±2 % or ±0.05 pF — from memory)")
 	}
+	if len(members) > 1 && len(res.Designs) > 0 {
+		printMembers(w, members, bands, res.Designs[0])
+	}
+}
+
+// printMembers shows design 1 on every member of a set.
+func printMembers(w io.Writer, members []match.Member, bands []match.Band, d match.Design) {
+	ff := func(f float64) string { return units.FormatFrequency(f, 6) }
+	fmt.Fprintf(w, "\nDesign 1 on each load (the least margin is on %s, %s–%s):\n", members[d.WorstMember].Name, ff(bands[d.WorstBand].LoHz), ff(bands[d.WorstBand].HiHz))
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+	fmt.Fprint(tw, "  load\tmargin\t")
+	for _, b := range bands {
+		fmt.Fprintf(tw, "%s–%s RL worst, power worst (alone)\t", ff(b.LoHz), ff(b.HiHz))
+	}
+	fmt.Fprintln(tw)
+	for i, m := range d.Members {
+		name := members[i].Name
+		if members[i].Advisory {
+			name += " (advisory)"
+		}
+		verdict := "meets"
+		if !m.Meets() {
+			verdict = "misses"
+		}
+		fmt.Fprintf(tw, "  %s\t%s dB %s\t", name, signed(m.MarginDB), verdict)
+		for _, b := range m.Bands {
+			fmt.Fprintf(tw, "%s, %s (%s)\t", units.FormatDB(b.WorstRLdB), units.FormatPercent(b.WorstPowerToLoad, 1), units.FormatPercent(b.Unmatched.WorstPowerToLoad, 1))
+		}
+		fmt.Fprintln(tw)
+	}
+	tw.Flush()
+}
+
+// setFiles lists the sweep files of a folder, sorted.
+func setFiles(dir string) ([]string, error) {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return nil, usagef("--set %s: %v", dir, err)
+	}
+	var out []string
+	for _, e := range entries {
+		if e.IsDir() {
+			continue
+		}
+		switch ext := strings.ToLower(filepath.Ext(e.Name())); {
+		case ext == ".csv", ext == ".ts", len(ext) >= 4 && ext[:2] == ".s" && ext[len(ext)-1] == 'p':
+			out = append(out, filepath.Join(dir, e.Name()))
+		}
+	}
+	if len(out) == 0 {
+		return nil, usagef("--set %s: no sweep files (.sNp, .ts or .csv) in the folder", dir)
+	}
+	return out, nil
+}
+
+// loadMembers reads the files as the members of a set (one file is a set
+// of one), with their advisory marks and weights, and checks that each
+// covers every band.
+func loadMembers(paths, advisory, weights []string, bands []match.Band) ([]match.Member, error) {
+	w := map[string]float64{}
+	for _, s := range weights {
+		f, v, ok := strings.Cut(s, "=")
+		x, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+		if !ok || err != nil || !(x > 0) || math.IsInf(x, 0) {
+			return nil, usagef("--weight %q: want FILE=W with a positive weight", s)
+		}
+		w[f] = x
+	}
+	adv := map[string]bool{}
+	for _, a := range advisory {
+		adv[a] = true
+	}
+	var ms []match.Member
+	for _, p := range paths {
+		ls, err := loadSweep(p)
+		if err != nil {
+			return nil, err
+		}
+		load, err := match.LoadFromSweep(ls.Sweep, 0)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", p, err)
+		}
+		for _, b := range bands {
+			if b.LoHz < load.FreqHz[0] || b.HiHz > load.FreqHz[len(load.FreqHz)-1] {
+				return nil, usagef("--band %s lies outside the sweep of %s (%s to %s)", b, p,
+					units.FormatFrequency(load.FreqHz[0], 6), units.FormatFrequency(load.FreqHz[len(load.FreqHz)-1], 6))
+			}
+		}
+		ms = append(ms, match.Member{Name: p, Load: load, Weight: w[p], Advisory: adv[p]})
+		delete(w, p)
+		delete(adv, p)
+	}
+	for f := range w {
+		return nil, usagef("--weight %s: not one of the files", f)
+	}
+	for f := range adv {
+		return nil, usagef("--advisory %s: not one of the files", f)
+	}
+	return ms, nil
 }
 
 func printStress(w io.Writer, d matchDesignJSON, powerW float64) {

@@ -193,3 +193,61 @@ func TestParseBand(t *testing.T) {
 		t.Errorf("default RL: %+v, %v", b, err)
 	}
 }
+
+// TestMatchSet runs the search across the wrist tag's three invented
+// conditions (internal/demo): the design that is best in free space alone
+// misses 10 dB on the wrist, the design for the set meets it in all three,
+// and the JSON carries each member's figures. --set takes a folder.
+func TestMatchSet(t *testing.T) {
+	t.Parallel()
+	free, wrist, encl := "testdata/demo/wristtag-antenna.s1p", "testdata/demo/wristtag-wrist.s1p", "testdata/demo/wristtag-enclosure.s1p"
+	type member struct {
+		File  string `json:"file"`
+		Meets bool   `json:"meets"`
+		Bands []struct {
+			WorstRLdB        float64 `json:"worst_rl_db"`
+			WorstPowerToLoad float64 `json:"worst_power_to_load"`
+		} `json:"bands"`
+	}
+	type design struct {
+		Parts       []json.RawMessage `json:"parts"`
+		Meets       bool              `json:"meets"`
+		WorstMember string            `json:"worst_member"`
+		WorstBand   *int              `json:"worst_band"`
+		Members     []member          `json:"members"`
+	}
+	run := func(args ...string) []design {
+		t.Helper()
+		code, out, errOut := runCLI(t, append(append([]string{"match"}, args...), "--parts", "3", "--builds", "100", "--top", "1", "--json")...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d: %s", args, code, errOut)
+		}
+		var ds []design
+		if err := json.Unmarshal([]byte(out), &ds); err != nil {
+			t.Fatal(err)
+		}
+		return ds
+	}
+	// The free-space design, judged on the other two without letting them
+	// bind.
+	single := run(free, wrist, encl, "--advisory", wrist, "--advisory", encl, "--band", "2.4G:2.4835G")[0]
+	if single.Members[0].File != free || !single.Members[0].Meets || single.Members[1].Meets {
+		t.Errorf("free-space optimum: %+v", single.Members)
+	}
+	set := run(free, wrist, encl, "--band", "2.4G:2.4835G")[0]
+	if !set.Meets || len(set.Members) != 3 || set.WorstMember != wrist || set.WorstBand == nil || *set.WorstBand != 0 {
+		t.Errorf("set design: %+v", set)
+	}
+	for _, m := range set.Members {
+		if !m.Meets || m.Bands[0].WorstRLdB < 10 || !(m.Bands[0].WorstPowerToLoad > 0.8) {
+			t.Errorf("set design on %s: %+v", m.File, m)
+		}
+	}
+	lot := run("--set", "testdata/demo/fieldnode-lot", "--band", "902M:928M", "--lot")
+	if len(lot[0].Members) != 5 || !strings.HasPrefix(lot[0].Members[0].File, "testdata/demo/fieldnode-lot/") {
+		t.Errorf("--set: %+v", lot[0].Members)
+	}
+	if code, _, errOut := runCLI(t, "match", free, wrist, "--band", "2.4G:2.4835G", "--advisory", "nope.s1p"); code != exitUsage || !strings.Contains(errOut, "nope.s1p") {
+		t.Errorf("--advisory of no file: %d %q", code, errOut)
+	}
+}

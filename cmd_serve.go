@@ -30,6 +30,8 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	maxMB := fs.Int("max-upload-mb", 20, "largest sweep file accepted, in `MB`")
 	noDemo := fs.Bool("no-demo", false, "do not create the demo sessions on first start")
 	verbose := fs.Bool("v", false, "log every request (routes only; never the links' tokens)")
+	var extraHosts listFlag
+	fs.Var(&extraHosts, "host", "another `name` (NAME or NAME:PORT) requests may address this server by, such as its name on the lab network; repeatable. Requests naming other hosts are refused")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -40,11 +42,37 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if *maxMB < 1 || *maxMB > 4096 {
 		return usagef("--max-upload-mb %d: use 1 to 4096", *maxMB)
 	}
+	for _, h := range extraHosts {
+		if h == "" || strings.ContainsAny(h, "/ \t@?#") {
+			return usagef("--host %q: give a host name, optionally with :PORT (e.g. --host bench-pc.lab)", h)
+		}
+	}
 	level := slog.LevelInfo
 	if *verbose {
 		level = slog.LevelDebug
 	}
 	log := slog.New(slog.NewTextHandler(stderr, &slog.HandlerOptions{Level: level}))
+
+	// Listen first: a busy port is refused before the data folder or any
+	// demo session exists.
+	ln, err := net.Listen("tcp", *listen)
+	if err != nil {
+		if errors.Is(err, syscall.EADDRINUSE) {
+			return fmt.Errorf("%s is already in use (is matchbench already running?); choose another port, e.g. --listen %s", *listen, nextPort(*listen))
+		}
+		return fmt.Errorf("cannot listen on %s: %w", *listen, err)
+	}
+	defer ln.Close()
+	addr := ln.Addr().(*net.TCPAddr)
+	lan := !addr.IP.IsLoopback()
+	hosts := shareHosts(addr)
+	var names []string
+	for _, h := range extraHosts {
+		names = append(names, withPort(h, addr.Port))
+	}
+	if lan {
+		hosts = append(hosts, names...)
+	}
 
 	store, err := sessions.Open(*data)
 	if err != nil {
@@ -55,25 +83,15 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	defer store.Close()
 
+	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, Hosts: names, LAN: lan})
+
 	var demoLink string
 	if !*noDemo {
-		if demoLink, err = seedDemo(ctx, store); err != nil {
+		if demoLink, err = seedDemo(ctx, store, srv); err != nil {
 			return fmt.Errorf("creating the demo sessions: %w", err)
 		}
 	}
-
-	ln, err := net.Listen("tcp", *listen)
-	if err != nil {
-		if errors.Is(err, syscall.EADDRINUSE) {
-			return fmt.Errorf("%s is already in use (is matchbench already running?); choose another port, e.g. --listen %s", *listen, nextPort(*listen))
-		}
-		return fmt.Errorf("cannot listen on %s: %w", *listen, err)
-	}
-	addr := ln.Addr().(*net.TCPAddr)
-	lan := !addr.IP.IsLoopback()
-	hosts := shareHosts(addr)
-	srv := server.New(server.Config{Store: store, Log: log, MaxUploadBytes: int64(*maxMB) << 20, ShareHosts: hosts, LAN: lan})
-	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
+	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, IdleTimeout: 2 * time.Minute, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)}
 
 	local := fmt.Sprintf("http://127.0.0.1:%d/", addr.Port)
 	if !addr.IP.IsUnspecified() {
@@ -107,6 +125,14 @@ func runServe(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	return nil
+}
+
+// withPort adds port to a host name given without one.
+func withPort(h string, port int) string {
+	if _, _, err := net.SplitHostPort(h); err == nil {
+		return h
+	}
+	return net.JoinHostPort(strings.Trim(h, "[]"), fmt.Sprint(port))
 }
 
 // nextPort suggests the same address with the port one higher.
@@ -144,13 +170,16 @@ func shareHosts(addr *net.TCPAddr) []string {
 }
 
 // seedDemo creates the demo sessions when the store has none, and returns
-// the edit token of the first demo session ("" when none was made). Each
-// demo shows the whole loop on invented data: the sweep as measured (for
+// the edit token of the first demo session ("" when none was made). The
+// third is the transistor stage (seedStageDemo). The first two show the
+// whole loop on invented data: the sweep as measured (for
 // the Fieldnode, through its cable, with the cable's fixture removed as a
 // reference-plane step), the bands, markers, and a network of standard
 // 0402 values chosen by the loss-aware search, with the search's designs
-// in the panel.
-func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
+// in the panel. The Fieldnode's also holds its first prototype board as
+// built and one round of bench tuning on it, fitted by srv as an editor's
+// form would.
+func seedDemo(ctx context.Context, st *sessions.Store, srv *server.Server) (string, error) {
 	list, err := st.List(ctx)
 	if err != nil || len(list) > 0 {
 		return "", err
@@ -167,13 +196,17 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 		bands   []demo.Band
 		markers []float64
 		parts   int
+		set     []string // sweeps of a load set of conditions, when the demo has one
+		setName string
+		built   string // a sweep among hidden of the network's first board as built, for a round of tuning
 	}
 	plans := []plan{
 		{"Demo · Fieldnode trace antenna (invented data)",
-			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p"}, "cable-fixture.s2p",
-			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3},
+			[]string{"fieldnode-via-cable.s1p"}, []string{"cable-fixture.s2p", "cable-open-end.s1p", "fieldnode-antenna.s1p", "fieldnode-first-build.s1p"}, "cable-fixture.s2p",
+			demo.FieldnodeBands, []float64{866.5e6, 915e6}, 3, nil, "", "fieldnode-first-build.s1p"},
 		{"Demo · Wristtag chip antenna (invented data)",
-			[]string{"wristtag-antenna.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3},
+			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, nil, "", demo.WristtagBands, []float64{2.44e9}, 3,
+			[]string{"wristtag-antenna.s1p", "wristtag-wrist.s1p", "wristtag-enclosure.s1p"}, "Wristtag in free space, on a wrist, in its enclosure", ""},
 	}
 	first := ""
 	for _, p := range plans {
@@ -230,28 +263,74 @@ func seedDemo(ctx context.Context, st *sessions.Store) (string, error) {
 				return "", err
 			}
 		}
-		if err := seedSearch(ctx, st, se.ID, ids[loadName], load, bands, p.parts, p.markers[0]); err != nil {
+		if p.set == nil {
+			if err := seedSearch(ctx, st, se.ID, ids[loadName], "", []match.Member{{Load: mustLoad(load)}}, bands, p.parts, p.markers[0], "Search 1"); err != nil {
+				return "", err
+			}
+			if p.built != "" {
+				_, lay := demoFieldnodeNetwork()
+				var traces []string
+				for _, t := range lay.Traces {
+					traces = append(traces, t.String())
+				}
+				fields := map[string]string{"builtId": ids[p.built], "footprint": lay.Footprint.Name, "traces": strings.Join(traces, "; ")}
+				if err := srv.FitTuneRound(ctx, se.ID, fields); err != nil {
+					return "", fmt.Errorf("the demo's round of tuning: %w", err)
+				}
+			}
+			continue
+		}
+		// A set of conditions: the best network in free space alone and the
+		// best across the set, both judged across it, the second active.
+		var ms []match.Member
+		var members []sessions.SetMember
+		for _, name := range p.set {
+			ms = append(ms, match.Member{Name: name, Load: mustLoad(files[name].Sweep)})
+			members = append(members, sessions.SetMember{SweepID: ids[name]})
+		}
+		ev, err := st.Apply(ctx, se.ID, sessions.Change{Op: sessions.OpSetSave, Name: p.setName, SetKind: sessions.SetConditions, Members: members})
+		if err != nil {
 			return "", err
 		}
+		if err := seedSearch(ctx, st, se.ID, ids[loadName], ev.SetID, ms[:1], bands, p.parts, p.markers[0], "Best in free space alone"); err != nil {
+			return "", err
+		}
+		if err := seedSearch(ctx, st, se.ID, ids[loadName], ev.SetID, ms, bands, p.parts, p.markers[0], "Best across the three conditions"); err != nil {
+			return "", err
+		}
+	}
+	if err := seedStageDemo(ctx, st); err != nil { // demo_stage.go
+		return "", err
 	}
 	return first, nil
 }
 
+// mustLoad returns port 1 of a demo sweep as a load; the demo's own sweeps
+// are valid.
+func mustLoad(s *rfmath.Sweep) match.Load {
+	l, err := match.LoadFromSweep(s, 0)
+	if err != nil {
+		panic("demo: " + err.Error())
+	}
+	return l
+}
+
 // seedSearch runs the loss-aware search of standard E24 values with
-// typical 0402 models on the demo's load, stores its designs in the
-// session as the panel's search would, and makes the best one the active
-// network.
-func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID string, sw *rfmath.Sweep, bands []match.Band, nParts int, designHz float64) error {
-	load, err := match.LoadFromSweep(sw, 0)
+// typical 0402 models on the demo's members (one load, or a set), stores
+// its designs in the session as the panel's search would, and makes the
+// best one the active network, judged across set setID when it is not "".
+func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID, setID string, members []match.Member, bands []match.Band, nParts int, designHz float64, name string) error {
+	res, err := match.SearchSet(ctx, members, bands, &match.Settings{Model: parts.Typical0402, MaxParts: nParts, Top: 6})
 	if err != nil {
 		return err
 	}
-	res, err := match.Search(ctx, load, bands, &match.Settings{Model: parts.Typical0402, MaxParts: nParts, Top: 6})
-	if err != nil {
-		return err
+	across := ""
+	storeSet := ""
+	if len(members) > 1 {
+		across, storeSet = fmt.Sprintf(" across %d conditions", len(members)), setID
 	}
-	out := &sessions.SearchResult{SweepID: sweepID, Port: 1, Exact: res.Exact, Objective: res.Objective.String(),
-		Settings: fmt.Sprintf("up to %d parts, L from E24, C from E24, typical 0402 parts, best by power to the load", nParts)}
+	out := &sessions.SearchResult{SweepID: sweepID, SetID: storeSet, Port: 1, Exact: res.Exact, Objective: res.Objective.String(),
+		Settings: fmt.Sprintf("up to %d parts, L from E24, C from E24, typical 0402 parts, best by power to the load%s", nParts, across)}
 	for _, d := range res.Designs {
 		sd := sessions.Design{WorstRLdB: d.WorstRLdB, MarginDB: d.MarginDB, WorstPowerToLoad: d.WorstPowerToLoad}
 		for _, p := range d.Network {
@@ -262,6 +341,6 @@ func seedSearch(ctx context.Context, st *sessions.Store, sid, sweepID string, sw
 	if _, err := st.Apply(ctx, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
 		return err
 	}
-	_, err = st.Apply(ctx, sid, sessions.Change{Op: sessions.OpNetworkAdd, Name: "Search 1", SweepID: sweepID, Port: 1, DesignHz: designHz, Parts: out.Designs[0].Parts})
+	_, err = st.Apply(ctx, sid, sessions.Change{Op: sessions.OpNetworkAdd, Name: name, SweepID: sweepID, SetID: setID, Port: 1, DesignHz: designHz, Parts: out.Designs[0].Parts})
 	return err
 }

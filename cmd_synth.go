@@ -125,30 +125,31 @@ func synthJSON(s *match.Synthesis) synthReport {
 		Stubs:      []stubJSON{},
 		Notes:      s.Notes,
 	}
+	z := plusZero // no −0 in the output
 	for _, l := range s.LNetworks {
-		r.LNetworks = append(r.LNetworks, lNetworkJSON{string(l.Orientation), partsJSON(l.Parts), l.XOhm, l.BS})
+		r.LNetworks = append(r.LNetworks, lNetworkJSON{string(l.Orientation), partsJSON(l.Parts), z(l.XOhm), z(l.BS)})
 	}
 	for _, n := range s.NoL {
 		r.NoSolution = append(r.NoSolution, noSolutionJSON{string(n.Orientation), n.Reason})
 	}
 	for _, st := range s.Stubs {
-		r.Stubs = append(r.Stubs, stubJSON{string(st.Type), st.DWavelengths, st.LWavelengths})
+		r.Stubs = append(r.Stubs, stubJSON{string(st.Type), z(st.DWavelengths), z(st.LWavelengths)})
 	}
 	for _, q := range s.QuarterWaves {
-		r.QuarterWave = append(r.QuarterWave, quarterJSON{q.DWavelengths, q.ROhm, q.Z1Ohm, q.LWavelengths})
+		r.QuarterWave = append(r.QuarterWave, quarterJSON{z(q.DWavelengths), z(q.ROhm), z(q.Z1Ohm), z(q.LWavelengths)})
 	}
 	return r
 }
 
 func fmtZ(z complex128) string {
 	if imag(z) == 0 {
-		return fmt.Sprintf("%.4g Ω", real(z))
+		return fmtSig(real(z), 4) + " Ω"
 	}
 	sign := "+"
-	if imag(z) < 0 || (imag(z) == 0 && math.Signbit(imag(z))) {
+	if imag(z) < 0 {
 		sign = "−"
 	}
-	return fmt.Sprintf("%.4g %s j%.4g Ω", real(z), sign, math.Abs(imag(z)))
+	return fmt.Sprintf("%s %s j%s Ω", fmtSig(real(z), 4), sign, fmtSig(math.Abs(imag(z)), 4))
 }
 
 func printSynth(w io.Writer, s *match.Synthesis) {
@@ -173,7 +174,7 @@ func printSynth(w io.Writer, s *match.Synthesis) {
 				}
 				desc = strings.Join(ps, ", ")
 			}
-			fmt.Fprintf(w, "    %d. %s   (series X %+.4g Ω, shunt B %+.4g mS)\n", n, desc, l.XOhm, l.BS*1e3)
+			fmt.Fprintf(w, "    %d. %s   (series X %s Ω, shunt B %s mS)\n", n, desc, fmtSigSigned(l.XOhm, 4), fmtSigSigned(l.BS*1e3, 4))
 		}
 		for _, no := range s.NoL {
 			if no.Orientation == o {
@@ -185,14 +186,14 @@ func printSynth(w io.Writer, s *match.Synthesis) {
 		fmt.Fprintf(w, "\nSingle shunt stub on %s line, lengths in wavelengths on the line:\n", units.Format(real(s.ZSource), "Ω", 4))
 		for i := 0; i+1 < len(s.Stubs); i += 2 {
 			o, sh := s.Stubs[i], s.Stubs[i+1]
-			fmt.Fprintf(w, "  stub %.4f λ from the load: open stub %.4f λ, or shorted stub %.4f λ\n", o.DWavelengths, o.LWavelengths, sh.LWavelengths)
+			fmt.Fprintf(w, "  stub %s λ from the load: open stub %s λ, or shorted stub %s λ\n", fmtNum(o.DWavelengths, 4), fmtNum(o.LWavelengths, 4), fmtNum(sh.LWavelengths, 4))
 		}
 	}
 	if len(s.QuarterWaves) > 0 {
 		fmt.Fprintln(w, "\nQuarter-wave transformer (a λ/4 section where the load looks real):")
 		for _, q := range s.QuarterWaves {
-			fmt.Fprintf(w, "  %.4f λ of %s line from the load, where it is %s: a λ/4 section of %s\n",
-				q.DWavelengths, units.Format(real(s.ZSource), "Ω", 4), units.Format(q.ROhm, "Ω", 5), units.Format(q.Z1Ohm, "Ω", 5))
+			fmt.Fprintf(w, "  %s λ of %s line from the load, where it is %s: a λ/4 section of %s\n",
+				fmtNum(q.DWavelengths, 4), units.Format(real(s.ZSource), "Ω", 4), units.Format(q.ROhm, "Ω", 5), units.Format(q.Z1Ohm, "Ω", 5))
 		}
 	}
 	for _, n := range s.Notes {

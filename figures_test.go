@@ -153,11 +153,11 @@ func TestDemoFiguresInREADME(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	token, err := seedDemo(context.Background(), st)
+	srv := server.New(server.Config{Store: st, Log: slog.New(slog.NewTextHandler(io.Discard, nil))})
+	token, err := seedDemo(context.Background(), st, srv)
 	if err != nil {
 		t.Fatal(err)
 	}
-	srv := server.New(server.Config{Store: st, Log: slog.New(slog.NewTextHandler(io.Discard, nil))})
 	ts := httptest.NewServer(srv)
 	t.Cleanup(func() { srv.Shutdown(); ts.Close(); st.Close() })
 	r, err := http.Get(ts.URL + "/s/" + token + "/")

@@ -46,10 +46,12 @@ func commands() []command {
 		{"chart", "draw sweeps on the reflection chart and plots, as SVG files", runChart},
 		{"demo", "write the invented demo sweeps to a folder", runDemo},
 		{"match", "search ladders of standard-value parts for the best match across bands", runMatch},
+		{"tune", "fit the board as built from its re-measurement and suggest the next part swap", runTune},
 		{"synth", "every L-network, stub and quarter-wave match of an impedance at one frequency", runSynth},
 		{"check", "pass or fail sweeps against return-loss limits; a lot summary for many", runCheck},
 		{"deembed", "move the reference plane: remove a fixture or a port extension, renormalise", runDeembed},
 		{"tdr", "time-domain view of a reflection sweep: reflections by distance, impedance, gating", runTDR},
+		{"amp", "a transistor 2-port at one frequency: stability, MAG/MSG, conjugate match, gain and noise circles", runAmp},
 	}
 }
 

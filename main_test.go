@@ -152,7 +152,7 @@ func TestInspectZ0(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &rep); err != nil {
 		t.Fatal(err)
 	}
-	if rep.Z0Ohm != 75 || rep.Readouts[0].GammaMag > 1e-12 || math.Abs(rep.Readouts[0].ROhm-75) > 1e-9 {
+	if rep.Z0Ohm != 75 || rep.Readouts[0].GammaMag > 1e-12 || math.Abs(float64(rep.Readouts[0].ROhm)-75) > 1e-9 {
 		t.Errorf("z0 %g, |Γ| %g, R %g; want 75, 0, 75", rep.Z0Ohm, rep.Readouts[0].GammaMag, rep.Readouts[0].ROhm)
 	}
 }

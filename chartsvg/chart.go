@@ -28,6 +28,13 @@ type Chart struct {
 	// chart. Zero, or a value ≥ 1, shows the whole chart.
 	Zoom float64
 
+	// Centre is the Γ at the middle of a zoomed chart: the chart then shows
+	// the disc |Γ − Centre| ≤ Zoom (with the parts of it outside the unit
+	// circle left blank). It is ignored, and taken as 0, when the whole
+	// chart is shown. The root element carries it as data-gamma-centre
+	// ("re im").
+	Centre complex128
+
 	// VSWRCircles lists circles of constant VSWR (values > 1) to draw.
 	// ReturnLossCircleDB lists circles of constant return loss in dB
 	// (positive values, e.g. 10). QArcs lists arcs of constant loaded
@@ -59,15 +66,33 @@ type Chart struct {
 
 	// NoLegend leaves out the legend strip below the chart.
 	NoLegend bool
+
+	// Tag, when set, is written on the root element as data-tag, so that a
+	// page can tell which of its requests a drawing answers.
+	Tag string
+
+	// Regions are circles and lines drawn from their numbers with a side
+	// shaded, above the grid; Spots are labelled points on top of
+	// everything (see regions.go). A nil slice leaves its layer out.
+	Regions []Region
+	Spots   []Spot
 }
 
 // layout is the geometry derived from the options.
 type layout struct {
-	size float64 // width in user units
-	rpx  float64 // radius of the shown disc in user units
-	k    float64 // user units per unit of Γ
-	zoom float64 // |Γ| at the edge of the shown disc
+	size float64    // width in user units
+	rpx  float64    // radius of the shown disc in user units
+	k    float64    // user units per unit of Γ
+	zoom float64    // radius in Γ of the shown disc
+	c    complex128 // the Γ at the middle of the shown disc
 }
+
+// centred reports whether the shown disc is centred on Γ = 0, so that the
+// rim scales and the labels at the rim apply.
+func (l layout) centred() bool { return l.c == 0 }
+
+// o returns where Γ = 0 is drawn.
+func (l layout) o() pt { return l.xy(0) }
 
 func (c *Chart) layout() layout {
 	size := float64(c.SizePx)
@@ -89,13 +114,22 @@ func (c *Chart) layout() layout {
 	if !(zoom > 0 && zoom < 1) {
 		zoom = 1
 	}
-	return layout{size: size, rpx: rpx, k: rpx / zoom, zoom: zoom}
+	l := layout{size: size, rpx: rpx, k: rpx / zoom, zoom: zoom}
+	if zoom < 1 && finite(c.Centre) {
+		l.c = c.Centre
+	}
+	return l
 }
 
 // Scale returns K, the number of SVG user units per unit of Γ: a point Γ is
-// drawn at (K·Re Γ, −K·Im Γ). The root element carries it as the attribute
-// data-gamma-scale.
+// drawn at (K·Re(Γ − C), −K·Im(Γ − C)) with C the centre of the shown disc
+// (0 unless zoomed with a Centre). The root element carries K as the
+// attribute data-gamma-scale and C as data-gamma-centre.
 func (c *Chart) Scale() float64 { return c.layout().k }
+
+// ShownCentre returns C, the Γ drawn at the middle of the chart: Centre
+// when the chart is zoomed, else 0.
+func (c *Chart) ShownCentre() complex128 { return c.layout().c }
 
 // legend geometry.
 const (
@@ -135,7 +169,17 @@ func (c *Chart) Render(w io.Writer, traces []Trace, markers []Marker, path []Pat
 	sw.attr("font-family", fontFamily)
 	sw.s(` data-gamma-scale="`)
 	sw.g(l.k, 8)
-	sw.s(`" role="img"`)
+	sw.s(`" data-gamma-centre="`)
+	sw.g(real(l.c), 8)
+	sw.b(' ')
+	sw.g(imag(l.c), 8)
+	sw.s(`" data-gamma-radius="`)
+	sw.g(l.zoom, 8)
+	sw.s(`"`)
+	if c.Tag != "" {
+		sw.attr("data-tag", c.Tag)
+	}
+	sw.s(` role="img"`)
 	title := c.Title
 	if title == "" {
 		title = "Reflection coefficient chart"
@@ -154,9 +198,15 @@ func (c *Chart) Render(w io.Writer, traces []Trace, markers []Marker, path []Pat
 	sw.num(height)
 	sw.s(`" fill="#fff"/>`)
 	c.grid(sw, l)
+	if c.Regions != nil {
+		c.regions(sw, l)
+	}
 	c.traces(sw, l, traces)
 	c.path(sw, l, path)
 	c.markers(sw, l, markers)
+	if c.Spots != nil {
+		c.spots(sw, l)
+	}
 	if !c.NoLegend {
 		c.legend(sw, l, traces)
 	}
@@ -216,8 +266,8 @@ func (c *Chart) clipAttr(sw *writer, l layout) {
 // formatValue writes a grid value the short way: 0.2, 1, 20.
 func formatValue(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
-// toXY maps Γ through the layout.
-func (l layout) xy(g complex128) pt { return pt{l.k * real(g), -l.k * imag(g)} }
+// xy maps Γ through the layout.
+func (l layout) xy(g complex128) pt { return pt{l.k * real(g-l.c), -l.k * imag(g-l.c)} }
 
 // finite reports whether Γ is a finite complex number.
 func finite(g complex128) bool {

@@ -23,9 +23,13 @@
 //	x = K·Re Γ,  y = −K·Im Γ
 //
 // where K = Chart.Scale(), also written on the root <svg> element as
-// data-gamma-scale. A page turns a pointer position in user units (from
-// getScreenCTM().inverse()) back into Γ = (x, −y)/K. The legend strip lies
-// below the square y ∈ [−SizePx/2, SizePx/2].
+// data-gamma-scale. A zoomed chart may be centred elsewhere than Γ = 0
+// (Chart.Centre): a point Γ is then drawn at (K·Re(Γ − C), −K·Im(Γ − C)),
+// C = Chart.ShownCentre(), written as data-gamma-centre="re im", and the
+// shown disc's radius in Γ (Zoom, or 1) as data-gamma-radius. A page
+// turns a pointer position in user units (from getScreenCTM().inverse())
+// back into Γ = C + (x, −y)/K. The legend strip lies below the square
+// y ∈ [−SizePx/2, SizePx/2].
 //
 // The impedance grid's circles and arcs are exact SVG arcs whose centres and
 // radii come from the bilinear map Γ = (z − 1)/(z + 1):
@@ -48,14 +52,20 @@
 //
 //	P+"grid"        grid layer: disc, grids, labels, scales, overlays, caption
 //	P+"clip"        the clip path of the shown disc (zoomed charts only)
+//	P+"regions"     shaded circles and lines (Chart.Regions, when set);
+//	                P+"region-"+Region.ID for each, P+"rclip" its clip
 //	P+"traces"      all traces; P+"trace-"+Trace.ID for each
 //	P+"match-path"  the matching path
 //	P+"markers"     all markers; P+"mk-"+Marker.ID for each
+//	P+"spots"       labelled points and handles (Chart.Spots, when set);
+//	                P+"spot-"+Spot.ID for each
 //	P+"legend"      the legend strip
 //
 // and for a Plot with Plot.IDPrefix P:
 //
 //	P+"axes", P+"bands", P+"plegend"
+//	P+"area"        the clip path of the plot area
+//	P+"bandnames"   the bands' names and the limits' labels, on top
 //	P+"series"      all series; P+"series-"+Series.ID for each
 //	P+"pmarkers"    all markers; P+"pmk-"+PlotMarker.ID for each
 //

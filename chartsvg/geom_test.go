@@ -223,10 +223,12 @@ func TestGridArcsAreExactLoci(t *testing.T) {
 		{ImpedanceGrid: true, SizePx: 300},
 		{ImpedanceGrid: true, AngleScale: true, WavelengthScale: true, SizePx: 900},
 		{ImpedanceGrid: true, Zoom: 0.3},
+		{ImpedanceGrid: true, Zoom: 0.3, Centre: 0.4 - 0.3i},
 	} {
-		t.Run(fmt.Sprintf("size %d zoom %g", c.SizePx, c.Zoom), func(t *testing.T) {
+		t.Run(fmt.Sprintf("size %d zoom %g centre %v", c.SizePx, c.Zoom, c.Centre), func(t *testing.T) {
 			t.Parallel()
 			k := c.Scale()
+			o := c.layout().o() // where Γ = 0 is drawn
 			rl, xl := gridTables(k)
 			// Each arc, as drawn, lies within this of its exact locus: a
 			// rounding of a tenth of a unit, seen through the renderer's
@@ -236,6 +238,9 @@ func TestGridArcsAreExactLoci(t *testing.T) {
 			rOne := false
 			for _, a := range gridArcs(t, c, "z") {
 				ps := a.samples(9)
+				for i := range ps {
+					ps[i].x, ps[i].y = ps[i].x-o.x, ps[i].y-o.y
+				}
 				// Every arc lies in the unit disc: the ends are computed
 				// where the line meets its neighbour or the rim, and the
 				// inner arc is the one drawn.
@@ -271,13 +276,13 @@ func TestGridArcsAreExactLoci(t *testing.T) {
 				t.Error("no r = 1 circle through the centre")
 			}
 			for _, g := range rl {
-				if visible(rCircle(g.v), c.layout().zoom) && !nearKey(rFound, g.v) {
+				if c.layout().visible(rCircle(g.v)) && !nearKey(rFound, g.v) {
 					t.Errorf("r = %g circle missing", g.v)
 				}
 			}
 			for _, g := range xl {
 				for _, v := range []float64{g.v, -g.v} {
-					if visible(xCircle(v), c.layout().zoom) && !nearKey(xFound, v) {
+					if c.layout().visible(xCircle(v)) && !nearKey(xFound, v) {
 						t.Errorf("x = %g arc missing", v)
 					}
 				}

@@ -3,6 +3,7 @@ package chartsvg
 import (
 	"math"
 	"math/cmplx"
+	"unicode/utf8"
 )
 
 // gridLine is one line of a grid family: the circle of constant value v
@@ -83,9 +84,22 @@ func (c *Chart) grid(sw *writer, l layout) {
 		sw.num(l.rpx)
 		sw.s(`"/></clipPath></defs>`)
 	}
-	sw.s(`<circle r="`)
-	sw.num(l.rpx)
-	sw.s(`" fill="` + colDisc + `"/>`)
+	o := l.o()
+	if l.centred() {
+		sw.s(`<circle r="`)
+		sw.num(l.rpx)
+		sw.s(`" fill="` + colDisc + `"/>`)
+	} else {
+		// The unit disc, off centre: only the part inside the shown
+		// disc is tinted.
+		sw.s(`<g`)
+		c.clipAttr(sw, l)
+		sw.s(`><circle`)
+		sw.numAttr("cx", o.x)
+		sw.numAttr("cy", o.y)
+		sw.numAttr("r", l.k)
+		sw.s(` fill="` + colDisc + `"/></g>`)
+	}
 
 	sw.s(`<g fill="none"`)
 	c.clipAttr(sw, l)
@@ -98,11 +112,26 @@ func (c *Chart) grid(sw *writer, l layout) {
 	}
 	// The real axis, common to both grids.
 	sw.s(`<path stroke="` + colZMajor + `" stroke-width=".8" d="M`)
-	sw.pair(tenths(-l.rpx), 0)
-	sw.s(`H`)
-	sw.num(l.rpx)
+	if l.centred() {
+		sw.pair(tenths(-l.rpx), 0)
+		sw.s(`H`)
+		sw.num(l.rpx)
+	} else {
+		a, b := l.xy(-1), l.xy(1)
+		sw.pair(tenths(a.x), tenths(a.y))
+		sw.s(`H`)
+		sw.num(b.x)
+	}
 	sw.s(`"/>`)
 	c.overlays(sw, l)
+	if !l.centred() {
+		// The unit circle, where it crosses the shown disc.
+		sw.s(`<circle`)
+		sw.numAttr("cx", o.x)
+		sw.numAttr("cy", o.y)
+		sw.numAttr("r", l.k)
+		sw.s(` stroke="` + colRim + `" stroke-width="1.4"/>`)
+	}
 	sw.s(`</g>`)
 
 	// The rim: the unit circle, or the edge of the zoomed disc.
@@ -110,17 +139,18 @@ func (c *Chart) grid(sw *writer, l layout) {
 	sw.num(l.rpx)
 	sw.s(`" fill="none" stroke="` + colRim + `" stroke-width="1.4"/>`)
 
-	if c.AdmittanceGrid {
-		c.labels(sw, l, -1, colYLabel)
-	}
+	var placed []labelSpot
 	if c.ImpedanceGrid {
-		c.labels(sw, l, 1, colZLabel)
+		c.labels(sw, l, 1, colZLabel, &placed)
+	}
+	if c.AdmittanceGrid {
+		c.labels(sw, l, -1, colYLabel, &placed)
 	}
 	c.overlayLabels(sw, l)
-	if c.AngleScale {
+	if c.AngleScale && l.centred() {
 		c.angleScale(sw, l)
 	}
-	if c.WavelengthScale {
+	if c.WavelengthScale && l.centred() {
 		c.wavelengthScale(sw, l)
 	}
 	c.caption(sw, l)
@@ -146,7 +176,7 @@ func (c *Chart) family(sw *writer, l layout, sign float64, minor, major string) 
 			sw.s(` data-grid="y" d="`)
 		}
 		for _, g := range rl {
-			if g.major != maj || !visible(rCircle(g.v), l.zoom) {
+			if g.major != maj || !l.visible(rCircle(g.v)) {
 				continue
 			}
 			cr := rCircle(g.v)
@@ -166,7 +196,7 @@ func (c *Chart) family(sw *writer, l layout, sign float64, minor, major string) 
 			}
 			for _, x := range [...]float64{g.v, -g.v} {
 				cx := xCircle(x)
-				if !visible(cx, l.zoom) {
+				if !l.visible(cx) {
 					continue
 				}
 				p0 := s * ZToGamma(complex(0, x))
@@ -183,11 +213,16 @@ func (c *Chart) family(sw *writer, l layout, sign float64, minor, major string) 
 	}
 }
 
-// visible reports whether the circle meets the disc |Γ| ≤ zoom.
-func visible(cr circle, zoom float64) bool {
-	d := cmplx.Abs(cr.c)
-	return d-cr.r <= zoom && cr.r-d <= zoom
+// visible reports whether the circle meets the shown disc
+// |Γ − centre| ≤ zoom.
+func (l layout) visible(cr circle) bool {
+	d := cmplx.Abs(cr.c - l.c)
+	return d-cr.r <= l.zoom && cr.r-d <= l.zoom
 }
+
+// inside reports whether the user-unit point q lies within r of the middle
+// of the shown disc.
+func inside(q pt, r float64) bool { return q.x*q.x+q.y*q.y <= r*r }
 
 // arcPath appends "M p0 A … p1": the arc of radius rad (in Γ units) centred
 // at o from p0 through pm to p1; p1 = p0 gives the full circle. The arc is
@@ -240,7 +275,14 @@ const (
 // labels writes the values of one grid family: circle values on the real
 // axis (above it for impedance, below for admittance) and arc values at the
 // rim (or at the edge of the zoomed disc), turned along the rim.
-func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
+//
+// Labels are kept apart by their lengths, across both families (placed
+// holds those already written): each is taken as a disc of half its width
+// about its centre (a rim label is turned along the rim, so its width runs
+// along it), and two may not come closer than their half-widths and a
+// gap; a family's own labels still keep 26 units apart, and two level
+// labels on the real axis collide only when their boxes do.
+func (c *Chart) labels(sw *writer, l layout, sign float64, col string, placed *[]labelSpot) {
 	rl, xl := gridTables(l.k)
 	sw.s(`<g font-size="`)
 	sw.num(chartFontPx - 1)
@@ -252,30 +294,48 @@ func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
 	// Major lines are always labelled; on a zoomed-in chart (the fine grid)
 	// minor lines are too where their labels do not crowd.
 	fine := l.k >= 700
-	var placed []pt
-	free := func(q pt) bool {
-		for _, p := range placed {
-			if math.Hypot(p.x-q.x, p.y-q.y) < 26 {
-				return false
+	charPx := 0.58 * (chartFontPx - 1)
+	half := func(s string) float64 { return float64(utf8.RuneCountInString(s)) * charPx / 2 }
+	free := func(q pt, s string, axis bool) bool {
+		h := half(s)
+		for _, p := range *placed {
+			dx, dy := p.p.x-q.x, p.p.y-q.y
+			switch {
+			case axis && p.axis: // both level: boxes a line high
+				if math.Abs(dx) < p.half+h+2 && math.Abs(dy) < chartFontPx {
+					return false
+				}
+			case p.sign == sign: // the family's own labels: as before
+				if math.Hypot(dx, dy) < math.Max(26, p.half+h+4) {
+					return false
+				}
+			default:
+				if math.Hypot(dx, dy) < p.half+h+1 {
+					return false
+				}
 			}
 		}
 		return true
+	}
+	place := func(q pt, s string, axis bool) {
+		*placed = append(*placed, labelSpot{p: q, half: half(s), sign: sign, axis: axis})
 	}
 	for pass := 0; pass < 2; pass++ {
 		for _, g := range rl {
 			if g.major != (pass == 0) || !g.major && !fine {
 				continue
 			}
-			u := sign * real(ZToGamma(complex(g.v, 0)))
-			q := pt{u * l.k, dy}
-			if math.Abs(q.x) > l.rpx-14 || !free(q) {
+			q := l.xy(complex(sign*real(ZToGamma(complex(g.v, 0))), 0))
+			q.y += dy
+			label := formatValue(g.v)
+			if !inside(q, l.rpx-14) || !free(q, label, true) {
 				continue
 			}
-			placed = append(placed, q)
-			textAt(sw, q, 0, formatValue(g.v))
+			place(q, label, true)
+			textAt(sw, q, 0, label)
 		}
 	}
-	if l.zoom == 1 {
+	if l.zoom == 1 && l.centred() {
 		// The short-circuit end of the real axis for impedance, the open
 		// end for admittance: r = 0 or g = 0.
 		textAt(sw, pt{-sign * (l.rpx - 9), dy}, 0, "0")
@@ -287,29 +347,30 @@ func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
 				continue
 			}
 			for _, x := range [...]float64{g.v, -g.v} {
-				p, ok := edgePoint(x, g.ext, l.zoom)
+				p, ok := l.edgePoint(x, g.ext, sign)
 				if !ok {
 					continue
 				}
-				p *= complex(sign, 0)
-				th := cmplx.Phase(p)
-				if both && math.Abs(math.Abs(th)-math.Pi/2) < 0.05 {
-					// An impedance arc and an admittance arc meet the rim
-					// at mirrored angles, so only the labels near ±90°
-					// collide: move the impedance one right and the
-					// admittance one left.
-					th -= sign * 0.05 * math.Copysign(1, th)
-				}
+				th := cmplx.Phase(p - l.c)
 				rad := l.rpx - 9
-				q := pt{rad * math.Cos(th), -rad * math.Sin(th)}
-				if !free(q) {
-					continue
-				}
-				placed = append(placed, q)
 				s := "j" + formatValue(g.v)
 				if x < 0 {
 					s = "−j" + formatValue(g.v)
 				}
+				if both && l.centred() && math.Abs(math.Abs(th)-math.Pi/2) < 0.05 {
+					// An impedance arc and an admittance arc meet the rim
+					// at mirrored angles, so only the labels near ±90°
+					// collide: move the impedance one right and the
+					// admittance one left, each by a little more than
+					// half a label.
+					shift := math.Max(0.05, (half(s)+2.5)/rad)
+					th -= sign * shift * math.Copysign(1, th)
+				}
+				q := pt{rad * math.Cos(th), -rad * math.Sin(th)}
+				if !free(q, s, false) {
+					continue
+				}
+				place(q, s, false)
 				textAt(sw, q, tangentDeg(th), s)
 			}
 		}
@@ -317,13 +378,28 @@ func (c *Chart) labels(sw *writer, l layout, sign float64, col string) {
 	sw.s(`</g>`)
 }
 
-// edgePoint returns where the reactance arc x (drawn for r in [0, ext])
-// meets the edge of the shown disc |Γ| = zoom, nearest its rim end.
-func edgePoint(x, ext, zoom float64) (complex128, bool) {
-	if zoom == 1 {
-		return ZToGamma(complex(0, x)), true
+// labelSpot is a grid label already placed: its centre, half its width,
+// its family (1 impedance, −1 admittance) and whether it is a level label
+// on the real axis (else one turned along the rim).
+type labelSpot struct {
+	p    pt
+	half float64
+	sign float64
+	axis bool
+}
+
+// edgePoint returns where the arc of value x of the family sign (1: the
+// reactance arc of the impedance grid; −1: the susceptance arc of the
+// admittance grid, the same drawing turned through 180°), drawn for r in
+// [0, ext], meets the edge of the shown disc |Γ − centre| = zoom, nearest
+// its rim end.
+func (l layout) edgePoint(x, ext, sign float64) (complex128, bool) {
+	if l.zoom == 1 && l.centred() {
+		return complex(sign, 0) * ZToGamma(complex(0, x)), true
 	}
-	p, q, ok := circleCrossings(xCircle(x), circle{0, zoom})
+	s := complex(sign, 0)
+	// Work in the family's own plane, where the arc is that of x.
+	p, q, ok := circleCrossings(xCircle(x), circle{s * l.c, l.zoom})
 	if !ok {
 		return 0, false
 	}
@@ -334,7 +410,7 @@ func edgePoint(x, ext, zoom float64) (complex128, bool) {
 	if rp < 0 || rp > ext {
 		return 0, false
 	}
-	return p, true
+	return s * p, true
 }
 
 // gammaToZ is the inverse of ZToGamma.

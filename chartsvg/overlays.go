@@ -2,6 +2,7 @@ package chartsvg
 
 import (
 	"math"
+	"math/cmplx"
 	"strconv"
 )
 
@@ -44,12 +45,18 @@ func (c *Chart) overlays(sw *writer, l layout) {
 	}
 }
 
-// ringPath appends a full circle about the centre of radius rho (Γ units).
+// ringPath appends a full circle about Γ = 0 of radius rho (Γ units).
 func ringPath(sw *writer, l layout, rho float64) {
-	if !(rho > 0) || rho > l.zoom {
+	if !(rho > 0) || !l.visible(circle{0, rho}) {
 		return
 	}
 	arcPath(sw, l, rho, complex(-rho, 0), complex(rho, 0), complex(-rho, 0), 0)
+}
+
+// labelInside reports whether the point ρ·e^(jθ) is drawn well inside the
+// shown disc, so that a label there is not cut at its edge.
+func (l layout) labelInside(rho, th float64) bool {
+	return inside(l.xy(cmplx.Rect(rho, th)), l.rpx-20)
 }
 
 // overlayLabels writes the names of the overlay circles and arcs.
@@ -64,8 +71,8 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 	// where the grid is sparsest and traces seldom run.
 	th := -2 * math.Pi / 3
 	for _, s := range c.VSWRCircles {
-		if rho := vswrRadius(s); s > 1 && rho <= l.zoom {
-			p := pt{rho * l.k * math.Cos(th), -rho * l.k * math.Sin(th)}
+		if rho := vswrRadius(s); s > 1 && l.labelInside(rho, th) {
+			p := l.xy(cmplx.Rect(rho, th))
 			sw.s(`<g fill="` + colOverlay + `">`)
 			textAt(sw, p, tangentDeg(th), "VSWR "+strconv.FormatFloat(s, 'g', 3, 64))
 			sw.s(`</g>`)
@@ -73,8 +80,8 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 	}
 	th = -math.Pi / 3
 	for _, db := range c.ReturnLossCircleDB {
-		if rho := rlRadius(db); db > 0 && rho <= l.zoom {
-			p := pt{rho * l.k * math.Cos(th), -rho * l.k * math.Sin(th)}
+		if rho := rlRadius(db); db > 0 && l.labelInside(rho, th) {
+			p := l.xy(cmplx.Rect(rho, th))
 			sw.s(`<g fill="` + colOverlay + `">`)
 			textAt(sw, p, tangentDeg(th), "RL "+strconv.FormatFloat(db, 'g', 3, 64)+" dB")
 			sw.s(`</g>`)
@@ -86,11 +93,13 @@ func (c *Chart) overlayLabels(sw *writer, l layout) {
 		}
 		cr := qCircle(q, true)
 		top := imag(cr.c) + cr.r // where the arc crosses the imaginary axis
-		if top > l.zoom {
+		p := l.xy(complex(0, top))
+		p.x, p.y = p.x+14, p.y-7
+		if !inside(p, l.rpx-8) {
 			continue
 		}
 		sw.s(`<g fill="` + colQ + `">`)
-		textAt(sw, pt{14, -top*l.k - 7}, 0, "Q "+strconv.FormatFloat(q, 'g', 3, 64))
+		textAt(sw, p, 0, "Q "+strconv.FormatFloat(q, 'g', 3, 64))
 		sw.s(`</g>`)
 	}
 	sw.s(`</g>`)
@@ -191,9 +200,17 @@ func (c *Chart) caption(sw *writer, l layout) {
 		sw.num(-h + 10)
 		sw.s(`" y="`)
 		sw.num(y)
-		sw.s(`">|Γ| ≤ `)
-		sw.text(strconv.FormatFloat(l.zoom, 'g', 3, 64))
-		sw.s(` shown</text>`)
+		if l.centred() {
+			sw.s(`">|Γ| ≤ `)
+			sw.text(strconv.FormatFloat(l.zoom, 'g', 3, 64))
+			sw.s(` shown</text>`)
+		} else {
+			sw.s(`">×`)
+			sw.text(strconv.FormatFloat(1/l.zoom, 'g', 3, 64))
+			sw.s(` about Γ = `)
+			sw.text(formatGamma(l.c))
+			sw.s(`</text>`)
+		}
 	}
 	y = -h + 18
 	if c.ImpedanceGrid && c.AdmittanceGrid {
@@ -216,4 +233,17 @@ func (c *Chart) caption(sw *writer, l layout) {
 		sw.s(`" text-anchor="end">outer scale: λ toward generator</text>`)
 	}
 	sw.s(`</g>`)
+}
+
+// formatGamma writes Γ as "0.12 − j0.34".
+func formatGamma(g complex128) string {
+	sign := " + j"
+	if imag(g) < 0 {
+		sign = " − j"
+	}
+	re := strconv.FormatFloat(real(g), 'f', 2, 64)
+	if real(g) < 0 {
+		re = "−" + re[1:]
+	}
+	return re + sign + strconv.FormatFloat(math.Abs(imag(g)), 'f', 2, 64)
 }

@@ -3,7 +3,6 @@ package chartsvg
 import (
 	"io"
 	"math"
-	"slices"
 	"sort"
 	"strconv"
 	"unicode/utf8"
@@ -33,6 +32,12 @@ type Plot struct {
 	XMin, XMax, YMin, YMax float64
 	// LogY draws y on a base-10 logarithmic scale (values ≤ 0 are left out).
 	LogY bool
+	// Robust makes an automatic y range ignore a few extreme points that
+	// lie far beyond the rest (see [Plot.Resolve]); they are then drawn cut
+	// at the frame with a mark. Use it for quantities whose extremes are
+	// artefacts (R and X of a sweep that starts near DC, noisy group
+	// delay), not for those whose extremes are the feature (a dip in dB).
+	Robust bool
 	// XUnit, when set, makes x a quantity in that unit ("m", "s") rather
 	// than a frequency: tick labels take an SI prefix and that unit. The
 	// fields and data attributes named for Hz then hold that quantity.
@@ -56,6 +61,9 @@ type Series struct {
 	// lengths. Non-finite values break the curve.
 	FreqHz, Y []float64
 	Dashed    bool
+	// NoLegend leaves the series out of the legend (the X of an R and X
+	// pair, whose dashing the title explains).
+	NoLegend bool
 }
 
 // Band is a frequency band of interest, shaded, with an optional limit drawn
@@ -79,6 +87,10 @@ type PlotMarker struct {
 	FreqHz float64
 	Color  string
 	Shape  Shape
+	// Anchor places the marker's number above the plot: 0 centred on its
+	// line, −1 ending just left of it, +1 starting just right of it (see
+	// [Plot.SpreadLabels]).
+	Anchor int
 }
 
 const badSeriesLength = "chartsvg: series FreqHz and Y lengths differ"
@@ -93,7 +105,18 @@ type plotLayout struct {
 
 // Resolve returns a copy of p with its automatic ranges fixed from the data,
 // so that layers rendered one at a time (RenderSeries, RenderMarker) line up
-// with a whole Render. It reads every point once.
+// with a whole Render. It reads every point once (sorting the values in
+// range when Robust is set).
+//
+// An automatic y range is that of the points whose x lies within the x
+// range (fixed or automatic) and of the bands' limits. With Robust set (and
+// at least 20 points in range), the values are sorted and the m-th lowest
+// and highest found, p1 and p99, with m the larger of 3 and 2 % of the
+// points; a tail whose extreme lies more than (p99 − p1) beyond its
+// percentile is cut at that percentile plus 5 % of (p99 − p1), so that a
+// handful of points (the first points of a sweep from near DC, say) cannot
+// squeeze the rest into a line, while a tail that merely continues the
+// curve is kept.
 func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 	q := *p
 	if q.XMin == q.XMax {
@@ -113,13 +136,25 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 	}
 	if q.YMin == q.YMax {
 		lo, hi := math.Inf(1), math.Inf(-1)
+		var vals []float64
+		xlo, xhi := math.Min(q.XMin, q.XMax), math.Max(q.XMin, q.XMax)
 		for i := range series {
-			for _, v := range series[i].Y {
+			s := &series[i]
+			for k, v := range s.Y {
 				if math.IsNaN(v) || math.IsInf(v, 0) || q.LogY && v <= 0 {
 					continue
 				}
+				if k < len(s.FreqHz) && (s.FreqHz[k] < xlo || s.FreqHz[k] > xhi) {
+					continue
+				}
 				lo, hi = math.Min(lo, v), math.Max(hi, v)
+				if q.Robust {
+					vals = append(vals, v)
+				}
 			}
+		}
+		if q.Robust && len(vals) >= 20 {
+			lo, hi = robustRange(vals, lo, hi)
 		}
 		for _, b := range bands {
 			if b.HasLimit && !(q.LogY && b.Limit <= 0) {
@@ -137,8 +172,15 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 		case !(hi >= lo):
 			lo, hi = 0, 1
 		default:
-			if hi == lo {
-				lo, hi = lo-1, hi+1
+			// A constant series (within rounding, such as a line's group
+			// delay) gets a range of ±10 % about its value, ±1 about 0.
+			mag := math.Max(math.Abs(lo), math.Abs(hi))
+			switch {
+			case mag == 0:
+				lo, hi = -1, 1
+			case hi-lo <= 1e-9*mag:
+				mid := (lo + hi) / 2
+				lo, hi = mid-0.1*mag, mid+0.1*mag
 			}
 			step := niceStep(hi-lo, 5)
 			lo, hi = math.Floor(lo/step+1e-9)*step, math.Ceil(hi/step-1e-9)*step
@@ -146,6 +188,26 @@ func (p *Plot) Resolve(series []Series, bands []Band) Plot {
 		q.YMin, q.YMax = lo, hi
 	}
 	return q
+}
+
+// robustRange returns the range of vals with far outlying tails cut (see
+// [Plot.Resolve]); lo and hi are the full range. vals is sorted in place.
+func robustRange(vals []float64, lo, hi float64) (float64, float64) {
+	sort.Float64s(vals)
+	n := len(vals)
+	m := max(3, n/50)
+	p1, p99 := vals[m], vals[n-1-m]
+	w := p99 - p1
+	if !(w > 0) {
+		return lo, hi
+	}
+	if hi-p99 > w {
+		hi = p99 + 0.05*w
+	}
+	if p1-lo > w {
+		lo = p1 - 0.05*w
+	}
+	return lo, hi
 }
 
 // Plot layout, top to bottom: the title row, the legend rows, a row for the
@@ -172,8 +234,15 @@ func (p *Plot) layout(series []Series) plotLayout {
 	if p.Title != "" {
 		top += plotRowPx + 2
 	}
-	if !p.NoLegend && len(series) > 1 {
-		top += plotRowPx * float64(p.placeLegend(&l, series, nil))
+	if !p.NoLegend && legendCount(series) > 1 {
+		rows := p.placeLegend(&l, series, nil)
+		top += plotRowPx * float64(rows)
+		// Beyond two rows the drawing grows instead of the plot area
+		// shrinking, so that many traces keep a readable plot.
+		if rows > 2 {
+			l.h += plotRowPx * float64(rows-2)
+			l.y1 = l.h - plotBottomPx
+		}
 	}
 	l.y0 = top + plotRowPx + 4 // the markers' numbers
 	if l.y1-l.y0 < 40 {
@@ -188,7 +257,22 @@ func (p *Plot) layout(series []Series) plotLayout {
 	if !(l.ymax > l.ymin) {
 		l.ymin, l.ymax = l.ymin-0.5, l.ymin+0.5
 	}
+	// The left margin holds the widest y tick label and the rotated axis
+	// name beside it, so that neither is cut.
+	wide := 0.0
+	for _, s := range p.yTicks(&l).labels {
+		wide = math.Max(wide, textWidth(s, plotFontPx))
+	}
+	if need := 28 + 6 + wide; need > l.x0 {
+		l.x0 = need
+	}
 	return l
+}
+
+// textWidth estimates the width of s in user units at a font size of px
+// (the mean advance of Liberation Sans, as the legends use).
+func textWidth(s string, px float64) float64 {
+	return float64(utf8.RuneCountInString(s)) * 0.56 * px
 }
 
 func (l *plotLayout) px(f float64) float64 {
@@ -243,11 +327,19 @@ func (p *Plot) Render(w io.Writer, series []Series, bands []Band, markers []Plot
 	sw.num(l.w)
 	sw.s(`" height="`)
 	sw.num(l.h)
-	sw.s(`" fill="#fff"/>`)
+	sw.s(`" fill="#fff"/><defs><clipPath`)
+	q.id(sw, "area", "")
+	sw.s(`><rect`)
+	sw.numAttr("x", l.x0)
+	sw.numAttr("y", l.y0)
+	sw.numAttr("width", l.x1-l.x0)
+	sw.numAttr("height", l.y1-l.y0)
+	sw.s(`/></clipPath></defs>`)
 	q.bands(sw, &l, bands)
 	q.axes(sw, &l)
 	q.series(sw, &l, series)
 	q.markers(sw, &l, markers, series)
+	q.bandLabels(sw, &l, bands, markers)
 	if !q.NoLegend {
 		q.legend(sw, &l, series)
 	}
@@ -271,6 +363,17 @@ func (p *Plot) RenderMarkers(w io.Writer, markers []PlotMarker, series []Series)
 	sw := getWriter(w)
 	l := p.layout(series)
 	p.markers(sw, &l, markers, series)
+	return sw.done()
+}
+
+// RenderBandLabels writes the layer of the bands' names and limit labels
+// alone, <g id="bandnames">, placed clear of the markers given (all the
+// plot draws), to replace that element when markers move. Call it on a
+// resolved Plot.
+func (p *Plot) RenderBandLabels(w io.Writer, bands []Band, markers []PlotMarker, series []Series) error {
+	sw := getWriter(w)
+	l := p.layout(series)
+	p.bandLabels(sw, &l, bands, markers)
 	return sw.done()
 }
 
@@ -332,11 +435,23 @@ func (p *Plot) axes(sw *writer, l *plotLayout) {
 	sw.s(`<g fill="` + colMuted + `" text-anchor="middle">`)
 	for i := 0; i < nx; i++ {
 		f := xfirst + float64(i)*xstep
+		label := formatHzStep(f, xstep, div, unit)
+		x, half := l.px(f), textWidth(label, plotFontPx)/2
 		sw.s(`<text`)
-		sw.numAttr("x", l.px(f))
+		// A label at the end of the axis that would run off the drawing
+		// is set to end at its edge instead.
+		switch {
+		case x+half > l.w-2:
+			sw.s(` text-anchor="end"`)
+			x = l.w - 2
+		case x-half < 2:
+			sw.s(` text-anchor="start"`)
+			x = 2
+		}
+		sw.numAttr("x", x)
 		sw.numAttr("y", l.y1+15)
 		sw.b('>')
-		sw.text(formatHzStep(f, xstep, div, unit))
+		sw.text(label)
 		sw.s(`</text>`)
 	}
 	sw.s(`</g><g fill="` + colMuted + `" text-anchor="end">`)
@@ -414,7 +529,11 @@ func (p *Plot) yTicks(l *plotLayout) yTicks {
 					continue
 				}
 				t.vals = append(t.vals, v)
-				t.labels = append(t.labels, strconv.FormatFloat(v, 'g', 3, 64))
+				lab := strconv.FormatFloat(v, 'g', 3, 64)
+				if v >= 1e-3 && v < 1e6 {
+					lab = strconv.FormatFloat(v, 'f', -1, 64)
+				}
+				t.labels = append(t.labels, lab)
 			}
 		}
 		return t
@@ -428,359 +547,4 @@ func (p *Plot) yTicks(l *plotLayout) yTicks {
 		t.labels = append(t.labels, formatNum(v, step))
 	}
 	return t
-}
-
-// bands writes the shaded bands and their limit lines.
-func (p *Plot) bands(sw *writer, l *plotLayout, bands []Band) {
-	sw.s(`<g`)
-	p.id(sw, "bands", "")
-	sw.s(`>`)
-	clampX := func(f float64) float64 { return math.Max(l.x0, math.Min(l.x1, l.px(f))) }
-	// Band names go on the first of two rows where they do not run into an
-	// earlier name (about 5.8 units a character at this size); a name that
-	// fits on neither is left out.
-	var rowEnd [2]float64
-	rowEnd[0], rowEnd[1] = math.Inf(-1), math.Inf(-1)
-	// Every band's shade first, then the names, so that no shade covers
-	// a name.
-	for _, b := range bands {
-		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
-		if !(x1 > x0) {
-			continue
-		}
-		sw.s(`<rect fill="` + colBandFill + `"`)
-		sw.numAttr("x", x0)
-		sw.numAttr("y", l.y0)
-		sw.numAttr("width", x1-x0)
-		sw.numAttr("height", l.y1-l.y0)
-		sw.s(`/>`)
-	}
-	for _, b := range bands {
-		x0, x1 := clampX(b.LoHz), clampX(b.HiHz)
-		if !(x1 > x0) {
-			continue
-		}
-		if b.Name != "" {
-			w := 5.8 * float64(utf8.RuneCountInString(b.Name))
-			for r := range rowEnd {
-				if x0+4 < rowEnd[r]+6 {
-					continue
-				}
-				sw.s(`<text fill="#3b6b52" font-size="10.5"` + haloStyle)
-				sw.numAttr("x", x0+4)
-				sw.numAttr("y", l.y0+13+12*float64(r))
-				sw.s(`>`)
-				sw.text(b.Name)
-				sw.s(`</text>`)
-				rowEnd[r] = x0 + 4 + w
-				break
-			}
-		}
-	}
-	// Limit lines: bands in order of frequency; a band that starts where
-	// the previous one ends continues the same step line.
-	order := make([]int, 0, len(bands))
-	for i, b := range bands {
-		if b.HasLimit && b.HiHz > b.LoHz && !math.IsNaN(l.py(b.Limit)) {
-			order = append(order, i)
-		}
-	}
-	sort.Slice(order, func(i, j int) bool { return bands[order[i]].LoHz < bands[order[j]].LoHz })
-	if len(order) > 0 {
-		sw.s(`<path fill="none" stroke="` + colLimit + `" stroke-width="1.8" d="`)
-		prevHi := math.NaN()
-		for _, i := range order {
-			b := bands[i]
-			x0, x1, y := tenths(clampX(b.LoHz)), tenths(clampX(b.HiHz)), tenths(l.py(b.Limit))
-			if b.LoHz == prevHi {
-				sw.s(`V`)
-				sw.buf = appendTenths(sw.buf, y)
-			} else {
-				sw.b('M')
-				sw.xy(x0, y)
-			}
-			sw.s(`H`)
-			sw.buf = appendTenths(sw.buf, x1)
-			prevHi = b.HiHz
-		}
-		sw.s(`"/><g fill="` + colLimit + `" font-size="10.5"` + haloStyle + `>`)
-		labelEnd, prevLimit := math.Inf(-1), math.NaN()
-		prevHi = math.NaN()
-		for _, i := range order {
-			b := bands[i]
-			joined := b.LoHz == prevHi && b.Limit == prevLimit
-			prevHi, prevLimit = b.HiHz, b.Limit
-			x := clampX(b.LoHz) + 3
-			if joined || x < labelEnd+6 {
-				continue // the same level goes on, or the label would overlap
-			}
-			labelEnd = x + 5.8*float64(len("limit ")+len(strconv.FormatFloat(b.Limit, 'g', 4, 64))+1+utf8.RuneCountInString(p.YUnit))
-			sw.s(`<text`)
-			sw.numAttr("x", clampX(b.LoHz)+3)
-			sw.numAttr("y", l.py(b.Limit)-4)
-			sw.s(`>limit `)
-			sw.text(strconv.FormatFloat(b.Limit, 'g', 4, 64))
-			if p.YUnit != "" {
-				sw.b(' ')
-				sw.text(p.YUnit)
-			}
-			sw.s(`</text>`)
-		}
-		sw.s(`</g>`)
-	}
-	sw.s(`</g>`)
-}
-
-// series writes the series layer, each series thinned to what the pixels
-// show: within each pixel column the first, lowest, highest and last points
-// stay (so every extreme is drawn), and the rest are reduced to within
-// DefaultTolerancePx of the curve (the series stroke is 1.8 units wide).
-func (p *Plot) series(sw *writer, l *plotLayout, series []Series) {
-	sw.s(`<g`)
-	p.id(sw, "series", "")
-	sw.s(` fill="none" stroke-width="1.8" stroke-linejoin="round">`)
-	for i := range series {
-		s := &series[i]
-		if len(s.FreqHz) != len(s.Y) {
-			panic(badSeriesLength)
-		}
-		sw.s(`<g`)
-		p.id(sw, "series-", s.ID)
-		sw.s(` stroke="`)
-		sw.text(traceColour(s.Color, i))
-		sw.s(`"><path`)
-		if s.Dashed {
-			sw.s(` stroke-dasharray="7 4"`)
-		}
-		sw.s(` d="`)
-		n := len(s.Y)
-		pts, _ := sw.scratch(n)
-		for j := range n {
-			pts[j] = pt{l.px(s.FreqHz[j]), l.py(s.Y[j])}
-		}
-		for a := 0; a < n; {
-			if !finitePt(pts[a]) {
-				a++
-				continue
-			}
-			b := a + 1
-			for b < n && finitePt(pts[b]) {
-				b++
-			}
-			m := columnThin(pts[a:b])
-			keep := sw.keep[:m]
-			clear(keep)
-			sw.idx = simplify(pts[a:a+m], keep, DefaultTolerancePx, sw.idx)
-			emitKept(sw, pts[a:a+m], keep)
-			a = b
-		}
-		sw.s(`"/></g>`)
-		sw.maybeFlush()
-	}
-	sw.s(`</g>`)
-}
-
-func finitePt(q pt) bool {
-	return !math.IsNaN(q.x) && !math.IsNaN(q.y) && !math.IsInf(q.x, 0) && !math.IsInf(q.y, 0)
-}
-
-// columnThin keeps, for each run of consecutive points in the same pixel
-// column, the first, lowest, highest and last of them, in their order, moving
-// them to the front of pts. It returns how many it kept.
-func columnThin(pts []pt) int {
-	out := 0
-	for a := 0; a < len(pts); {
-		col := math.Floor(pts[a].x)
-		b := a + 1
-		lo, hi := a, a
-		for b < len(pts) && math.Floor(pts[b].x) == col {
-			if pts[b].y < pts[lo].y {
-				lo = b
-			}
-			if pts[b].y > pts[hi].y {
-				hi = b
-			}
-			b++
-		}
-		idx := [4]int{a, lo, hi, b - 1}
-		slices.Sort(idx[:])
-		last := -1
-		for _, i := range idx {
-			if i != last {
-				pts[out] = pts[i]
-				out++
-				last = i
-			}
-		}
-		a = b
-	}
-	return out
-}
-
-// emitKept appends the kept points as one subpath: "M x y", then "l" and
-// the moves from each point to the next, leaving out moves that round to
-// nothing.
-func emitKept(sw *writer, pts []pt, keep []bool) {
-	first, rel := true, false
-	var px, py int
-	for i, q := range pts {
-		if !keep[i] {
-			continue
-		}
-		x, y := tenths(q.x), tenths(q.y)
-		switch {
-		case first:
-			sw.b('M')
-			sw.xy(x, y)
-			first = false
-		case x != px || y != py:
-			if !rel {
-				sw.b('l')
-				rel = true
-			}
-			sw.pair(x-px, y-py)
-		}
-		px, py = x, y
-	}
-}
-
-// markers writes the plot's marker layer.
-func (p *Plot) markers(sw *writer, l *plotLayout, markers []PlotMarker, series []Series) {
-	sw.s(`<g`)
-	p.id(sw, "pmarkers", "")
-	sw.s(` stroke-width="1.4" font-size="11.5" font-weight="bold">`)
-	for i := range markers {
-		p.marker(sw, l, &markers[i], series)
-	}
-	sw.s(`</g>`)
-}
-
-func (p *Plot) marker(sw *writer, l *plotLayout, m *PlotMarker, series []Series) {
-	col := m.Color
-	if col == "" {
-		col = colInk
-	}
-	x := l.px(m.FreqHz)
-	sw.s(`<g`)
-	p.id(sw, "pmk-", m.ID)
-	sw.s(` stroke="`)
-	sw.text(col)
-	sw.b('"')
-	if m.FreqHz > 0 {
-		sw.s(` data-f="`)
-		sw.g(m.FreqHz, 10)
-		sw.b('"')
-	}
-	if !(x >= l.x0 && x <= l.x1) {
-		sw.s(`/>`)
-		return
-	}
-	sw.s(`><path stroke-dasharray="4 3" d="M`)
-	sw.xy(tenths(x), tenths(l.y0))
-	sw.s(`V`)
-	sw.num(l.y1)
-	sw.s(`"/>`)
-	shape := shapePaths[shapeFor(m.Shape, m.Num)]
-	for i := range series {
-		v, ok := seriesAt(&series[i], m.FreqHz)
-		y := l.py(v)
-		if !ok || math.IsNaN(y) || y < l.y0 || y > l.y1 {
-			continue
-		}
-		sw.s(`<path fill="#fff" fill-opacity=".8" transform="translate(`)
-		sw.num(x)
-		sw.b(' ')
-		sw.num(y)
-		sw.s(`)" d="`)
-		sw.s(shape)
-		sw.s(centreDot)
-		sw.s(`"/>`)
-	}
-	sw.s(`<text stroke="#fff" stroke-width="3" paint-order="stroke" fill="`)
-	sw.text(col)
-	sw.s(`" text-anchor="middle"`)
-	sw.numAttr("x", x)
-	sw.numAttr("y", l.y0-5)
-	sw.s(`>`)
-	sw.buf = strconv.AppendInt(sw.buf, int64(m.Num), 10)
-	if m.Label != "" {
-		sw.b(' ')
-		sw.text(m.Label)
-	}
-	sw.s(`</text></g>`)
-}
-
-// seriesAt interpolates a series linearly at frequency f.
-func seriesAt(s *Series, f float64) (float64, bool) {
-	n := len(s.FreqHz)
-	if n == 0 || f < s.FreqHz[0] || f > s.FreqHz[n-1] {
-		return 0, false
-	}
-	i := sort.SearchFloat64s(s.FreqHz, f)
-	if i == 0 {
-		return s.Y[0], true
-	}
-	f0, f1 := s.FreqHz[i-1], s.FreqHz[i]
-	if !(f1 > f0) {
-		return s.Y[i], true
-	}
-	u := (f - f0) / (f1 - f0)
-	return s.Y[i-1] + (s.Y[i]-s.Y[i-1])*u, true
-}
-
-// placeLegend flows the legend entries left to right in rows from the left
-// edge of the plot area, calling put (if not nil) with each entry's left end
-// and row, and returns the number of rows.
-func (p *Plot) placeLegend(l *plotLayout, series []Series, put func(i int, x float64, row int)) int {
-	x, row := l.x0, 0
-	for i := range series {
-		w := 24 + float64(utf8.RuneCountInString(seriesName(&series[i])))*0.56*plotFontPx + 16
-		if x > l.x0 && x+w > l.x1 {
-			x, row = l.x0, row+1
-		}
-		if put != nil {
-			put(i, x, row)
-		}
-		x += w
-	}
-	return row + 1
-}
-
-func seriesName(s *Series) string {
-	if s.Name != "" {
-		return s.Name
-	}
-	return s.ID
-}
-
-// legend writes the series names under the title, when there are two or more.
-func (p *Plot) legend(sw *writer, l *plotLayout, series []Series) {
-	if len(series) < 2 {
-		return
-	}
-	sw.s(`<g`)
-	p.id(sw, "plegend", "")
-	sw.s(` fill="` + colInk + `">`)
-	top := 6.0
-	if p.Title != "" {
-		top += plotRowPx + 2
-	}
-	p.placeLegend(l, series, func(i int, x float64, row int) {
-		s := &series[i]
-		y := top + plotRowPx*float64(row) + plotRowPx/2
-		sw.s(`<path fill="none" stroke-width="2.2" stroke="`)
-		sw.text(traceColour(s.Color, i))
-		if s.Dashed {
-			sw.s(`" stroke-dasharray="6 3`)
-		}
-		sw.s(`" d="M`)
-		sw.xy(tenths(x), tenths(y))
-		sw.s(`h18"/><text`)
-		sw.numAttr("x", x+24)
-		sw.numAttr("y", y)
-		sw.s(` dy=".35em">`)
-		sw.text(seriesName(s))
-		sw.s(`</text>`)
-	})
-	sw.s(`</g>`)
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -95,7 +96,10 @@ func TestPlotResolve(t *testing.T) {
 		// of 2 (by hand), which widens the range to 2–20.
 		{"auto", Plot{}, 1e9, 3e9, 2, 20},
 		{"manual y", Plot{YMin: -5, YMax: 40}, 1e9, 3e9, -5, 40},
-		{"manual x", Plot{XMin: 1.2e9, XMax: 2.8e9}, 1.2e9, 2.8e9, 2, 20},
+		// Only the points inside the x range count: none here (the one
+		// at 2 GHz is NaN), so y spans the limit alone, 20, widened by
+		// ±10 % (a constant's range) to 18–22.
+		{"manual x", Plot{XMin: 1.2e9, XMax: 2.8e9}, 1.2e9, 2.8e9, 18, 22},
 		// Log: decades around 3.2 and 20.
 		{"log", Plot{LogY: true}, 1e9, 3e9, 1, 100},
 	} {
@@ -289,5 +293,109 @@ func TestPlotXUnit(t *testing.T) {
 	}
 	if div, u := siPrefix(0.004, "m"); div != 1e-3 || u != "mm" {
 		t.Errorf("siPrefix(0.004, m) = %g, %q", div, u)
+	}
+}
+
+// TestPlotScalesToSpanAndRobust checks the automatic y range: a span that
+// leaves out the near-DC points scales to the rest, and Robust cuts a few
+// far outliers (R of a cable sweep from near DC, as in the via-cable demo)
+// while keeping a tail that continues the curve; the points cut are drawn
+// clipped, with marks and a count.
+func TestPlotScalesToSpanAndRobust(t *testing.T) {
+	t.Parallel()
+	var f, y []float64
+	for k := 0; k < 200; k++ {
+		f = append(f, 1e6+5e6*float64(k))
+		v := 40 + 10*math.Sin(float64(k)/20) // 30…50 Ω
+		if k < 3 {
+			v = 20000 // the first points near DC
+		}
+		y = append(y, v)
+	}
+	s := []Series{{ID: "r", FreqHz: f, Y: y}}
+	full := (&Plot{}).Resolve(s, nil)
+	if full.YMax < 20000 {
+		t.Fatalf("plain autoscale %g…%g: the outliers should set it", full.YMin, full.YMax)
+	}
+	span := (&Plot{XMin: 100e6, XMax: 900e6}).Resolve(s, nil)
+	if span.YMin < 25 || span.YMax > 55 {
+		t.Errorf("span without the near-DC points: %g…%g, want about 30…50", span.YMin, span.YMax)
+	}
+	rob := (&Plot{Robust: true}).Resolve(s, nil)
+	if rob.YMin < 25 || rob.YMax > 55 {
+		t.Errorf("robust autoscale %g…%g, want about 30…50", rob.YMin, rob.YMax)
+	}
+	// A genuine tail (a steady rise to 80 over the last quarter) is kept.
+	y2 := append([]float64(nil), y[3:]...)
+	for k := 150; k < len(y2); k++ {
+		y2[k] = 50 + 30*float64(k-150)/float64(len(y2)-151)
+	}
+	tail := (&Plot{Robust: true}).Resolve([]Series{{ID: "r", FreqHz: f[3:], Y: y2}}, nil)
+	if tail.YMax < 80 {
+		t.Errorf("robust autoscale cut a tail that continues the curve: max %g, want ≥ 80", tail.YMax)
+	}
+	var b strings.Builder
+	if err := rob.Render(&b, s, nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	root := parseSVG(t, b.String())
+	g := root.byID("series-r")
+	if g == nil || g.attr["data-clipped"] != "3" {
+		t.Fatalf("series group %v, want data-clipped 3", g)
+	}
+	if !strings.Contains(b.String(), "beyond the scale") || !strings.Contains(b.String(), `clip-path="url(#area)"`) {
+		t.Errorf("no clip note or clip path in %s", b.String()[:300])
+	}
+}
+
+// TestSpreadLabels checks that marker numbers that would overlap centred
+// are moved aside: two markers 2 MHz apart on a 1 GHz span (about a pixel)
+// get the lower one's number ending left of its line and the other's
+// starting right of it; a lone marker stays centred.
+func TestSpreadLabels(t *testing.T) {
+	t.Parallel()
+	s := []Series{{ID: "a", FreqHz: []float64{1e9, 2e9}, Y: []float64{0, 1}}}
+	p := (&Plot{}).Resolve(s, nil)
+	ms := []PlotMarker{{ID: "b", Num: 2, FreqHz: 1.502e9}, {ID: "a", Num: 1, FreqHz: 1.5e9}, {ID: "c", Num: 3, FreqHz: 1.9e9}}
+	p.SpreadLabels(ms, s)
+	if ms[1].Anchor != -1 || ms[0].Anchor != 1 || ms[2].Anchor != 0 {
+		t.Errorf("anchors %d %d %d, want −1 for 1.5 GHz, +1 for 1.502 GHz, 0 for 1.9 GHz", ms[1].Anchor, ms[0].Anchor, ms[2].Anchor)
+	}
+	var b strings.Builder
+	p.Render(&b, s, nil, ms)
+	root := parseSVG(t, b.String())
+	for id, want := range map[string]string{"pmk-a": "end", "pmk-b": "start", "pmk-c": "middle"} {
+		var got string
+		root.byID(id).walk(func(e *element) {
+			if e.name == "text" {
+				got = e.attr["text-anchor"]
+			}
+		})
+		if got != want {
+			t.Errorf("%s's number anchored %q, want %q", id, got, want)
+		}
+	}
+}
+
+// TestPlotEdgeLabels checks that no x tick label runs off the drawing: the
+// last label of 0.8–1.0 GHz, "1.00 GHz", is set to end at the right edge.
+func TestPlotEdgeLabels(t *testing.T) {
+	t.Parallel()
+	s := []Series{{ID: "a", FreqHz: []float64{0.8e9, 1e9}, Y: []float64{0, 1}}}
+	var b strings.Builder
+	(&Plot{Width: 640, Height: 260}).Render(&b, s, nil, nil)
+	root := parseSVG(t, b.String())
+	found := false
+	root.walk(func(e *element) {
+		if e.name == "text" && strings.TrimSpace(e.text) == "1.00 GHz" {
+			found = true
+			x, _ := strconv.ParseFloat(e.attr["x"], 64)
+			if e.attr["text-anchor"] != "end" || x > 640 {
+				t.Errorf("last tick label at x %v anchored %q", x, e.attr["text-anchor"])
+			}
+		}
+	})
+	if !found {
+		t.Error("no 1.00 GHz tick label")
 	}
 }

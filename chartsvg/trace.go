@@ -110,10 +110,11 @@ func (c *Chart) trace(sw *writer, l layout, t *Trace, col string) {
 func (c *Chart) run(sw *writer, t *Trace, pts []pt, keep []bool, a, b int) {
 	p, k := pts[a:b], keep[a:b]
 	markExtremes(p, k)
-	// The dip: the point nearest the centre, where the match is best.
+	// The dip: the point nearest Γ = 0, where the match is best.
 	best, at := math.Inf(1), 0
+	o := c.layout().o()
 	for i, q := range p {
-		if d := q.x*q.x + q.y*q.y; d < best {
+		if d := (q.x-o.x)*(q.x-o.x) + (q.y-o.y)*(q.y-o.y); d < best {
 			best, at = d, i
 		}
 	}

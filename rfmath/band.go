@@ -58,7 +58,7 @@ func InterpGamma(freqHz []float64, gamma []complex128, fHz float64) (complex128,
 		return gamma[k], true
 	}
 	t := (fHz - freqHz[k-1]) / (freqHz[k] - freqHz[k-1])
-	return gamma[k-1] + complex(t, 0)*(gamma[k]-gamma[k-1]), true
+	return Lerp(gamma[k-1], gamma[k], t), true
 }
 
 // BandSummary gathers the figures of a response over the points of one

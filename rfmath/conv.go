@@ -110,11 +110,19 @@ func VSWR(gammaMag float64) float64 {
 // Special cases are:
 //
 //	ReturnLossDB(0) = +Inf
-//	ReturnLossDB(1) = 0
+//	ReturnLossDB(1) = 0   (+0, never −0, so that it prints as 0.00)
 //	ReturnLossDB(|Γ| > 1) < 0   (active or noisy data)
 //	ReturnLossDB(|Γ| < 0) = NaN
 func ReturnLossDB(gammaMag float64) float64 {
-	return -20 * math.Log10(gammaMag)
+	return plusZero(-20 * math.Log10(gammaMag))
+}
+
+// plusZero returns v, or +0 if v is −0.
+func plusZero(v float64) float64 {
+	if v == 0 {
+		return 0
+	}
+	return v
 }
 
 // MismatchLossDB returns the mismatch loss in dB for the reflection
@@ -125,14 +133,14 @@ func ReturnLossDB(gammaMag float64) float64 {
 //
 // Special cases are:
 //
-//	MismatchLossDB(0) = 0
+//	MismatchLossDB(0) = 0   (+0, never −0)
 //	MismatchLossDB(1) = +Inf
 //	MismatchLossDB(|Γ| > 1) = NaN   (active or noisy data: undefined)
 func MismatchLossDB(gammaMag float64) float64 {
 	if gammaMag < 0 {
 		return math.NaN()
 	}
-	return -10 * math.Log10(1-gammaMag*gammaMag)
+	return plusZero(-10 * math.Log10(1-gammaMag*gammaMag))
 }
 
 // GammaMagFromVSWR returns |Γ| = (VSWR − 1)/(VSWR + 1). Special cases are:
@@ -171,9 +179,14 @@ func PowerDeliveredFraction(gammaMag float64) float64 {
 	return 1 - gammaMag*gammaMag
 }
 
-// AngleDeg returns the phase angle of c in degrees, in (−180, 180].
+// AngleDeg returns the phase angle of c in degrees, in (−180, 180]: a
+// negative real c is at 180° whatever the sign of its zero imaginary part.
 func AngleDeg(c complex128) float64 {
-	return cmplx.Phase(c) * (180 / math.Pi)
+	d := cmplx.Phase(c) * (180 / math.Pi)
+	if d == -180 {
+		return 180
+	}
+	return plusZero(d)
 }
 
 // Q returns the quality factor of the impedance z (ohms) as a series R + jX:
@@ -192,17 +205,22 @@ func Q(z complex128) float64 {
 
 // Kinds of [Equivalent] element.
 const (
-	KindL = "L" // an inductor; Value in henries
-	KindC = "C" // a capacitor; Value in farads
+	KindL    = "L"    // an inductor; Value in henries
+	KindC    = "C"    // a capacitor; Value in farads
+	KindNone = "none" // no single L or C: see [Equivalent]
 )
 
 // Equivalent is the single inductor or capacitor whose reactance (or
 // susceptance) equals that of an impedance at one frequency.
 type Equivalent struct {
-	// Kind is KindL, KindC, or "" when the reactance (or susceptance) is
-	// zero and no element is needed.
+	// Kind is KindL, KindC or KindNone. KindNone has Value 0 when the
+	// reactance (or susceptance) is zero and no element is needed (a pure
+	// resistance), and Value NaN when the model does not exist or has no
+	// finite element: the series model of an open, the parallel model of a
+	// short, a frequency that is not positive, or a NaN reactance.
 	Kind string
-	// Value is in henries for KindL and farads for KindC; zero for "".
+	// Value is in henries for KindL and farads for KindC; 0 or NaN for
+	// KindNone.
 	Value float64
 }
 
@@ -211,10 +229,14 @@ type Equivalent struct {
 //
 //	X > 0:  L = X/ω
 //	X < 0:  C = −1/(ω·X)
-//	X = 0:  Kind "" and Value 0
+//	X = 0:  KindNone and Value 0
 //
-// fHz must be positive; otherwise Value is NaN.
+// An infinite z (an open) has no series model: KindNone and Value NaN, as
+// for a fHz that is not positive.
 func SeriesEquivalent(z complex128, fHz float64) Equivalent {
+	if cmplx.IsInf(z) {
+		return Equivalent{KindNone, math.NaN()}
+	}
 	return equivalent(imag(z), fHz, false)
 }
 
@@ -223,13 +245,13 @@ func SeriesEquivalent(z complex128, fHz float64) Equivalent {
 //
 //	B < 0:  L = −1/(ω·B)
 //	B > 0:  C = B/ω
-//	B = 0:  Kind "" and Value 0
+//	B = 0:  KindNone and Value 0
 //
-// A short (z = 0) has no parallel model: Kind "" and Value NaN. fHz must be
-// positive; otherwise Value is NaN.
+// A short (z = 0) has no parallel model: KindNone and Value NaN, as for a
+// fHz that is not positive.
 func ParallelEquivalent(z complex128, fHz float64) Equivalent {
 	if z == 0 {
-		return Equivalent{Value: math.NaN()}
+		return Equivalent{KindNone, math.NaN()}
 	}
 	return equivalent(imag(1/z), fHz, true)
 }
@@ -238,12 +260,12 @@ func ParallelEquivalent(z complex128, fHz float64) Equivalent {
 // if shunt is true) at fHz.
 func equivalent(v, fHz float64, shunt bool) Equivalent {
 	if !(fHz > 0) || math.IsNaN(v) {
-		return Equivalent{Value: math.NaN()}
+		return Equivalent{KindNone, math.NaN()}
 	}
 	w := 2 * math.Pi * fHz
 	switch {
 	case v == 0:
-		return Equivalent{}
+		return Equivalent{Kind: KindNone}
 	case shunt && v < 0:
 		return Equivalent{Kind: KindL, Value: -1 / (w * v)}
 	case shunt:

@@ -284,13 +284,13 @@ func TestEquivalents(t *testing.T) {
 		{"R-4 −50 Ω @ 100 MHz", SeriesEquivalent(-50i, 100e6), Equivalent{KindC, 31.8310e-12}, 1e-5},
 		{"R-4 +100 Ω @ ω = 1e9", SeriesEquivalent(100i, w1e9), Equivalent{KindL, 100e-9}, 1e-12},
 		{"R-4 −100 Ω @ ω = 1e9", SeriesEquivalent(-100i, w1e9), Equivalent{KindC, 10e-12}, 1e-12},
-		{"X = 0", SeriesEquivalent(50, 100e6), Equivalent{}, 0},
+		{"X = 0", SeriesEquivalent(50, 100e6), Equivalent{KindNone, 0}, 0},
 		// Parallel model, by construction: Y = 1/50 − j/(ωL), L = 100 nH,
 		// ω = 1e9 rad/s, so B = −0.01 S (arithmetic).
 		{"parallel L", ParallelEquivalent(1/complex(0.02, -0.01), w1e9), Equivalent{KindL, 100e-9}, 1e-12},
 		// Y = 1/50 + jωC, C = 10 pF at ω = 1e9: B = +0.01 S.
 		{"parallel C", ParallelEquivalent(1/complex(0.02, 0.01), w1e9), Equivalent{KindC, 10e-12}, 1e-12},
-		{"parallel B = 0", ParallelEquivalent(50, w1e9), Equivalent{}, 0},
+		{"parallel B = 0", ParallelEquivalent(50, w1e9), Equivalent{KindNone, 0}, 0},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -300,9 +300,11 @@ func TestEquivalents(t *testing.T) {
 			}
 		})
 	}
-	for _, e := range []Equivalent{ParallelEquivalent(0, 1e6), SeriesEquivalent(1i, 0), SeriesEquivalent(1i, -1), ParallelEquivalent(1i, 0)} {
-		if e.Kind != "" || !math.IsNaN(e.Value) {
-			t.Errorf("undefined equivalent = %+v, want Kind \"\" and NaN", e)
+	// No element: an open has no series model (Z = ∞, either an infinite
+	// L or a zero C), a short no parallel one; no frequency, no element.
+	for _, e := range []Equivalent{ParallelEquivalent(0, 1e6), SeriesEquivalent(cmplx.Inf(), 1e6), SeriesEquivalent(1i, 0), SeriesEquivalent(1i, -1), ParallelEquivalent(1i, 0)} {
+		if e.Kind != KindNone || !math.IsNaN(e.Value) {
+			t.Errorf("undefined equivalent = %+v, want KindNone and NaN", e)
 		}
 	}
 	// R-4 (C): 50 nH at 100 MHz is +31.4159265 Ω; 10 pF is −159.154943 Ω.

@@ -29,4 +29,14 @@
 // gonum/floats: a nil dst is allocated, a dst of the wrong length panics with
 // an "rfmath:"-prefixed message. Data-dependent failures (a load that cannot
 // be matched, a frequency outside a sweep) return errors.
+//
+// # Between measured points
+//
+// A sweep is interpolated linearly in the complex plane ([Lerp]) in its own
+// reference resistances, and a sweep shown in other references is
+// renormalised after interpolating, never before. [Reflection] holds one
+// reflection parameter with that rule, and every figure of a reflection
+// trace (readouts, band edges, the deepest point, zero crossings) comes from
+// its methods, so that the figures agree with one another at every
+// frequency.
 package rfmath

@@ -114,5 +114,5 @@ func ExampleDips() {
 		fmt.Printf("deepest %.4g GHz at %.4g dB, band %.4g–%.4g GHz\n", d.FreqHz/1e9, d.ReturnLossDB, d.LoHz/1e9, d.HiHz/1e9)
 	}
 	// Output:
-	// deepest 1.283 GHz at 26.27 dB, band 1.128–1.433 GHz
+	// deepest 1.3 GHz at 26.02 dB, band 1.146–1.419 GHz
 }

@@ -19,8 +19,8 @@ type Readout struct {
 	ReturnLossDB   float64 // +Inf at a perfect match
 	VSWR           float64 // +Inf at |Γ| = 1; NaN above (see VSWR)
 	MismatchLossDB float64
-	Q              float64    // |X|/R of the series model
-	Equiv          Equivalent // the series-model reactance as an L or a C
+	Q              float64    // |X|/R of the series model; +Inf at |Γ| = 1
+	Equiv          Equivalent // the series-model reactance as an L or a C, or KindNone
 	Warnings       []string   // e.g. "|Γ| > 1: active or noisy data"
 }
 
@@ -41,11 +41,11 @@ func NewReadout(fHz float64, gamma complex128, z0Ohm float64) Readout {
 		VSWR:           VSWR(m),
 		MismatchLossDB: MismatchLossDB(m),
 	}
+	r.Equiv = SeriesEquivalent(r.Z, fHz)
 	if !cmplx.IsInf(r.Z) {
 		r.Q = Q(r.Z)
-		r.Equiv = SeriesEquivalent(r.Z, fHz)
 	} else {
-		r.Q = math.Inf(1)
+		r.Q = math.Inf(1) // an open is lossless, as every point of |Γ| = 1
 	}
 	if m > 1 {
 		r.Warnings = append(r.Warnings, "|Γ| > 1: the data show gain (an active device, or noise on a near-total reflection); VSWR and mismatch loss are undefined")

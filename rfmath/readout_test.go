@@ -58,3 +58,32 @@ func TestNewReadoutEdges(t *testing.T) {
 		t.Errorf("|Γ| = 1.2: warnings %v, RL %g", a.Warnings, a.ReturnLossDB)
 	}
 }
+
+// TestNewReadoutZeros checks the figures that are exactly zero at the
+// edges of the chart: RL = −20·log10|Γ| is 0 at |Γ| = 1 and ML is 0 at
+// Γ = 0 (the definitions, REFERENCE-CHECKS §2), and they must be +0, so that
+// they print as 0.00 and not −0.00; a negative real Γ lies at 180°, the
+// (−180°, 180°] convention, whatever the sign of its zero imaginary part.
+// X = 0 needs no element (KindNone, 0); an open has no series model
+// (KindNone, NaN).
+func TestNewReadoutZeros(t *testing.T) {
+	t.Parallel()
+	for _, g := range []complex128{1, -1, 1i, -1i, complex(-1, math.Copysign(0, -1))} {
+		r := NewReadout(1e9, g, 50)
+		if r.ReturnLossDB != 0 || math.Signbit(r.ReturnLossDB) {
+			t.Errorf("Γ = %v: RL %g (sign bit %v), want +0", g, r.ReturnLossDB, math.Signbit(r.ReturnLossDB))
+		}
+	}
+	if m := NewReadout(1e9, 0, 50); m.MismatchLossDB != 0 || math.Signbit(m.MismatchLossDB) {
+		t.Errorf("Γ = 0: ML %g, want +0", m.MismatchLossDB)
+	}
+	if d := NewReadout(1e9, complex(-0.5, math.Copysign(0, -1)), 50).GammaDeg; d != 180 {
+		t.Errorf("Γ = −0.5 − j0: angle %g°, want 180°", d)
+	}
+	if e := NewReadout(1e9, 0, 50).Equiv; e.Kind != KindNone || e.Value != 0 {
+		t.Errorf("Γ = 0 (Z = 50 Ω): equivalent %+v, want none, 0", e)
+	}
+	if e := NewReadout(1e9, 1, 50).Equiv; e.Kind != KindNone || !math.IsNaN(e.Value) {
+		t.Errorf("open: equivalent %+v, want none, NaN", e)
+	}
+}

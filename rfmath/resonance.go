@@ -11,37 +11,44 @@ import (
 // sweep, so its bandwidth and Q cannot be measured.
 var ErrNoEdge = errors.New("rfmath: half-power edge outside the sweep")
 
-// rlCapDB bounds the return loss used for interpolation, so that a point
-// with Γ = 0 exactly (RL = +Inf) still interpolates to finite numbers.
-const rlCapDB = 400
-
 // Dip is a band of a reflection sweep in which the return loss stays at or
 // above a threshold: the load takes most of the power there.
 type Dip struct {
-	// Index is the measured point of highest return loss in the band.
+	// Index is the measured point of highest return loss in the band. For
+	// a band that lies wholly between two measured points (the trace dips
+	// below the threshold only between them) it is the one of the two
+	// nearer the deepest point.
 	Index int
-	// FreqHz and ReturnLossDB are the deepest point, refined between the
-	// measured points (see [Dips]).
+	// FreqHz and ReturnLossDB are the deepest point of the band: the least
+	// |Γ| of the interpolated trace, which may lie between measured points.
 	FreqHz, ReturnLossDB float64
-	// LoHz and HiHz are the band edges, where the return loss crosses the
-	// threshold.
+	// LoHz and HiHz are the band edges, where the return loss of the
+	// interpolated trace crosses the threshold.
 	LoHz, HiHz float64
 	// LoOpen and HiOpen report that the band runs off the start or the
 	// end of the sweep, or up to a point whose Γ is NaN: the edge is then
 	// the band's first or last frequency and the true edge lies beyond it.
 	LoOpen, HiOpen bool
+	// Ridges is the number of ridges below the threshold inside the band
+	// that the hysteresis bridged, joining stretches at or above the
+	// threshold into one band (see [DipsHysteresis]); zero when the return
+	// loss never falls below the threshold between LoHz and HiHz.
+	Ridges int
+	// RidgeHz and RidgeReturnLossDB are the lowest measured point of those
+	// ridges, when Ridges > 0.
+	RidgeHz, RidgeReturnLossDB float64
 }
 
 // BandwidthHz returns HiHz − LoHz.
 func (d Dip) BandwidthHz() float64 { return d.HiHz - d.LoHz }
 
-// DipHysteresisDB is the hysteresis that [Dips] applies below its
-// threshold: measurement noise of a few hundredths of a dB makes a return
-// loss that runs close to the threshold cross it many times, and without
-// hysteresis one band falls apart into slivers. A quarter of a dB is several
-// times the chatter of a clean analyser sweep (σ ≈ 0.002 on |Γ| ≈ 0.3 gives
-// about 0.06 dB; common practice, not a standard) and small beside the
-// margins a requirement is judged by.
+// DipHysteresisDB is the default hysteresis of [Dips]: measurement noise of
+// a few hundredths of a dB makes a return loss that runs close to the
+// threshold cross it many times, and without hysteresis one band falls
+// apart into slivers. A quarter of a dB is several times the chatter of a
+// clean analyser sweep (σ ≈ 0.002 on |Γ| ≈ 0.3 gives about 0.06 dB; common
+// practice, not a standard) and small beside the margins a requirement is
+// judged by.
 const DipHysteresisDB = 0.25
 
 // Dips returns every band of the sweep in which the return loss
@@ -53,137 +60,64 @@ func Dips(freqHz []float64, gamma []complex128, thresholdDB float64) []Dip {
 
 // DipsHysteresis returns every band of the sweep in which the return loss
 // −20·log10|Γ| is at or above thresholdDB, in order of frequency. gamma[k]
-// is the reflection coefficient at freqHz[k], and freqHz increases. A
-// point whose Γ is NaN counts as outside any band and ends one.
+// is the reflection coefficient at freqHz[k], and freqHz increases. Between
+// points Γ is interpolated linearly in the complex plane ([Lerp]), the
+// interpolation of every readout, and the bands are the stretches of that
+// interpolated trace at or above the threshold. A point whose Γ is NaN
+// counts as outside any band and ends one. It is [Reflection.Dips] of
+// [ReflectionOf].
 //
-// The bands are found as a Schmitt trigger finds them: a band starts at a
-// point whose return loss is at or above thresholdDB and lasts until the
-// return loss falls below thresholdDB − hysteresisDB. Two runs of points at
-// or above the threshold therefore belong to one band when the return loss
-// between them never falls below thresholdDB − hysteresisDB. The band still
-// ends at its last point at or above the threshold: the edges are the
-// outermost crossings of thresholdDB itself, not of the lower level. A
-// hysteresisDB of zero (or less, or NaN) splits the band at every crossing.
+// Each edge is where the interpolated |Γ| equals g = 10^(−thresholdDB/20):
+// on the segment from Γa to Γb, |Γa + t·(Γb − Γa)|² = g² is a quadratic in
+// t, solved exactly, so a readout at an edge reads the threshold. A band
+// that lies wholly between two measured points (a deep, narrow dip sampled
+// coarsely, whose chord passes inside the threshold circle) is found too.
 //
-// The deepest point of a band is refined by fitting a parabola to the
-// return loss in dB at the best measured point and its two neighbours
-// (which may be unevenly spaced) and taking its vertex; at the ends of the
-// sweep, or where the three points are not concave, the measured point is
-// kept. The vertex is an estimate: it is exact for a trace that is
-// quadratic in dB near its peak and good to a small part of the point
-// spacing for a smooth resonance.
+// The hysteresis joins stretches as a Schmitt trigger does: two stretches
+// at or above the threshold are one band when the return loss of every
+// measured point between them is at or above thresholdDB − hysteresisDB
+// (between points the interpolated |Γ| is largest at a point, so the
+// interpolated trace never falls lower than those points). The band still
+// ends at the outermost crossings of thresholdDB itself, not of the lower
+// level, and its Ridges, RidgeHz and RidgeReturnLossDB say what was
+// bridged. A hysteresisDB of zero (or less, or NaN) splits the band at
+// every crossing.
 //
-// Each edge is interpolated linearly in dB between the last point below and
-// the first point at or above the threshold. Return loss beyond 400 dB
-// (including +Inf at Γ = 0) is taken as 400 dB for this interpolation.
+// The deepest point of a band is the least |Γ| of the interpolated trace in
+// it, in closed form on each segment (see [Reflection]), so a readout there
+// reads the band's ReturnLossDB. It is usually between two points: the
+// chord across a resonance passes closer to the centre of the chart than
+// the points do.
 //
 // A gamma whose length differs from freqHz panics. The result is nil if no
 // point reaches the threshold.
 func DipsHysteresis(freqHz []float64, gamma []complex128, thresholdDB, hysteresisDB float64) []Dip {
-	if len(gamma) != len(freqHz) {
-		panic(badSweepLength)
-	}
-	if !(hysteresisDB > 0) {
-		hysteresisDB = 0
-	}
-	release := thresholdDB - hysteresisDB
-	var dips []Dip
-	n := len(freqHz)
-	for k := 0; k < n; {
-		if !(returnLoss(gamma[k]) >= thresholdDB) {
-			k++
-			continue
-		}
-		s, e := k, k // e: the last point at or above the threshold
-		for k < n {
-			rl := returnLoss(gamma[k])
-			if rl >= thresholdDB {
-				e = k
-			} else if !(rl >= release) || hysteresisDB == 0 {
-				break // below the release level, or NaN
-			}
-			k++
-		}
-		dips = append(dips, bandDip(freqHz, gamma, s, e, thresholdDB))
-		k = e + 1
-	}
-	return dips
+	return ReflectionOf(freqHz, gamma, 0).Dips(thresholdDB, hysteresisDB)
 }
 
 // DeepestDip returns the point of highest return loss over the whole sweep,
-// refined as in [Dips], with the band edges where the power the load takes,
-// 1 − |Γ|², has fallen to half its value at the deepest measured point:
+// the least |Γ| of the interpolated trace as in [DipsHysteresis], with the
+// band edges where the power the load takes, 1 − |Γ|², has fallen to half
+// its value there:
 //
 //	threshold = −10·log10((1 + |Γmin|²)/2) dB
 //
-// For a single resonator at the end of a short lossless line matched to the
+// found on the interpolated trace as the edges of [DipsHysteresis] are.
+// Index is the measured point of highest return loss. For
+// a single resonator at the end of a short lossless line matched to the
 // reference, these are the points where its reactance equals ±(R + Z0), so
 // FreqHz/BandwidthHz() is its loaded Q (REFERENCE-CHECKS §9 R-2).
 //
 // For an empty sweep, or one whose Γ are all NaN, Index is −1 and the other
-// fields are zero. A gamma whose length differs from freqHz panics.
+// fields are zero. If |Γ| > 1 at the deepest point (active data) there is no
+// half-power band, and LoHz = HiHz = FreqHz. A gamma whose length differs
+// from freqHz panics.
 func DeepestDip(freqHz []float64, gamma []complex128) Dip {
-	if len(gamma) != len(freqHz) {
-		panic(badSweepLength)
-	}
-	best, bestRL := -1, math.Inf(-1)
-	for k, g := range gamma {
-		if rl := returnLoss(g); rl > bestRL {
-			best, bestRL = k, rl
-		}
-	}
-	if best < 0 {
-		return Dip{Index: -1}
-	}
-	g := cmplx.Abs(gamma[best])
-	thr := -10 * math.Log10((1+g*g)/2)
-	s, e := best, best
-	for s > 0 && returnLoss(gamma[s-1]) >= thr {
-		s--
-	}
-	for e < len(gamma)-1 && returnLoss(gamma[e+1]) >= thr {
-		e++
-	}
-	return bandDip(freqHz, gamma, s, e, thr)
+	return ReflectionOf(freqHz, gamma, 0).DeepestDip()
 }
 
 // returnLoss returns −20·log10|g|.
 func returnLoss(g complex128) float64 { return ReturnLossDB(cmplx.Abs(g)) }
-
-// cappedRL returns the return loss of g, at most rlCapDB.
-func cappedRL(g complex128) float64 { return math.Min(returnLoss(g), rlCapDB) }
-
-// bandDip returns the dip of the band of points s…e (inclusive). Points s
-// and e are at or above thr; points between them may lie below it (the
-// hysteresis of [DipsHysteresis]), and points s−1 and e+1 lie below it.
-func bandDip(freqHz []float64, gamma []complex128, s, e int, thr float64) Dip {
-	k := s
-	for i := s + 1; i <= e; i++ {
-		if returnLoss(gamma[i]) > returnLoss(gamma[k]) {
-			k = i
-		}
-	}
-	d := Dip{Index: k, FreqHz: freqHz[k], ReturnLossDB: returnLoss(gamma[k])}
-	if k > 0 && k < len(freqHz)-1 && !math.IsInf(d.ReturnLossDB, 1) {
-		x, y, ok := parabolaVertex(
-			freqHz[k-1], freqHz[k], freqHz[k+1],
-			returnLoss(gamma[k-1]), d.ReturnLossDB, returnLoss(gamma[k+1]))
-		if ok {
-			d.FreqHz, d.ReturnLossDB = x, y
-		}
-	}
-	if s == 0 || math.IsNaN(returnLoss(gamma[s-1])) {
-		d.LoHz, d.LoOpen = freqHz[s], true
-	} else {
-		d.LoHz = crossAt(freqHz[s-1], freqHz[s], cappedRL(gamma[s-1]), cappedRL(gamma[s]), thr)
-	}
-	if e == len(freqHz)-1 || math.IsNaN(returnLoss(gamma[e+1])) {
-		d.HiHz, d.HiOpen = freqHz[e], true
-	} else {
-		d.HiHz = crossAt(freqHz[e], freqHz[e+1], cappedRL(gamma[e]), cappedRL(gamma[e+1]), thr)
-	}
-	return d
-}
 
 // crossAt returns the x at which the straight line through (x0, y0) and
 // (x1, y1) takes the value y. If y0 = y1 it returns the midpoint.
@@ -194,25 +128,6 @@ func crossAt(x0, x1, y0, y1, y float64) float64 {
 	return x0 + (y-y0)/(y1-y0)*(x1-x0)
 }
 
-// parabolaVertex returns the vertex of the parabola through (x0, y0),
-// (x1, y1), (x2, y2), with x0 < x1 < x2, if it opens downward, all values
-// are finite and the vertex lies within [x0, x2].
-func parabolaVertex(x0, x1, x2, y0, y1, y2 float64) (x, y float64, ok bool) {
-	h0, h2 := x0-x1, x2-x1
-	d0, d2 := y0-y1, y2-y1
-	// y − y1 = a·h² + b·h with h = x − x1.
-	a := (d0/h0 - d2/h2) / (h0 - h2)
-	b := d0/h0 - a*h0
-	if !(a < 0) || math.IsInf(a, 0) || math.IsNaN(b) || math.IsInf(b, 0) {
-		return 0, 0, false
-	}
-	x = x1 - b/(2*a)
-	if !(x >= x0 && x <= x2) {
-		return 0, 0, false
-	}
-	return x, y1 - b*b/(4*a), true
-}
-
 // Crossing is a frequency at which the reactance of an impedance sweep
 // passes through zero.
 type Crossing struct {
@@ -220,7 +135,9 @@ type Crossing struct {
 	// the reactance is zero there): the crossing lies in
 	// [freqHz[Index], freqHz[Index+1]).
 	Index int
-	// FreqHz is the crossing, interpolated linearly in X.
+	// FreqHz is the crossing, interpolated linearly in X by
+	// [ReactanceZeroCrossings] and on the interpolated trace by
+	// [Reflection.ZeroCrossings].
 	FreqHz float64
 	// Rising is true when X goes from − to + with frequency, a series-type
 	// resonance (as of a series LC), and false when it goes from + to −, a
@@ -245,11 +162,21 @@ type Crossing struct {
 // Points where X is exactly zero are joined to the run of zeros they belong
 // to; the crossing is the middle of the run if X changes sign across it.
 // Points with NaN reactance break the sweep: no crossing is reported across
-// them. A z whose length differs from freqHz panics.
+// them. Between two points the crossing is interpolated linearly in X; the
+// crossings of a reflection trace, on its own interpolation, are those of
+// [Reflection.ZeroCrossings]. A z whose length differs from freqHz panics.
 func ReactanceZeroCrossings(freqHz []float64, z []complex128) []Crossing {
 	if len(z) != len(freqHz) {
 		panic(badSweepLength)
 	}
+	return zeroCrossings(freqHz, z, func(k int) float64 {
+		return crossAt(freqHz[k], freqHz[k+1], imag(z[k]), imag(z[k+1]), 0)
+	})
+}
+
+// zeroCrossings is [ReactanceZeroCrossings] with the crossing between
+// points k and k+1 placed by at(k).
+func zeroCrossings(freqHz []float64, z []complex128, at func(k int) float64) []Crossing {
 	n := len(z)
 	var out []Crossing
 	prev := -1 // last point with a finite, non-zero X
@@ -263,12 +190,11 @@ func ReactanceZeroCrossings(freqHz []float64, z []complex128) []Crossing {
 			continue
 		}
 		if prev >= 0 && (imag(z[prev]) < 0) != (x < 0) {
-			xp := imag(z[prev])
 			if k == prev+1 {
 				if !isPole(z, prev, k) {
 					out = append(out, Crossing{
 						Index:  prev,
-						FreqHz: crossAt(freqHz[prev], freqHz[k], xp, x, 0),
+						FreqHz: at(prev),
 						Rising: x > 0,
 					})
 				}

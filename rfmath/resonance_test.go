@@ -224,12 +224,18 @@ func TestDips(t *testing.T) {
 		x1 := ReactanceOfL(l1, f) + ReactanceOfC(c1, f)
 		x2 := ReactanceOfL(l2, f) + ReactanceOfC(c2, f)
 		// The two resonators in parallel would interact; instead build a
-		// trace that follows the first below 205 MHz and the second above.
+		// trace that follows the first below 205 MHz and the second above,
+		// broken by a NaN where it jumps from one to the other (the chord
+		// across the jump passes 12 dB inside the threshold circle, and an
+		// unbroken trace would rightly read a band there).
 		x := x1
 		if f > 205e6 {
 			x = x2
 		}
 		g[k] = GammaFromZ(complex(50, x), 50)
+		if f > 205e6 && freq[k-1] <= 205e6 {
+			g[k] = cmplx.NaN()
+		}
 	}
 	const thr = 10.0
 	gt := math.Pow(10, -thr/20)
@@ -259,9 +265,12 @@ func TestDips(t *testing.T) {
 	}
 }
 
-// TestDipRefinement checks the parabolic vertex on a trace that is exactly
-// quadratic in dB, unevenly sampled: RL = 30 − 4·(f − 3.3)² dB.
-func TestDipRefinement(t *testing.T) {
+// TestDipDeepestOnTrace checks the deepest point on a trace of real,
+// positive Γ, unevenly sampled, with RL = 30 − 4·(f − 3.3)² dB: between
+// points Γ is interpolated linearly in the complex plane, which for a real
+// positive Γ is linear in |Γ|, so the least |Γ| of the interpolated trace is
+// at a measured point, f = 3 with 30 − 4·0.09 = 29.64 dB (arithmetic).
+func TestDipDeepestOnTrace(t *testing.T) {
 	t.Parallel()
 	freq := []float64{0, 1, 2, 2.5, 3, 4.5, 5, 7}
 	g := make([]complex128, len(freq))
@@ -270,20 +279,16 @@ func TestDipRefinement(t *testing.T) {
 		g[k] = complex(math.Pow(10, -rl/20), 0) // |Γ| > 1 where rl < 0
 	}
 	d := DeepestDip(freq, g)
-	if math.Abs(d.FreqHz-3.3) > 1e-9 || math.Abs(d.ReturnLossDB-30) > 1e-9 || d.Index != 4 {
-		t.Errorf("dip = %+v, want 3.3, 30 dB at index 4", d)
+	if d.FreqHz != 3 || math.Abs(d.ReturnLossDB-29.64) > 1e-9 || d.Index != 4 {
+		t.Errorf("dip = %+v, want 3, 29.64 dB at index 4", d)
 	}
-	// Dips with a threshold: RL ≥ 20 dB where |f − 3.3| ≤ √2.5; edges are
-	// linear in dB between points, so check against that interpolation:
-	// between f = 1 (RL 8.84) and 2 (RL 23.24) the crossing of 20 dB is at
-	// 1 + (20 − 8.84)/(23.24 − 8.84).
 	ds := Dips(freq, g, 20)
 	if len(ds) != 1 {
 		t.Fatalf("dips = %+v", ds)
 	}
-	rl := func(f float64) float64 { return 30 - 4*(f-3.3)*(f-3.3) }
-	wantLo := 1 + (20-rl(1))/(rl(2)-rl(1))
-	wantHi := 4.5 + (20-rl(4.5))/(rl(5)-rl(4.5))*0.5
+	mag := func(f float64) float64 { return math.Pow(10, -(30-4*(f-3.3)*(f-3.3))/20) }
+	wantLo := 1 + (0.1-mag(1))/(mag(2)-mag(1))
+	wantHi := 4.5 + (0.1-mag(4.5))/(mag(5)-mag(4.5))*0.5
 	if math.Abs(ds[0].LoHz-wantLo) > 1e-9 || math.Abs(ds[0].HiHz-wantHi) > 1e-9 {
 		t.Errorf("edges %v, %v; want %v, %v", ds[0].LoHz, ds[0].HiHz, wantLo, wantHi)
 	}
@@ -301,10 +306,10 @@ func TestDipsEdgeCases(t *testing.T) {
 	if !ds[0].LoOpen || ds[0].LoHz != 1 || !ds[0].HiOpen || ds[0].HiHz != 2 || ds[0].Index != 0 || ds[0].FreqHz != 1 {
 		t.Errorf("first dip = %+v", ds[0])
 	}
-	// Γ = 0 at f = 4: RL = +Inf, not refined; the upper edge uses 400 dB
-	// for the Γ = 0 point: 4 + (20 − 400)/(6.02 − 400).
+	// Γ = 0 at f = 4: RL = +Inf, not refined; between Γ = 0 and 0.5 the
+	// interpolated |Γ| reaches 0.1 (20 dB) a fifth of the way: 4.2.
 	d := ds[1]
-	wantHi := 4 + (20-400)/(ReturnLossDB(0.5)-400)
+	wantHi := 4.2
 	if d.Index != 3 || d.FreqHz != 4 || !math.IsInf(d.ReturnLossDB, 1) || math.Abs(d.HiHz-wantHi) > 1e-12 || d.LoHz != 4 || !d.LoOpen {
 		t.Errorf("second dip = %+v, want HiHz %v, LoHz 4 open (beside the NaN)", d, wantHi)
 	}
@@ -317,10 +322,22 @@ func TestDipsEdgeCases(t *testing.T) {
 	if ds := Dips(nil, nil, 10); ds != nil {
 		t.Errorf("empty Dips = %+v", ds)
 	}
-	// A total reflection everywhere: the whole sweep, both ends open.
-	d = DeepestDip(f, []complex128{1, -1, 1i, -1i, 1})
-	if !d.LoOpen || !d.HiOpen || d.ReturnLossDB != 0 {
-		t.Errorf("total reflection: %+v", d)
+	// An open everywhere: RL 0 at every frequency, so the half-power
+	// threshold is 0 dB and the band is the whole sweep, both ends open.
+	d = DeepestDip(f, []complex128{1, 1, 1, 1, 1})
+	if !d.LoOpen || !d.HiOpen || d.ReturnLossDB != 0 || d.LoHz != 1 || d.HiHz != 5 {
+		t.Errorf("open: %+v", d)
+	}
+	// A lossless trace round the edge of the chart in 10° steps: the chord
+	// between two points passes inside it, closest at its middle, where
+	// |Γ| = cos 5° and RL = −20·log10(cos 5°) = 0.033115 dB (arithmetic).
+	g = make([]complex128, 5)
+	for k := range g {
+		g[k] = cmplx.Rect(1, float64(k)*10*math.Pi/180)
+	}
+	d = DeepestDip(f, g)
+	if want := -20 * math.Log10(math.Cos(5*math.Pi/180)); math.Abs(d.ReturnLossDB-want) > 1e-12 || math.Abs(d.FreqHz-math.Floor(d.FreqHz)-0.5) > 1e-9 {
+		t.Errorf("lossless trace: %+v, want %v dB midway between points", d, want)
 	}
 }
 
@@ -357,26 +374,6 @@ func TestInterpolationHelpers(t *testing.T) {
 	if x := crossAt(1, 3, 0, 10, 5); x != 2 {
 		t.Errorf("crossAt = %v, want 2", x)
 	}
-	tests := []struct {
-		name       string
-		y0, y1, y2 float64
-		ok         bool
-	}{
-		{"concave", 1, 2, 1, true},
-		{"convex", 2, 1, 2, false},
-		{"straight", 1, 2, 3, false},
-		{"vertex beyond x2", 0, 1, 1.9, false},
-		{"NaN", math.NaN(), 1, 0, false},
-	}
-	for _, tc := range tests {
-		x, y, ok := parabolaVertex(0, 1, 2, tc.y0, tc.y1, tc.y2)
-		if ok != tc.ok {
-			t.Errorf("%s: ok = %v (x %v, y %v), want %v", tc.name, ok, x, y, tc.ok)
-		}
-	}
-	if x, y, _ := parabolaVertex(0, 1, 2, 1, 2, 1); x != 1 || y != 2 {
-		t.Errorf("symmetric vertex = %v, %v; want 1, 2", x, y)
-	}
 }
 
 // TestDipsChatter checks the hysteresis of Dips on a smooth dip with a
@@ -384,7 +381,8 @@ func TestInterpolationHelpers(t *testing.T) {
 // several times near each edge: RL = 12 − 2·(f − 5)² + 0.12·sin(2π·f/0.03)
 // dB (arithmetic; the wiggle stands in for measurement noise of about
 // 0.1 dB). The edges must be the outermost crossings of the threshold,
-// interpolated linearly in dB as in TestDipRefinement.
+// interpolated linearly in |Γ| (Γ is real and positive) as in
+// TestDipRefinement.
 func TestDipsChatter(t *testing.T) {
 	t.Parallel()
 	freq := grid(3, 7, 801)
@@ -408,8 +406,12 @@ func TestDipsChatter(t *testing.T) {
 			last = k
 		}
 	}
-	wantLo := freq[first-1] + (thr-rl[first-1])/(rl[first]-rl[first-1])*(freq[first]-freq[first-1])
-	wantHi := freq[last] + (thr-rl[last])/(rl[last+1]-rl[last])*(freq[last+1]-freq[last])
+	gt := math.Pow(10, -thr/20)
+	cross := func(a, b int) float64 {
+		ga, gb := real(g[a]), real(g[b])
+		return freq[a] + (gt-ga)/(gb-ga)*(freq[b]-freq[a])
+	}
+	wantLo, wantHi := cross(first-1, first), cross(last, last+1)
 	ds := Dips(freq, g, thr)
 	if len(ds) != 1 {
 		t.Fatalf("Dips = %+v, want one band", ds)

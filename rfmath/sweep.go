@@ -155,17 +155,22 @@ func (s *Sweep) Clone() *Sweep {
 // last point returns k = Len()−2, t = 1 (or k = 0, t = 0 for a one-point
 // sweep at that frequency). Outside the sweep it returns ErrOutOfRange.
 func (s *Sweep) Locate(fHz float64) (k int, t float64, err error) {
-	n := s.Len()
+	return locate(s.FreqHz, fHz)
+}
+
+// locate is [Sweep.Locate] on the increasing frequencies freqHz.
+func locate(freqHz []float64, fHz float64) (k int, t float64, err error) {
+	n := len(freqHz)
 	if n == 0 {
 		return 0, 0, ErrEmptySweep
 	}
-	if math.IsNaN(fHz) || fHz < s.FreqHz[0] || fHz > s.FreqHz[n-1] {
-		return 0, 0, fmt.Errorf("%w: %g Hz is not within %g–%g Hz", ErrOutOfRange, fHz, s.FreqHz[0], s.FreqHz[n-1])
+	if math.IsNaN(fHz) || fHz < freqHz[0] || fHz > freqHz[n-1] {
+		return 0, 0, fmt.Errorf("%w: %g Hz is not within %g–%g Hz", ErrOutOfRange, fHz, freqHz[0], freqHz[n-1])
 	}
 	if n == 1 {
 		return 0, 0, nil
 	}
-	k = sort.SearchFloat64s(s.FreqHz, fHz) // first index with FreqHz[k] >= fHz
+	k = sort.SearchFloat64s(freqHz, fHz) // first index with freqHz[k] >= fHz
 	if k == 0 {
 		return 0, 0, nil
 	}
@@ -173,15 +178,31 @@ func (s *Sweep) Locate(fHz float64) (k int, t float64, err error) {
 	if k > n-2 {
 		k = n - 2
 	}
-	t = (fHz - s.FreqHz[k]) / (s.FreqHz[k+1] - s.FreqHz[k])
+	t = (fHz - freqHz[k]) / (freqHz[k+1] - freqHz[k])
 	return k, t, nil
+}
+
+// Lerp returns a + t·(b − a): the value at fraction t of the way from the
+// measured point a to the next one, b. It is the one interpolation between
+// measured points that matchbench uses for readouts, band edges, limit
+// checks and resampling: linear in the complex plane, real and imaginary
+// parts separately, in the sweep's own reference impedances (a sweep shown
+// in other references is renormalised after interpolating; see
+// [NewReflection]). It is exact at the points: Lerp(a, b, 0) = a and
+// Lerp(a, b, 1) = b.
+func Lerp(a, b complex128, t float64) complex128 {
+	if t == 1 {
+		return b // a + (b − a) may differ from b in the last bit
+	}
+	return a + complex(t, 0)*(b-a)
 }
 
 // InterpAt fills dst (length Ports×Ports, row-major) with the S-matrix at
 // fHz and returns it. Between measured points the value is interpolated
-// linearly in the complex plane (real and imaginary parts separately), which
-// is exact at the measured points and keeps a passive sweep passive; it does
-// not follow the curvature of a trace between coarse points. A frequency
+// linearly in the complex plane, real and imaginary parts separately (see
+// [Lerp]), which is exact at the measured points and keeps a passive sweep
+// passive; it does not follow the curvature of a trace between coarse
+// points. A frequency
 // outside the sweep returns ErrOutOfRange: there is no extrapolation.
 func (s *Sweep) InterpAt(dst []complex128, fHz float64) ([]complex128, error) {
 	pp := s.Ports * s.Ports
@@ -200,9 +221,8 @@ func (s *Sweep) InterpAt(dst []complex128, fHz float64) ([]complex128, error) {
 		return dst, nil
 	}
 	b := s.Data[(k+1)*pp : (k+2)*pp]
-	w := complex(t, 0)
 	for n := range dst {
-		dst[n] = a[n] + w*(b[n]-a[n])
+		dst[n] = Lerp(a[n], b[n], t)
 	}
 	return dst, nil
 }

@@ -143,3 +143,28 @@ func TestSweepPanics(t *testing.T) {
 		})
 	}
 }
+
+// TestLerpExactAtPoints checks that the interpolation returns the measured
+// points themselves at t = 0 and t = 1, and the midpoint halfway, on values
+// where a + (b − a) would round away from b.
+func TestLerpExactAtPoints(t *testing.T) {
+	t.Parallel()
+	a, b := complex(0.3, 0.1), complex(0.9, 0.3) // 0.3 + (0.9 − 0.3) rounds to 0.9000000000000001
+	if a+(b-a) == b {
+		t.Fatal("pick values where a + (b − a) ≠ b")
+	}
+	if Lerp(a, b, 0) != a || Lerp(a, b, 1) != b {
+		t.Errorf("Lerp at the ends: %v, %v; want %v, %v", Lerp(a, b, 0), Lerp(a, b, 1), a, b)
+	}
+	if m := Lerp(1, 3+2i, 0.5); m != 2+1i {
+		t.Errorf("Lerp midpoint = %v, want 2+1i", m)
+	}
+	s := NewSweep(3, 1, 50)
+	copy(s.FreqHz, []float64{1, 2, 3})
+	copy(s.Data, []complex128{0.3, a, b})
+	for k, f := range s.FreqHz {
+		if g, _ := s.InterpAt(nil, f); g[0] != s.Data[k] {
+			t.Errorf("InterpAt(%v) = %v, want the measured %v", f, g[0], s.Data[k])
+		}
+	}
+}

@@ -33,9 +33,13 @@ func (sc *scene) limitsView() web.LimitsView {
 	}
 	l, bands := ne.matchLoad(sc.st)
 	if len(bands) > 0 {
-		lim, fit, err := match.BodeFanoOf(l, bands)
+		members := []match.Member{{Load: l}}
+		if ne.set != nil {
+			members = ne.set.members
+		}
+		lim, fit, err := match.BodeFanoOfSet(members, bands)
 		if err != nil {
-			v.BodeFano = "Bode–Fano: " + err.Error()
+			v.BodeFano = "Bode–Fano: " + plainDetail(err.Error())
 		} else {
 			kind := "series"
 			if fit.Parallel {
@@ -48,15 +52,34 @@ func (sc *scene) limitsView() web.LimitsView {
 			v.BodeFano = fmt.Sprintf("Bode–Fano: near the bands the load behaves as a %s RLC (%s; fit error %.3f in Γ). No lossless network of any order can hold more than %s across all the bands at once; the largest common margin over the requirements is %+.1f dB.",
 				kind, fit.RLC, fit.RMSGammaError, best, lim.MaxMarginDB)
 			v.Feasible = lim.Feasible()
+			if !fit.Trusted() {
+				v.FitPoor = fmt.Sprintf("The RLC misses the load by %.3f in Γ (RMS), more than the %.2g this page trusts: the limit describes the model, not the load, so read it as a rough guide only. A narrower band, or one band at a time, fits better.",
+					fit.RMSGammaError, match.FitTrustRMSGamma)
+			}
 		}
 	}
 	if r := ne.n.ChuRadiusM; r > 0 {
-		c, err := match.ChuCompare(l, ne.n.DesignHz, r)
+		// The resonance nearest the middle of the bands, as the command
+		// line's match --radius finds it; without bands, the design
+		// frequency.
+		fHz := ne.n.DesignHz
+		if len(bands) > 0 {
+			lo, hi := bands[0].LoHz, bands[0].HiHz
+			for _, b := range bands {
+				lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
+			}
+			fHz = math.Sqrt(lo * hi)
+		}
+		c, err := match.ChuCompare(l, fHz, r)
 		if err != nil {
-			v.Chu = "Chu limit: " + err.Error()
+			v.Chu = "Chu limit: no comparison, because " + plainDetail(err.Error()) + "."
 		} else {
-			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance near %s, so Q ≥ %.1f; the sweep shows Q = %.1f (%.2f × the limit%s).",
-				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, c.Ratio,
+			how := ""
+			if c.SlopeQ {
+				how = ", from the slope of its impedance (a half-power edge lies beyond the sweep)"
+			}
+			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance at %s, so Q ≥ %.1f; the sweep shows Q = %.1f%s: %.2f × the limit%s.",
+				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, how, c.Ratio,
 				map[bool]string{true: "; below 1 means loss, or a radiator larger than the sphere such as the ground plane", false: ""}[c.Ratio < 1])
 		}
 		v.Radius = units.Format(r, "m", 3)
@@ -87,11 +110,18 @@ func (sc *scene) runYield(builds int) (*match.YieldResult, string) {
 	if len(bands) == 0 {
 		return nil, "Yield needs a band with a requirement (return loss or power to the load)."
 	}
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
-	res, err := match.Yield(ctx, l, bands, ne.built, &match.YieldSettings{Builds: builds, Seed: ne.n.YieldSeed, Traces: cloudTraces})
+	ys := &match.YieldSettings{Builds: builds, Seed: ne.n.YieldSeed, Traces: cloudTraces, Tolerances: ne.board.Tolerances()}
+	var res *match.YieldResult
+	var err error
+	if ne.set != nil {
+		res, err = match.YieldSet(ctx, ne.set.members, ne.set.kind(), bands, ne.board.Network, ys)
+	} else {
+		res, err = match.Yield(ctx, l, bands, ne.board.Network, ys)
+	}
 	if err != nil {
-		return nil, "Yield: " + err.Error()
+		return nil, "Yield: " + plainDetail(err.Error())
 	}
 	return res, ""
 }
@@ -118,26 +148,37 @@ func (sc *scene) yieldViewOf(res *match.YieldResult, msg string) web.YieldView {
 	}
 	v.Summary = fmt.Sprintf("%d builds (seed %d): %s meet every requirement of every band (return loss and power to the load). Margin: median %s, 5th percentile %s, worst build %s; worst corner %s.",
 		res.Builds, max(ne.n.YieldSeed, 1), units.FormatPercent(res.Yield, 1), signedDB(res.MedianMarginDB), signedDB(res.P5MarginDB), signedDB(res.WorstMarginDB), signedDB(res.WorstCorner.MarginDB))
-	for i, s := range res.Sensitivity {
+	for j, s := range res.Sensitivity {
+		o := ne.board.Origins[j]
+		if o.Role != match.RolePart {
+			continue // the board's pads and traces have no tolerance drawn
+		}
+		i := o.Index
 		u := ne.n.Parts[i].Kind.Unit()
 		v.Parts = append(v.Parts, web.SensRow{
 			Designator: designator(ne.n.Parts, i), Tol: "±" + units.Format(s.Tolerance, u, 3),
 			Low: signedDB(s.LowDB), High: signedDB(s.HighDB),
-			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: i == res.MostSensitive,
+			Share: fmt.Sprintf("%.0f %%", 100*s.Importance), Most: j == res.MostSensitive,
 		})
 	}
 	return v
 }
 
-// cloudTraces are the first Monte Carlo builds, drawn thin and grey.
-func (sc *scene) cloudTraces() []chartsvg.Trace {
+// cloudTraces are the first Monte Carlo builds, drawn thin and grey, as a
+// chart at reference chartZ0 draws them.
+func (sc *scene) cloudTraces(chartZ0 float64) []chartsvg.Trace {
 	res, _ := sc.yield()
 	if res == nil {
 		return nil
 	}
 	out := make([]chartsvg.Trace, 0, len(res.Traces))
 	for i, g := range res.Traces {
-		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: sc.net.sweep.FreqHz, Gamma: g, Ticks: -1, NoLegend: i > 0})
+		freq, z0 := sc.net.sweep.FreqHz, sc.net.z0
+		if sc.net.set != nil {
+			m := sc.net.set.members[res.TraceMembers[i]].Load
+			freq, z0 = m.FreqHz, m.Z0Ohm
+		}
+		out = append(out, chartsvg.Trace{ID: fmt.Sprintf("mc-%d", i), Name: "builds within tolerance", Color: "#b0b0b0", FreqHz: freq, Gamma: toChart(g, z0, chartZ0), Ticks: -1, NoLegend: i > 0})
 	}
 	return out
 }

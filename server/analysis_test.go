@@ -31,12 +31,14 @@ func TestLimitsAndYield(t *testing.T) {
 		t.Fatal(err)
 	}
 	st, _, _ = f.store.State(ctx, f.sess.ID)
+	f.srv.scene(f.sess.ID, st) // asks for the Monte Carlo
+	settle(t, f.srv)
 	a, b := f.srv.scene(f.sess.ID, st), f.srv.scene(f.sess.ID, st)
 	ya, yb := a.yieldView(), b.yieldView()
 	if ya.Summary == "" || ya.Summary != yb.Summary || len(ya.Parts) != 2 {
 		t.Fatalf("yield views %+v / %+v", ya, yb)
 	}
-	if n := len(a.cloudTraces()); n != cloudTraces {
+	if n := len(a.cloudTraces(50)); n != cloudTraces {
 		t.Errorf("%d cloud traces, want %d", n, cloudTraces)
 	}
 	var svg strings.Builder

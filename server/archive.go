@@ -1,6 +1,7 @@
 package server
 
 import (
+	"context"
 	"errors"
 	"io"
 	"mime/multipart"
@@ -60,6 +61,9 @@ func (s *Server) importArchive(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	refuse := func(status int, msg string) {
+		// A body cut off for its pace ends the request's context; the
+		// answer that says so is still made.
+		r := r.WithContext(context.WithoutCancel(r.Context()))
 		s.render(w, r, status, web.StartPage(s.startView(r, "The archive was not imported: "+msg)))
 	}
 	limit := s.archiveLimit()
@@ -72,6 +76,10 @@ func (s *Server) importArchive(w http.ResponseWriter, r *http.Request) {
 	var part *multipart.Part
 	for {
 		p, err := mr.NextPart()
+		if errors.Is(err, errTooSlow) {
+			refuse(http.StatusRequestTimeout, tooSlowMsg(s.cfg))
+			return
+		}
 		if err != nil {
 			refuse(http.StatusBadRequest, "choose an archive file (the form sent none)")
 			return
@@ -90,6 +98,10 @@ func (s *Server) importArchive(w http.ResponseWriter, r *http.Request) {
 	defer os.Remove(f.Name())
 	defer f.Close()
 	n, err := io.Copy(f, part)
+	if errors.Is(err, errTooSlow) {
+		refuse(http.StatusRequestTimeout, tooSlowMsg(s.cfg))
+		return
+	}
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {

@@ -59,23 +59,10 @@ func TestBrowserLossAware(t *testing.T) {
 	ctx := browser(t)
 	ectx, cancel := context.WithTimeout(ctx, 120*time.Second)
 	defer cancel()
-	must := func(err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	waitFor := func(js string) {
-		t.Helper()
-		wctx, c := context.WithTimeout(ectx, 30*time.Second)
-		defer c()
-		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			t.Fatalf("waiting for %s: %v", js, err)
-		}
-	}
+	must, waitFor := steps(t, ectx, 30*time.Second)
 	share := func() float64 { // the first band's worst power to the load, in %
 		t.Helper()
-		s, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-power-worst"]`)))
+		s, err := textIn(ectx, `[data-testid="net-power-worst"]`)
 		must(err)
 		v, err := strconv.ParseFloat(strings.Fields(s)[0], 64)
 		must(err)
@@ -101,7 +88,7 @@ func TestBrowserLossAware(t *testing.T) {
 	waitFor(`parseFloat(document.querySelector('[data-testid="net-power-worst"]').textContent) < ` + strconv.FormatFloat(before-5, 'f', 2, 64))
 	waitFor(`document.querySelectorAll('[data-testid="net-loss-note"]').length > 0`)
 	after := share()
-	note, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-loss-note"]`)))
+	note, _ := textIn(ectx, `[data-testid="net-loss-note"]`)
 	if !strings.Contains(note, "heat") {
 		t.Errorf("loss note %q", note)
 	}

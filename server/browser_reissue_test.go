@@ -79,7 +79,7 @@ func TestBrowserReissue(t *testing.T) {
 	if p, _ := chromedp.Run(ectx, chromedp.Evaluate[string](`location.pathname`)); p != "/s/"+newEdit+"/" {
 		t.Errorf("the editor is at %q, not the new edit link", p)
 	}
-	links, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`#share-panel`)))
+	links, _ := textIn(ectx, `#share-panel`)
 	if !strings.Contains(links, newView) || strings.Contains(links, f.sess.ViewToken) {
 		t.Errorf("the share panel does not show the new view link only")
 	}

@@ -2,6 +2,7 @@ package server
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"matchbench/internal/browsertest"
 	"math"
@@ -60,7 +61,24 @@ func screenOf(ctx context.Context, g complex128) ([]float64, error) {
 }
 
 func readoutFreq(ctx context.Context, mk string) (string, error) {
-	return chromedp.Run(ctx, chromedp.TextContent(chromedp.CSS(fmt.Sprintf(`#ro-%s [data-testid="ro-freq"]`, mk))))
+	return textIn(ctx, fmt.Sprintf(`#ro-%s [data-testid="ro-freq"]`, mk))
+}
+
+// textIn reads the text of the first element matching the CSS selector in
+// one script, so a fragment landing between finding the node and reading it
+// cannot fail the read (chromedp's TextContent takes two round trips and
+// reports "No node with given id" when the page redraws in between). It
+// errors when nothing matches.
+func textIn(ctx context.Context, sel string) (string, error) {
+	q, err := json.Marshal(sel)
+	if err != nil {
+		return "", err
+	}
+	return chromedp.Run(ctx, chromedp.Evaluate[string](`(() => {
+		const e = document.querySelector(`+string(q)+`);
+		if (!e) throw new Error("no element matches " + `+string(q)+`);
+		return e.textContent;
+	})()`))
 }
 
 // TestBrowserDragAndWatch loads a session in headless Chromium, drags a
@@ -197,11 +215,11 @@ func TestBrowserDragAndWatch(t *testing.T) {
 		chromedp.SetUploadFiles(chromedp.CSS("#file-input"), []string{bad}),
 		chromedp.Poll[chromedp.Void](`document.querySelector("#upload-errors").textContent.includes("bad.s1p:4")`),
 	); err != nil {
-		txt, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS("#upload-errors")))
+		txt, _ := textIn(ectx, "#upload-errors")
 		t.Fatalf("upload error shown: %q: %v", txt, err)
 	}
 	shot(t, ectx, filepath.Join(dir, "editor-bad-upload.png"))
-	txt, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS("#upload-errors")))
+	txt, _ := textIn(ectx, "#upload-errors")
 	if !strings.Contains(txt, "bad.s1p:4") {
 		t.Errorf("upload errors %q", txt)
 	}
@@ -224,21 +242,7 @@ func TestBrowserMatching(t *testing.T) {
 	ctx := browser(t)
 	ectx, cancel := context.WithTimeout(ctx, 90*time.Second)
 	defer cancel()
-	must := func(err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
-	waitFor := func(js string) {
-		t.Helper()
-		wctx, c := context.WithTimeout(ectx, 10*time.Second)
-		defer c()
-		if err := chromedp.Do(wctx, chromedp.Poll[chromedp.Void](js)); err != nil {
-			state, _ := chromedp.Run(ectx, chromedp.Evaluate[string](`(document.querySelector("#notice")||{}).textContent + " | " + [...document.querySelectorAll('[data-testid="part-value"]')].map(e => e.value).join(", ") + " | active: " + (document.activeElement && document.activeElement.outerHTML.slice(0, 120)) + " | errors: " + (window.__errs || []).join("; ")`))
-			t.Fatalf("waiting for %s: %v (page: %s)", js, err, state)
-		}
-	}
+	must, waitFor := steps(t, ectx, 10*time.Second)
 	must(chromedp.Do(ectx,
 		chromedp.EmulateViewport(1400, 1700),
 		chromedp.Navigate(f.ts.URL+"/s/"+f.sess.EditToken+"/"),
@@ -251,7 +255,7 @@ func TestBrowserMatching(t *testing.T) {
 	waitFor(`document.querySelectorAll('[data-testid="part-row"]').length === 1`)
 	must(chromedp.Do(ectx, chromedp.Click(chromedp.CSS(`[data-testid="add-series_L"]`))))
 	waitFor(`document.querySelectorAll('[data-testid="part-row"]').length === 2 && !!document.querySelector('[data-testid="net-worst"]')`)
-	before, err := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-worst"]`)))
+	before, err := textIn(ectx, `[data-testid="net-worst"]`)
 	must(err)
 	// Type the L-3 values (REFERENCE-CHECKS §6c): the band's worst return
 	// loss then rises well above 10 dB.
@@ -266,7 +270,7 @@ func TestBrowserMatching(t *testing.T) {
 	))
 	waitFor(`document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').value === "137.8 nH"`)
 	waitFor(`parseFloat(document.querySelector('[data-testid="net-worst"]').textContent) > 20`)
-	after, _ := chromedp.Run(ectx, chromedp.TextContent(chromedp.CSS(`[data-testid="net-worst"]`)))
+	after, _ := textIn(ectx, `[data-testid="net-worst"]`)
 	if before == after {
 		t.Errorf("band figure did not change: %q", after)
 	}
@@ -285,6 +289,8 @@ func TestBrowserMatching(t *testing.T) {
 		z := zStart + complex(0, 2*math.Pi*100e6*l)
 		path = append(path, rfmath.GammaFromZ(z, 50))
 	}
+	// Typing scrolled the part's field into view: back to the chart.
+	must(chromedp.Do(ectx, chromedp.Evaluate[chromedp.Void](`document.activeElement.blur(); window.scrollTo(0, 0)`)))
 	p0, err := screenOf(ectx, from)
 	must(err)
 	acts := []chromedp.Action[chromedp.Void]{chromedp.MouseEvent(chromedp.MousePressed, p0[0], p0[1], chromedp.ButtonLeft)}

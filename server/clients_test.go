@@ -73,7 +73,9 @@ func TestSlowClientDropped(t *testing.T) {
 	t.Parallel()
 	// Small socket buffers on both ends, so that the kernel holds few
 	// updates and the server's own queue soon fills.
-	f := newFixtureConns(t, 401, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst = 1e6, 1e6 },
+	f := newFixtureConns(t, 401, sessions.Options{}, func(c *Config) {
+		c.MsgPerSecond, c.MsgBurst, c.SessionMsgPerSecond, c.SessionMsgBurst = 1e6, 1e6, 1e6, 1e6
+	},
 		func(c net.Conn) { c.(*net.TCPConn).SetWriteBuffer(16 << 10) })
 	ctx := context.Background()
 	bev, err := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 120e6, HiHz: 130e6})
@@ -166,7 +168,9 @@ func TestSlowClientDropped(t *testing.T) {
 // it, and the room empties.
 func TestVanishMidDrag(t *testing.T) {
 	t.Parallel()
-	f := newFixtureOpts(t, 301, sessions.Options{}, func(c *Config) { c.MsgPerSecond, c.MsgBurst = 1e6, 1e6 })
+	f := newFixtureOpts(t, 301, sessions.Options{}, func(c *Config) {
+		c.MsgPerSecond, c.MsgBurst, c.SessionMsgPerSecond, c.SessionMsgBurst = 1e6, 1e6, 1e6, 1e6
+	})
 	ctx := context.Background()
 	st0, v0, _ := f.store.State(ctx, f.sess.ID)
 	before := st0.Markers[0].FreqHz

@@ -75,6 +75,9 @@ func netComments(sc *scene, ne *netEval) []string {
 	for i := range ne.n.Parts {
 		c = append(c, " "+partLine(ne, i))
 	}
+	if !ne.lay.IsZero() {
+		c = append(c, " on the board: "+ne.lay.Describe(ne.built)+" (included in the figures)")
+	}
 	return asciiOnly(c)
 }
 
@@ -112,6 +115,8 @@ func asciiOnly(lines []string) []string {
 				b.WriteString("sqrt ")
 			case r == '∝':
 				b.WriteString("as")
+			case r == 'ε':
+				b.WriteString("eps_")
 			case r >= 0x20 && r <= 0x7e:
 				b.WriteRune(r)
 			default:
@@ -183,7 +188,7 @@ func (sc *scene) matchedFile() ([]byte, error) {
 // port 1 toward the source.
 func (sc *scene) network2File() ([]byte, error) {
 	ne := sc.net
-	l, err := ne.built.Ladder()
+	l, err := ne.board.Network.Ladder()
 	if err != nil {
 		return nil, err
 	}
@@ -224,8 +229,9 @@ func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
 }
 
 // netlist writes the active network as a SPICE subcircuit (rfmath/spice),
-// its lossy parts' equivalents fitted across the load sweep and best in
-// the session's bands.
+// with its board's pads and traces where it has a board, its lossy parts'
+// equivalents fitted across the load sweep and best in the session's
+// bands.
 func (sc *scene) netlist() ([]byte, []spice.PartSummary, error) {
 	ne := sc.net
 	bands, _ := ne.netBands(sc.st, false)
@@ -241,13 +247,29 @@ func (sc *scene) netlist() ([]byte, []spice.PartSummary, error) {
 	if len(spec.Bands) == 0 {
 		spec.Bands = []spice.Range{{LoHz: ne.n.DesignHz, HiHz: ne.n.DesignHz}}
 	}
-	des := make([]string, len(ne.n.Parts))
-	for i := range des {
-		des[i] = designator(ne.n.Parts, i)
+	// The network as its figures judge it: on a board, with the board's
+	// pads and traces between the parts.
+	des := make([]string, len(ne.board.Network))
+	for j := range des {
+		des[j] = netlistRef(ne, j)
 	}
 	var b bytes.Buffer
-	sums, err := spice.Write(&b, ne.built, spice.Options{Name: "MATCH_" + safeName(ne.n.Name), Designators: des, Fit: spec, Comments: netComments(sc, ne)})
+	sums, err := spice.Write(&b, ne.board.Network, spice.Options{Name: "MATCH_" + safeName(ne.n.Name), Designators: des, Fit: spec, Comments: netComments(sc, ne)})
 	return b.Bytes(), sums, err
+}
+
+// netlistRef names element k of the board's network in a netlist: the
+// part's designator, PADn for the pads at node n, TRg for the trace in gap
+// g.
+func netlistRef(ne *netEval, k int) string {
+	switch o := ne.board.Origins[k]; o.Role {
+	case match.RolePads:
+		return "PAD" + strconv.Itoa(o.Index)
+	case match.RoleTrace:
+		return "TR" + strconv.Itoa(o.Index)
+	default:
+		return designator(ne.n.Parts, o.Index)
+	}
 }
 
 func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
@@ -272,6 +294,22 @@ func safeCell(s string) string {
 		return "'" + s
 	}
 	return s
+}
+
+// exportNetworkFile sends the active network with its board as a network
+// file (rfmath/match's NET.json, the format `matchbench tune --network`
+// reads and `matchbench match --json` writes).
+func (s *Server) exportNetworkFile(w http.ResponseWriter, r *http.Request) {
+	_, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	b, err := match.MarshalNetwork(ne.design, ne.lay)
+	if err != nil {
+		s.exportFailed(w, "network file", err)
+		return
+	}
+	send(w, safeName(ne.n.Name)+".json", "application/json", b)
 }
 
 // csvBytes writes rows as CSV, neutralising every cell of text (cells
@@ -313,10 +351,13 @@ func (s *Server) exportParts(w http.ResponseWriter, r *http.Request) {
 
 // partsJSON is the parts list as JSON.
 type partsJSON struct {
-	Session string    `json:"session"`
-	Network string    `json:"network"`
-	Note    string    `json:"note"`
-	Lines   []bomLine `json:"lines"`
+	Session string `json:"session"`
+	Network string `json:"network"`
+	Note    string `json:"note"`
+	// Board is the board the network is built on, in words (its pads and
+	// traces are not parts to buy; the figures include them); "" for none.
+	Board string    `json:"board,omitempty"`
+	Lines []bomLine `json:"lines"`
 }
 
 func (s *Server) exportPartsJSON(w http.ResponseWriter, r *http.Request) {
@@ -324,8 +365,12 @@ func (s *Server) exportPartsJSON(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	b, err := json.MarshalIndent(partsJSON{Session: sc.st.Name, Network: ne.n.Name, Lines: bom(ne),
-		Note: "values as built (standard values where a series is set); typical model figures are from memory, not a vendor's data"}, "", "  ")
+	pj := partsJSON{Session: sc.st.Name, Network: ne.n.Name, Lines: bom(ne),
+		Note: "values as built (standard values where a series is set); typical model figures are from memory, not a vendor's data"}
+	if !ne.lay.IsZero() {
+		pj.Board = ne.lay.Describe(ne.built)
+	}
+	b, err := json.MarshalIndent(pj, "", "  ")
 	if err != nil {
 		s.exportFailed(w, "parts list", err)
 		return
@@ -436,13 +481,16 @@ func (sc *scene) powerRows() ([]web.PowerRow, string) {
 	if len(bands) == 0 {
 		bands = []match.Band{{LoHz: ne.n.DesignHz, HiHz: ne.n.DesignHz}}
 	}
-	rep, err := match.Stress(ne.load, bands, ne.built, match.StressSettings{PowerW: ne.n.PowerW})
+	rep, err := match.Stress(ne.load, bands, ne.board.Network, match.StressSettings{PowerW: ne.n.PowerW})
 	if err != nil {
 		return nil, "Stress: " + err.Error()
 	}
 	var rows []web.PowerRow
 	for k, r := range rep {
-		row := web.PowerRow{Designator: designator(ne.n.Parts, k), VPeak: units.Format(r.WorstV.VPeak, "V", 3), IRMS: units.Format(r.WorstI.IRMS, "A", 3),
+		if ne.board.Origins[k].Role != match.RolePart {
+			continue // the board's pads and traces carry no rating
+		}
+		row := web.PowerRow{Designator: designator(ne.n.Parts, ne.board.Origins[k].Index), VPeak: units.Format(r.WorstV.VPeak, "V", 3), IRMS: units.Format(r.WorstI.IRMS, "A", 3),
 			Heat: units.Format(r.WorstP.DissipationW, "W", 3), Rating: "—", At: fmtF(r.WorstV.FreqHz)}
 		if t := ratingText(r.Rating); t != "" {
 			row.Rating = t

@@ -69,7 +69,13 @@ func FuzzMessage(f *testing.F) {
 				}
 			}
 			if p := ch.Chart; p != nil {
+				if _, sent := m.Fields["zoom"]; sent != (p.Zoom != nil) {
+					t.Fatalf("chart form with zoom sent %v gave zoom %v", sent, p.Zoom)
+				}
 				for _, v := range []*float64{p.Zoom, p.VSWRCircle, p.ReturnLossCircleDB} {
+					if v == nil && v == p.Zoom {
+						continue // zoom left as it is
+					}
 					if v == nil || math.IsNaN(*v) || math.IsInf(*v, 0) {
 						t.Fatalf("chart form gave %+v", p)
 					}

@@ -6,13 +6,16 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"encoding/xml"
+	"fmt"
 	"io"
 	"log/slog"
 	"math"
 	"math/cmplx"
 	"mime/multipart"
+	"net"
 	"net/http"
 	"net/http/httptest"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -190,6 +193,29 @@ func TestMarkersCSVNeutralised(t *testing.T) {
 	}
 	if !negative {
 		t.Error("no negative number to check (the reactance or angle of a marker)")
+	}
+	// Number cells are decimal numbers (or empty where a figure is not
+	// finite): no "+Inf", "NaN" or hexadecimal that a spreadsheet would
+	// take for text or a formula.
+	for _, r := range rows[1:] {
+		for i, c := range r[4:] {
+			if i+4 == 13 || c == "" {
+				continue
+			}
+			if strings.Trim(c, "0123456789.eE+-") != "" || strings.HasPrefix(c, "+") {
+				t.Errorf("number cell %q is not decimal", c)
+			} else if _, err := strconv.ParseFloat(c, 64); err != nil {
+				t.Errorf("number cell %q: %v", c, err)
+			}
+		}
+	}
+	for _, v := range []float64{math.Inf(1), math.Inf(-1), math.NaN()} {
+		if got := g(v); got != "" {
+			t.Errorf("g(%v) = %q, want an empty cell", v, got)
+		}
+	}
+	if got := g(-1.5e-12); got != "-1.5e-12" {
+		t.Errorf("g(-1.5e-12) = %q", got)
 	}
 	if got := safeCell("\tx"); got != "'\tx" {
 		t.Errorf("safeCell(tab) = %q", got)
@@ -438,4 +464,137 @@ func metricsEqual(a, b interface{}) bool {
 	ja, _ := json.Marshal(a)
 	jb, _ := json.Marshal(b)
 	return bytes.Equal(ja, jb)
+}
+
+// TestHandoffRoutesGuarded: every hand-off export goes the way of the
+// other exports. A request naming another host is refused with 421 (the
+// Host guard, as TestForgedHostRefused checks for the other routes); each
+// export that draws the session waits for the session's drawing slot (the
+// archive, read from the store like a raw file, does not); and each answers
+// as an attachment.
+func TestHandoffRoutesGuarded(t *testing.T) {
+	t.Parallel()
+	h := newHandoff(t, threeParts)
+	port := h.ts.Listener.Addr().(*net.TCPAddr).Port
+	base := "/s/" + h.sess.ViewToken
+	drawn := []string{
+		"/report", "/export/schematic.svg", "/export/parts.csv", "/export/parts.json", "/export/network.cir",
+		"/export/network.json", "/export/matched.s1p", "/export/network.s2p", "/export/markers.csv", "/export/chart.svg",
+		"/sweeps/" + h.load + "/corrected.s1p", "/sweeps/" + h.load + "/corrected.ts", "/sweeps/" + h.load + "/corrected.csv",
+	}
+	for _, p := range append(drawn, "/export/session.zip") {
+		res, text := requestAs(t, h.fixture, "GET", base+p, "rebind.example:"+itoa(port), nil)
+		if res.StatusCode != http.StatusMisdirectedRequest || !strings.Contains(text, "not a name this server answers to") {
+			t.Errorf("%s with a forged host: %d %q, want 421", p, res.StatusCode, text)
+		}
+	}
+	res, _ := requestAs(t, h.fixture, "POST", "/sessions/import", "rebind.example:"+itoa(port), strings.NewReader("x"))
+	if res.StatusCode != http.StatusMisdirectedRequest {
+		t.Errorf("import with a forged host: %d, want 421", res.StatusCode)
+	}
+
+	sh := h.srv.share(h.sess.ID)
+	sh.drawing(context.Background())
+	type answer struct {
+		path string
+		code int
+		hdr  http.Header
+	}
+	done := make(chan answer, len(drawn)+1)
+	for _, p := range append(drawn, "/export/session.zip") {
+		go func() {
+			code, _, hdr := getStatus(t, h.ts.URL+base+p)
+			done <- answer{p, code, hdr}
+		}()
+	}
+	// While the slot is held, only the archive answers.
+	select {
+	case a := <-done:
+		if a.path != "/export/session.zip" {
+			t.Errorf("%s answered while the session's drawing slot was held", a.path)
+		}
+		if a.code != 200 || !strings.HasPrefix(a.hdr.Get("Content-Disposition"), "attachment") {
+			t.Errorf("session.zip: %d, %q", a.code, a.hdr.Get("Content-Disposition"))
+		}
+	case <-time.After(10 * time.Second):
+		t.Error("the archive waited for the drawing slot")
+	}
+	select {
+	case a := <-done:
+		t.Errorf("%s answered while the session's drawing slot was held", a.path)
+	case <-time.After(300 * time.Millisecond):
+	}
+	sh.done()
+	for range drawn {
+		select {
+		case a := <-done:
+			cd := a.hdr.Get("Content-Disposition")
+			if a.path == "/report" {
+				cd = "attachment" // the report is a page to read and print
+			}
+			if a.code != 200 || !strings.HasPrefix(cd, "attachment") || a.hdr.Get("X-Content-Type-Options") != "nosniff" {
+				t.Errorf("%s: %d, Content-Disposition %q, nosniff %q", a.path, a.code, cd, a.hdr.Get("X-Content-Type-Options"))
+			}
+		case <-time.After(60 * time.Second):
+			t.Fatal("an export did not answer once the slot was free")
+		}
+	}
+}
+
+// TestReportChartAtPageReference: the report's charts are drawn at the
+// chart reference of the page that asked for it (the link carries the
+// page's view), each trace renormalised for the drawing as the page draws
+// it. The load's first point is checked against the change of reference
+// written out, Γ' = (Γ − ρ)/(1 − ρΓ) with ρ = (75 − 50)/(75 + 50)
+// (REFERENCE-CHECKS §11), placed as chartsvg places a point: (K·Re Γ',
+// −K·Im Γ') with K the chart's data-gamma-scale.
+func TestReportChartAtPageReference(t *testing.T) {
+	t.Parallel()
+	h := newHandoff(t, threeParts)
+	st, _, err := h.store.State(context.Background(), h.sess.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := h.srv.scene(h.sess.ID, st)
+	first := func(svg, id string) (x, y, k float64) {
+		t.Helper()
+		i := strings.Index(svg, `data-gamma-scale="`)
+		if i < 0 {
+			t.Fatalf("no data-gamma-scale in %.200s", svg)
+		}
+		fmt.Sscanf(svg[i+len(`data-gamma-scale="`):], "%g", &k)
+		j := strings.Index(svg, `id="`+id+`"`)
+		if j < 0 {
+			t.Fatalf("no %s in the chart", id)
+		}
+		d := svg[j:]
+		d = d[strings.Index(d, ` d="`)+4:]
+		if _, err := fmt.Sscanf(strings.NewReplacer("M", "", ",", " ").Replace(d[:strings.IndexAny(d[1:], "LMlm\"")+1]), "%g %g", &x, &y); err != nil {
+			t.Fatalf("path %.60s: %v", d, err)
+		}
+		return x, y, k
+	}
+	g := sc.net.gLoad[0]
+	for _, z0 := range []float64{50, 75} {
+		v, err := sc.reportView(time.Unix(0, 0), &pageView{Z0: z0})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(v.ChartBefore, fmt.Sprintf("Z₀ = %g Ω", z0)) || !strings.Contains(v.ChartAfter, fmt.Sprintf("Z₀ = %g Ω", z0)) {
+			t.Errorf("z0 %g: the charts do not say their reference", z0)
+		}
+		rho := complex((z0-50)/(z0+50), 0)
+		want := (g - rho) / (1 - rho*g)
+		x, y, k := first(v.ChartBefore, "before-trace-load")
+		if math.Abs(x-k*real(want)) > 0.2 || math.Abs(y+k*imag(want)) > 0.2 {
+			t.Errorf("z0 %g: the load starts at (%g, %g), want (%.2f, %.2f)", z0, x, y, k*real(want), -k*imag(want))
+		}
+		if renorm := strings.Contains(v.CaptionBefore, "renormalised for the drawing"); renorm != (z0 != 50) {
+			t.Errorf("z0 %g: caption %q", z0, v.CaptionBefore)
+		}
+	}
+	// The link carries the view: the report asked at 75 Ω draws at 75 Ω.
+	if page := fetch(t, h.ts.URL+"/s/"+h.sess.ViewToken+"/report?z0=75"); !strings.Contains(page, "Z₀ = 75 Ω") {
+		t.Error("the report at ?z0=75 is not drawn at 75 Ω")
+	}
 }

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"net/http"
 	"slices"
+	"strconv"
 	"sync"
 
 	"github.com/a-h/templ"
@@ -46,13 +47,18 @@ type anim struct {
 // room fans the events of one session out to its websocket connections.
 // It renders each event once per capability and shares the bytes.
 type room struct {
-	s   *Server
-	sid string
-	sub *sessions.Subscription
+	s     *Server
+	sid   string
+	sub   *sessions.Subscription
+	share *sessionShare // the session's; the room draws in its slot
+	// redraw asks the room to redraw its pages at the latest state: a
+	// derived result they show as computing is ready.
+	redraw chan struct{}
 
 	mu    sync.Mutex
 	conns map[*conn]struct{}
 	last  *scene // the scene of the latest state, reused while the structure is unchanged
+	lastV int64  // the version of the update sent last
 	key   string
 	done  chan struct{}
 }
@@ -70,7 +76,7 @@ func (s *Server) join(c *conn) (*room, error) {
 		if err != nil {
 			return nil, err
 		}
-		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{})}
+		rm = &room{s: s, sid: c.sid, sub: sub, conns: map[*conn]struct{}{}, done: make(chan struct{}), share: s.share(c.sid), redraw: make(chan struct{}, 1)}
 		s.rooms[c.sid] = rm
 		go rm.run()
 	}
@@ -96,7 +102,21 @@ func (s *Server) leave(rm *room, c *conn) {
 
 func (rm *room) run() {
 	defer close(rm.done)
-	for ev := range rm.sub.C {
+	for {
+		var ev sessions.Event
+		select {
+		case e, ok := <-rm.sub.C:
+			if !ok {
+				rm.ended() // tokens.go: overflow, re-issued links, shutdown
+				return
+			}
+			ev = e
+		case <-rm.redraw:
+			rm.share.drawing(context.Background())
+			rm.redrawAll()
+			rm.share.done()
+			continue
+		}
 		// Events that arrived while the last one was being sent go out as
 		// one update: a room that falls behind a fast drag sends the latest
 		// state, not every step of the way.
@@ -113,9 +133,65 @@ func (rm *room) run() {
 				break drain
 			}
 		}
+		rm.share.drawing(context.Background())
 		rm.broadcast(batch)
+		rm.share.done()
 	}
-	rm.ended() // tokens.go: overflow, re-issued links, shutdown
+}
+
+// askRedraw asks the room to redraw its pages; asks that come while one
+// waits are one.
+func (rm *room) askRedraw() {
+	select {
+	case rm.redraw <- struct{}{}:
+	default:
+	}
+}
+
+// redrawAll draws the session's latest state afresh (with the derived
+// results the cache now holds) and sends it to every page as a full update
+// at that version, unless the page has an update as new already.
+//
+// The state is the one the room sent last, so that a redraw never overtakes
+// an update still to be sent (whose animation it would swallow); a room
+// that has sent none yet takes the store's.
+func (rm *room) redrawAll() {
+	rm.mu.Lock()
+	var st *sessions.State
+	v := rm.lastV
+	if rm.last != nil {
+		st = rm.last.st
+	}
+	rm.mu.Unlock()
+	if st == nil {
+		var err error
+		if st, v, err = rm.s.store.State(context.Background(), rm.sid); err != nil {
+			return // the room ends with the session
+		}
+	}
+	sc := rm.s.scene(rm.sid, st)
+	rm.mu.Lock()
+	if rm.last != nil && rm.last.st == st {
+		sc.prev = rm.last.prev
+		rm.last = sc
+	}
+	rm.mu.Unlock()
+	msgs := map[string][]byte{} // by capability and page view, as broadcast
+	for _, c := range rm.snapshot() {
+		pv := c.currentView()
+		key := strconv.Itoa(int(c.cap)) + "/" + pv.key()
+		b, ok := msgs[key]
+		if !ok {
+			var err error
+			b, err = json.Marshal(outMsg{Type: "update", V: v, Op: "derived",
+				Frags: rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: c.cap, Token: c.token}, v, pv)})
+			if err != nil {
+				return
+			}
+			msgs[key] = b
+		}
+		c.queueRedraw(v, b)
+	}
 }
 
 // maxBatch bounds the events merged into one update.
@@ -138,23 +214,30 @@ func (rm *room) closeAll(reason string) {
 }
 
 // broadcast renders a batch of events (one update, at the last event's
-// version) once for editors and once for viewers (only when the room has
-// them) and queues it on every connection.
+// version) once per capability and page view in the room (editors and
+// viewers of the default view share one rendering) and queues it on every
+// connection.
 func (rm *room) broadcast(batch []sessions.Event) {
 	ev := batch[len(batch)-1]
+	rm.mu.Lock()
+	rm.lastV = ev.Version
+	rm.mu.Unlock()
 	conns := rm.snapshot()
-	var msgs [3][]byte // by capability
+	msgs := map[string][]byte{} // by capability and view
 	for _, c := range conns {
-		if msgs[c.cap] == nil {
-			m := rm.render(batch, c.cap, c.token)
-			b, err := json.Marshal(m)
-			if err != nil {
+		v := c.currentView()
+		key := strconv.Itoa(int(c.cap)) + "/" + v.key()
+		b, ok := msgs[key]
+		if !ok {
+			m := rm.render(batch, c.cap, c.token, v)
+			var err error
+			if b, err = json.Marshal(m); err != nil {
 				rm.s.log.Error("encode update", "err", err)
 				return
 			}
-			msgs[c.cap] = b
+			msgs[key] = b
 		}
-		c.queueUpdate(ev.Version, msgs[c.cap])
+		c.queueUpdate(ev.Version, b)
 	}
 }
 
@@ -167,11 +250,11 @@ var markerOps = map[string]bool{
 // render builds the update for a batch of events as seen with capability
 // cap: the last event's state; only the moved markers' fragments when every
 // event only moved markers; the animation of the last event's step.
-func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string) outMsg {
+func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token string, v *pageView) outMsg {
 	ev := batch[len(batch)-1]
 	sc, prev := rm.sceneFor(ev.State)
 	msg := outMsg{Type: "update", V: ev.Version, Op: ev.Op}
-	msg.Anim = stepAnimation(prev, sc, ev) // from the state before the batch
+	msg.Anim = stepAnimation(prev, sc, ev, v) // from the state before the batch
 	var moved []string
 	onlyMarkers := true
 	for _, e := range batch {
@@ -183,9 +266,15 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 			moved = append(moved, e.MarkerID)
 		}
 	}
+	if onlyAmpPoints(batch) {
+		if frags := rm.s.ampPointFrags(sc); frags != nil {
+			msg.Frags = frags
+			return msg
+		}
+	}
 	if onlyMarkers {
 		for i, id := range moved {
-			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit)
+			frags := rm.s.markerFrags(sc, id, cap == sessions.Edit, v)
 			if i < len(moved)-1 {
 				frags = frags[:len(frags)-1] // the readout table once, at the end
 			}
@@ -193,7 +282,7 @@ func (rm *room) render(batch []sessions.Event, cap sessions.Capability, token st
 		}
 		return msg
 	}
-	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version)
+	msg.Frags = rm.s.fullFrags(sc, access{SessionID: rm.sid, Cap: cap, Token: token}, ev.Version, v)
 	return msg
 }
 
@@ -207,20 +296,29 @@ func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 		return prev, prev.prev
 	}
 	key := structureKey(st)
+	back := prev.animationBase()
 	if prev != nil && rm.key == key {
 		c := *prev
-		c.st, c.prev = st, prev
+		c.st, c.prev = st, back
 		sc = &c
 	} else {
 		sc = rm.s.scene(rm.sid, st)
-		sc.prev = prev
+		sc.prev = back
 		rm.key = key
-	}
-	if prev != nil {
-		prev.prev = nil // keep one scene back, not the whole history
 	}
 	rm.last = sc
 	return sc, prev
+}
+
+// animationBase is what a scene keeps of the scene before it: the state
+// and the active network, from which stepAnimation starts a step. The
+// traces, plots and drawings of the scene before are not kept, so a room
+// holds one scene's worth of series, not two. A nil scene gives nil.
+func (sc *scene) animationBase() *scene {
+	if sc == nil {
+		return nil
+	}
+	return &scene{sid: sc.sid, st: sc.st, net: sc.net}
 }
 
 // structureKey identifies everything of a state except its markers: when
@@ -228,29 +326,41 @@ func (rm *room) sceneFor(st *sessions.State) (sc, prev *scene) {
 func structureKey(st *sessions.State) string {
 	c := *st
 	c.Markers = nil
+	if c.Amp != nil { // the terminations are drawn from the state itself
+		a := *c.Amp
+		a.GammaS, a.GammaL = nil, nil
+		c.Amp = &a
+	}
 	b, _ := json.Marshal(&c)
 	return string(b)
 }
 
-// markerFrags draws the groups of one marker (chart and plots) and the
-// readout table.
-func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool) []frag {
+// markerFrags draws the groups of one marker (chart and plots) as view v
+// shows them, and the readout table.
+func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool, v *pageView) []frag {
 	var out []frag
 	i := sc.st.MarkerIndex(markerID)
 	if i >= 0 {
-		if cm, ok := sc.chartMarker(i); ok {
+		if cm, ok := sc.chartMarker(i, v); ok {
 			var b bytes.Buffer
-			sc.chart.RenderMarker(&b, cm)
+			c := sc.chartFor(v)
+			c.RenderMarker(&b, cm)
 			out = append(out, frag{ID: "mk-" + markerID, HTML: b.String(), SVG: true})
 		}
-		for _, p := range sc.plots() {
-			for _, pm := range sc.plotMarkers() {
-				if pm.ID != markerID {
-					continue
-				}
+		// Every marker's group of each plot: a moved marker's number may
+		// make another's move aside (chartsvg.Plot.SpreadLabels).
+		// The bands' names and limits move out of the markers' way too.
+		for _, p := range sc.plotsFor(v) {
+			ms := sc.markersOf(&p)
+			for _, pm := range ms {
 				var b bytes.Buffer
 				p.p.RenderMarker(&b, pm, p.series)
-				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + markerID, HTML: b.String(), SVG: true})
+				out = append(out, frag{ID: p.p.IDPrefix + "pmk-" + pm.ID, HTML: b.String(), SVG: true})
+			}
+			if len(p.bands) > 0 {
+				var b bytes.Buffer
+				p.p.RenderBandLabels(&b, p.bands, ms, p.series)
+				out = append(out, frag{ID: p.p.IDPrefix + "bandnames", HTML: b.String(), SVG: true})
 			}
 		}
 	}
@@ -258,29 +368,40 @@ func (s *Server) markerFrags(sc *scene, markerID string, canEdit bool) []frag {
 	return out
 }
 
-// fullFrags redraws the chart, the plots and every panel.
-func (s *Server) fullFrags(sc *scene, a access, ver int64) []frag {
-	v := s.panelsView(a, sc, ver)
-	var b bytes.Buffer
-	sc.renderChart(&b)
-	out := []frag{{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true}}
-	var pv []web.PlotView
-	for _, p := range sc.plots() {
-		var pb bytes.Buffer
-		p.render(&pb, sc.plotMarkers())
-		pv = append(pv, web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()})
-	}
-	out = append(out, frag{ID: "plots-pane", HTML: renderString(web.PlotsPane(pv))})
+// fullFrags redraws the chart, the plots and every panel as view pv shows
+// them.
+func (s *Server) fullFrags(sc *scene, a access, ver int64, pv *pageView) []frag {
+	v := s.panelsView(a, sc, ver, pv)
+	out := s.viewFrags(sc, v, pv)
 	out = append(out,
 		frag{ID: "markers-panel", HTML: renderString(web.MarkersPanel(v))},
 		frag{ID: "sweeps-panel", HTML: renderString(web.SweepsPanel(v))},
 		frag{ID: "bands-panel", HTML: renderString(web.BandsPanel(v))},
 		frag{ID: "chart-panel", HTML: renderString(web.ChartPanel(v))},
 		frag{ID: "network-panel", HTML: renderString(web.NetworkPanel(v))},
+		frag{ID: "sets-panel", HTML: renderString(web.SetsPanel(v))},
+		frag{ID: "tuning-panel", HTML: renderString(web.TuningPanel(v))},
 		frag{ID: "refplane-panel", HTML: renderString(web.RefPlanePanel(v))},
+		frag{ID: "amp-panel", HTML: renderString(web.AmpPanel(v))},
 		frag{ID: "session-name", HTML: renderString(web.SessionName(sc.st.Name))},
 	)
 	return out
+}
+
+// viewFrags draws what depends on a page's view: the chart, its bar, the
+// plots with the span, and the resonance table.
+func (s *Server) viewFrags(sc *scene, v web.SessionView, pv *pageView) []frag {
+	var b bytes.Buffer
+	if err := sc.renderChartView(&b, pv); err != nil {
+		s.log.Error("render chart", "err", err)
+	}
+	v.Plots = sc.plotViews(pv)
+	return []frag{
+		{ID: "chart", HTML: "<div>" + b.String() + "</div>", Inner: true},
+		{ID: "chart-bar", HTML: renderString(web.ChartBarView(v))},
+		{ID: "plots-pane", HTML: renderString(web.PlotsPane(v))},
+		{ID: "resonance-panel", HTML: renderString(web.ResonancePanel(v))},
+	}
 }
 
 func renderString(c templ.Component) string {

@@ -185,7 +185,8 @@ func TestLoad(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer st.Close()
-	srv := New(Config{Store: st, Log: slog.New(slog.NewTextHandler(io.Discard, nil)), MsgPerSecond: 1e6, MsgBurst: 1e6})
+	srv := New(Config{Store: st, Log: slog.New(slog.NewTextHandler(io.Discard, nil)), MsgPerSecond: 1e6, MsgBurst: 1e6,
+		SessionMsgPerSecond: 1e6, SessionMsgBurst: 1e6, MaxConnsPerSession: 1000, MaxConnsPerToken: 1000, MaxConnsPerAddr: 1000})
 	ts := httptest.NewServer(srv) // listens on 127.0.0.1 only
 	defer ts.Close()
 	defer srv.Shutdown()

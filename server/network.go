@@ -1,6 +1,7 @@
 package server
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -32,33 +33,49 @@ type netEval struct {
 	design match.Network // the parts as typed, with their models
 	built  match.Network // the parts at their standard values (as typed where they have none)
 	snaps  bool          // some part's standard value differs from its typed one
-	load   match.Load
-	sweep  *rfmath.Sweep
-	port   int
-	z0     float64
-	gLoad  []complex128
-	ideal  []complex128 // Γ with the values as typed
-	buy    []complex128 // Γ with standard values; nil when no part snaps
-	toLoad []float64    // share of the available power at the load, as built
-	err    error
+	// lay is the network's board (zero without one); board is built placed
+	// on it and typed the design as typed placed on it (match.Layout.Place):
+	// the networks every figure, trace and export judges. Without a board
+	// they are built and design themselves. boardErr says why a stored
+	// board is left out.
+	lay      match.Layout
+	board    match.Placed
+	typed    match.Network
+	boardErr string
+	load     match.Load
+	sweep    *rfmath.Sweep
+	port     int
+	z0       float64
+	gLoad    []complex128
+	ideal    []complex128 // Γ with the values as typed
+	buy      []complex128 // Γ with standard values; nil when no part snaps
+	toLoad   []float64    // share of the available power at the load, as built
+	set      *setEval     // the load set the network is judged across, or nil
+	// stageSide is "source" or "load" for a network of the session's
+	// transistor stage, whose load is then the device's port with the
+	// other network in place (adaptStage, amp.go); "" otherwise.
+	stageSide string
+	err       error
 }
 
 // evalNetwork evaluates n over the sweep it sits on.
 func (sc *scene) evalNetwork(n *sessions.Network) *netEval {
 	ne := prepareNetwork(n, sc.all[n.SweepID])
+	adaptStage(sc.st, ne)
 	if ne.err != nil {
 		return ne
 	}
 	var err error
-	if ne.ideal, ne.toLoad, err = match.Response(ne.load, ne.design, nil, nil); err != nil {
+	if ne.ideal, ne.toLoad, err = match.Response(ne.load, ne.typed, nil, nil); err != nil {
 		ne.err = err
 		return ne
 	}
 	if ne.snaps {
-		if ne.buy, ne.toLoad, err = match.Response(ne.load, ne.built, nil, nil); err != nil {
+		if ne.buy, ne.toLoad, err = match.Response(ne.load, ne.board.Network, nil, nil); err != nil {
 			ne.err = err
 		}
 	}
+	sc.evalSet(ne)
 	return ne
 }
 
@@ -78,9 +95,46 @@ func prepareNetwork(n *sessions.Network, sw *rfmath.Sweep) *netEval {
 	ne.built, ne.snaps = ne.design.Built(), ne.design.HasSnaps()
 	if _, err := ne.built.Circuit(); err != nil {
 		ne.err = err
+		return ne
 	}
+	ne.placeOnBoard()
 	return ne
 }
+
+// placeOnBoard places the network on its stored board (see netEval); a
+// board that no longer fits the parts is left out with a note.
+func (ne *netEval) placeOnBoard() {
+	ne.board, ne.typed = match.Placed{Network: ne.built}, ne.design
+	for i := range ne.built {
+		ne.board.Origins = append(ne.board.Origins, match.Origin{Role: match.RolePart, Index: i})
+	}
+	lay, err := ne.n.Layout.Board(len(ne.n.Parts))
+	if err != nil {
+		ne.boardErr = "the board is left out: " + err.Error()
+		return
+	}
+	if lay.IsZero() {
+		return
+	}
+	b, err1 := lay.Place(ne.built)
+	t, err2 := lay.Place(ne.design)
+	if err1 != nil || err2 != nil {
+		ne.boardErr = "the board is left out: " + errors.Join(err1, err2).Error()
+		return
+	}
+	ne.lay, ne.board, ne.typed = lay, b, t.Network
+}
+
+// elem returns the index in the board's network of part i.
+func (ne *netEval) elem(i int) int {
+	if e := ne.board.Element(match.RolePart, i); e >= 0 {
+		return e
+	}
+	return i
+}
+
+// elementName names element j of the board's network (match.Placed.Name).
+func (ne *netEval) elementName(j int) string { return ne.board.Name(ne.design, j) }
 
 // designOf adapts the stored network's parts to the design type that the
 // search, the yield, the panel and the exports all judge, each by the one
@@ -112,18 +166,35 @@ func (ne *netEval) loadAt(fHz float64) complex128 {
 	return g
 }
 
-// path returns the matching path at the design frequency: one segment per
-// part, each the track of Γ as that part grows in. override, when ≥ 0,
-// draws part override at value ov and stops the path at fraction frac of
-// its step (animation frames).
+// path returns the matching path at the design frequency against the
+// load's own reference (see pathAt).
 func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment, []chartsvg.Marker) {
+	return ne.pathAt(override, ov, frac, ne.z0)
+}
+
+// pathAt returns the matching path at the design frequency as a chart at
+// reference chartZ0 draws it: one segment per part, each the track of Γ as
+// that part grows in. override, when ≥ 0, draws part override at value ov
+// and stops the path at fraction frac of its step (animation frames).
+func (ne *netEval) pathAt(override int, ov, frac, chartZ0 float64) ([]chartsvg.PathSegment, []chartsvg.Marker) {
 	if ne.err != nil {
 		return nil, nil
 	}
-	tracks := ne.built.Path(ne.n.DesignHz, ne.loadAt(ne.n.DesignHz), ne.z0, pathSamples, override, ov, frac)
+	if override >= 0 {
+		override = ne.elem(override)
+	}
+	tracks := ne.board.Network.Path(ne.n.DesignHz, ne.loadAt(ne.n.DesignHz), ne.z0, pathSamples, override, ov, frac)
 	segs := make([]chartsvg.PathSegment, 0, len(tracks))
 	var handles []chartsvg.Marker
-	for i, pts := range tracks {
+	for j, pts := range tracks {
+		pts = toChart(pts, ne.z0, chartZ0)
+		o := ne.board.Origins[j]
+		if o.Role != match.RolePart {
+			// The board's pads and traces: steps of the path without a handle.
+			segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: boardColour})
+			continue
+		}
+		i := o.Index
 		p := ne.n.Parts[i]
 		col := partColours[i%len(partColours)]
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: col})
@@ -132,41 +203,42 @@ func (ne *netEval) path(override int, ov, frac float64) ([]chartsvg.PathSegment,
 	return segs, handles
 }
 
+// boardColour draws the steps of the board's pads and traces on the
+// matching path.
+const boardColour = "#9e9e9e"
+
 // designator names part i as a parts list would: L1, C2, R3, TL1, TS1, T1,
-// counted by kind from the load.
+// counted by kind from the load (match.Network.Designator).
 func designator(parts []sessions.Part, i int) string {
-	prefix := func(p sessions.Part) string {
-		switch p.Kind {
-		case sessions.PartLine:
-			return "TL"
-		case sessions.PartStubOpen, sessions.PartStubShort:
-			return "TS"
-		case sessions.PartTransformer:
-			return "T"
-		}
-		return string(p.Kind.Component())
+	n := make(match.Network, len(parts))
+	for j, p := range parts {
+		n[j].Kind = p.Kind
 	}
-	want, n := prefix(parts[i]), 0
-	for j := 0; j <= i; j++ {
-		if prefix(parts[j]) == want {
-			n++
-		}
-	}
-	return want + strconv.Itoa(n)
+	return n.Designator(i)
 }
 
-// netTraces are the chart traces of the active network.
+// netTraces are the chart traces of the active network against its load's
+// own reference.
 func (sc *scene) netTraces() []chartsvg.Trace {
+	if sc.net == nil {
+		return nil
+	}
+	return sc.netTracesAt(sc.net.z0)
+}
+
+// netTracesAt are the chart traces of the active network as a chart at
+// reference chartZ0 draws them.
+func (sc *scene) netTracesAt(chartZ0 float64) []chartsvg.Trace {
 	ne := sc.net
 	if ne == nil || ne.err != nil || len(ne.n.Parts) == 0 {
 		return nil
 	}
-	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.ideal, Dashed: ne.buy != nil, Ticks: -1}}
+	out := []chartsvg.Trace{{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: toChart(ne.ideal, ne.z0, chartZ0), Dashed: ne.buy != nil, Ticks: -1}}
 	if ne.buy != nil {
 		out[0].Name += " (as typed)"
 	}
 	if ne.buy != nil {
-		out = append(out, chartsvg.Trace{ID: "netbuy-" + ne.n.ID, Name: ne.n.Name + " (standard values)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: ne.buy, Ticks: -1})
+		out = append(out, chartsvg.Trace{ID: "netbuy-" + ne.n.ID, Name: ne.n.Name + " (standard values)", Color: netColour, FreqHz: ne.sweep.FreqHz, Gamma: toChart(ne.buy, ne.z0, chartZ0), Ticks: -1})
 	}
 	return out
 }
@@ -210,7 +282,13 @@ func (sc *scene) metrics() (match.Metrics, []int, error) {
 	if len(bands) == 0 {
 		return sc.metricsRes, idx, nil
 	}
-	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.built)
+	if ne.set != nil {
+		var sm match.SetMetrics
+		sm, sc.metricsErr = match.EvaluateSet(ne.set.members, bands, ne.board.Network)
+		sc.metricsRes, sc.setRes = sm.Metrics, &sm
+		return sc.metricsRes, idx, sc.metricsErr
+	}
+	sc.metricsRes, sc.metricsErr = match.Evaluate(ne.load, bands, ne.board.Network)
 	return sc.metricsRes, idx, sc.metricsErr
 }
 
@@ -266,7 +344,14 @@ func signedDB(v float64) string {
 func (sc *scene) networkView() web.NetworkView {
 	v := web.NetworkView{}
 	for _, ref := range sc.st.Sweeps {
-		v.Loads = append(v.Loads, web.Option{Value: ref.ID, Label: ref.Name})
+		label := ref.Name
+		if ref.RefPlane != nil && sc.errs[ref.ID] == "" {
+			label += " (corrected)"
+		}
+		v.Loads = append(v.Loads, web.Option{Value: ref.ID, Label: label})
+	}
+	if pick := sc.defaultLoad(); pick >= 0 {
+		v.Loads[pick].Selected = true
 	}
 	for _, n := range sc.st.Networks {
 		v.Networks = append(v.Networks, web.Option{Value: n.ID, Label: n.Name, Selected: n.ID == sc.st.ActiveNetwork})
@@ -286,8 +371,9 @@ func (sc *scene) networkView() web.NetworkView {
 	for i := range v.Loads {
 		v.Loads[i].Selected = v.Loads[i].Value == n.SweepID
 	}
+	v.StageNote = stageNote(ne)
 	if ne.err != nil {
-		v.Error = ne.err.Error()
+		v.Error = plainWords(ne.err.Error())
 		return v
 	}
 	for i, p := range n.Parts {
@@ -299,6 +385,7 @@ func (sc *scene) networkView() web.NetworkView {
 			Value: units.Format(p.Value, unit, 4), Model: p.Model, Series: p.ESeries, Lumped: p.Kind.Component() != "",
 			SliderMin: strconv.FormatFloat(math.Log10(lo), 'f', 4, 64), SliderMax: strconv.FormatFloat(math.Log10(hi), 'f', 4, 64),
 			SliderVal: strconv.FormatFloat(math.Log10(p.Value), 'f', 4, 64), First: i == 0, Last: i == len(n.Parts)-1,
+			LogValue: strconv.FormatFloat(math.Log10(p.Value), 'g', 15, 64),
 		}
 		if p.ESeries != "" {
 			row.Buy = units.Format(d.BuyValue(), unit, 3)
@@ -306,18 +393,38 @@ func (sc *scene) networkView() web.NetworkView {
 		if row.Lumped {
 			fillPartFigures(&row, p, ne.built[i], n.DesignHz)
 		}
+		if p.Kind == sessions.PartLine || p.Kind == sessions.PartStubOpen || p.Kind == sessions.PartStubShort {
+			fillLineFigures(&row, ne.built[i], n.DesignHz)
+		}
 		v.Parts = append(v.Parts, row)
 	}
 	m, idx, err := sc.metrics()
 	if err != nil {
-		v.Error = err.Error()
+		v.Error = plainWords(err.Error())
 	}
 	for i, b := range sc.st.Bands {
 		if idx[i] < 0 || err != nil {
 			v.Metrics = append(v.Metrics, web.NetMetricRow{Band: b.Name, Note: "outside the load's sweep"})
 			continue
 		}
-		v.Metrics = append(v.Metrics, metricRow(b.Name, m.Bands[idx[i]]))
+		row := metricRow(b.Name, m.Bands[idx[i]])
+		if sm := sc.setRes; sm != nil && ne.set != nil {
+			// The worst binding member in this band.
+			for k, mm := range sm.Members {
+				if !ne.set.members[k].Advisory && mm.Bands[idx[i]].MarginDB == m.Bands[idx[i]].MarginDB {
+					row.Req += " · worst: " + ne.set.refs[k].Name
+					break
+				}
+			}
+		}
+		v.Metrics = append(v.Metrics, row)
+	}
+	if ne.set != nil && sc.setRes != nil {
+		bands, _ := ne.netBands(sc.st, false)
+		v.Set = web.NetSetView{Name: ne.set.set.Name, Kind: ne.set.set.Kind, Members: memberRows(ne.set, *sc.setRes, bands)}
+	}
+	for _, s := range sc.st.LoadSets {
+		v.Sets = append(v.Sets, web.Option{Value: s.ID, Label: s.Name, Selected: s.ID == n.SetID})
 	}
 	v.HasBuy = ne.buy != nil
 	if svg, err := sc.schematicSVG("net-"); err == nil {
@@ -325,9 +432,37 @@ func (sc *scene) networkView() web.NetworkView {
 	}
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
-	v.Limits = sc.limitsView()
+	v.Limits = sc.limits()
 	v.Yield = sc.yieldView()
 	return v
+}
+
+// defaultLoad is the sweep a new network is offered to match, by its index:
+// the first shown sweep with its reference plane applied (the corrected
+// measurement of the load, not the cable or fixture it was measured
+// through), else the first shown 1-port sweep that is no other sweep's
+// fixture, else the first sweep; −1 for none.
+func (sc *scene) defaultLoad() int {
+	fixture := map[string]bool{}
+	for _, ref := range sc.st.Sweeps {
+		if ref.RefPlane != nil && ref.RefPlane.FixtureSweepID != "" {
+			fixture[ref.RefPlane.FixtureSweepID] = true
+		}
+	}
+	for i, ref := range sc.st.Sweeps {
+		if ref.Visible && ref.RefPlane != nil && sc.errs[ref.ID] == "" {
+			return i
+		}
+	}
+	for i, ref := range sc.st.Sweeps {
+		if ref.Visible && ref.Ports == 1 && !fixture[ref.ID] {
+			return i
+		}
+	}
+	if len(sc.st.Sweeps) > 0 {
+		return 0
+	}
+	return -1
 }
 
 // partChange turns a network form into a change; fields as typed.
@@ -338,7 +473,7 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 	case "network.add":
 		return sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f["sweepId"]}, nil
 	case "network.set":
-		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"]}
+		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"], SetID: f["setId"]}
 		if s := strings.TrimSpace(f["design"]); s != "" {
 			v, err := units.ParseFrequency(s)
 			if err != nil {
@@ -422,6 +557,46 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 			}
 			ch.Params[fd.param] = v
 		}
+		// A line's or stub's figures.
+		if t, ok := f["z0"]; ok {
+			v, err := units.ParseValue(t, "Ω")
+			if err != nil || !(v > 0) {
+				return ch, fe("z0", "Line impedance", fmt.Errorf("%q is not an impedance in ohms", t))
+			}
+			ch.Params["z0Ohm"] = v
+		}
+		if t, ok := f["vfValue"]; ok && strings.TrimSpace(t) != "" {
+			x, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+			switch {
+			case f["vfKind"] == "eeff" && (err != nil || !(x >= 1) || math.IsInf(x, 0)):
+				return ch, fe("vfValue", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", t))
+			case f["vfKind"] == "eeff":
+				ch.Params["vf"] = 1 / math.Sqrt(x)
+			case err != nil || !(x > 0 && x <= 1):
+				return ch, fe("vfValue", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", t))
+			default:
+				ch.Params["vf"] = x
+			}
+		}
+		if t, ok := f["loss"]; ok {
+			s := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(t), "dB/m"))
+			if s == "" || s == "0" {
+				ch.Params["lossDBPerM"] = math.NaN()
+			} else {
+				x, err := strconv.ParseFloat(s, 64)
+				if err != nil || !(x >= 0) || x >= 1e4 {
+					return ch, fe("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", t))
+				}
+				ch.Params["lossDBPerM"] = x
+			}
+		}
+		if t, ok := f["lossRef"]; ok && strings.TrimSpace(t) != "" {
+			x, err := units.ParseFrequency(t)
+			if err != nil || !(x > 0) {
+				return ch, fe("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", t))
+			}
+			ch.Params["lossRefHz"] = x
+		}
 		if t, ok := f["tol"]; ok {
 			if strings.TrimSpace(t) == "" {
 				ch.Params["tolRel"] = math.NaN()
@@ -449,9 +624,16 @@ func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, 
 			return ch, fe("partId", "Part", fmt.Errorf("no part %q in the active network", ch.PartID))
 		}
 		if s, ok := f["value"]; ok {
-			v, err := units.ParseValue(s, part.Kind.Unit())
+			name := designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID))
+			v, inWL, err := wavelengthValue(s, match.Part{Kind: part.Kind, Params: part.Params}, ne.n.DesignHz)
+			if inWL && part.Kind.Unit() != "m" {
+				return ch, fe("value", name, fmt.Errorf("only a line or a stub has a length in wavelengths"))
+			}
+			if !inWL {
+				v, err = units.ParseValue(s, part.Kind.Unit())
+			}
 			if err != nil {
-				return ch, fe("value", designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID)), err)
+				return ch, fe("value", name, err)
 			}
 			ch.Value = &v
 		}
@@ -491,7 +673,7 @@ func (ne *netEval) dragValue(id string, target complex128) (float64, error) {
 		return 0, fmt.Errorf("no part %q in the active network", id)
 	}
 	fd := ne.n.DesignHz
-	v, err := ne.built.DragValue(i, fd, ne.loadAt(fd), ne.z0, target)
+	v, err := ne.board.Network.DragValue(ne.elem(i), fd, ne.loadAt(fd), ne.z0, target)
 	if err != nil {
 		return 0, fmt.Errorf("a %s cannot be dragged on the chart; type its value", kindLabels[ne.n.Parts[i].Kind])
 	}
@@ -502,7 +684,7 @@ func (ne *netEval) dragValue(id string, target complex128) (float64, error) {
 // to the active network or changed a part's value by a jump (not a drag,
 // whose moves are their own animation): the design point runs along the
 // part's arc while the whole response morphs with it.
-func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
+func stepAnimation(prev, sc *scene, ev sessions.Event, v *pageView) *anim {
 	if prev == nil || sc.net == nil || sc.net.err != nil || ev.PartID == "" || ev.Gesture != "" {
 		return nil
 	}
@@ -543,23 +725,24 @@ func stepAnimation(prev, sc *scene, ev sessions.Event) *anim {
 	}
 	a := &anim{MS: 700}
 	resp := make([]complex128, len(fs))
+	z0, chart := v.z0(), sc.chartFor(v)
 	for f := 1; f <= animFrames; f++ {
 		t := float64(f) / animFrames
 		t = t * t * (3 - 2*t) // ease in and out
-		var v float64
+		var val float64
 		if from == 0 {
-			v = match.ScaledValue(p.Kind, to, math.Max(t, 1e-4))
+			val = match.ScaledValue(p.Kind, to, math.Max(t, 1e-4))
 		} else {
-			v = from * math.Pow(to/from, t)
+			val = from * math.Pow(to/from, t)
 		}
-		segs, _ := ne.path(i, v, 1)
-		if _, err := ne.built.MorphTo(resp, i, v, fs, gl, ne.z0); err != nil {
+		segs, _ := ne.pathAt(i, val, 1, z0)
+		if _, err := ne.board.Network.MorphTo(resp, ne.elem(i), val, fs, gl, ne.z0); err != nil {
 			return nil
 		}
-		pts := append([]complex128(nil), resp...)
+		pts := toChart(append([]complex128(nil), resp...), ne.z0, z0)
 		segs = append(segs, chartsvg.PathSegment{Kind: chartsvg.PathPoints, Points: pts, From: pts[0], To: pts[len(pts)-1], Color: netColour})
 		var b strings.Builder
-		sc.chart.RenderPath(&b, segs)
+		chart.RenderPath(&b, segs)
 		a.Frames = append(a.Frames, []frag{{ID: "match-path", HTML: b.String(), SVG: true}})
 	}
 	return a
@@ -595,6 +778,49 @@ func fillPartFigures(row *web.PartRow, p sessions.Part, d match.Part, fHz float6
 		row.ModelNote = fmt.Sprintf("%s: at %s it is %s", model, fmtF4(fHz), fmtZ(z, 'g', 4))
 	}
 	row.ModelNote += " (set the part's own figures)"
+}
+
+// fillLineFigures shows a line section's or stub's figures: impedance,
+// velocity factor and the effective permittivity 1/VF² it means, loss in
+// dB/m at its frequency, and its length in mm and in wavelengths on the
+// line at the design frequency fHz, with its loss there.
+func fillLineFigures(row *web.PartRow, d match.Part, fHz float64) {
+	l := d.LineOf(d.Value)
+	vf := l.VelocityFactor
+	if vf == 0 {
+		vf = 1
+	}
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
+	row.Line = true
+	row.Z0 = units.Format(l.Z0Ohm, "Ω", 4)
+	row.VF, row.EEff = num(vf), num(1/(vf*vf))
+	row.Loss, row.LossRef = num(l.LossDBPerM), fmtF4(l.LossRefHz)
+	row.LengthMM = units.Format(l.LengthM, "m", 4)
+	row.LengthWL = strconv.FormatFloat(l.ElectricalDeg(fHz)/360, 'f', 4, 64)
+	row.DesignAt = fmtF4(fHz)
+	if l.LossDBPerM > 0 {
+		row.LineDB = fmt.Sprintf(", losing %s there", units.FormatDB(l.LossDB(fHz)))
+	}
+}
+
+// wavelengthValue reads a length typed in wavelengths on the line ("0.25λ",
+// "0.25 wl") at the design frequency fHz; ok is false for anything else.
+func wavelengthValue(s string, d match.Part, fHz float64) (float64, bool, error) {
+	t := strings.TrimSpace(s)
+	for _, suf := range []string{"λ", "wl", "WL"} {
+		if n, found := strings.CutSuffix(t, suf); found {
+			x, err := strconv.ParseFloat(strings.TrimSpace(n), 64)
+			if err != nil || !(x > 0) || math.IsInf(x, 0) {
+				return 0, true, fmt.Errorf("%q is not a number of wavelengths", s)
+			}
+			vf := d.LineOf(1).VelocityFactor
+			if vf == 0 {
+				vf = 1
+			}
+			return x * vf * rfmath.SpeedOfLight / fHz, true, nil
+		}
+	}
+	return 0, false, nil
 }
 
 // modelText names a part model as the panel shows it.

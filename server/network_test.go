@@ -120,7 +120,7 @@ func TestMatchingPathArcs(t *testing.T) {
 	nst.Networks[0].Parts[1].Value = 100e-9
 	next.st = &nst
 	next.net = next.evalNetwork(&nst.Networks[0])
-	a := stepAnimation(prev, &next, sessions.Event{Op: sessions.OpPartSet, PartID: nst.Networks[0].Parts[1].ID})
+	a := stepAnimation(prev, &next, sessions.Event{Op: sessions.OpPartSet, PartID: nst.Networks[0].Parts[1].ID}, nil)
 	if a == nil || len(a.Frames) != animFrames || a.Frames[0][0].ID != "match-path" {
 		t.Fatalf("animation %+v", a)
 	}

@@ -16,3 +16,16 @@ func (c *conn) queueUpdate(v int64, b []byte) {
 	c.sentV = v
 	c.queue(b)
 }
+
+// queueRedraw queues a full update at version v that redraws the page at
+// its own version or a newer one: like queueUpdate, but a page already at
+// v gets it too (it brings results that were computing).
+func (c *conn) queueRedraw(v int64, b []byte) {
+	c.sendMu.Lock()
+	defer c.sendMu.Unlock()
+	if v < c.sentV {
+		return
+	}
+	c.sentV = v
+	c.queue(b)
+}

@@ -1,15 +1,20 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"mime"
 	"net/http"
 	"path"
+	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/a-h/templ"
 	"github.com/go-chi/chi/v5"
@@ -143,6 +148,12 @@ func (s *Server) page(w http.ResponseWriter, r *http.Request) {
 	}
 	sc := s.scene(a.SessionID, st)
 	v := s.sessionView(r, a, sc, ver)
+	if sc.derivedPending() {
+		// A result still computing: the page says it is one version behind,
+		// so that its websocket's hello asks for a catch-up, which brings
+		// the result if it came meanwhile (later ones come as redraws).
+		v.Version = ver - 1
+	}
 	s.render(w, r, http.StatusOK, web.SessionPage(v))
 }
 
@@ -154,6 +165,10 @@ type uploadReply struct {
 }
 
 func writeJSON(w http.ResponseWriter, status int, v any) {
+	if r, ok := v.(uploadReply); ok {
+		r.Error = clip(r.Error, maxReplyText)
+		v = r
+	}
 	w.Header().Set("Content-Type", "application/json")
 	w.WriteHeader(status)
 	json.NewEncoder(w).Encode(v)
@@ -172,6 +187,10 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	r.Body = http.MaxBytesReader(w, r.Body, limit+64<<10)
 	f, hdr, err := r.FormFile("file")
 	if err != nil {
+		if errors.Is(err, errTooSlow) {
+			writeJSON(w, http.StatusRequestTimeout, uploadReply{Error: tooSlowMsg(s.cfg)})
+			return
+		}
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
 			writeJSON(w, http.StatusRequestEntityTooLarge, uploadReply{Error: fmt.Sprintf("the file is larger than the upload limit of %d MB", limit>>20)})
@@ -182,6 +201,10 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	}
 	defer f.Close()
 	raw, err := io.ReadAll(io.LimitReader(f, limit+1))
+	if errors.Is(err, errTooSlow) {
+		writeJSON(w, http.StatusRequestTimeout, uploadReply{Error: tooSlowMsg(s.cfg)})
+		return
+	}
 	if err != nil {
 		writeJSON(w, http.StatusBadRequest, uploadReply{Error: "the upload was cut off: " + err.Error()})
 		return
@@ -191,9 +214,13 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	name := path.Base(strings.ReplaceAll(hdr.Filename, "\\", "/"))
+	if n := utf8.RuneCountInString(name); n > maxFileNameRunes {
+		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: fmt.Sprintf("the file name %s has %d characters; rename the file to at most %d", quoteClipped(name, maxEcho), n, maxFileNameRunes)})
+		return
+	}
 	sw, err := parseSweep(name, raw, s.cfg.FileLimits)
 	if err != nil {
-		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: err.Error()})
+		writeJSON(w, http.StatusUnprocessableEntity, uploadReply{Error: plainWords(err.Error())})
 		return
 	}
 	ev, err := s.store.ApplyAs(r.Context(), a.Cap, a.SessionID, sessions.Change{
@@ -201,25 +228,35 @@ func (s *Server) upload(w http.ResponseWriter, r *http.Request) {
 	})
 	if err != nil {
 		status, msg := errorStatus(err)
-		if status == http.StatusInternalServerError {
+		if status >= 500 {
 			s.log.Error("upload", "err", err)
 		}
-		writeJSON(w, status, uploadReply{Error: msg})
+		writeJSON(w, status, uploadReply{Error: plainWords(msg)})
 		return
 	}
 	writeJSON(w, http.StatusOK, uploadReply{SweepID: ev.SweepID, Version: ev.Version})
+}
+
+// maxFileNameRunes bounds an uploaded file's name, as the store bounds
+// every name it keeps.
+const maxFileNameRunes = 200
+
+// tooSlowMsg says why an upload was cut off.
+func tooSlowMsg(cfg Config) string {
+	return fmt.Sprintf("the upload arrived too slowly and was cut off: after the first %v a file must arrive at %d kB/s or more, without pauses longer than %v",
+		cfg.BodyGrace, cfg.BodyMinRate>>10, cfg.BodyGrace)
 }
 
 // parseSweep reads an uploaded file by the ending of its name.
 // Zero fields of lim take touchstone's defaults.
 func parseSweep(name string, raw []byte, lim touchstone.Limits) (*rfmath.Sweep, error) {
 	if strings.EqualFold(path.Ext(name), ".csv") {
-		return touchstone.ReadCSV(strings.NewReader(string(raw)), name, lim)
+		return touchstone.ReadCSV(bytes.NewReader(raw), name, lim)
 	}
 	if _, ok := touchstone.PortsFromName(name); !ok && !strings.EqualFold(path.Ext(name), ".ts") {
 		return nil, fmt.Errorf("%s: the name must end in .sNp (e.g. .s1p, .s2p), .ts or .csv so the reader knows the format", name)
 	}
-	tf, err := touchstone.Read(strings.NewReader(string(raw)), name, lim)
+	tf, err := touchstone.Read(bytes.NewReader(raw), name, lim)
 	if err != nil {
 		return nil, err
 	}
@@ -239,19 +276,33 @@ func errorStatus(err error) (int, string) {
 		return http.StatusNotFound, "not found"
 	case errors.Is(err, sessions.ErrInvalid), errors.Is(err, sessions.ErrConflict):
 		return http.StatusUnprocessableEntity, err.Error()
+	case errors.Is(err, sessions.ErrDiskFull):
+		return http.StatusInsufficientStorage, "the change was not stored: the disk of the computer running matchbench is full. Free some space there and try again; nothing stored before was lost"
 	}
 	return http.StatusInternalServerError, "the server could not store the change; see its log"
 }
 
 func (s *Server) fail(w http.ResponseWriter, r *http.Request, err error) {
 	status, msg := errorStatus(err)
-	if status == http.StatusInternalServerError {
+	if status >= 500 {
 		s.log.Error("request failed", "route", chi.RouteContext(r.Context()).RoutePattern(), "err", err)
 	}
 	http.Error(w, msg, status)
 }
 
+// attachment marks the answer as a download named name. Control and
+// bidirectional control characters are left out of the name (names stored
+// by older builds may hold them), so the saved file's name reads as it is.
 func attachment(w http.ResponseWriter, name, ctype string) {
+	name = strings.Map(func(r rune) rune {
+		if unicode.IsControl(r) || unicode.Is(unicode.Bidi_Control, r) {
+			return -1
+		}
+		return r
+	}, name)
+	if name == "" {
+		name = "download"
+	}
 	w.Header().Set("Content-Type", ctype)
 	w.Header().Set("Content-Disposition", mime.FormatMediaType("attachment", map[string]string{"filename": name}))
 }
@@ -261,10 +312,12 @@ func (s *Server) exportChart(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	attachment(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml")
-	if err := sc.renderChart(w); err != nil {
-		s.log.Error("export chart", "err", err)
+	var b bytes.Buffer
+	if err := sc.renderChartView(&b, viewFromQuery(r.URL.Query())); err != nil {
+		s.exportFailed(w, "chart", err)
+		return
 	}
+	send(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml", b.Bytes())
 }
 
 func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
@@ -273,12 +326,14 @@ func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	id := chi.URLParam(r, "plot")
-	for _, p := range sc.plots() {
+	for _, p := range sc.plotsFor(viewFromQuery(r.URL.Query())) {
 		if p.id == id {
-			attachment(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml")
-			if err := p.render(w, sc.plotMarkers()); err != nil {
-				s.log.Error("export plot", "err", err)
+			var b bytes.Buffer
+			if err := p.render(&b, sc.plotMarkers()); err != nil {
+				s.exportFailed(w, "plot", err)
+				return
 			}
+			send(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml", b.Bytes())
 			return
 		}
 	}
@@ -323,7 +378,16 @@ func (s *Server) requestScene(w http.ResponseWriter, r *http.Request) (*scene, b
 	return s.scene(a.SessionID, st), true
 }
 
-func g(v float64) string { return fmt.Sprintf("%.10g", v) }
+// g writes a number for a CSV cell: decimal (digits, point, exponent) to
+// ten figures, as a spreadsheet reads it; a figure that is not finite (the
+// VSWR or Q of a point on the rim) is an empty cell, never "+Inf" or "NaN",
+// which a spreadsheet would take for text or a formula.
+func g(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', 10, 64)
+}
 
 func (s *Server) rawFile(w http.ResponseWriter, r *http.Request) {
 	a := accessFrom(r.Context())

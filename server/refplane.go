@@ -20,10 +20,14 @@ import (
 )
 
 // corrections caches corrected sweeps by session, sweep and plane: sweeps
-// are immutable, so a plane always gives the same result.
+// are immutable, so a plane always gives the same result. It holds at most
+// maxCorrections entries and limit bytes of numbers (maxCorrectionBytes
+// when zero); when a new one would not fit it starts again empty.
 type corrections struct {
-	mu sync.Mutex
-	m  map[string]corrected
+	mu    sync.Mutex
+	m     map[string]corrected
+	bytes int64
+	limit int64
 }
 
 type corrected struct {
@@ -31,7 +35,18 @@ type corrected struct {
 	err error
 }
 
-const maxCorrections = 128
+const (
+	maxCorrections     = 128
+	maxCorrectionBytes = 64 << 20
+)
+
+// sweepBytes is the size of a sweep's numbers.
+func sweepBytes(s *rfmath.Sweep) int64 {
+	if s == nil {
+		return 0
+	}
+	return int64(8*len(s.FreqHz) + 8*len(s.Z0) + 16*len(s.Data))
+}
 
 // corrected returns sweep ref of session sid with its reference plane
 // applied: the fixture removed at the analyser side, then the port
@@ -50,11 +65,22 @@ func (s *Server) corrected(sid string, ref sessions.SweepRef, raw *rfmath.Sweep)
 	}
 	s.corr.mu.Unlock()
 	out, err := s.applyPlane(sid, rp, raw)
-	s.corr.mu.Lock()
-	if s.corr.m == nil || len(s.corr.m) >= maxCorrections {
-		s.corr.m = map[string]corrected{}
+	n := sweepBytes(out)
+	if out == raw {
+		n = 0
 	}
-	s.corr.m[key] = corrected{out, err}
+	s.corr.mu.Lock()
+	limit := s.corr.limit
+	if limit <= 0 {
+		limit = maxCorrectionBytes
+	}
+	if s.corr.m == nil || len(s.corr.m) >= maxCorrections || s.corr.bytes+n > limit {
+		s.corr.m, s.corr.bytes = map[string]corrected{}, 0
+	}
+	if n <= limit {
+		s.corr.m[key] = corrected{out, err}
+		s.corr.bytes += n
+	}
 	s.corr.mu.Unlock()
 	return out, err
 }
@@ -323,9 +349,18 @@ func planeSteps(st *sessions.State, rp *sessions.RefPlane) []string {
 		steps = append(steps, fmt.Sprintf("port extension flat loss %.3g dB", rp.FlatLossDB))
 	}
 	if rp.RenormOhm > 0 {
-		steps = append(steps, "renormalised to "+units.Format(rp.RenormOhm, "Ω", 4))
+		steps = append(steps, "renormalised and shown in "+units.Format(rp.RenormOhm, "Ω", 4))
 	}
 	return steps
+}
+
+// planeSummary says what a sweep's reference plane does in one line (the
+// steps of planeSteps), "" for none.
+func (sc *scene) planeSummary(ref sessions.SweepRef) string {
+	if ref.RefPlane == nil {
+		return ""
+	}
+	return strings.Join(planeSteps(sc.st, ref.RefPlane), "; ")
 }
 
 // refPlaneView builds the reference-plane and time-domain panels.
@@ -334,7 +369,7 @@ func (sc *scene) refPlaneView() web.RefPlaneView {
 	for _, ref := range sc.st.Sweeps {
 		o := web.RefPlaneRow{ID: ref.ID, Name: ref.Name, Ports: ref.Ports}
 		if rp := ref.RefPlane; rp != nil {
-			o.Summary = strings.Join(planeSteps(sc.st, rp), "; ")
+			o.Summary = sc.planeSummary(ref)
 			base := "sweeps/" + ref.ID + "/corrected."
 			o.Exports = []web.Option{
 				{Value: base + "s" + strconv.Itoa(ref.Ports) + "p", Label: "Touchstone 1.1 (.s" + strconv.Itoa(ref.Ports) + "p)"},
@@ -350,7 +385,7 @@ func (sc *scene) refPlaneView() web.RefPlaneView {
 				o.Renorm = strconv.FormatFloat(rp.RenormOhm, 'g', 6, 64)
 			}
 			if sc.errs[ref.ID] != "" {
-				o.Error = sc.errs[ref.ID]
+				o.Error = plainWords(sc.errs[ref.ID])
 			}
 		}
 		v.Sweeps = append(v.Sweeps, o)

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"math"
 	"math/cmplx"
@@ -19,7 +20,7 @@ func addFile(t *testing.T, f *fixture, path string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tf, err := touchstone.Read(strings.NewReader(string(raw)), path, touchstone.DefaultLimits)
+	tf, err := touchstone.Read(bytes.NewReader(raw), path, touchstone.DefaultLimits)
 	if err != nil {
 		t.Fatal(err)
 	}

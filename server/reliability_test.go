@@ -450,7 +450,8 @@ func TestUploadRefusals(t *testing.T) {
 }
 
 // Changes over the websocket that break a rule are refused with a message
-// naming the op and the field; the connection stays usable.
+// naming the field as the page labels it (plainWords), with no package
+// prefix; the connection stays usable.
 func TestWebsocketRefusals(t *testing.T) {
 	t.Parallel()
 	f := newFixtureOpts(t, 101, sessions.Options{Limits: sessions.Limits{MarkersPerTrace: 2, Bands: 1, TextRunes: 20}}, nil)
@@ -465,22 +466,22 @@ func TestWebsocketRefusals(t *testing.T) {
 		has  []string
 	}{
 		{"second marker", `{"type":"change","id":1,"change":{"op":"marker.add","sweepId":"` + f.sweep + `","freqHz":2e8}}`, true, nil},
-		{"markers per trace", `{"type":"change","id":2,"change":{"op":"marker.add","sweepId":"` + f.sweep + `","freqHz":2e8}}`, false, []string{"marker.add", "2 markers, the limit"}},
+		{"markers per trace", `{"type":"change","id":2,"change":{"op":"marker.add","sweepId":"` + f.sweep + `","freqHz":2e8}}`, false, []string{"Marker: ", "2 markers, the limit"}},
 		{"port beyond the sweep", `{"type":"change","id":3,"change":{"op":"marker.add","sweepId":"` + f.sweep + `","port":2,"freqHz":2e8}}`, false, []string{"port"}},
 		{"frequency out of range number", `{"type":"change","id":4,"change":{"op":"marker.move","markerId":"` + f.mk + `","freqHz":1e999}}`, false, []string{"not JSON"}},
 		{"NaN as a string", `{"type":"change","id":5,"change":{"op":"marker.move","markerId":"` + f.mk + `","freqHz":"NaN"}}`, false, []string{"not JSON"}},
 		{"gamma far off", `{"type":"change","id":6,"change":{"op":"marker.move","markerId":"` + f.mk + `","gamma":{"re":1e308,"im":-1e308}}}`, true, nil},
-		{"negative window", `{"type":"change","id":7,"change":{"op":"marker.move","markerId":"` + f.mk + `","gamma":{"re":0,"im":0},"window":-3}}`, false, []string{"window", "negative"}},
-		{"empty band", `{"type":"change","id":10,"change":{"op":"band.set","loHz":2e9,"hiHz":1e9}}`, false, []string{"hiHz", "empty"}},
+		{"negative window", `{"type":"change","id":7,"change":{"op":"marker.move","markerId":"` + f.mk + `","gamma":{"re":0,"im":0},"window":-3}}`, false, []string{"Search window", "negative"}},
+		{"empty band", `{"type":"change","id":10,"change":{"op":"band.set","loHz":2e9,"hiHz":1e9}}`, false, []string{"To: ", "empty"}},
 		{"first band", `{"type":"form","id":8,"form":"band.set","fields":{"lo":"1G","hi":"2G"}}`, true, nil},
 		{"bands per session", `{"type":"form","id":9,"form":"band.set","fields":{"lo":"1G","hi":"2G"}}`, false, []string{"1 bands, the limit"}},
 		{"NaN in a form", `{"type":"form","id":11,"form":"marker.add","fields":{"trace":"` + f.sweep + `:1","freq":"NaN"}}`, false, []string{"Frequency"}},
 		{"Inf in a form", `{"type":"form","id":12,"form":"chart.set","fields":{"zoom":"Inf"}}`, false, []string{"Zoom"}},
-		{"zoom out of range", `{"type":"change","id":13,"change":{"op":"chart.set","chart":{"zoom":0.5}}}`, false, []string{"chart.zoom"}},
-		{"label too long", `{"type":"change","id":14,"change":{"op":"marker.label","markerId":"` + f.mk + `","label":"` + long + `"}}`, false, []string{"label", "21 characters, the limit is 20"}},
-		{"control character", `{"type":"change","id":15,"change":{"op":"session.rename","name":"a\u0007b"}}`, false, []string{"name", "control character"}},
+		{"zoom out of range", `{"type":"change","id":13,"change":{"op":"chart.set","chart":{"zoom":0.5}}}`, false, []string{"Zoom: "}},
+		{"label too long", `{"type":"change","id":14,"change":{"op":"marker.label","markerId":"` + f.mk + `","label":"` + long + `"}}`, false, []string{"Label: ", "21 characters, the limit is 20"}},
+		{"control character", `{"type":"change","id":15,"change":{"op":"session.rename","name":"a\u0007b"}}`, false, []string{"Name: ", "control character"}},
 		{"invalid UTF-8", "{\"type\":\"change\",\"id\":16,\"change\":{\"op\":\"session.rename\",\"name\":\"a\xffb\"}}", true, nil},
-		{"bad colour", `{"type":"change","id":17,"change":{"op":"sweep.color","sweepId":"` + f.sweep + `","color":"red"}}`, false, []string{"color", "#rrggbb"}},
+		{"bad colour", `{"type":"change","id":17,"change":{"op":"sweep.color","sweepId":"` + f.sweep + `","color":"red"}}`, false, []string{"Colour: ", "#rrggbb"}},
 		{"unknown op", `{"type":"change","id":18,"change":{"op":"launch"}}`, false, []string{"unknown op"}},
 		{"deep nesting", `{"type":"change","id":19,"change":` + strings.Repeat(`{"a":`, 2000) + `1` + strings.Repeat(`}`, 2000) + `}`, false, []string{""}},
 	}
@@ -500,6 +501,9 @@ func TestWebsocketRefusals(t *testing.T) {
 			if !strings.Contains(m.Msg, s) {
 				t.Errorf("%s: error %q lacks %q", tc.name, m.Msg, s)
 			}
+		}
+		if strings.Contains(m.Msg, "sessions:") || strings.Contains(m.Msg, "invalid:") {
+			t.Errorf("%s: error %q shows the store's wording", tc.name, m.Msg)
 		}
 	}
 	// Invalid UTF-8 in JSON decodes to U+FFFD, which is a valid name.

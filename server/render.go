@@ -2,11 +2,13 @@ package server
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"math"
 	"math/cmplx"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -43,27 +45,44 @@ type scene struct {
 	st     *sessions.State
 	traces []*trace
 	all    map[string]*rfmath.Sweep // every listed sweep, visible or not
-	chart  chartsvg.Chart
+	chart  chartsvg.Chart           // the session's chart settings; chartFor adds a page's view
 	fmin   float64
 	fmax   float64
-	plotsC []plot
-	net    *netEval                 // the active matching network, or nil
-	raw    map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
-	errs   map[string]string        // sweeps whose plane could not be applied
+	net    *netEval // the active matching network, or nil
+
+	// Caches filled as the scene is drawn, kept while only markers change
+	// (room.sceneFor copies them with the scene): plots by view, plot
+	// series by quantity, traces renormalised for a chart's reference.
+	plotsC     map[string][]plot
+	seriesC    map[string][]chartsvg.Series
+	seriesNote map[string]string
+	disp       map[string][]complex128
+
+	raw  map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
+	errs map[string]string        // sweeps whose plane could not be applied
 
 	metricsDone bool // metricsRes, metricsIdx and metricsErr hold the network's band figures
 	metricsRes  match.Metrics
 	metricsIdx  []int
 	metricsErr  error
+	setRes      *match.SetMetrics // the figures on each member, when the network is judged across a set
 
 	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
 	yieldRes  *match.YieldResult
 	yieldMsg  string
 
+	// Filled by fillDerived (derivedscene.go) from the derived-results cache.
+	yieldPending bool            // the Monte Carlo is computing
+	limitsV      *web.LimitsView // the limits, or "computing…"
+	jobCtx       context.Context // a derived job's context (jobContext)
+
 	tdrDone bool // tdrP and tdrNote hold the time-domain view
 	tdrP    *plot
 	tdrNote string
 	prev    *scene // the scene before, while a room renders an event
+
+	amp   *ampEval   // the amplifier view, or nil (amp.go)
+	stage *stageEval // the transistor stage, or nil (amp.go)
 }
 
 // scene builds the scene of state st. Sweeps that cannot be read are left
@@ -110,10 +129,7 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 		AngleScale:      cs.ShowAngleScale,
 		WavelengthScale: cs.ShowWavelengthScale,
 		QArcs:           cs.QArcs,
-		Z0Ohm:           50,
-	}
-	if len(sc.traces) > 0 {
-		sc.chart.Z0Ohm = sc.traces[0].z0
+		Z0Ohm:           defaultChartZ0,
 	}
 	if cs.Zoom > 1 {
 		sc.chart.Zoom = 1 / cs.Zoom
@@ -127,6 +143,8 @@ func (s *Server) scene(sid string, st *sessions.State) *scene {
 	if n := st.Active(); n != nil {
 		sc.net = sc.evalNetwork(n)
 	}
+	s.fillDerived(sc)
+	s.evalAmp(sc)
 	return sc
 }
 
@@ -139,12 +157,60 @@ func (sc *scene) traceByMarker(m sessions.Marker) *trace {
 	return nil
 }
 
-func (sc *scene) chartTraces() []chartsvg.Trace {
+// chartFor returns the chart as view v draws it: the session's grids and
+// overlays at the page's reference, zoom and centre (the session's own
+// zoom while the page has not zoomed).
+func (sc *scene) chartFor(v *pageView) chartsvg.Chart {
+	c := sc.chart
+	c.Z0Ohm = v.z0()
+	if z := v.zoom(); z > 1 {
+		c.Zoom, c.Centre = 1/z, v.Centre
+	}
+	return c
+}
+
+// onChart reports whether view v's chart shows trace t's port.
+func onChart(v *pageView, t *trace) bool {
+	switch {
+	case v == nil || v.Chart == "":
+		return true
+	case v.Chart == "S22":
+		return t.port == 2
+	}
+	return t.port == 1
+}
+
+func (sc *scene) chartTraces(v *pageView) []chartsvg.Trace {
 	out := make([]chartsvg.Trace, 0, len(sc.traces))
+	z0 := v.z0()
+	shown := 0
 	for _, t := range sc.traces {
+		if onChart(v, t) {
+			shown++
+		}
+	}
+	n := 0
+	for _, t := range sc.traces {
+		if !onChart(v, t) {
+			continue
+		}
+		n++
+		// Frequency labels along every trace crowd a chart of many: with
+		// three or four, every other tick is labelled; with more, only
+		// the first two traces' ticks are.
+		every := 0
+		switch {
+		case shown > 4 && n > 2:
+			every = 1 << 30
+		case shown > 2:
+			every = 2
+		}
 		name := t.ref.Name
 		if t.sweep.Ports > 1 {
 			name += fmt.Sprintf(" S%d%d", t.port, t.port)
+		}
+		if t.z0 != z0 {
+			name += " (" + fmtOhms(t.z0) + " sweep, drawn at " + fmtOhms(z0) + ")"
 		}
 		var keep []float64
 		for _, m := range sc.st.Markers {
@@ -153,13 +219,13 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 			}
 		}
 		out = append(out, chartsvg.Trace{
-			ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Gamma: t.gamma,
-			Dashed: t.port == 2, KeepHz: keep,
+			ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Gamma: sc.dispGamma(t, z0),
+			Dashed: t.port == 2, KeepHz: keep, LabelEvery: every,
 		})
 		if raw := sc.raw[t.ref.ID]; raw != nil && t.port == 1 {
 			out = append(out, chartsvg.Trace{
-				ID: t.ref.ID + "-raw", Name: name + " (as measured)", Color: t.ref.Color, FreqHz: raw.FreqHz,
-				Gamma: reflection(raw, 0), Dashed: true, Ticks: -1,
+				ID: t.ref.ID + "-raw", Name: t.ref.Name + " (as measured)", Color: t.ref.Color, FreqHz: raw.FreqHz,
+				Gamma: toChart(reflection(raw, 0), raw.Z0[0], z0), Dashed: true, Ticks: -1,
 			})
 		}
 	}
@@ -167,11 +233,13 @@ func (sc *scene) chartTraces() []chartsvg.Trace {
 }
 
 // thinSeries keeps, of a long series, the first, lowest, highest and last
-// point of each of 4·plotWidth frequency columns: what the plot can show
-// (chartsvg thins again to its pixels), at a fraction of the memory that a
-// room's cached scene holds between renders.
+// point of each of plotWidth frequency columns: what the plot can show
+// (chartsvg thins the same way to its pixels, and a series is cut to the
+// plot's span first, thinSpan, so a column is at most a pixel wide), at a fraction of
+// the memory that a room's cached scene holds between renders. A series of
+// at most 4·plotWidth points is kept whole.
 func thinSeries(s chartsvg.Series) chartsvg.Series {
-	const cols = 4 * plotWidth
+	const cols = plotWidth
 	n := len(s.FreqHz)
 	if n <= 4*cols {
 		return s
@@ -200,7 +268,8 @@ func thinSeries(s chartsvg.Series) chartsvg.Series {
 		}
 		start = end
 	}
-	s.FreqHz, s.Y = fs, ys
+	// Exact-size copies: the scratch above is sized for the worst case.
+	s.FreqHz, s.Y = slices.Clone(fs), slices.Clone(ys)
 	return s
 }
 
@@ -218,23 +287,25 @@ func sortedUnique(a, b, c, d int) []int {
 // markerNum is a marker's number: its place in the session's list, from 1.
 func (sc *scene) markerNum(id string) int { return sc.st.MarkerIndex(id) + 1 }
 
-func (sc *scene) chartMarker(i int) (chartsvg.Marker, bool) {
+// chartMarker returns marker i as view v's chart draws it, if it does.
+func (sc *scene) chartMarker(i int, v *pageView) (chartsvg.Marker, bool) {
 	m := sc.st.Markers[i]
 	t := sc.traceByMarker(m)
-	if t == nil {
+	if t == nil || !onChart(v, t) {
 		return chartsvg.Marker{}, false
 	}
 	g, ok := t.at(m.FreqHz)
 	if !ok {
 		return chartsvg.Marker{}, false
 	}
+	g = pointToChart(g, t.z0, v.z0())
 	return chartsvg.Marker{ID: m.ID, Num: i + 1, Label: m.Label, Gamma: g, FreqHz: m.FreqHz, Trace: t.id, Color: t.ref.Color}, true
 }
 
-func (sc *scene) chartMarkers() []chartsvg.Marker {
+func (sc *scene) chartMarkers(v *pageView) []chartsvg.Marker {
 	var out []chartsvg.Marker
 	for i := range sc.st.Markers {
-		if cm, ok := sc.chartMarker(i); ok {
+		if cm, ok := sc.chartMarker(i, v); ok {
 			out = append(out, cm)
 		}
 	}
@@ -262,17 +333,27 @@ func (t *trace) at(fHz float64) (complex128, bool) {
 	return t.gamma[k] + complex(u, 0)*(t.gamma[k+1]-t.gamma[k]), true
 }
 
-func (sc *scene) renderChart(w io.Writer) error {
-	traces := append(sc.cloudTraces(), sc.chartTraces()...)
-	traces = append(traces, sc.netTraces()...)
-	markers := sc.chartMarkers()
+// renderChart draws the chart as the default view shows it.
+func (sc *scene) renderChart(w io.Writer) error { return sc.renderChartView(w, nil) }
+
+// renderChartView draws the chart as view v shows it.
+func (sc *scene) renderChartView(w io.Writer, v *pageView) error {
+	z0 := v.z0()
+	traces := append(sc.cloudTraces(z0), sc.chartTraces(v)...)
+	traces = append(traces, sc.netTracesAt(z0)...)
+	traces = append(traces, sc.setTraces(z0)...)
+	markers := sc.chartMarkers(v)
 	var path []chartsvg.PathSegment
 	if sc.net != nil {
 		var handles []chartsvg.Marker
-		path, handles = sc.net.path(-1, 0, 1)
+		path, handles = sc.net.pathAt(-1, 0, 1, z0)
 		markers = append(markers, handles...)
 	}
-	return sc.chart.Render(w, traces, markers, path)
+	c := sc.chartFor(v)
+	if v != nil {
+		c.Tag = v.ID
+	}
+	return c.Render(w, traces, markers, path)
 }
 
 // plot is one rectangular plot of the page.
@@ -281,85 +362,19 @@ type plot struct {
 	p         chartsvg.Plot // resolved
 	series    []chartsvg.Series
 	bands     []chartsvg.Band
+	choice    plotChoice // what the slot shows; Q is "" for the time-domain plot
+	def       string     // the slot's default quantity
 }
 
 func (p *plot) render(w io.Writer, markers []chartsvg.PlotMarker) error {
+	if len(markers) > 1 {
+		p.p.SpreadLabels(markers, p.series)
+	}
 	return p.p.Render(w, p.series, p.bands, markers)
 }
 
-// plots returns the page's plots: reflection in dB with the bands and
-// their requirements, and R and X.
-func (sc *scene) plots() []plot {
-	if sc.plotsC != nil {
-		return sc.plotsC
-	}
-	var rl, zx []chartsvg.Series
-	for _, t := range sc.traces {
-		n := len(t.gamma)
-		db := make([]float64, n)
-		r := make([]float64, n)
-		x := make([]float64, n)
-		for k, g := range t.gamma {
-			db[k] = 20 * math.Log10(cmplx.Abs(g))
-			z := rfmath.ZFromGamma(g, complex(t.z0, 0))
-			r[k], x[k] = real(z), imag(z)
-		}
-		name := t.ref.Name
-		if t.sweep.Ports > 1 {
-			name += fmt.Sprintf(" S%d%d", t.port, t.port)
-		}
-		rl = append(rl, thinSeries(chartsvg.Series{ID: t.id, Name: name, Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: db, Dashed: t.port == 2}))
-		zx = append(zx,
-			thinSeries(chartsvg.Series{ID: t.id + "-r", Name: name + " R", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: r}),
-			thinSeries(chartsvg.Series{ID: t.id + "-x", Name: name + " X", Color: t.ref.Color, FreqHz: t.sweep.FreqHz, Y: x, Dashed: true}))
-	}
-	if ne := sc.net; ne != nil && ne.err == nil && len(ne.n.Parts) > 0 {
-		db := func(g []complex128) []float64 {
-			out := make([]float64, len(g))
-			for k, v := range g {
-				out[k] = 20 * math.Log10(cmplx.Abs(v))
-			}
-			return out
-		}
-		rl = append(rl, chartsvg.Series{ID: "net-" + ne.n.ID, Name: ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: db(ne.result())})
-	}
-	var bands, powerBands []chartsvg.Band
-	for _, b := range sc.st.Bands {
-		bands = append(bands, chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, Limit: -b.MinReturnLossDB, HasLimit: b.MinReturnLossDB > 0})
-		powerBands = append(powerBands, chartsvg.Band{Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz, Limit: 100 * b.MinPowerToLoad, HasLimit: b.MinPowerToLoad > 0})
-	}
-	mk := func(id, title, ylabel, yunit string, series []chartsvg.Series, bands []chartsvg.Band) plot {
-		p := chartsvg.Plot{Width: plotWidth, Height: plotHeight, Title: title, YLabel: ylabel, YUnit: yunit, IDPrefix: id + "-"}
-		if len(sc.traces) > 0 {
-			p.XMin, p.XMax = sc.fmin, sc.fmax
-		}
-		rp := p.Resolve(series, bands)
-		return plot{id: id, title: title, p: rp, series: series, bands: bands}
-	}
-	sc.plotsC = []plot{
-		mk("refl", "Reflection |S11|", "|S11|", "dB", rl, bands),
-		mk("zx", "Impedance: R solid, X dashed", "R, X", "Ω", zx, nil),
-	}
-	if ne := sc.net; ne != nil && ne.err == nil && len(ne.n.Parts) > 0 {
-		// The power that reaches the load, with the network as built and
-		// with the load alone (1 − |Γ|²), in % of the available power.
-		with := make([]float64, len(ne.toLoad))
-		alone := make([]float64, len(ne.gLoad))
-		for k := range with {
-			with[k] = 100 * ne.toLoad[k]
-			alone[k] = 100 * rfmath.PowerDeliveredFraction(cmplx.Abs(ne.gLoad[k]))
-		}
-		series := []chartsvg.Series{
-			thinSeries(chartsvg.Series{ID: "pw-alone", Name: sweepName(sc.st, ne.n.SweepID) + " alone", Color: "#8a8a8a", FreqHz: ne.sweep.FreqHz, Y: alone, Dashed: true}),
-			thinSeries(chartsvg.Series{ID: "pw-net", Name: "through " + ne.n.Name, Color: netColour, FreqHz: ne.sweep.FreqHz, Y: with}),
-		}
-		sc.plotsC = append(sc.plotsC, mk("power", "Power to the load, % of the available power", "to the load", "%", series, powerBands))
-	}
-	if p, _ := sc.tdrPlot(); p != nil {
-		sc.plotsC = append(sc.plotsC, *p)
-	}
-	return sc.plotsC
-}
+// plots returns the page's plots as the default view shows them.
+func (sc *scene) plots() []plot { return sc.plotsFor(nil) }
 
 func (sc *scene) plotMarkers() []chartsvg.PlotMarker {
 	var out []chartsvg.PlotMarker
@@ -369,6 +384,14 @@ func (sc *scene) plotMarkers() []chartsvg.PlotMarker {
 		}
 	}
 	return out
+}
+
+// markersOf returns the markers as plot p draws them, their numbers
+// spread so that none covers another (chartsvg.Plot.SpreadLabels).
+func (sc *scene) markersOf(p *plot) []chartsvg.PlotMarker {
+	ms := sc.plotMarkers()
+	p.p.SpreadLabels(ms, p.series)
+	return ms
 }
 
 // readout is one marker's figures.
@@ -488,6 +511,7 @@ func (sc *scene) sweepRows(token string) []web.SweepRow {
 			ID: ref.ID, Name: ref.Name, FileName: ref.FileName, Color: ref.Color, Visible: ref.Visible,
 			Summary: fmt.Sprintf("%d-port, %d points, %s – %s", ref.Ports, ref.Points, fmtF(ref.FminHz), fmtF(ref.FmaxHz)),
 			RawHref: "/s/" + token + "/sweeps/" + ref.ID + "/file",
+			Plane:   sc.planeSummary(ref),
 		})
 	}
 	return rows
@@ -516,32 +540,42 @@ func chartOptions(cs sessions.ChartSettings) web.ChartOptions {
 
 // sessionView builds the whole page's view model.
 func (s *Server) sessionView(r *http.Request, a access, sc *scene, ver int64) web.SessionView {
-	v := s.panelsView(a, sc, ver)
+	v := s.panelsView(a, sc, ver, nil)
 	var b bytes.Buffer
 	if err := sc.renderChart(&b); err != nil {
 		s.log.Error("render chart", "err", err)
 	}
 	v.Chart.SVG = b.String()
-	for _, p := range sc.plots() {
-		var pb bytes.Buffer
-		if err := p.render(&pb, sc.plotMarkers()); err != nil {
-			s.log.Error("render plot", "err", err)
-		}
-		v.Plots = append(v.Plots, web.PlotView{ID: p.id, Title: p.title, SVG: pb.String()})
-	}
+	v.Plots = sc.plotViews(nil)
 	if a.Cap == sessions.Edit {
 		v.Share = s.shareLinks(r, a.SessionID)
 	}
 	return v
 }
 
-// panelsView fills the parts of the page that do not need drawing.
-func (s *Server) panelsView(a access, sc *scene, ver int64) web.SessionView {
+// panelsView fills the parts of the page that do not need drawing, as
+// view v shows them.
+func (s *Server) panelsView(a access, sc *scene, ver int64, v *pageView) web.SessionView {
 	return web.SessionView{
 		ID: a.SessionID, Name: sc.st.Name, Version: ver, CanEdit: a.Cap == sessions.Edit, Token: a.Token,
 		Sweeps: sc.sweepRows(a.Token), Markers: sc.readoutRows(), Bands: sc.bandRows(),
 		Options: chartOptions(sc.st.Chart), MaxUploadMB: int(s.cfg.MaxUploadBytes >> 20),
-		Network:  sc.networkView(),
-		RefPlane: sc.refPlaneView(),
+		Network:    sc.networkView(),
+		Sets:       sc.setsView(),
+		Tuning:     sc.tuningView(),
+		RefPlane:   sc.refPlaneView(),
+		Amp:        sc.ampView(),
+		Span:       sc.spanView(v),
+		ChartBar:   sc.chartBar(v),
+		Resonances: sc.resonanceView(v),
 	}
+}
+
+// chartBar shows the chart's view controls as view v has them.
+func (sc *scene) chartBar(v *pageView) web.ChartBar {
+	b := web.ChartBar{Z0: strconv.FormatFloat(v.z0(), 'g', 6, 64), Has2Port: sc.has2Port(), Zoomed: v.zoom() > 1}
+	if v != nil {
+		b.Param = v.Chart
+	}
+	return b
 }

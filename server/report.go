@@ -20,7 +20,12 @@ const reportBuilds = 1000
 // figure comes from the function the panel uses: the band table
 // (metricRow via networkView), the stress (powerRows), the yield
 // (yieldViewOf), the parts list (bom), the netlist (netlist).
-func (sc *scene) reportView(now time.Time) (web.ReportView, error) {
+//
+// The charts are drawn as the page draws its chart for view pv (nil: the
+// default view): at the page's chart reference, every trace renormalised
+// to it for the drawing (display.go), the whole chart; the plots show
+// |S11| and the power to the load across the whole sweep.
+func (sc *scene) reportView(now time.Time, pv *pageView) (web.ReportView, error) {
 	ne := sc.net
 	nv := sc.networkView()
 	v := web.ReportView{
@@ -28,6 +33,13 @@ func (sc *scene) reportView(now time.Time) (web.ReportView, error) {
 		Load:   fmt.Sprintf("%s, S%d%d", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port),
 		Design: fmtF(ne.n.DesignHz), Generated: now.Format("2006-01-02 15:04 MST"), Z0: units.Format(ne.z0, "Ω", 6),
 		Metrics: nv.Metrics, HasBuy: nv.HasBuy, Power: nv.Power, PowerW: nv.PowerW, PowerNote: nv.PowerNote,
+		Set: nv.Set, StageNote: nv.StageNote,
+	}
+	if !ne.lay.IsZero() {
+		v.Board = ne.lay.Describe(ne.built)
+	}
+	if ne.boardErr != "" {
+		v.Board = ne.boardErr
 	}
 	// The reference plane of the load, and captions that say which it is.
 	i := sc.st.SweepIndex(ne.n.SweepID)
@@ -37,11 +49,14 @@ func (sc *scene) reportView(now time.Time) (web.ReportView, error) {
 		v.PlaneError = sc.errs[ne.n.SweepID]
 	}
 	name := sweepName(sc.st, ne.n.SweepID)
-	load := chartsvg.Trace{ID: "load", Name: name, Color: "#1f5fa8", FreqHz: ne.sweep.FreqHz, Gamma: ne.gLoad}
+	view := &pageView{Z0: pv.z0()}
+	z0 := view.z0()
+	load := chartsvg.Trace{ID: "load", Name: name, Color: "#1f5fa8", FreqHz: ne.sweep.FreqHz, Gamma: toChart(ne.gLoad, ne.z0, z0)}
 	traces := []chartsvg.Trace{load}
 	if raw != nil {
 		v.CaptionBefore = fmt.Sprintf("The load at the corrected reference plane (%s), solid; as the analyser measured it, dashed.", strings.Join(v.Plane, "; "))
-		traces = append(traces, chartsvg.Trace{ID: "load-raw", Name: name + " (as measured)", Color: "#1f5fa8", FreqHz: raw.FreqHz, Gamma: reflection(raw, ne.port-1), Dashed: true, Ticks: -1})
+		traces = append(traces, chartsvg.Trace{ID: "load-raw", Name: name + " (as measured)", Color: "#1f5fa8", FreqHz: raw.FreqHz,
+			Gamma: toChart(reflection(raw, ne.port-1), raw.Z0[ne.port-1], z0), Dashed: true, Ticks: -1})
 	} else {
 		v.CaptionBefore = "The load as measured."
 	}
@@ -49,19 +64,30 @@ func (sc *scene) reportView(now time.Time) (web.ReportView, error) {
 	if raw != nil {
 		v.CaptionAfter = "Through the network as built, with its matching path at the design frequency; the load at the corrected plane in blue."
 	}
-	ch := sc.chart
+	if ne.set != nil {
+		v.CaptionAfter += " The other sweeps of its load set through the network, dashed."
+	}
+	ref := " The chart's reference is " + units.Format(z0, "Ω", 4) + "."
+	if z0 != ne.z0 {
+		ref = " The chart's reference is " + units.Format(z0, "Ω", 4) + ", the load's " + units.Format(ne.z0, "Ω", 4) + ": the traces are renormalised for the drawing; the figures keep the load's reference."
+	}
+	v.CaptionBefore += ref
+	v.CaptionAfter += ref
+	ch := sc.chartFor(view)
 	ch.SizePx = 420
 	var before, after, refl, power strings.Builder
 	ch.IDPrefix = "before-"
 	if err := ch.Render(&before, traces, nil, nil); err != nil {
 		return v, err
 	}
-	path, handles := ne.path(-1, 0, 1)
+	path, handles := ne.pathAt(-1, 0, 1, z0)
 	ch.IDPrefix = "after-"
-	if err := ch.Render(&after, append([]chartsvg.Trace{load}, sc.netTraces()...), handles, path); err != nil {
+	afterTraces := append([]chartsvg.Trace{load}, sc.netTracesAt(z0)...)
+	afterTraces = append(afterTraces, sc.setTraces(z0)...)
+	if err := ch.Render(&after, afterTraces, handles, path); err != nil {
 		return v, err
 	}
-	for _, p := range sc.plots() {
+	for _, p := range sc.plotsFor(view) {
 		switch p.id {
 		case "refl":
 			p.render(&refl, nil)
@@ -106,7 +132,7 @@ func (s *Server) report(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	v, err := sc.reportView(time.Now())
+	v, err := sc.reportView(time.Now(), viewFromQuery(r.URL.Query()))
 	if err != nil {
 		s.exportFailed(w, "report", err)
 		return

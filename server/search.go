@@ -63,125 +63,200 @@ func (s *Server) toSend(sid string, v any) {
 // network's load over the session's bands, reporting progress to the
 // session's pages and storing the result in the session when done.
 func (s *Server) startSearch(sc *scene, f map[string]string) error {
+	req, err := searchRequestOf(sc, f)
+	if err != nil {
+		return err
+	}
+	job, ctx, err := s.newSearchJob(sc.sid)
+	if err != nil {
+		return err
+	}
+	go s.runSearch(ctx, job, sc.sid, req)
+	return nil
+}
+
+// searchRequest is one search as the page asked for it: what is matched,
+// over which bands, with which parts, and how it is described.
+type searchRequest struct {
+	members  []match.Member
+	bands    []match.Band
+	set      *match.Settings
+	model    string  // the part family's name, "" for ideal parts
+	qL, qC   float64 // the constant Q of L and C, for the constant-Q model
+	lay      match.Layout
+	board    *sessions.Layout // the board the result is stored with
+	setID    string
+	sweepID  string
+	port     int
+	stage    string
+	desc     string
+	maxParts int
+}
+
+// searchRequestOf reads the search form against the active network: its
+// load (or its load set), its bands and board, and the part settings.
+func searchRequestOf(sc *scene, f map[string]string) (*searchRequest, error) {
 	ne := sc.net
 	if ne == nil || ne.err != nil {
-		return errors.New("start a matching network on the load first: the search matches its load")
+		return nil, errors.New("start a matching network on the load first: the search matches its load")
 	}
 	bands, _ := ne.netBands(sc.st, true)
 	if len(bands) == 0 {
-		return errors.New("add a band with a requirement (return loss or power to the load) inside the load's sweep first: the search is judged on the bands")
+		return nil, errors.New("add a band with a requirement (return loss or power to the load) inside the load's sweep first: the search is judged on the bands")
 	}
+	req := &searchRequest{bands: bands, sweepID: ne.n.SweepID, port: ne.port, stage: ne.stageSide}
+	if err := req.readParts(f); err != nil {
+		return nil, err
+	}
+	req.members = []match.Member{{Name: sweepName(sc.st, ne.n.SweepID), Load: ne.load}}
+	if f["target"] == "set" && ne.set != nil {
+		req.members, req.setID = ne.set.members, ne.set.set.ID
+	}
+	req.desc = fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", req.maxParts, req.set.LSeries, req.set.CSeries, searchModelText(req.model, req.qL, req.qC), objectiveText[req.set.Objective])
+	req.lay, req.board = ne.lay, ne.n.Layout
+	switch {
+	case req.lay.IsZero():
+		req.board = nil
+	case len(req.members) > 1:
+		// The search across a set judges the parts alone; each design is
+		// then shown on the network's board by the panel.
+		req.lay, req.board = match.Layout{}, nil
+		req.desc += ", parts alone (the board is not searched across a set)"
+	default:
+		req.desc += fmt.Sprintf(", judged on the board of “%s” (%s)", ne.n.Name, req.lay.Describe(ne.built))
+	}
+	return req, nil
+}
+
+// readParts reads the number of parts, the E-series, the objective and the
+// part model of the search form.
+func (req *searchRequest) readParts(f map[string]string) error {
 	n, err := strconv.Atoi(f["parts"])
 	if err != nil || n < 1 || n > 4 {
 		return &FieldError{"search.start", "parts", "Parts", fmt.Errorf("choose 1 to 4 parts")}
 	}
-	set := &match.Settings{LSeries: f["lseries"], CSeries: f["cseries"], MaxParts: n, Top: 6}
-	for _, name := range []string{set.LSeries, set.CSeries} {
+	req.maxParts = n
+	req.set = &match.Settings{LSeries: f["lseries"], CSeries: f["cseries"], MaxParts: n, Top: 6}
+	for _, name := range []string{req.set.LSeries, req.set.CSeries} {
 		if _, err := parts.Lookup(name); err != nil {
 			return &FieldError{"search.start", "series", "Series", err}
 		}
 	}
-	if set.Objective, err = match.ParseObjective(f["objective"]); err != nil {
+	if req.set.Objective, err = match.ParseObjective(f["objective"]); err != nil {
 		return &FieldError{"search.start", "objective", "Best by", err}
 	}
-	model := strings.TrimSpace(f["model"])
-	var qL, qC float64
-	switch model {
+	req.model = strings.TrimSpace(f["model"])
+	switch req.model {
 	case "", "ideal":
-		model = ""
+		req.model = ""
 	case parts.ConstantQName:
 		for _, q := range []struct {
 			field, label string
 			v            *float64
-		}{{"qL", "Q of L", &qL}, {"qC", "Q of C", &qC}} {
+		}{{"qL", "Q of L", &req.qL}, {"qC", "Q of C", &req.qC}} {
 			x, err := strconv.ParseFloat(strings.TrimSpace(f[q.field]), 64)
 			if err != nil || !(x > 0) || x > 1e6 {
 				return &FieldError{"search.start", q.field, q.label, fmt.Errorf("%q is not a Q from 0 to a million", f[q.field])}
 			}
 			*q.v = x
 		}
-		set.Model = parts.ConstantQ{QL: qL, QC: qC}
+		req.set.Model = parts.ConstantQ{QL: req.qL, QC: req.qC}
 	default:
-		fam, err := parts.LookupFamily(model)
+		fam, err := parts.LookupFamily(req.model)
 		if err != nil {
 			return &FieldError{"search.start", "model", "Model", err}
 		}
-		set.Model = fam
+		req.set.Model = fam
 	}
-	load := ne.load
-	desc := fmt.Sprintf("up to %d parts, L from %s, C from %s, %s parts, best by %s", n, set.LSeries, set.CSeries, searchModelText(model, qL, qC), objectiveText[set.Objective])
+	return nil
+}
 
+// newSearchJob registers the session's search, or refuses a second one; the
+// job's context ends after 10 minutes or on cancel.
+func (s *Server) newSearchJob(sid string) (*searchJob, context.Context, error) {
 	s.search.mu.Lock()
+	defer s.search.mu.Unlock()
 	if s.search.jobs == nil {
 		s.search.jobs = map[string]*searchJob{}
 	}
-	if s.search.jobs[sc.sid] != nil {
-		s.search.mu.Unlock()
-		return errors.New("a search is already running for this session; cancel it or wait")
+	if s.search.jobs[sid] != nil {
+		return nil, nil, errors.New("a search is already running for this session; cancel it or wait")
 	}
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
 	job := &searchJob{cancel: cancel, done: make(chan struct{})}
-	s.search.jobs[sc.sid] = job
-	s.search.mu.Unlock()
+	s.search.jobs[sid] = job
+	return job, ctx, nil
+}
 
-	sid, sweepID, port := sc.sid, ne.n.SweepID, ne.port
-	go func() {
-		defer close(job.done)
-		defer cancel()
-		defer func() {
-			s.search.mu.Lock()
-			delete(s.search.jobs, sid)
-			s.search.mu.Unlock()
-		}()
-		var last time.Time
-		set.Progress = func(done, total int) {
-			if now := time.Now(); now.Sub(last) > 100*time.Millisecond || done == total {
-				last = now
-				s.toSend(sid, progressMsg{Type: "progress", Done: done, Total: total, Running: true})
-			}
-		}
-		s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + desc})
-		res, err := match.Search(ctx, load, bands, set)
-		if err != nil {
-			msg := "the search failed: " + err.Error()
-			if errors.Is(err, context.Canceled) {
-				msg = "the search was cancelled"
-			} else if errors.Is(err, context.DeadlineExceeded) {
-				msg = "the search took more than 10 minutes and was stopped; try fewer parts"
-			}
-			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
-			return
-		}
-		out := &sessions.SearchResult{SweepID: sweepID, Port: port, Settings: desc, Exact: res.Exact, Objective: res.Objective.String()}
-		for _, d := range res.Designs {
-			sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
-			for _, p := range d.Network {
-				sp := sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: model}
-				if model == parts.ConstantQName {
-					q := qC
-					if p.Kind.Component() == rfmath.ComponentL {
-						q = qL
-					}
-					sp.Params = map[string]float64{"q": q}
-				}
-				sd.Parts = append(sd.Parts, sp)
-			}
-			for _, b := range d.Bands {
-				sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: storable(b.WorstRLdB), MeanRLdB: storable(b.MeanRLdB)})
-			}
-			out.Designs = append(out.Designs, sd)
-		}
-		if len(res.Designs) == 0 || !res.Designs[0].Meets() {
-			out.Note = fmt.Sprintf("No network of up to %d parts meets every band's requirement.", n)
-		}
-		if _, err := s.store.ApplyAs(context.Background(), sessions.Edit, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
-			s.log.Error("store search", "err", err)
-			s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: "the result could not be stored: " + err.Error()})
-			return
-		}
-		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: fmt.Sprintf("search done: %d designs, %s combinations", len(out.Designs), units.Format(res.Combinations, "", 3))})
+// runSearch runs the search in the server's pool, reports its progress to
+// the session's pages and stores the result.
+func (s *Server) runSearch(ctx context.Context, job *searchJob, sid string, req *searchRequest) {
+	defer close(job.done)
+	defer job.cancel()
+	defer func() {
+		s.search.mu.Lock()
+		delete(s.search.jobs, sid)
+		s.search.mu.Unlock()
 	}()
-	return nil
+	var last time.Time
+	req.set.Progress = func(done, total int) {
+		if now := time.Now(); now.Sub(last) > 100*time.Millisecond || done == total {
+			last = now
+			s.toSend(sid, progressMsg{Type: "progress", Done: done, Total: total, Running: true})
+		}
+	}
+	s.toSend(sid, progressMsg{Type: "progress", Running: true, Msg: "searching " + req.desc})
+	res, err := s.searchInPool(ctx, sid, func() (*match.Result, error) {
+		if !req.lay.IsZero() {
+			return match.SearchOnBoard(ctx, req.members[0].Load, req.bands, req.set, req.lay)
+		}
+		return match.SearchSet(ctx, req.members, req.bands, req.set)
+	})
+	if err != nil {
+		msg := "the search failed: " + plainDetail(err.Error())
+		if errors.Is(err, context.Canceled) {
+			msg = "the search was cancelled"
+		} else if errors.Is(err, context.DeadlineExceeded) {
+			msg = "the search took more than 10 minutes and was stopped; try fewer parts"
+		}
+		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: msg})
+		return
+	}
+	out := req.result(res)
+	if _, err := s.store.ApplyAs(context.Background(), sessions.Edit, sid, sessions.Change{Op: sessions.OpSearchStore, Search: out}); err != nil {
+		s.log.Error("store search", "err", err)
+		s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: "the result could not be stored: " + err.Error()})
+		return
+	}
+	s.toSend(sid, progressMsg{Type: "progress", Running: false, Msg: fmt.Sprintf("search done: %d designs, %s combinations", len(out.Designs), units.Format(res.Combinations, "", 3))})
+}
+
+// result is the search's result as the session stores it: each design's
+// parts (with the model searched and its Q) and figures.
+func (req *searchRequest) result(res *match.Result) *sessions.SearchResult {
+	out := &sessions.SearchResult{SweepID: req.sweepID, SetID: req.setID, Port: req.port, Settings: req.desc, Exact: res.Exact, Objective: res.Objective.String(), Layout: req.board, StageSide: req.stage}
+	for _, d := range res.Designs {
+		sd := sessions.Design{WorstRLdB: storable(d.WorstRLdB), MarginDB: storable(d.MarginDB), WorstPowerToLoad: storable(d.WorstPowerToLoad)}
+		for _, p := range d.Network {
+			sp := sessions.Part{Kind: p.Kind, Value: p.Value, ESeries: p.Series, Model: req.model}
+			if req.model == parts.ConstantQName {
+				q := req.qC
+				if p.Kind.Component() == rfmath.ComponentL {
+					q = req.qL
+				}
+				sp.Params = map[string]float64{"q": q}
+			}
+			sd.Parts = append(sd.Parts, sp)
+		}
+		for _, b := range d.Bands {
+			sd.Bands = append(sd.Bands, sessions.BandFigures{LoHz: b.LoHz, HiHz: b.HiHz, WorstRLdB: storable(b.WorstRLdB), MeanRLdB: storable(b.MeanRLdB)})
+		}
+		out.Designs = append(out.Designs, sd)
+	}
+	if len(res.Designs) == 0 || !res.Designs[0].Meets() {
+		out.Note = fmt.Sprintf("No network of up to %d parts meets every band's requirement.", req.maxParts)
+	}
+	return out
 }
 
 // cancelSearch stops the session's search, if one runs.
@@ -221,7 +296,7 @@ func (sc *scene) searchView() web.SearchView {
 	}
 	syn, err := match.Synthesize(zl, complex(ne.z0, 0), fd)
 	if err != nil {
-		v.SynthNote = err.Error()
+		v.SynthNote = plainWords(err.Error())
 		return v
 	}
 	v.SynthAt = fmtF(fd)
@@ -239,15 +314,88 @@ func (sc *scene) searchView() web.SearchView {
 	for _, no := range syn.NoL {
 		v.NoL = append(v.NoL, fmt.Sprintf("No L-network with the %s: %s", orientationText[no.Orientation], no.Reason))
 	}
+	ls := sc.lineSettings()
+	v.Line = web.LineSettings{Z0: units.Format(ne.z0, "Ω", 4), VF: strconv.FormatFloat(ls.vf, 'g', 4, 64),
+		Loss: strconv.FormatFloat(ls.lossDBPerM, 'g', 4, 64), LossRef: units.FormatFrequency(ls.lossRefHz, 4)}
+	wl := ls.vf * rfmath.SpeedOfLight / fd // a wavelength on the line, m
+	mm := func(w float64) string { return units.Format(w*wl, "m", 4) }
 	for i, st := range syn.Stubs {
 		v.Stubs = append(v.Stubs, web.SynthRow{Index: i, Label: string(st.Type) + " stub",
-			Parts: fmt.Sprintf("line %.4f λ from the load, then a %s stub %.4f λ long", st.DWavelengths, st.Type, st.LWavelengths), CanUse: true})
+			Parts: fmt.Sprintf("line %.4f λ (%s) from the load, then a %s stub %.4f λ (%s) long", st.DWavelengths, mm(st.DWavelengths), st.Type, st.LWavelengths, mm(st.LWavelengths)), CanUse: true})
 	}
-	for _, q := range syn.QuarterWaves {
-		v.Quarter = append(v.Quarter, fmt.Sprintf("%.4f λ of %s line, then λ/4 of %.2f Ω (sees %.2f Ω)", q.DWavelengths, units.Format(ne.z0, "Ω", 3), q.Z1Ohm, q.ROhm))
+	for i, q := range syn.QuarterWaves {
+		v.Quarters = append(v.Quarters, web.SynthRow{Index: i, Label: "quarter-wave",
+			Parts: fmt.Sprintf("%.4f λ (%s) of %s line, then λ/4 (%s) of %.2f Ω (sees %.2f Ω)", q.DWavelengths, mm(q.DWavelengths), units.Format(ne.z0, "Ω", 3), mm(0.25), q.Z1Ohm, q.ROhm), CanUse: true})
 	}
 	v.SynthNote = strings.Join(syn.Notes, "; ")
 	return v
+}
+
+// lineFigures are the figures of a line section or stub other than its
+// length (match.Part's "vf", "lossDBPerM", "lossRefHz").
+type lineFigures struct{ vf, lossDBPerM, lossRefHz float64 }
+
+// lineSettings are the line figures the stub and quarter-wave solutions
+// are built with by default: those of the active network's first line or
+// stub, else an air line without loss (the page's fields change them).
+func (sc *scene) lineSettings() lineFigures {
+	ls := lineFigures{vf: 1, lossRefHz: 1e9}
+	if ne := sc.net; ne != nil {
+		for _, p := range ne.n.Parts {
+			if p.Kind == sessions.PartLine || p.Kind == sessions.PartStubOpen || p.Kind == sessions.PartStubShort {
+				d := match.Part{Kind: p.Kind, Params: p.Params}
+				l := d.LineOf(1)
+				return lineFigures{vf: l.VelocityFactor, lossDBPerM: l.LossDBPerM, lossRefHz: l.LossRefHz}
+			}
+		}
+	}
+	return ls
+}
+
+// lineFields reads the stub and quarter-wave forms' line figures: a
+// velocity factor (or an effective permittivity, "eeff"), a loss in dB/m
+// and the frequency it holds at; empty fields take the defaults.
+func (sc *scene) lineFields(form string, f map[string]string) (lineFigures, error) {
+	ls := sc.lineSettings()
+	fe := func(field, label string, err error) error { return &FieldError{form, field, label, err} }
+	if s := strings.TrimSpace(f["vf"]); s != "" {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(x > 0 && x <= 1) {
+			return ls, fe("vf", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", s))
+		}
+		ls.vf = x
+	}
+	if s := strings.TrimSpace(f["eeff"]); s != "" {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(x >= 1) || math.IsInf(x, 0) {
+			return ls, fe("eeff", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", s))
+		}
+		ls.vf = 1 / math.Sqrt(x)
+	}
+	if s := strings.TrimSpace(f["loss"]); s != "" {
+		x, err := strconv.ParseFloat(strings.TrimSuffix(strings.TrimSpace(strings.TrimSuffix(s, "dB/m")), "dB"), 64)
+		if err != nil || !(x >= 0) || x >= 1e4 {
+			return ls, fe("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", s))
+		}
+		ls.lossDBPerM = x
+	}
+	if s := strings.TrimSpace(f["lossRef"]); s != "" {
+		x, err := units.ParseFrequency(s)
+		if err != nil || !(x > 0) {
+			return ls, fe("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", s))
+		}
+		ls.lossRefHz = x
+	}
+	return ls, nil
+}
+
+// params returns the line figures as a part's params, with impedance z0.
+func (ls lineFigures) params(z0 float64) map[string]float64 {
+	p := map[string]float64{"z0Ohm": z0, "vf": ls.vf}
+	if ls.lossDBPerM > 0 {
+		p["lossDBPerM"], p["lossRefHz"] = ls.lossDBPerM, ls.lossRefHz
+	}
+	return p
 }
 
 var orientationText = map[match.Orientation]string{
@@ -268,9 +416,16 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 		if r == nil || idx >= len(r.Designs) {
 			return sessions.Change{}, fmt.Errorf("no such design")
 		}
+		setID := r.SetID
+		if setID != "" && sc.st.LoadSetIndex(setID) < 0 {
+			setID = "" // the set is gone: the design lands on its sweep alone
+		}
+		if ch, ok := stagePartsChange(sc.st, r, idx); ok { // amp.go: into the stage's network
+			return ch, nil
+		}
 		return sessions.Change{Op: sessions.OpNetworkAdd, Name: fmt.Sprintf("Search %d", idx+1), SweepID: r.SweepID, Port: r.Port,
-			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts}, nil
-	case "synth.use", "stub.use":
+			DesignHz: designHz(sc, r.SweepID), Parts: r.Designs[idx].Parts, SetID: setID, Layout: r.Layout.For(len(r.Designs[idx].Parts))}, nil
+	case "synth.use", "stub.use", "qw.use":
 		if ne == nil || ne.err != nil {
 			return sessions.Change{}, fmt.Errorf("start a matching network first")
 		}
@@ -281,7 +436,13 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			return sessions.Change{}, err
 		}
 		ch := sessions.Change{Op: sessions.OpNetworkAdd, SweepID: ne.n.SweepID, Port: ne.port, DesignHz: fd}
-		lambda := rfmath.SpeedOfLight / fd
+		ls, err := sc.lineFields(form, f)
+		if err != nil {
+			return ch, err
+		}
+		// Lengths are wavelengths on the line: its velocity factor
+		// shortens them.
+		lambda := ls.vf * rfmath.SpeedOfLight / fd
 		switch {
 		case form == "synth.use" && idx < len(syn.LNetworks):
 			l := syn.LNetworks[idx]
@@ -296,11 +457,17 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 			if st.Type == match.ShortStub {
 				kind = sessions.PartStubShort
 			}
-			params := map[string]float64{"z0Ohm": ne.z0, "vf": 1}
 			if st.DWavelengths > 0 {
-				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: st.DWavelengths * lambda, Params: params})
+				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: st.DWavelengths * lambda, Params: ls.params(ne.z0)})
 			}
-			ch.Parts = append(ch.Parts, sessions.Part{Kind: kind, Value: max(st.LWavelengths, 1e-6) * lambda, Params: params})
+			ch.Parts = append(ch.Parts, sessions.Part{Kind: kind, Value: max(st.LWavelengths, 1e-6) * lambda, Params: ls.params(ne.z0)})
+		case form == "qw.use" && idx < len(syn.QuarterWaves):
+			q := syn.QuarterWaves[idx]
+			ch.Name = fmt.Sprintf("quarter-wave, %.4g Ω", q.Z1Ohm)
+			if q.DWavelengths > 0 {
+				ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: q.DWavelengths * lambda, Params: ls.params(ne.z0)})
+			}
+			ch.Parts = append(ch.Parts, sessions.Part{Kind: sessions.PartLine, Value: q.LWavelengths * lambda, Params: ls.params(q.Z1Ohm)})
 		default:
 			return sessions.Change{}, fmt.Errorf("no such solution")
 		}
@@ -358,7 +525,8 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		row.Bands = "the searched sweep is gone"
 		return row
 	}
-	ne := prepareNetwork(&sessions.Network{SweepID: r.SweepID, Port: r.Port, Parts: d.Parts}, sw)
+	ne := prepareNetwork(&sessions.Network{ID: stageNetworkID(sc.st, r), SweepID: r.SweepID, Port: r.Port, Parts: d.Parts, Layout: r.Layout.For(len(d.Parts))}, sw)
+	adaptStage(sc.st, ne) // a stage side's design is judged in the stage, as it was searched
 	bands, _ := ne.netBands(sc.st, true)
 	if ne.err != nil || len(bands) == 0 {
 		row.Bands = "no band with a requirement inside the sweep"
@@ -367,7 +535,23 @@ func (sc *scene) designRow(r *sessions.SearchResult, i int, d sessions.Design) w
 		}
 		return row
 	}
-	m, err := match.Evaluate(ne.load, bands, ne.built)
+	var m match.Metrics
+	var err error
+	if r.SetID != "" {
+		se, serr := sc.loadSetOf(r.SetID)
+		if serr != nil {
+			row.Bands = serr.Error()
+			return row
+		}
+		var sm match.SetMetrics
+		sm, err = match.EvaluateSet(se.members, bands, ne.board.Network)
+		m = sm.Metrics
+		if err == nil && sm.WorstMember >= 0 {
+			row.Parts += " (worst on " + se.refs[sm.WorstMember].Name + ")"
+		}
+	} else {
+		m, err = match.Evaluate(ne.load, bands, ne.board.Network)
+	}
 	if err != nil {
 		row.Bands = err.Error()
 		return row

@@ -7,9 +7,11 @@ package server
 import (
 	"context"
 	"io"
+	"io/fs"
 	"log/slog"
 	"net"
 	"net/http"
+	"strings"
 	"sync"
 	"time"
 
@@ -52,6 +54,12 @@ type Config struct {
 	// at; the page builds its share links from them. Empty means the
 	// request's own host.
 	ShareHosts []string
+	// Hosts are further host names (NAME or NAME:PORT, the port taken as
+	// 80 when absent) that requests may address the server by, such as the
+	// bench computer's name on the lab network. Requests naming any other
+	// host than these, ShareHosts and the loopback names are refused (see
+	// hostGuard).
+	Hosts []string
 	// LAN reports that the server listens beyond the loopback address.
 	LAN bool
 	// FileLimits bound what one uploaded file may hold (bytes, ports,
@@ -60,6 +68,24 @@ type Config struct {
 	// MsgPerSecond and MsgBurst bound websocket messages per connection;
 	// zero means 120 and 240.
 	MsgPerSecond, MsgBurst float64
+	// SessionMsgPerSecond and SessionMsgBurst bound the messages into one
+	// session from all its pages together (its fair share; see
+	// sessionShare); zero means DefaultSessionMsgPerSec and
+	// DefaultSessionMsgBurst.
+	SessionMsgPerSecond, SessionMsgBurst float64
+	// MaxConnsPerSession, MaxConnsPerToken and MaxConnsPerAddr bound the
+	// live pages (websockets) of one session, of one link and from one
+	// remote address; MaxRequestsPerAddr the other requests in progress
+	// from one remote address. Zero means the Default… constants.
+	MaxConnsPerSession, MaxConnsPerToken, MaxConnsPerAddr, MaxRequestsPerAddr int
+	// BodyGrace and BodyMinRate are the pace a request body must keep (see
+	// paceBodies); zero means DefaultBodyGrace and DefaultBodyMinRate.
+	BodyGrace   time.Duration
+	BodyMinRate int
+	// DerivedWorkers is the size of the pool that computes the heavy
+	// derived results (Monte Carlo, limits) and runs the searches; zero
+	// means one less than the CPUs, at least one.
+	DerivedWorkers int
 }
 
 // Server serves the app. Create it with New.
@@ -74,6 +100,11 @@ type Server struct {
 	closed bool
 	corr   corrections
 	search searchJobs
+	limits connLimits
+
+	derived  *derivedCache // heavy results by session and inputs (derived.go)
+	searches chan struct{} // slots of the searches running
+	noise    noiseCache    // amp.go
 }
 
 // DefaultMaxUploadBytes is the upload limit used when Config leaves it zero.
@@ -93,7 +124,34 @@ func New(cfg Config) *Server {
 	if cfg.MsgBurst <= 0 {
 		cfg.MsgBurst = 240
 	}
-	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}}
+	if cfg.SessionMsgPerSecond <= 0 {
+		cfg.SessionMsgPerSecond = DefaultSessionMsgPerSec
+	}
+	if cfg.SessionMsgBurst <= 0 {
+		cfg.SessionMsgBurst = DefaultSessionMsgBurst
+	}
+	if cfg.BodyGrace <= 0 {
+		cfg.BodyGrace = DefaultBodyGrace
+	}
+	if cfg.BodyMinRate <= 0 {
+		cfg.BodyMinRate = DefaultBodyMinRate
+	}
+	for _, l := range []struct {
+		v   *int
+		def int
+	}{
+		{&cfg.MaxConnsPerSession, DefaultConnsPerSession}, {&cfg.MaxConnsPerToken, DefaultConnsPerToken},
+		{&cfg.MaxConnsPerAddr, DefaultConnsPerAddr}, {&cfg.MaxRequestsPerAddr, DefaultRequestsPerAddr},
+	} {
+		if *l.v <= 0 {
+			*l.v = l.def
+		}
+	}
+	if cfg.DerivedWorkers <= 0 {
+		cfg.DerivedWorkers = defaultDerivedWorkers()
+	}
+	s := &Server{cfg: cfg, store: cfg.Store, log: cfg.Log, rooms: map[string]*room{}, searches: make(chan struct{}, cfg.DerivedWorkers)}
+	s.derived = newDerivedCache(cfg.DerivedWorkers, s.derivedReady)
 	s.router = s.routes()
 	return s
 }
@@ -105,6 +163,8 @@ func (s *Server) routes() http.Handler {
 	r := chi.NewRouter()
 	r.Use(middleware.Recoverer)
 	r.Use(s.logRequests)
+	r.Use(s.limitRequests)
+	r.Use(s.paceBodies)
 	r.Use(securityHeaders)
 	r.Handle("/static/*", http.StripPrefix("/static/", staticFiles()))
 	r.Get("/", s.start)
@@ -113,34 +173,53 @@ func (s *Server) routes() http.Handler {
 	r.Get("/open/{id}", s.openLocal)
 	r.Route("/s/{token}", func(r chi.Router) {
 		r.Use(s.withSession)
-		r.Get("/", s.page)
 		r.Get("/ws", s.websocket)
 		r.Post("/upload", s.upload)
 		r.Post("/reissue", s.reissue)
-		r.Get("/export/chart.svg", s.exportChart)
-		r.Get("/export/plot-{plot}.svg", s.exportPlot)
-		r.Get("/export/markers.csv", s.exportMarkers)
 		r.Get("/sweeps/{sweep}/file", s.rawFile)
-		r.Get("/export/matched.s1p", s.exportMatched)
-		r.Get("/export/network.s2p", s.exportNetwork2)
-		r.Get("/export/network.cir", s.exportNetlist)
-		r.Get("/export/parts.csv", s.exportParts)
-		r.Get("/export/parts.json", s.exportPartsJSON)
-		r.Get("/export/schematic.svg", s.exportSchematic)
+		// The archive is read from the store, not drawn: like the raw
+		// files it runs outside the drawing slot.
 		r.Get("/export/session.zip", s.exportArchive)
-		r.Get("/sweeps/{sweep}/corrected.{ext}", s.exportCorrected)
-		r.Get("/report", s.report)
+		// What draws the session runs in its drawing slot (see sessionShare).
+		r.Group(func(r chi.Router) {
+			r.Use(s.drawn)
+			r.Get("/", s.page)
+			r.Get("/export/chart.svg", s.exportChart)
+			r.Get("/export/plot-{plot}.svg", s.exportPlot)
+			r.Get("/export/markers.csv", s.exportMarkers)
+			r.Get("/export/matched.s1p", s.exportMatched)
+			r.Get("/export/network.s2p", s.exportNetwork2)
+			r.Get("/export/network.cir", s.exportNetlist)
+			r.Get("/export/parts.csv", s.exportParts)
+			r.Get("/export/parts.json", s.exportPartsJSON)
+			r.Get("/export/schematic.svg", s.exportSchematic)
+			r.Get("/export/network.json", s.exportNetworkFile)
+			r.Get("/sweeps/{sweep}/corrected.{ext}", s.exportCorrected)
+			r.Get("/report", s.report)
+		})
 	})
 	// State-changing requests from other sites are refused (Go's
-	// CrossOriginProtection checks Sec-Fetch-Site and Origin).
-	return http.NewCrossOriginProtection().Handler(r)
+	// CrossOriginProtection checks Sec-Fetch-Site and Origin), and before
+	// anything else a request must name this server (hostGuard).
+	return s.hostGuard(http.NewCrossOriginProtection().Handler(r))
 }
 
+// staticFiles serves the app's script and styles. Folders answer 404: the
+// files are listed nowhere.
 func staticFiles() http.Handler {
-	fs := http.FileServerFS(web.Static())
+	files := web.Static()
+	srv := http.FileServerFS(files)
 	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		name := strings.Trim(r.URL.Path, "/")
+		if name == "" {
+			name = "."
+		}
+		if st, err := fs.Stat(files, name); err != nil || st.IsDir() {
+			http.NotFound(w, r)
+			return
+		}
 		w.Header().Set("Cache-Control", "no-cache")
-		fs.ServeHTTP(w, r)
+		srv.ServeHTTP(w, r)
 	})
 }
 
@@ -195,4 +274,5 @@ func (s *Server) Shutdown() {
 	for _, rm := range rooms {
 		rm.closeAll("server shutting down")
 	}
+	s.derived.close()
 }

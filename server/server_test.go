@@ -10,6 +10,7 @@ import (
 	"log/slog"
 	"math"
 	"mime/multipart"
+	"net"
 	"net/http"
 	"net/http/httptest"
 	"strings"
@@ -138,26 +139,34 @@ func TestPages(t *testing.T) {
 }
 
 // A visitor from the lab network sees no session list and cannot start one.
+// lanRequest is a request from a colleague's computer on the lab network
+// (192.0.2.7, TEST-NET-1 of RFC 5737: never routed) to the server's address
+// there (192.0.2.1:8080), as net/http's server would hand it over.
+func lanRequest(method, target string, body io.Reader) *http.Request {
+	req := httptest.NewRequest(method, target, body)
+	req.RemoteAddr = "192.0.2.7:50000"
+	req.Host = "192.0.2.1:8080"
+	local := &net.TCPAddr{IP: net.IPv4(192, 0, 2, 1), Port: 8080}
+	return req.WithContext(context.WithValue(req.Context(), http.LocalAddrContextKey, local))
+}
+
 func TestStartPageFromLAN(t *testing.T) {
 	t.Parallel()
 	f := newFixture(t, 11)
-	req := httptest.NewRequest("GET", "/", nil)
-	req.RemoteAddr = "192.0.2.7:50000" // TEST-NET-1 (RFC 5737): never routed
+	req := lanRequest("GET", "/", nil)
 	rec := httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != 200 || strings.Contains(rec.Body.String(), "bench test") || !strings.Contains(rec.Body.String(), "Ask for a link") {
 		t.Errorf("LAN start page: %d, lists sessions or lacks the note:\n%.300s", rec.Code, rec.Body.String())
 	}
-	req = httptest.NewRequest("POST", "/sessions", strings.NewReader("name=x"))
+	req = lanRequest("POST", "/sessions", strings.NewReader("name=x"))
 	req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
-	req.RemoteAddr = "192.0.2.7:50000"
 	rec = httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != http.StatusForbidden {
 		t.Errorf("LAN create: %d, want 403", rec.Code)
 	}
-	req = httptest.NewRequest("GET", "/open/"+f.sess.ID, nil)
-	req.RemoteAddr = "192.0.2.7:50000"
+	req = lanRequest("GET", "/open/"+f.sess.ID, nil)
 	rec = httptest.NewRecorder()
 	f.srv.ServeHTTP(rec, req)
 	if rec.Code != http.StatusForbidden {
@@ -464,11 +473,11 @@ func TestWebsocketBadMessages(t *testing.T) {
 		want string
 	}{
 		{`{not json`, "not JSON"},
-		{`{"type":"dance","id":3}`, "unknown message type"},
+		{`{"type":"dance","id":3}`, "Unknown message type"},
 		{`{"type":"change","id":4}`, "needs a \"change\""},
 		{`{"type":"change","id":5,"change":{"op":"marker.move","markerId":"nope","freqHz":1}}`, "nope"},
 		{`{"type":"change","id":6,"change":{"op":"sweep.add"}}`, "uploading"},
-		{`{"type":"form","id":8,"form":"band.set","fields":{"lo":"9G","hi":"1G"}}`, "band"},
+		{`{"type":"form","id":8,"form":"band.set","fields":{"lo":"9G","hi":"1G"}}`, "To: the range 9 GHz – 1 GHz is empty"},
 	}
 	for _, tc := range cases {
 		c.WriteMessage(websocket.TextMessage, []byte(tc.raw))
@@ -481,18 +490,18 @@ func TestWebsocketBadMessages(t *testing.T) {
 
 func TestBucket(t *testing.T) {
 	t.Parallel()
-	b := newBucket(10, 3)
+	b := newLimiter(10, 3)
 	t0 := time.Unix(0, 0)
 	n := 0
 	for i := range 10 {
-		if b.take(t0.Add(time.Duration(i) * time.Millisecond)) {
+		if b.AllowN(t0.Add(time.Duration(i)*time.Millisecond), 1) {
 			n++
 		}
 	}
 	if n != 3 {
 		t.Errorf("burst let %d through, want 3", n)
 	}
-	if !b.take(t0.Add(200 * time.Millisecond)) {
+	if !b.AllowN(t0.Add(200*time.Millisecond), 1) {
 		t.Error("bucket did not refill at 10/s after 200 ms")
 	}
 }
@@ -521,7 +530,7 @@ func BenchmarkDrag(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				out := rm.render([]sessions.Event{ev}, sessions.Edit, f.sess.EditToken)
+				out := rm.render([]sessions.Event{ev}, sessions.Edit, f.sess.EditToken, nil)
 				if _, err := json.Marshal(out); err != nil {
 					b.Fatal(err)
 				}
@@ -545,7 +554,7 @@ func TestRenderBatch(t *testing.T) {
 	a, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: f.mk, FreqHz: 160e6})
 	b, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpMarkerMove, MarkerID: ev2.MarkerID, FreqHz: 210e6})
 	rm := &room{s: f.srv, sid: f.sess.ID}
-	msg := rm.render([]sessions.Event{a, b}, sessions.View, f.sess.ViewToken)
+	msg := rm.render([]sessions.Event{a, b}, sessions.View, f.sess.ViewToken, nil)
 	count := map[string]int{}
 	for _, fr := range msg.Frags {
 		count[fr.ID]++
@@ -554,7 +563,7 @@ func TestRenderBatch(t *testing.T) {
 		t.Errorf("batched marker update: version %d (want %d), frags %v", msg.V, b.Version, count)
 	}
 	c, _ := f.store.Apply(ctx, f.sess.ID, sessions.Change{Op: sessions.OpBandSet, Name: "b", LoHz: 120e6, HiHz: 130e6})
-	msg = rm.render([]sessions.Event{a, c}, sessions.View, f.sess.ViewToken)
+	msg = rm.render([]sessions.Event{a, c}, sessions.View, f.sess.ViewToken, nil)
 	if msg.V != c.Version || !hasFrag(msg, "chart") || !hasFrag(msg, "bands-panel") || msg.Anim != nil {
 		t.Errorf("mixed batch: version %d, anim %v", msg.V, msg.Anim != nil)
 	}

@@ -69,6 +69,7 @@ func (rm *room) ended() {
 			c.closeReload("the links of this session were re-issued")
 		}
 	case errors.Is(reason, sessions.ErrDeleted):
+		rm.s.derived.forget(rm.sid)
 		for _, c := range rm.snapshot() {
 			c.closeReload("this session was deleted")
 		}

@@ -30,7 +30,9 @@ type Event struct {
 	// the part added, changed, moved or removed.
 	NetworkID string `json:"networkId,omitempty"`
 	PartID    string `json:"partId,omitempty"`
-	Gesture   string `json:"gesture,omitempty"`
+	// SetID is the load set saved or removed.
+	SetID   string `json:"setId,omitempty"`
+	Gesture string `json:"gesture,omitempty"`
 	// Unchanged is set (by Apply only) when the change left the state as it
 	// was, so nothing was committed or published and Version is the
 	// current one.
@@ -221,15 +223,12 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 	relaxed := st.fullSync && coalescible[ch.Op] && ch.Gesture != ""
 	err = st.txSync(ctx, h, relaxed, func(ctx context.Context, tx *sql.Tx) error {
 		if s := r.newSweep; s != nil {
-			if _, err := tx.ExecContext(ctx,
-				`INSERT INTO sweeps (session_id, id, file_name, created_at, parsed, raw) VALUES (?, ?, ?, ?, ?, ?)`,
-				h.id, s.id, s.fileName, time.Now().UnixMilli(), s.parsed, s.raw); err != nil {
+			if err := insertSweep(ctx, tx, h.id, s); err != nil {
 				return err
 			}
 		}
 		if coalesce {
-			if _, err := tx.ExecContext(ctx,
-				`UPDATE history SET after = ?, version = ? WHERE session_id = ? AND step = ?`,
+			if _, err := st.execTx(ctx, tx, qHistoryAfter,
 				string(after), ev.Version, h.id, step); err != nil {
 				return err
 			}
@@ -241,9 +240,7 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 				}
 				purge = true
 			}
-			if _, err := tx.ExecContext(ctx,
-				`INSERT INTO history (session_id, step, op, gesture, sweep_id, marker_id, band_id, version, before, after, sweep_ids)
-				 VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			if _, err := st.execTx(ctx, tx, qHistoryInsert,
 				h.id, step, ch.Op, ch.Gesture, ev.SweepID, ev.MarkerID, ev.BandID, ev.Version,
 				string(h.stateJSON), string(after), sweepIDs(h.state, r.next)); err != nil {
 				return err
@@ -267,8 +264,9 @@ func (st *Store) Apply(ctx context.Context, sessionID string, ch Change) (Event,
 		return Event{}, st.dbErr(ch.Op, err)
 	}
 	if s := r.newSweep; s != nil {
-		st.cacheSweep(sweepKey{h.id, s.id}, s.sweep)
+		st.sweeps.put(sweepKey{h.id, s.id}, s.sweep)
 	}
+	st.forgetRemoved(h.id, h.state, r.next)
 	if !coalesce {
 		h.maxStep = step
 		h.minStep = minStep
@@ -308,16 +306,26 @@ func (st *Store) undoRedo(ctx context.Context, h *hub, op string) (Event, error)
 	if err != nil {
 		return Event{}, st.dbErr(op, err)
 	}
+	st.forgetRemoved(h.id, h.state, ev.State)
 	h.set(ev.State, js, ev.Version, pos)
 	h.publish(ev, st.lim.ReplayEvents)
 	return ev, nil
 }
 
+// forgetRemoved drops from the sweep cache the sweeps listed in before and
+// not in after: an undo that brings one back decodes it again.
+func (st *Store) forgetRemoved(sid string, before, after *State) {
+	for _, s := range before.Sweeps {
+		if after.SweepIndex(s.ID) < 0 {
+			st.sweeps.drop(sweepKey{sid, s.ID})
+		}
+	}
+}
+
 // commitState writes the session row for a new state and marks the sweeps
 // that left or came back with it.
 func (st *Store) commitState(ctx context.Context, tx *sql.Tx, h *hub, next *State, js []byte, version, undoPos int64) error {
-	if _, err := tx.ExecContext(ctx,
-		`UPDATE sessions SET name = ?, state = ?, version = ?, undo_pos = ? WHERE id = ?`,
+	if _, err := st.execTx(ctx, tx, qSessionCommit,
 		next.Name, string(js), version, undoPos, h.id); err != nil {
 		return err
 	}
@@ -360,11 +368,9 @@ func (st *Store) purgeSweeps(ctx context.Context, tx *sql.Tx, sid string) error 
 	if err := rows.Err(); err != nil {
 		return err
 	}
-	st.sweepMu.Lock()
 	for _, id := range gone {
-		delete(st.sweeps, sweepKey{sid, id})
+		st.sweeps.drop(sweepKey{sid, id})
 	}
-	st.sweepMu.Unlock()
 	return nil
 }
 
@@ -415,10 +421,10 @@ func (st *Store) txSync(ctx context.Context, h *hub, relaxed bool, f func(contex
 	st.writeMu.Lock()
 	defer st.writeMu.Unlock()
 	if relaxed {
-		if _, err := st.wdb.ExecContext(ctx, "PRAGMA synchronous=NORMAL"); err != nil {
+		if _, err := st.execW(ctx, qSyncNormal); err != nil {
 			relaxed = false // stay FULL: only slower
 		} else {
-			defer st.wdb.ExecContext(ctx, "PRAGMA synchronous=FULL")
+			defer st.execW(ctx, qSyncFull)
 		}
 	}
 	tx, err := st.wdb.BeginTx(ctx, nil)

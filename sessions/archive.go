@@ -10,6 +10,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"time"
 
@@ -24,9 +25,11 @@ import (
 //
 // The manifest holds the session's whole [State] as its JSON (the same
 // field names as the state the store keeps: sweeps with their reference
-// planes, markers, bands, chart, time domain, networks with their parts,
-// the active network and the latest search) and, per sweep, which file of
-// the archive is its upload with the file's SHA-256. [Store.ImportArchive]
+// planes, markers, bands, chart, time domain, load sets, networks with
+// their parts, boards and sets, the active network, the latest search, the
+// rounds of bench tuning, the amplifier view and the transistor stage) and,
+// per sweep, which file of the archive is its upload with the file's
+// SHA-256. [Store.ImportArchive]
 // makes a new session with the same state from it.
 const (
 	ArchiveFormat   = "matchbench session archive"
@@ -132,8 +135,10 @@ type ParseFunc func(fileName string, raw []byte) (*rfmath.Sweep, error)
 // ImportArchive reads a session archive of size bytes from r and makes a
 // new session with the same state: the same sweeps (each file read again
 // by parse, as an upload is), reference planes, markers, bands, chart,
-// time domain, networks and search. Ids are new (the session's, its
-// tokens, and those of its sweeps, markers, bands, networks and parts);
+// time domain, load sets, networks (with their boards and sets), search,
+// tuning rounds, amplifier view and stage. Ids are new (the session's, its
+// tokens, and those of its sweeps, markers, bands, sets, networks, parts
+// and rounds, every reference to them following);
 // the history starts empty. Every part of the state is checked by the same
 // rules as the change that would make it, and the session and its sweeps
 // are stored in one transaction: an archive that is damaged, foreign, made
@@ -272,11 +277,14 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 			return nil, err
 		}
 	}
+	bandID := map[string]string{}
 	for i, b := range m.State.Bands {
-		if _, err := step(fmt.Sprintf("band %d (%q)", i+1, b.Name), Change{Op: OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz,
-			MinReturnLossDB: b.MinReturnLossDB, MinPowerToLoad: b.MinPowerToLoad}); err != nil {
+		r, err := step(fmt.Sprintf("band %d (%q)", i+1, b.Name), Change{Op: OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz,
+			MinReturnLossDB: b.MinReturnLossDB, MinPowerToLoad: b.MinPowerToLoad})
+		if err != nil {
 			return nil, err
 		}
+		bandID[b.ID] = r.ev.BandID
 	}
 	c := m.State.Chart
 	qarcs := c.QArcs
@@ -294,6 +302,34 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 			return nil, err
 		}
 	}
+	// Load sets before the networks judged across them.
+	setID := map[string]string{}
+	for i, ls := range m.State.LoadSets {
+		what := fmt.Sprintf("load set %d (%q)", i+1, ls.Name)
+		ms := make([]SetMember, len(ls.Members))
+		for k, mb := range ls.Members {
+			mb.SweepID, err = mapSweep(what, mb.SweepID)
+			if err != nil {
+				return nil, err
+			}
+			ms[k] = mb
+		}
+		r, err := step(what, Change{Op: OpSetSave, Name: ls.Name, SetKind: ls.Kind, Members: ms})
+		if err != nil {
+			return nil, err
+		}
+		setID[ls.ID] = r.ev.SetID
+	}
+	mapSet := func(what, id string) (string, error) {
+		if id == "" {
+			return "", nil
+		}
+		n, ok := setID[id]
+		if !ok {
+			return "", fmt.Errorf("%w: %s names load set %q, which the archive does not hold", ErrArchive, what, id)
+		}
+		return n, nil
+	}
 	netID := map[string]string{}
 	for i, n := range m.State.Networks {
 		what := fmt.Sprintf("network %d (%q)", i+1, n.Name)
@@ -301,22 +337,138 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 		if err != nil {
 			return nil, err
 		}
+		set, err := mapSet(what, n.SetID)
+		if err != nil {
+			return nil, err
+		}
 		ps := make([]Part, len(n.Parts))
 		copy(ps, n.Parts)
-		r, err := step(what, Change{Op: OpNetworkAdd, Name: n.Name, SweepID: sid, Port: n.Port, DesignHz: n.DesignHz, Parts: ps})
+		r, err := step(what, Change{Op: OpNetworkAdd, Name: n.Name, SweepID: sid, Port: n.Port, DesignHz: n.DesignHz, Parts: ps,
+			SetID: set, Layout: n.Layout.clone()})
 		if err != nil {
 			return nil, err
 		}
 		netID[n.ID] = r.ev.NetworkID
 		power := n.PowerW
-		set := Change{Op: OpNetworkSet, NetworkID: r.ev.NetworkID, PowerW: &power, YieldBuilds: n.YieldBuilds, ChuRadiusM: n.ChuRadiusM}
-		if _, err := step(what, set); err != nil {
+		ch := Change{Op: OpNetworkSet, NetworkID: r.ev.NetworkID, PowerW: &power, YieldBuilds: n.YieldBuilds, ChuRadiusM: n.ChuRadiusM}
+		if _, err := step(what, ch); err != nil {
 			return nil, err
 		}
 		// The Monte Carlo's seed has no change of its own: any number is a
 		// seed.
 		cur.Networks[cur.NetworkIndex(r.ev.NetworkID)].YieldSeed = n.YieldSeed
 	}
+	// mapNet maps a network id; one the archive does not hold (a round's
+	// network since removed) maps to "", as the store keeps such ids.
+	mapNet := func(id string) string { return netID[id] }
+	if s := m.State.Search; s != nil {
+		res := *s
+		if res.SweepID, err = mapSweep("the search", res.SweepID); err != nil {
+			return nil, err
+		}
+		if res.SetID, err = mapSet("the search", res.SetID); err != nil {
+			return nil, err
+		}
+		res.Layout = res.Layout.clone()
+		if _, err := step("the search", Change{Op: OpSearchStore, Search: &res}); err != nil {
+			return nil, err
+		}
+	}
+	for i, t := range m.State.Tuning {
+		what := fmt.Sprintf("tuning round %d", i+1)
+		t.Layout = t.Layout.clone()
+		if t.LoadSweepID, err = mapSweep(what, t.LoadSweepID); err != nil {
+			return nil, err
+		}
+		if t.BuiltSweepID, err = mapSweep(what, t.BuiltSweepID); err != nil {
+			return nil, err
+		}
+		t.NetworkID = mapNet(t.NetworkID)
+		if _, err := step(what, Change{Op: OpTuneStore, Tune: &t}); err != nil {
+			return nil, err
+		}
+		// Which suggestion was made a network has no change of its own
+		// (tune.use makes a new network; the archive holds it already).
+		if t.Chosen < -1 || t.Chosen >= len(t.Suggestions) {
+			return nil, fmt.Errorf("%w: %s: tune.chosen %d is not a suggestion", ErrInvalid, what, t.Chosen)
+		}
+		last := &cur.Tuning[len(cur.Tuning)-1]
+		last.Chosen, last.ChosenNetworkID = t.Chosen, mapNet(t.ChosenNetworkID)
+	}
+	if a := m.State.Amp; a != nil {
+		sid, err := mapSweep("the amplifier view", a.SweepID)
+		if err != nil {
+			return nil, err
+		}
+		gs, ns := slices.Clone(a.GainStepsDB), slices.Clone(a.NFStepsDB)
+		if _, err := step("the amplifier view", Change{Op: OpAmpSet, SweepID: sid, FreqHz: a.FreqHz,
+			AmpChange: AmpChange{GainStepsDB: &gs, NFStepsDB: &ns}}); err != nil {
+			return nil, err
+		}
+		for _, tp := range []struct {
+			plane string
+			g     *Point
+		}{{"source", a.GammaS}, {"load", a.GammaL}} {
+			if tp.g == nil {
+				continue
+			}
+			g := *tp.g
+			if _, err := step("the amplifier view", Change{Op: OpAmpPoint, Gamma: &g, AmpChange: AmpChange{Plane: tp.plane}}); err != nil {
+				return nil, err
+			}
+		}
+	}
+	if sg := m.State.Stage; sg != nil {
+		what := "the transistor stage"
+		sid, err := mapSweep(what, sg.SweepID)
+		if err != nil {
+			return nil, err
+		}
+		reqs := make([]StageReq, 0, len(sg.Reqs))
+		for _, q := range sg.Reqs {
+			b, ok := bandID[q.BandID]
+			if !ok {
+				return nil, fmt.Errorf("%w: %s names band %q, which the archive does not hold", ErrArchive, what, q.BandID)
+			}
+			q.BandID = b
+			reqs = append(reqs, q)
+		}
+		ac := AmpChange{StageReqs: reqs}
+		for _, side := range []struct {
+			id  string
+			dst *string
+		}{{sg.SourceNetworkID, &ac.SourceNetworkID}, {sg.LoadNetworkID, &ac.LoadNetworkID}} {
+			if side.id == "" {
+				continue
+			}
+			n, ok := netID[side.id]
+			if !ok {
+				return nil, fmt.Errorf("%w: %s names network %q, which the archive does not hold", ErrArchive, what, side.id)
+			}
+			*side.dst = n
+		}
+		nets := len(cur.Networks)
+		if _, err := step(what, Change{Op: OpStageSet, SweepID: sid, AmpChange: ac}); err != nil {
+			return nil, err
+		}
+		// A side without a network (its network was removed) stays without
+		// one: stage.set gave it a new empty network, which the archive
+		// does not hold.
+		if len(cur.Networks) > nets {
+			cur.Networks = cur.Networks[:nets]
+			st := *cur.Stage
+			st.SourceNetworkID, st.LoadNetworkID = ac.SourceNetworkID, ac.LoadNetworkID
+			cur.Stage = &st
+		}
+		if sg.Search != nil {
+			res := *sg.Search
+			if _, err := step(what, Change{Op: OpStageStore, AmpChange: AmpChange{StageSearch: &res}}); err != nil {
+				return nil, err
+			}
+		}
+	}
+	// The active network last: a stage and a tuning round choose one of
+	// their own as they are made.
 	if a := m.State.ActiveNetwork; a != "" {
 		id, ok := netID[a]
 		if !ok {
@@ -325,17 +477,8 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 		if _, err := step("the active network", Change{Op: OpNetworkSelect, NetworkID: id}); err != nil {
 			return nil, err
 		}
-	} else if len(cur.Networks) > 0 {
+	} else {
 		cur.ActiveNetwork = "" // as in the archive: none active
-	}
-	if s := m.State.Search; s != nil {
-		res := *s
-		if res.SweepID, err = mapSweep("the search", res.SweepID); err != nil {
-			return nil, err
-		}
-		if _, err := step("the search", Change{Op: OpSearchStore, Search: &res}); err != nil {
-			return nil, err
-		}
 	}
 	return st.insertImported(ctx, cur, rows)
 }

@@ -33,11 +33,17 @@ const (
 	OpSweepRefPlane = "sweep.refplane"
 	OpTDRSet        = "tdr.set"
 	OpSearchStore   = "search.store"
+	OpSetSave       = "set.save"
+	OpSetRemove     = "set.remove"
 	OpSearchClear   = "search.clear"
+
+	OpNetworkLayout = "network.layout"
+	OpTuneStore     = "tune.store"
+	OpTuneUse       = "tune.use"
 )
 
 // coalescible ops form one undo step per gesture (see Change.Gesture).
-var coalescible = map[string]bool{OpMarkerMove: true, OpPartSet: true}
+var coalescible = map[string]bool{OpMarkerMove: true, OpPartSet: true, OpAmpPoint: true}
 
 // Ops lists every op [Store.Apply] accepts, in a stable order.
 var Ops = []string{
@@ -50,6 +56,9 @@ var Ops = []string{
 	OpPartAdd, OpPartSet, OpPartRemove, OpPartMove,
 	OpSweepRefPlane, OpTDRSet,
 	OpSearchStore, OpSearchClear,
+	OpSetSave, OpSetRemove,
+	OpNetworkLayout, OpTuneStore, OpTuneUse,
+	OpAmpSet, OpAmpPoint, OpAmpClear, OpStageSet, OpStageRemove, OpStageStore, OpStageUse, OpStageParts,
 	OpUndo, OpRedo,
 }
 
@@ -94,12 +103,15 @@ var Ops = []string{
 //	chart.set       chart                       set the chart fields present in chart (a
 //	                                            [ChartPatch]); absent fields keep their value
 //	network.add     name, sweepId, port,        add a matching network on the trace S(port,port)
-//	                designHz, parts             of sweepId (default: the first sweep) and make it
-//	                                            active; designHz defaults to the band centre;
-//	                                            parts (optional) are its first parts
+//	                designHz, parts, setId,     of sweepId (default: the first sweep) and make it
+//	                layout                      active; designHz defaults to the band centre;
+//	                                            parts (optional) are its first parts; setId
+//	                                            (optional) a load set it is judged across, layout
+//	                                            (optional) its board
 //	network.set     networkId, name, sweepId,   change the fields given (zero values keep theirs);
 //	                port, designHz, powerW,     yieldBuilds −1 turns the Monte Carlo off, chuRadiusM
-//	                yieldBuilds, chuRadiusM     −1 forgets the radius
+//	                yieldBuilds, chuRadiusM,    −1 forgets the radius; setId judges the network
+//	                setId                       across a load set ("none": its sweep only)
 //	network.select  networkId                   make it the active network
 //	network.remove  networkId
 //	part.add        networkId, kind, value,     add a part to the network (networkId "" = the
@@ -116,6 +128,37 @@ var Ops = []string{
 //	search.store    search                      keep a broadband search's result (a [SearchResult];
 //	                                            the server runs searches, pages do not send this)
 //	search.clear                                forget it
+//	set.save        setId, name, setKind,       add a load set (setId "") or replace set setId:
+//	                members                     setKind "conditions" or "lot", members the sweeps
+//	                                            (a [SetMember] each)
+//	set.remove      setId                       remove it; networks judged across it go back to
+//	                                            their own sweep
+//	network.layout  networkId, layout           set the board the network is built on (a [Layout];
+//	                                            absent or empty: none)
+//	tune.store      tune                        keep a round of bench tuning (a [TuneRound]; the
+//	                                            server fits, pages do not send this)
+//	tune.use        tuneId, index               make suggestion index of round tuneId the next
+//	                                            candidate network (with the round's layout), active,
+//	                                            and mark it chosen
+//	amp.set         sweepId, freqHz,            open or change the amplifier view of a 2-port sweep
+//	                gainStepsDB, nfStepsDB      (an [AmpView]): the frequency (default: the band
+//	                                            centre), the gain circles in dB below the maximum
+//	                                            gain and the noise circles in dB above NFmin
+//	                                            (each positive, at most 8; absent keeps them)
+//	amp.point       plane, gamma, gesture       place the source ("source") or load ("load")
+//	                                            termination; |Γ| is held below 1; moves with the
+//	                                            same gesture are one undo step
+//	amp.clear                                   close the amplifier view
+//	stage.set       sweepId, sourceNetworkId,   set up the transistor stage (a [Stage]) on a 2-port
+//	                loadNetworkId, stageReqs    sweep (default: the amplifier view's): its source and
+//	                                            load networks (absent: new empty ones on ports 1
+//	                                            and 2) and its requirement per band (a [StageReq]
+//	                                            each; absent keeps them)
+//	stage.remove                                forget the stage (its networks stay)
+//	stage.store     stageSearch                 keep a stage search's designs (the server sends it)
+//	stage.use       index                       put design index's parts into the stage's networks
+//	stage.parts     plane, parts                replace the parts of the stage's "source" or "load"
+//	                                            network (a network search's design for that side)
 //	undo                                        undo the latest step still applied
 //	redo                                        redo the step undone last
 //
@@ -172,9 +215,25 @@ type Change struct {
 	ChuRadiusM  float64 `json:"chuRadiusM,omitempty"`
 	Parts       []Part  `json:"parts,omitempty"`
 
+	// Load sets: set.save creates (no SetID) or replaces set SetID with
+	// Name, SetKind and Members; set.remove removes SetID; network.set with
+	// SetID judges the network across that set ("none" for its sweep only).
+	SetID   string      `json:"setId,omitempty"`
+	SetKind string      `json:"setKind,omitempty"`
+	Members []SetMember `json:"members,omitempty"`
+
+	// AmpChange is the payload of the amplifier and stage ops.
+	AmpChange
+
 	RefPlane   *RefPlane     `json:"refPlane,omitempty"`
 	Search     *SearchResult `json:"search,omitempty"`
 	TimeDomain *TimeDomain   `json:"timeDomain,omitempty"`
+
+	// Layout is for network.add and network.layout; Tune and TuneID for
+	// tune.store and tune.use (see there).
+	Layout *Layout    `json:"layout,omitempty"`
+	Tune   *TuneRound `json:"tune,omitempty"`
+	TuneID string     `json:"tuneId,omitempty"`
 
 	// Raw is the uploaded file as received and Sweep its parsed form, for
 	// sweep.add. The store keeps a copy of both; the caller keeps ownership.
@@ -219,8 +278,15 @@ type Limits struct {
 	TextRunes        int // names, file names and labels
 	HistorySteps     int // undo steps kept per session
 	Networks         int // matching networks per session
+	LoadSets         int // load sets per session
+	SetMembers       int // sweeps in one load set
 	PartsPerNetwork  int
+	TuneRounds       int // rounds of bench tuning kept per session
 	ReplayEvents     int // at least this many recent events are kept per session for [Store.Since]
+	// SweepBytes bounds the numbers of the sweeps listed in a session at
+	// once, as [SweepRef.DataBytes] counts them: what drawing the session
+	// holds in memory.
+	SweepBytes int64
 }
 
 // DefaultLimits are the limits used where [Options.Limits] leaves a zero.
@@ -232,8 +298,12 @@ var DefaultLimits = Limits{
 	TextRunes:        200,
 	HistorySteps:     1000,
 	Networks:         16,
+	LoadSets:         8,
+	SetMembers:       16,
 	PartsPerNetwork:  8,
+	TuneRounds:       32,
 	ReplayEvents:     256,
+	SweepBytes:       128 << 20,
 }
 
 func (l Limits) withDefaults() Limits {
@@ -251,7 +321,13 @@ func (l Limits) withDefaults() Limits {
 	pick(&l.HistorySteps, d.HistorySteps)
 	pick(&l.Networks, d.Networks)
 	pick(&l.PartsPerNetwork, d.PartsPerNetwork)
+	pick(&l.LoadSets, d.LoadSets)
+	pick(&l.SetMembers, d.SetMembers)
+	pick(&l.TuneRounds, d.TuneRounds)
 	pick(&l.ReplayEvents, d.ReplayEvents)
+	if l.SweepBytes <= 0 {
+		l.SweepBytes = d.SweepBytes
+	}
 	return l
 }
 

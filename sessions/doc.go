@@ -25,8 +25,11 @@
 // # State and changes
 //
 // A session's [State] is a small JSON-encodable value: the sweeps' numbers
-// are not in it but stored once, immutable, and read with [Store.Sweep]
-// (decoded once, then cached in memory). Every change goes through
+// are not in it but stored once, immutable, in pieces of at most 64 KiB,
+// and read with [Store.Sweep]. Decoded sweeps are cached in memory within
+// Options.SweepCacheBytes (least recently used out first, removed sweeps at
+// once, one copy of each frequency grid), and a session may list at most
+// Limits.SweepBytes of numbers. Every change goes through
 // [Store.Apply], which
 //
 //  1. validates the change against the current state (every check is in one

@@ -25,6 +25,9 @@ var (
 	ErrClosed = errors.New("sessions: store closed")
 	// ErrCorrupt: stored data could not be decoded.
 	ErrCorrupt = errors.New("sessions: stored data corrupt")
+	// ErrDiskFull: a change could not be stored because the disk (or the
+	// file system holding the data folder) is full. Nothing was changed.
+	ErrDiskFull = errors.New("sessions: the disk holding the data folder is full")
 )
 
 // OpError is the error of a change that was refused. Field names the

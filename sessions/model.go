@@ -46,6 +46,49 @@ type State struct {
 	// one drawn and edited.
 	Networks      []Network `json:"networks,omitempty"`
 	ActiveNetwork string    `json:"activeNetwork,omitempty"`
+
+	// LoadSets group sweeps that a network must match at once.
+	LoadSets []LoadSet `json:"loadSets,omitempty"`
+
+	// Tuning holds the rounds of bench tuning, oldest first: each a
+	// re-measured board, the fit of it and the swaps it suggested.
+	Tuning []TuneRound `json:"tuning,omitempty"`
+	// Amp is the amplifier view of a 2-port sweep, and Stage a transistor
+	// stage with its two networks (see stage.go); nil for none. Both are
+	// replaced whole by their ops, never changed in place.
+	Amp   *AmpView `json:"amp,omitempty"`
+	Stage *Stage   `json:"stage,omitempty"`
+}
+
+// LoadSet groups sweeps of one load: the same device in several conditions
+// (Kind "conditions": a design must hold in every one) or several boards
+// of a lot (Kind "lot": the yield draws a board at random for each build).
+type LoadSet struct {
+	ID      string      `json:"id"`
+	Name    string      `json:"name"`
+	Kind    string      `json:"kind"`
+	Members []SetMember `json:"members"`
+}
+
+// Kinds of load set.
+const (
+	SetConditions = "conditions"
+	SetLot        = "lot"
+)
+
+// SetMember is one sweep of a set: the reflection S(Port,Port) of sweep
+// SweepID, its weight in a lot's draws (0 means 1), and whether it is only
+// judged and shown (Advisory) rather than required to pass.
+type SetMember struct {
+	SweepID  string  `json:"sweepId"`
+	Port     int     `json:"port,omitempty"`
+	Weight   float64 `json:"weight,omitempty"`
+	Advisory bool    `json:"advisory,omitempty"`
+}
+
+// LoadSetIndex returns the index of set id in s.LoadSets, or −1.
+func (s *State) LoadSetIndex(id string) int {
+	return slices.IndexFunc(s.LoadSets, func(l LoadSet) bool { return l.ID == id })
 }
 
 // SweepRef is a sweep as the session lists it. The numbers are read with
@@ -64,6 +107,14 @@ type SweepRef struct {
 	// RefPlane moves the sweep's reference plane; nil means as measured.
 	// No op sets it yet (a later issue does).
 	RefPlane *RefPlane `json:"refPlane,omitempty"`
+}
+
+// DataBytes is the size of the sweep's numbers in memory: 8 bytes a
+// frequency, 8 a reference impedance and 16 a complex value, of which
+// there are Ports² a point.
+func (r SweepRef) DataBytes() int64 {
+	p, n := int64(r.Ports), int64(r.Points)
+	return 8*n + 8*p + 16*p*p*n
 }
 
 // Marker is a point on one trace of a sweep, held by frequency. The trace is
@@ -148,6 +199,115 @@ type Network struct {
 	// ChuRadiusM, when positive, is the radius of the sphere enclosing the
 	// antenna, for the Chu limit on its Q.
 	ChuRadiusM float64 `json:"chuRadiusM,omitempty"`
+	// SetID, when set, names a load set the network is judged across; the
+	// chart follows SweepID's point, which is one of its members.
+	SetID string `json:"setId,omitempty"`
+	// Layout, when set, is the board the network is built on: its parts'
+	// pads and the traces between them, which the panel's figures, the
+	// chart and the exports then include.
+	Layout *Layout `json:"layout,omitempty"`
+}
+
+// Layout is the board a network is built on (rfmath/match.Layout):
+// Footprint names the parts' land pattern ("0402", "0603" or "" for none),
+// PadCF each pad's capacitance to ground (0: the footprint's typical
+// figure), Traces the traces in the gaps between parts.
+type Layout struct {
+	Footprint string  `json:"footprint,omitempty"`
+	PadCF     float64 `json:"padCF,omitempty"`
+	Traces    []Trace `json:"traces,omitempty"`
+}
+
+// Trace is a trace in gap Gap of a network (0 between the load and the
+// first part, g between parts g and g+1 counted from the load): LengthM
+// long, of characteristic impedance Z0Ohm and effective permittivity
+// EpsEff.
+type Trace struct {
+	Gap     int     `json:"gap"`
+	LengthM float64 `json:"lengthM"`
+	Z0Ohm   float64 `json:"z0Ohm"`
+	EpsEff  float64 `json:"epsEff"`
+}
+
+// clone returns a deep copy of l (nil for nil).
+func (l *Layout) clone() *Layout {
+	if l == nil {
+		return nil
+	}
+	c := *l
+	c.Traces = slices.Clone(l.Traces)
+	return &c
+}
+
+// TuneRound is one round of bench tuning: a sweep of the board as built
+// with network NetworkID fitted (its parts and layout as they were then),
+// the fit of the board and the swaps it suggested, each with its predicted
+// figures as computed when the round was fitted, and the swap chosen, if
+// any. The server fits; pages do not send rounds.
+type TuneRound struct {
+	ID           string     `json:"id"`
+	NetworkID    string     `json:"networkId"`
+	NetworkName  string     `json:"networkName"`
+	LoadSweepID  string     `json:"loadSweepId"`
+	Port         int        `json:"port"`
+	BuiltSweepID string     `json:"builtSweepId"`
+	BuiltName    string     `json:"builtName"`
+	Parts        []Part     `json:"parts"`
+	Layout       *Layout    `json:"layout,omitempty"`
+	Bands        string     `json:"bands"` // the bands judged, in words
+	Fit          TuneFit    `json:"fit"`
+	AsBuilt      TuneFigs   `json:"asBuilt"`
+	Suggestions  []TuneSwap `json:"suggestions"`
+	// Best is the suggestion to try first, −1 for none; Chosen the one
+	// made a network (−1 for none yet) and ChosenNetworkID that network.
+	Best            int    `json:"best"`
+	Chosen          int    `json:"chosen"`
+	ChosenNetworkID string `json:"chosenNetworkId,omitempty"`
+}
+
+// TuneFit is a fit of the board as built, as the round shows it.
+type TuneFit struct {
+	Points             int         `json:"points"`
+	LoHz               float64     `json:"loHz"`
+	HiHz               float64     `json:"hiHz"`
+	RMSResidual        float64     `json:"rmsResidual"`
+	NominalRMSResidual float64     `json:"nominalRmsResidual"`
+	Condition          float64     `json:"condition"` // 0 when singular
+	Params             []TuneParam `json:"params"`
+	Warnings           []string    `json:"warnings,omitempty"`
+}
+
+// TuneParam is one fitted number of the board: Sigma is its 1σ
+// uncertainty, with Unknown set when the data do not determine it at all.
+type TuneParam struct {
+	Name         string  `json:"name"`
+	Kind         string  `json:"kind"` // part, pads, trace
+	Unit         string  `json:"unit"`
+	Nominal      float64 `json:"nominal"`
+	Value        float64 `json:"value"`
+	Sigma        float64 `json:"sigma"`
+	Unknown      bool    `json:"unknown,omitempty"`
+	Held         bool    `json:"held,omitempty"`
+	Undetermined bool    `json:"undetermined,omitempty"`
+	AtBound      bool    `json:"atBound,omitempty"`
+}
+
+// TuneFigs are a board's figures across the round's bands.
+type TuneFigs struct {
+	WorstRLdB        float64 `json:"worstRLdB"`
+	WorstPowerToLoad float64 `json:"worstPowerToLoad"`
+	MarginDB         float64 `json:"marginDB"`
+	Meets            bool    `json:"meets"`
+}
+
+// TuneSwap is a suggested swap: Change says it in words, Parts is the next
+// candidate network, Yield the share of builds of the new parts that meet
+// every band (−1 when not computed).
+type TuneSwap struct {
+	Change string   `json:"change"`
+	Parts  []Part   `json:"parts"`
+	Figs   TuneFigs `json:"figs"`
+	Yield  float64  `json:"yield"`
 }
 
 // Part kinds, as [rfmath.PartKind] spells them. Lumped parts sit in series
@@ -197,6 +357,7 @@ type Part struct {
 // load: the settings it ran with and its best designs, best first.
 type SearchResult struct {
 	SweepID  string `json:"sweepId"`
+	SetID    string `json:"setId,omitempty"` // the search ran across this load set
 	Port     int    `json:"port"`
 	Settings string `json:"settings"` // as the engineer chose them, in words
 	Exact    bool   `json:"exact"`    // every combination in the ranges was searched
@@ -205,6 +366,13 @@ type SearchResult struct {
 	Objective string   `json:"objective,omitempty"`
 	Designs   []Design `json:"designs"`
 	Note      string   `json:"note,omitempty"` // e.g. the Bode–Fano figure when nothing meets the bands
+	// Layout, when set, is the board the designs were judged on (the
+	// searched network's); a design made a network takes it.
+	Layout *Layout `json:"layout,omitempty"`
+	// StageSide is "source" or "load" when the search matched a network of
+	// the transistor stage (its load was the device's port with the other
+	// network in place); its designs then go into that network.
+	StageSide string `json:"stageSide,omitempty"`
 }
 
 // Design is one network a search found, with its figures when it was
@@ -266,6 +434,10 @@ func (s *State) clone() *State {
 		}
 	}
 	c.Markers = slices.Clone(s.Markers)
+	c.LoadSets = slices.Clone(s.LoadSets)
+	for i := range c.LoadSets {
+		c.LoadSets[i].Members = slices.Clone(c.LoadSets[i].Members)
+	}
 	c.Bands = slices.Clone(s.Bands)
 	c.Chart.QArcs = slices.Clone(s.Chart.QArcs)
 	// Search results are replaced whole, never changed in place.
@@ -276,10 +448,19 @@ func (s *State) clone() *State {
 			for j := range n.Parts {
 				n.Parts[j].Params = maps.Clone(n.Parts[j].Params)
 			}
+			n.Layout = n.Layout.clone()
 			c.Networks[i] = n
 		}
 	}
+	// A round is stored whole; only its Chosen fields change, so a shallow
+	// copy of each keeps published rounds untouched.
+	c.Tuning = slices.Clone(s.Tuning)
 	return &c
+}
+
+// TuneIndex returns the index of tuning round id in s.Tuning, or −1.
+func (s *State) TuneIndex(id string) int {
+	return slices.IndexFunc(s.Tuning, func(r TuneRound) bool { return r.ID == id })
 }
 
 // SweepIndex returns the index of sweep id in s.Sweeps, or −1.

@@ -95,6 +95,16 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			name = "Network " + string(rune('A'+len(cur.Networks)%26))
 		}
 		n := Network{ID: id, Name: name, SweepID: sweepID, Port: port, DesignHz: design, PowerW: 0.1, Parts: []Part{}}
+		if ch.SetID != "" && ch.SetID != "none" {
+			si := cur.LoadSetIndex(ch.SetID)
+			if si < 0 {
+				return notFound(op, "setId", "load set", ch.SetID)
+			}
+			if !isMember(cur.LoadSets[si], sweepID) {
+				return invalid(op, "sweepId", "sweep %q is not in load set %q", ref.Name, cur.LoadSets[si].Name)
+			}
+			n.SetID = ch.SetID
+		}
 		if len(ch.Parts) > lim.PartsPerNetwork {
 			return invalid(op, "parts", "%d parts; a network holds at most %d", len(ch.Parts), lim.PartsPerNetwork)
 		}
@@ -111,6 +121,9 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 				return err
 			}
 			n.Parts = append(n.Parts, p)
+		}
+		if n.Layout, err = checkLayout(op, ch.Layout, len(n.Parts)); err != nil {
+			return err
 		}
 		next.Networks = append(next.Networks, n)
 		next.ActiveNetwork = id
@@ -140,12 +153,36 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		if ch.Port != 0 {
 			n.Port = ch.Port
 		}
+		switch ch.SetID {
+		case "":
+		case "none":
+			n.SetID = ""
+		default:
+			si := cur.LoadSetIndex(ch.SetID)
+			if si < 0 {
+				return notFound(op, "setId", "load set", ch.SetID)
+			}
+			set := cur.LoadSets[si]
+			n.SetID = set.ID
+			if !isMember(set, n.SweepID) {
+				// The chart follows a member: the first that must pass.
+				for _, m := range set.Members {
+					if !m.Advisory {
+						n.SweepID, n.Port = m.SweepID, m.Port
+						break
+					}
+				}
+			}
+		}
 		ref, err := sweepRef(n.SweepID)
 		if err != nil {
 			return err
 		}
 		if n.Port < 1 || n.Port > min(ref.Ports, 2) {
 			return invalid(op, "port", "sweep %q has no reflection at port %d", ref.Name, n.Port)
+		}
+		if n.DesignHz < ref.FminHz || n.DesignHz > ref.FmaxHz {
+			n.DesignHz = defaultDesignHz(cur, ref)
 		}
 		if ch.DesignHz != 0 {
 			if !finite(ch.DesignHz) || ch.DesignHz < ref.FminHz || ch.DesignHz > ref.FmaxHz {
@@ -244,6 +281,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			at = *ch.Index
 		}
 		n.Parts = slices.Insert(n.Parts, at, p)
+		n.Layout = shiftTraces(n.Layout, at, +1)
 		r.ev.PartID = p.ID
 
 	case OpPartSet:
@@ -292,6 +330,7 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			return err
 		}
 		n.Parts = slices.Delete(n.Parts, j, j+1)
+		n.Layout = shiftTraces(n.Layout, j, -1)
 		r.ev.PartID = ch.PartID
 
 	case OpPartMove:

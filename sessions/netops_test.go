@@ -170,3 +170,69 @@ func TestPartFiguresStayFinite(t *testing.T) {
 	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"q": 0.5, "qRefHz": 1e9, "srfHz": 5e9, "tolAbs": 0.1e-9}})
 	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: tl.PartID, Params: map[string]float64{"lossDBPerM": 2, "lossRefHz": 1e9, "z0Ohm": 75}})
 }
+
+// Load sets: saved, validated with the field named, followed by the
+// networks judged across them, emptied of a removed sweep and removed with
+// their last sweep that must pass, and undone as one step.
+func TestLoadSets(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{})
+	s := create(t, st, "sets")
+	ctx := context.Background()
+	a := addSweep(t, st, s.ID, testSweep(201, 1, 0.5e9, 1.5e9), "a")
+	b := addSweep(t, st, s.ID, testSweep(101, 1, 0.6e9, 1.4e9), "b")
+	c := addSweep(t, st, s.ID, testSweep(51, 1, 0.5e9, 1.5e9), "c")
+	ev := apply(t, st, s.ID, Change{Op: OpSetSave, Name: "conditions", Members: []SetMember{{SweepID: a}, {SweepID: b, Weight: 2}, {SweepID: c, Advisory: true}}})
+	cur, _ := state(t, st, s.ID)
+	if len(cur.LoadSets) != 1 || cur.LoadSets[0].ID != ev.SetID || cur.LoadSets[0].Kind != SetConditions || cur.LoadSets[0].Members[1].Weight != 2 {
+		t.Fatalf("sets %+v", cur.LoadSets)
+	}
+	for _, tc := range []struct {
+		name  string
+		ch    Change
+		field string
+	}{
+		{"kind", Change{Op: OpSetSave, SetKind: "bag", Members: []SetMember{{SweepID: a}}}, "setKind"},
+		{"empty", Change{Op: OpSetSave}, "members"},
+		{"twice", Change{Op: OpSetSave, Members: []SetMember{{SweepID: a}, {SweepID: a}}}, "members"},
+		{"weight", Change{Op: OpSetSave, Members: []SetMember{{SweepID: a, Weight: math.Inf(1)}}}, "members.weight"},
+		{"all advisory", Change{Op: OpSetSave, Members: []SetMember{{SweepID: a, Advisory: true}}}, "members"},
+		{"port", Change{Op: OpSetSave, Members: []SetMember{{SweepID: a, Port: 3}}}, "members.port"},
+	} {
+		_, err := st.Apply(ctx, s.ID, tc.ch)
+		wantErr(t, err, ErrInvalid, tc.field)
+	}
+	_, err := st.Apply(ctx, s.ID, Change{Op: OpSetSave, Members: []SetMember{{SweepID: "nope"}}})
+	wantErr(t, err, ErrNotFound, "members.sweepId")
+	// A network on a sweep outside the set, judged across it, moves to the
+	// set's first member that must pass; one on a member stays.
+	d := addSweep(t, st, s.ID, testSweep(51, 1, 0.5e9, 1.5e9), "d")
+	apply(t, st, s.ID, Change{Op: OpNetworkAdd, SweepID: d})
+	apply(t, st, s.ID, Change{Op: OpNetworkSet, SetID: ev.SetID})
+	cur, _ = state(t, st, s.ID)
+	if n := cur.Active(); n.SetID != ev.SetID || n.SweepID != a {
+		t.Errorf("network %+v", n)
+	}
+	apply(t, st, s.ID, Change{Op: OpNetworkAdd, SweepID: c, SetID: ev.SetID})
+	cur, _ = state(t, st, s.ID)
+	if n := cur.Active(); n.SetID != ev.SetID || n.SweepID != c {
+		t.Errorf("network on an advisory member %+v", n)
+	}
+	_, err = st.Apply(ctx, s.ID, Change{Op: OpNetworkAdd, SweepID: d, SetID: ev.SetID})
+	wantErr(t, err, ErrInvalid, "sweepId")
+	apply(t, st, s.ID, Change{Op: OpSweepRemove, SweepID: b})
+	cur, _ = state(t, st, s.ID)
+	if len(cur.LoadSets[0].Members) != 2 {
+		t.Errorf("after removing b: %+v", cur.LoadSets[0].Members)
+	}
+	apply(t, st, s.ID, Change{Op: OpSweepRemove, SweepID: a})
+	cur, _ = state(t, st, s.ID)
+	if len(cur.LoadSets) != 0 || len(cur.Networks) > 0 && cur.Networks[0].SetID != "" {
+		t.Errorf("a set with only an advisory sweep left: %+v, networks %+v", cur.LoadSets, cur.Networks)
+	}
+	apply(t, st, s.ID, Change{Op: OpUndo})
+	cur, _ = state(t, st, s.ID)
+	if len(cur.LoadSets) != 1 {
+		t.Errorf("undo did not bring the set back")
+	}
+}

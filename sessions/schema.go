@@ -70,6 +70,24 @@ CREATE TABLE history (
 	// data folder's key (see Store.Tokens) replaces edit_token and
 	// view_token, which migration 1 created.
 	{sql: `ALTER TABLE sessions ADD COLUMN tokens_sealed BLOB;`, post: sealClearTokens},
+
+	// 3: a sweep's parsed numbers and uploaded file are stored in pieces of
+	// at most chunkBytes (see sweepblob.go), so that no statement copies a
+	// whole file into SQLite's memory, whose allocator keeps what it once
+	// held. Rows stored before keep their bytes in sweeps.parsed and
+	// sweeps.raw (chunked = 0) and are read as before.
+	{sql: `
+CREATE TABLE sweep_chunks (
+	session_id TEXT NOT NULL,
+	sweep_id   TEXT NOT NULL,
+	part       INTEGER NOT NULL,          -- 0: parsed numbers, 1: the file as uploaded
+	seq        INTEGER NOT NULL,          -- from 0, in order
+	data       BLOB NOT NULL,
+	PRIMARY KEY (session_id, sweep_id, part, seq),
+	FOREIGN KEY (session_id, sweep_id) REFERENCES sweeps(session_id, id) ON DELETE CASCADE
+) STRICT;
+ALTER TABLE sweeps ADD COLUMN chunked INTEGER NOT NULL DEFAULT 0;
+`},
 }
 
 // sealClearTokens seals the tokens kept in clear by migration 1 and drops

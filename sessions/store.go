@@ -7,13 +7,16 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io/fs"
 	"net/url"
 	"os"
 	"path/filepath"
 	"sync"
+	"syscall"
 	"time"
 
-	_ "modernc.org/sqlite" // registers the "sqlite" driver
+	"modernc.org/sqlite" // registers the "sqlite" driver
+	sqlite3 "modernc.org/sqlite/lib"
 
 	"matchbench/rfmath"
 )
@@ -41,6 +44,9 @@ type Options struct {
 	// other change) or checkpoint. Every other change is FULL. This keeps a
 	// drag within a small part of a 60 Hz frame.
 	Synchronous string
+	// SweepCacheBytes bounds the memory of decoded sweeps the store keeps
+	// for reuse (see [Store.Sweep]); zero means DefaultSweepCacheBytes.
+	SweepCacheBytes int64
 }
 
 // Store holds every session in one SQLite database in a data folder. Its
@@ -63,8 +69,8 @@ type Store struct {
 	closed bool
 	hubs   map[string]*hub
 
-	sweepMu sync.Mutex
-	sweeps  map[sweepKey]*sweepEntry
+	sweeps *sweepCache
+	stmts  map[string]*sql.Stmt // the change path's prepared statements (stmts.go); fixed after open
 }
 
 // Open opens the store in dataDir with default options; see [OpenWith].
@@ -104,7 +110,7 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		lim:    opt.Limits.withDefaults(),
 		lock:   lock,
 		hubs:   make(map[string]*hub),
-		sweeps: make(map[sweepKey]*sweepEntry),
+		sweeps: newSweepCache(opt.SweepCacheBytes),
 	}
 	fail := func(err error) (*Store, error) {
 		st.closeDB()
@@ -115,6 +121,9 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		return fail(err)
 	}
 	path := filepath.Join(dir, DBFile)
+	if err := ownerOnly(path); err != nil {
+		return fail(err)
+	}
 	st.fullSync = syncMode == "FULL"
 	if st.wdb, err = sql.Open("sqlite", dsn(path, syncMode, true)); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
@@ -124,6 +133,7 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 	if err := migrate(context.Background(), st.wdb, st.aead); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
+	st.prepareStmts(context.Background())
 	if st.rdb, err = sql.Open("sqlite", dsn(path, syncMode, false)); err != nil {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
@@ -132,6 +142,25 @@ func OpenWith(dataDir string, opt Options) (*Store, error) {
 		return fail(fmt.Errorf("sessions: opening %s: %w", path, err))
 	}
 	return st, nil
+}
+
+// ownerOnly makes the database file readable and writable by its owner
+// only (mode 0600), creating it empty when it does not exist, and brings
+// its -wal and -shm files, when present, to the same mode. SQLite creates
+// those two with the mode of the database file, and would create the
+// database itself 0644.
+func ownerOnly(path string) error {
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE, 0o600)
+	if err != nil {
+		return fmt.Errorf("sessions: creating %s: %w", path, err)
+	}
+	f.Close()
+	for _, p := range []string{path, path + "-wal", path + "-shm"} {
+		if err := os.Chmod(p, 0o600); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			return fmt.Errorf("sessions: making %s private: %w", p, err)
+		}
+	}
+	return nil
 }
 
 // dsn returns the modernc.org/sqlite data source name for path. The write
@@ -143,6 +172,10 @@ func dsn(path, sync string, write bool) string {
 	q.Add("_pragma", "busy_timeout(5000)")
 	q.Add("_pragma", "foreign_keys(1)")
 	q.Add("_pragma", "synchronous("+sync+")")
+	// A page cache of 256 KiB a connection instead of SQLite's 2 MB: the
+	// database is read a row at a time and the operating system caches the
+	// file; SQLite's own cache is memory its allocator keeps for good.
+	q.Add("_pragma", "cache_size(-256)")
 	if write {
 		q.Set("_txlock", "immediate")
 	} else {
@@ -188,14 +221,29 @@ func (st *Store) closeDB() error {
 		errs = append(errs, st.rdb.Close())
 	}
 	if st.wdb != nil {
+		st.closeStmts()
 		errs = append(errs, st.wdb.Close())
 	}
 	return errors.Join(errs...)
 }
 
-// dbErr wraps a database error with what was being done.
+// dbErr wraps a database error with what was being done; a full disk
+// wraps ErrDiskFull as well.
 func (st *Store) dbErr(doing string, err error) error {
+	if diskFull(err) {
+		return fmt.Errorf("sessions: %s: %w (%w)", doing, ErrDiskFull, err)
+	}
 	return fmt.Errorf("sessions: %s: %w", doing, err)
+}
+
+// diskFull reports whether err is SQLite's "database or disk is full"
+// (SQLITE_FULL, also as an extended code) or the system's ENOSPC.
+func diskFull(err error) bool {
+	var se *sqlite.Error
+	if errors.As(err, &se) && se.Code()&0xff == sqlite3.SQLITE_FULL {
+		return true
+	}
+	return errors.Is(err, syscall.ENOSPC)
 }
 
 // Create makes a new session with a fresh id and fresh tokens, and returns
@@ -326,44 +374,16 @@ func (st *Store) Delete(ctx context.Context, id string) error {
 		delete(st.hubs, id)
 	}
 	st.mu.Unlock()
-	st.sweepMu.Lock()
-	for k := range st.sweeps {
-		if k.session == id {
-			delete(st.sweeps, k)
-		}
-	}
-	st.sweepMu.Unlock()
+	st.sweeps.dropSession(id)
 	return nil
 }
 
-// sweepKey names a stored sweep.
-type sweepKey struct{ session, sweep string }
-
-// sweepEntry is a decoded sweep kept in memory, with its reflection traces
-// extracted on first use.
-type sweepEntry struct {
-	sw     *rfmath.Sweep
-	mu     sync.Mutex
-	traces [][]complex128 // [port-1], nil until used
-}
-
-// trace returns S(port, port) at every point, extracted once and shared.
-func (e *sweepEntry) trace(port int) []complex128 {
-	e.mu.Lock()
-	defer e.mu.Unlock()
-	if e.traces == nil {
-		e.traces = make([][]complex128, e.sw.Ports)
-	}
-	if e.traces[port-1] == nil {
-		e.traces[port-1] = e.sw.Param(nil, port-1, port-1)
-	}
-	return e.traces[port-1]
-}
-
 // Sweep returns the parsed numbers of a sweep of a session, also one that
-// has been removed but can still come back by undo. It is decoded once and
-// then shared from memory: read it, do not modify it (Clone it to work on
-// it).
+// has been removed but can still come back by undo. It is shared: read it,
+// do not modify it (Clone it to work on it). Decoded sweeps are kept in
+// memory within Options.SweepCacheBytes, the least recently used leaving
+// first, and decoded again from their stored bytes when asked for after
+// they left; a sweep removed from its session leaves at once.
 func (st *Store) Sweep(sessionID, sweepID string) (*rfmath.Sweep, error) {
 	e, err := st.sweep(sessionID, sweepID)
 	if err != nil {
@@ -374,55 +394,46 @@ func (st *Store) Sweep(sessionID, sweepID string) (*rfmath.Sweep, error) {
 
 func (st *Store) sweep(sessionID, sweepID string) (*sweepEntry, error) {
 	k := sweepKey{sessionID, sweepID}
-	st.sweepMu.Lock()
-	e := st.sweeps[k]
-	st.sweepMu.Unlock()
-	if e != nil {
+	if e := st.sweeps.get(k); e != nil {
 		return e, nil
 	}
 	if err := st.open(); err != nil {
 		return nil, err
 	}
-	var b []byte
-	err := st.rdb.QueryRow(`SELECT parsed FROM sweeps WHERE session_id = ? AND id = ?`, sessionID, sweepID).Scan(&b)
-	if errors.Is(err, sql.ErrNoRows) {
-		return nil, fmt.Errorf("%w: no sweep %q in session %q", ErrNotFound, sweepID, sessionID)
+	sp, err := st.readSweepPart(context.Background(), sessionID, sweepID, partParsed)
+	if errors.Is(err, ErrNotFound) || errors.Is(err, ErrCorrupt) {
+		return nil, err
 	}
 	if err != nil {
 		return nil, st.dbErr("reading a sweep", err)
 	}
+	b := sp.bytes
 	sw, err := decodeSweep(b)
 	if err != nil {
 		return nil, fmt.Errorf("sweep %q of session %q: %w", sweepID, sessionID, err)
 	}
-	return st.cacheSweep(k, sw), nil
+	if sp.removed {
+		// Asked for by a reader of an older state, or for an undo that has
+		// not happened: served, not kept.
+		return &sweepEntry{key: k, sw: sw, c: st.sweeps, gone: true}, nil
+	}
+	return st.sweeps.put(k, sw), nil
 }
 
-// cacheSweep keeps sw in memory unless another caller got there first, and
-// returns the entry kept.
-func (st *Store) cacheSweep(k sweepKey, sw *rfmath.Sweep) *sweepEntry {
-	st.sweepMu.Lock()
-	defer st.sweepMu.Unlock()
-	if e := st.sweeps[k]; e != nil {
-		return e
-	}
-	e := &sweepEntry{sw: sw}
-	st.sweeps[k] = e
-	return e
-}
+// SweepCacheStats reports what the store's cache of decoded sweeps holds.
+func (st *Store) SweepCacheStats() SweepCacheStats { return st.sweeps.stats() }
 
 // Raw returns a sweep's file as it was uploaded, and its file name.
 func (st *Store) Raw(ctx context.Context, sessionID, sweepID string) (raw []byte, fileName string, err error) {
 	if err := st.open(); err != nil {
 		return nil, "", err
 	}
-	err = st.rdb.QueryRowContext(ctx, `SELECT raw, file_name FROM sweeps WHERE session_id = ? AND id = ?`, sessionID, sweepID).
-		Scan(&raw, &fileName)
-	if errors.Is(err, sql.ErrNoRows) {
-		return nil, "", fmt.Errorf("%w: no sweep %q in session %q", ErrNotFound, sweepID, sessionID)
+	sp, err := st.readSweepPart(ctx, sessionID, sweepID, partRaw)
+	if errors.Is(err, ErrNotFound) || errors.Is(err, ErrCorrupt) {
+		return nil, "", err
 	}
 	if err != nil {
 		return nil, "", st.dbErr("reading a sweep file", err)
 	}
-	return raw, fileName, nil
+	return sp.bytes, sp.fileName, nil
 }

@@ -56,9 +56,66 @@ type SessionView struct {
 	Bands    []BandRow
 	Options  ChartOptions
 	Network  NetworkView
+	Sets     SetsView
+	Tuning   TuningView
 	RefPlane RefPlaneView
+	Amp      AmpPanelView // ampview.go
 	// Upload limits shown beside the drop zone.
 	MaxUploadMB int
+	// What the page's own view shows (the page changes it without
+	// changing the session): the plots' span, the chart's controls and
+	// the resonance table.
+	Span       SpanView
+	ChartBar   ChartBar
+	Resonances ResonanceView
+}
+
+// SpanView is the plots' shared frequency span.
+type SpanView struct {
+	Lo, Hi   string // as shown, with SI prefixes
+	Zoomed   bool   // narrower than the sweeps
+	Fit      bool   // fitted to the bands
+	HasBands bool
+}
+
+// ChartBar holds the chart's view controls.
+type ChartBar struct {
+	Z0       string // the chart's reference impedance, ohms
+	Param    string // "", "S11" or "S22"
+	Has2Port bool
+	Zoomed   bool
+}
+
+// OptGroup is a labelled group of a select's choices.
+type OptGroup struct {
+	Label   string
+	Options []Option
+}
+
+// ResonanceView is the table of dips, bands and resonances of each
+// visible trace.
+type ResonanceView struct {
+	Threshold string // dB
+	Traces    []ResonanceTrace
+}
+
+// ResonanceTrace is one trace's rows.
+type ResonanceTrace struct {
+	Name, Color string
+	Rows        []ResonanceRow
+	More        []string // notes: rows left out, nothing found
+}
+
+// ResonanceRow is one dip, band or resonance; clicking it places a marker
+// at FreqHz on the trace (SweepID, Port).
+type ResonanceRow struct {
+	Kind, What                 string
+	Freq                       string
+	FreqHz                     float64
+	SweepID                    string
+	Port                       int
+	RL, Lo, Hi, BW, Frac, R, Q string
+	Note                       string
 }
 
 // ShareView holds the links a colleague can open.
@@ -78,6 +135,14 @@ type PlotView struct {
 	ID    string
 	Title string
 	SVG   string // trusted: written by chartsvg from numbers
+	// Selectable plots have a selector of what they show (Groups) and a y
+	// range, fixed or as scaled (YMin, YMax); GD marks a group delay,
+	// which has an aperture.
+	Selectable bool
+	Groups     []OptGroup
+	Fixed      bool
+	YMin, YMax string
+	GD         bool
 }
 
 // SweepRow is one sweep in the sweeps panel.
@@ -89,6 +154,7 @@ type SweepRow struct {
 	Visible  bool
 	Summary  string // "1-port, 401 points, 700 MHz – 1.1 GHz"
 	RawHref  string
+	Plane    string // what its reference plane does, "" as measured
 }
 
 // ReadoutRow is one marker's readout.
@@ -178,6 +244,44 @@ type NetworkView struct {
 	// Schematic is the network drawn from the source to the load (trusted
 	// SVG from chartsvg).
 	Schematic string
+	// Set is the load set the network is judged across (Name "" for none),
+	// and Sets every set of the session as a choice.
+	Set  NetSetView
+	Sets []Option
+	// StageNote says what a network of the transistor stage matches.
+	StageNote string
+}
+
+// NetSetView shows the active network on each member of its load set.
+type NetSetView struct {
+	Name, Kind string
+	Members    []MemberRow
+}
+
+// MemberRow is the network's figures on one member of its set.
+type MemberRow struct {
+	Name, Color, Margin string
+	Bands               []string
+	Pass, Worst         bool
+	Advisory            bool
+}
+
+// SetsView is the load sets panel: the sets and the sweeps to group.
+type SetsView struct {
+	Sets   []SetRow
+	Sweeps []Option
+}
+
+// SetRow is one load set.
+type SetRow struct {
+	ID, Name, Kind string
+	Members        []SetMemberRow
+}
+
+// SetMemberRow is one sweep of a set.
+type SetMemberRow struct {
+	SweepID, Name, Color, Weight string
+	Must                         bool
 }
 
 // PartRow is one part of the network, in order from the load.
@@ -190,10 +294,18 @@ type PartRow struct {
 	Lumped                      bool
 	SliderMin, SliderMax        string // log10 of the value
 	SliderVal                   string
+	LogValue                    string // log10 of the value, in full, for the fine slider
 	First, Last                 bool
 	// The part's own figures, overriding its model's ("" = the model's).
 	Q, QRef, SRF, ESR, Tol, MaxV, MaxA string
 	ModelNote                          string // what the model gives, in words
+	// A line section's or stub's figures: its characteristic impedance,
+	// velocity factor (VF, with the effective permittivity it means), loss
+	// in dB/m at a frequency (growing as √f), and its length in mm and in
+	// wavelengths on the line at the design frequency.
+	Line                                 bool
+	Z0, VF, EEff, Loss, LossRef          string
+	LengthMM, LengthWL, DesignAt, LineDB string
 }
 
 // NetMetricRow is one band's figures with the network (parts as built) and
@@ -244,7 +356,12 @@ type ReportView struct {
 	PowerW, PowerNote             string
 	PartsHeader                   []string
 	Parts                         [][]string
-	Netlist                       string // how closely the SPICE netlist follows the part models
+	Netlist                       string     // how closely the SPICE netlist follows the part models
+	Set                           NetSetView // the network on each member of its load set, if any
+	Board                         string     // the board the figures include, in words; "" for none
+	// StageNote says what a network of the transistor stage matches; ""
+	// for any other network.
+	StageNote string
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
@@ -281,8 +398,10 @@ type SearchView struct {
 	SynthAt        string
 	SynthLoad      string
 	LNets, Stubs   []SynthRow
-	NoL, Quarter   []string
+	Quarters       []SynthRow
+	NoL            []string
 	SynthNote      string
+	Line           LineSettings
 }
 
 // DesignRow is one design a search found, judged on the current load.
@@ -300,9 +419,17 @@ type SynthRow struct {
 	CanUse       bool
 }
 
-// LimitsView holds the limits no network can beat, in words.
+// LineSettings are the figures of the line that the stub and quarter-wave
+// solutions are built from when used (their impedance is the reference's).
+type LineSettings struct {
+	Z0, VF, Loss, LossRef string
+}
+
+// LimitsView holds the limits no network can beat, in words. FitPoor,
+// when set, says why the Bode–Fano limit's RLC fit is too poor to trust.
 type LimitsView struct {
 	BodeFano, Chu, Radius string
+	FitPoor               string
 	Feasible              bool
 }
 
@@ -317,4 +444,47 @@ type YieldView struct {
 type SensRow struct {
 	Designator, Tol, Low, High, Share string
 	Most                              bool
+}
+
+// TuningView is the bench-tuning panel: the active network's board, the
+// form that fits a re-measured board, and every round so far.
+type TuningView struct {
+	Active    bool   // a network is active and can be fitted
+	Network   string // its name
+	Board     string // its board in words
+	BoardNote string // why a stored board is left out, if it is
+	// The form's defaults: the network's board.
+	Footprint, Pad, Traces string
+	Sweeps                 []Option // sweeps that may be the board as built
+	Rounds                 []TuneRoundRow
+}
+
+// TuneRoundRow is one round of tuning as stored.
+type TuneRoundRow struct {
+	ID          string
+	Num         int
+	Network     string
+	Built       string
+	Parts       string
+	Board       string
+	Bands       string
+	Fit         string
+	Params      []TuneParamRow
+	Warnings    []string
+	AsBuilt     string
+	AsBuiltPass bool
+	Swaps       []TuneSwapRow
+	Chosen      string
+}
+
+// TuneParamRow is one fitted number of the board.
+type TuneParamRow struct {
+	Name, Nominal, Value, Sigma, Note string
+}
+
+// TuneSwapRow is one suggested swap with its predicted figures.
+type TuneSwapRow struct {
+	Index                               int
+	Change, Worst, Power, Margin, Yield string
+	Pass, Best, Chosen                  bool
 }

@@ -131,6 +131,7 @@ func Build(r *Results, opt Options) []row {
 	rp.reading()
 	rp.ladder()
 	rp.drag()
+	rp.browser()
 	rp.chart()
 	rp.search()
 	rp.memory()
@@ -275,6 +276,21 @@ func (rp *report) search() {
 			from: fmt.Sprintf("search %.4g ms, exhaustive %.4g ms (medians; speedup is the median of each run's ratio)", ts, te)})
 		rp.add(row{group: g, figure: "same best design (" + variant + ")", value: "same", target: "equal", verdict: pass,
 			from: "the benchmark stops with an error when the two searches' designs differ"})
+	}
+	const gs = "Search across a set of 5 loads (3-part E24, typical 0402)"
+	if r, ok := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "set-ratio"); ok {
+		one, _ := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "one-ms")
+		five, _ := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs=1", "set-ms")
+		rp.add(row{group: gs, figure: "5 members ÷ 1 member, 401 points each, same run", value: fmt.Sprintf("%.2f×", r), target: "≤ 6×", verdict: atMost(r, 6),
+			from: fmt.Sprintf("one member %.4g ms, five %.4g ms (medians)", one, five)})
+	} else {
+		rp.missing(gs, "5 members ÷ 1 member, 401 points each, same run", "≤ 6×", false, "BenchmarkSearchSet/members=5/vs=1")
+	}
+	if sp, ok := rp.med(pkgMatch, "BenchmarkSearchSet/members=5/vs-exhaustive", "speedup"); ok {
+		rp.add(row{group: gs, figure: "across the set: exhaustive ÷ search, 41 points each, same run", value: fmt.Sprintf("%.1f×", sp), target: "≥ 20×, same design", verdict: atLeast(sp, 20),
+			from: "BenchmarkSearchSet/members=5/vs-exhaustive (stops with an error when the designs differ)"})
+	} else {
+		rp.missing(gs, "across the set: exhaustive ÷ search, 41 points each, same run", "≥ 20×, same design", false, "BenchmarkSearchSet/members=5/vs-exhaustive")
 	}
 	if ms, ok := rp.med(pkgMatch, "BenchmarkSearchFieldnode4", "search-ms"); ok {
 		rp.add(row{group: "Loss-aware search of the Fieldnode demo (2 bands, up to 4 parts, E24, typical 0402)", figure: "time on this machine",
@@ -439,4 +455,38 @@ func thousands(v float64) string {
 		out = append(out, s[i])
 	}
 	return string(out)
+}
+
+// browser reports the browser side measured in headless Chromium
+// (server's BenchmarkBrowser).
+func (rp *report) browser() {
+	const g = "The browser side (headless Chromium, 1366×768)"
+	type fig struct {
+		name, metric, figure, target string
+		bound                        float64
+	}
+	for _, f := range []fig{
+		{"BenchmarkBrowser/drag", "p99-ms", "drag, 4 × 10,001 points: pointer event → frame showing the new frequency, p99", "≤ 16.7 ms", 16.7},
+		{"BenchmarkBrowser/viewer", "p99-ms", "a viewer following: editor's pointer event → viewer's frame, p99", "≤ 50 ms", 50},
+		{"BenchmarkBrowser/open", "open-ms", "opening 20 × 10,001 points with a network and a Monte Carlo: navigation → first painted chart", "≤ 1000 ms", 1000},
+		{"BenchmarkBrowser/open", "page-bytes", "the page's HTML with its inline SVG", "< 1 MB", 1e6},
+		{"BenchmarkBrowser/animation", "frame-p99-ms", "adding a part (24-frame step animation): frame interval p99", "≤ 16.7 ms", 16.7},
+		{"BenchmarkBrowser/animation", "longest-task-ms", "the same: longest task (the Long Tasks API reports tasks over 50 ms only; 0 = none)", "≤ 50 ms", 50},
+	} {
+		v, ok := rp.med(pkgServer, f.name, f.metric)
+		if !ok {
+			rp.missing(g, f.figure, f.target, false, f.name+" "+f.metric+" (needs Chromium)")
+			continue
+		}
+		n, _ := rp.med(pkgServer, f.name, "samples")
+		val := fmt.Sprintf("%.3g ms", v)
+		if f.metric == "page-bytes" {
+			val = fmt.Sprintf("%.1f kB", v/1000)
+		}
+		from := fmt.Sprintf("%s %s (median over runs; %.0f samples a run)", strings.TrimPrefix(f.name, "Benchmark"), f.metric, n)
+		if p50, ok := rp.med(pkgServer, f.name, "p50-ms"); ok {
+			from += fmt.Sprintf("; p50 %.3g ms", p50)
+		}
+		rp.add(row{group: g, figure: f.figure, value: val, target: f.target, verdict: atMost(v, f.bound), from: from})
+	}
 }

@@ -160,6 +160,10 @@ func TestBuildFull(t *testing.T) {
 	line("BenchmarkDrag/points=100001", "ns/op", 330e3)
 	line("BenchmarkDragViewers/viewers=0", "ns/op", 0.5e6)
 	line("BenchmarkDragViewers/viewers=20", "ns/op", 1e6)
+	line("BenchmarkBrowser/drag", "ns/op", 1.6e9, "p50-ms", 10, "p99-ms", 15, "samples", 40)
+	line("BenchmarkBrowser/viewer", "ns/op", 1.7e9, "p50-ms", 14, "p99-ms", 60, "samples", 40)
+	line("BenchmarkBrowser/open", "ns/op", 7e8, "open-ms", 512, "page-bytes", 172990, "samples", 1)
+	line("BenchmarkBrowser/animation", "ns/op", 1.2e9, "frame-p50-ms", 16.7, "frame-p99-ms", 20, "longest-task-ms", 40, "samples", 53)
 	line("BenchmarkSessionMemory", "base-rss-bytes", 20e6, "extra-rss-bytes", 6.4e6, "raw-bytes", 3.2e6, "extra-heap-bytes", 5e6)
 	in.WriteString("pkg: matchbench/chartsvg\n")
 	line("BenchmarkChartFull", "ns/op", 2e6, "svg-bytes", 151_000, "allocs/op", 108, "B/op", 3500)
@@ -172,6 +176,8 @@ func TestBuildFull(t *testing.T) {
 	line("BenchmarkExhaustive/parts=3", "ns/op", 30e6, "worst-rl-dB", 12.5)
 	line("BenchmarkBroadband/parts=2", "ns/op", 1e3)
 	line("BenchmarkSearchFieldnode4", "ns/op", 380e6, "search-ms", 380)
+	line("BenchmarkSearchSet/members=5/vs=1", "ns/op", 70e6, "one-ms", 18, "set-ms", 50, "set-ratio", 2.7)
+	line("BenchmarkSearchSet/members=5/vs-exhaustive", "ns/op", 6e9, "search-ms", 15, "exhaustive-ms", 6000, "speedup", 400)
 
 	r, err := Parse(strings.NewReader(in.String()))
 	if err != nil {
@@ -197,6 +203,14 @@ func TestBuildFull(t *testing.T) {
 		{"exhaustive ÷ search", "30.0×", pass},
 		{"same best design", "12.5 vs 12.5 dB", pass},
 		{"time on this machine", "0.38 s", pass},
+		{"drag, 4 × 10,001 points", "15 ms", pass},
+		{"a viewer following", "60 ms", miss},
+		{"opening 20 × 10,001 points", "512 ms", pass},
+		{"the page's HTML", "173.0 kB", pass},
+		{"adding a part", "20 ms", miss},
+		{"the same: longest task", "40 ms", pass},
+		{"5 members ÷ 1 member", "2.70×", pass},
+		{"across the set: exhaustive ÷ search", "400.0×", pass},
 		{"resident memory above", "2.00×", pass},
 		{"reading a 2-port file", "2.00", miss},
 		{"evaluating the 4-part ladder (rfmath.Ladder)", "1.00", pass},

@@ -17,7 +17,7 @@ const ChromiumPath = "/usr/bin/chromium"
 // Need skips the test when Chromium is missing, unless
 // MATCHBENCH_REQUIRE_BROWSER=1 (as CI sets it), when it fails instead; it
 // also skips in -short mode unless the browser is required.
-func Need(t *testing.T) {
+func Need(t testing.TB) {
 	t.Helper()
 	required := os.Getenv("MATCHBENCH_REQUIRE_BROWSER") == "1"
 	if _, err := os.Stat(ChromiumPath); err != nil {
@@ -36,7 +36,7 @@ func Need(t *testing.T) {
 // context. The browser is started here, without a timeout (a timeout on the
 // first action's context would kill the browser); callers derive per-step
 // timeouts from the returned context.
-func Start(t *testing.T) context.Context {
+func Start(t testing.TB) context.Context {
 	t.Helper()
 	opts := append(chromedp.DefaultExecAllocatorOptions[:],
 		chromedp.ExecPath(ChromiumPath),

@@ -14,10 +14,16 @@
 //   - "Wristtag": a wrist-worn asset tag with a ceramic chip antenna for the
 //     2400–2483.5 MHz band, measured on the bare board.
 //
+// Wristtag's receiver also gets a discrete low-noise amplifier, and the
+// transistor for it is characterised as a 2-port with noise parameters
+// (see [LNABand] and the model in transistor.go).
+//
 // Also measured: the Fieldnode antenna through 250 mm of thin PE-dielectric
 // coax (as it is first seen before the reference plane is moved), the same
 // cable with its far end left open (for fitting a port extension), and the
-// cable alone as a 2-port (a fixture to remove).
+// cable alone as a 2-port (a fixture to remove), and the first prototype
+// board with its matching network fitted (see firstbuild.go), for a round
+// of bench tuning.
 //
 // # The models
 //
@@ -34,6 +40,11 @@
 // at its connector. Noise is complex Gaussian on Γ with σ = 0.002 (a clean
 // analyser at moderate IF bandwidth, from memory), seeded with a fixed
 // PCG seed per file.
+//
+// The LNA transistor is a small-signal FET equivalent circuit with package
+// parasitics and Pospieszalski's two-temperature noise model, solved by
+// nodal analysis (transistor.go). Its S-parameters carry σ = 0.0005 of
+// seeded noise; its noise parameters are the model's own.
 package demo
 
 import (
@@ -159,7 +170,7 @@ func Generate() []File {
 	// time-domain transform.
 	harmonic := grid(3e6, 1500e6, 500)
 
-	fn := onePort(grid(700e6, 1100e6, 401), fieldnode.z, 1)
+	fn := onePort(AntennaGrid(), fieldnode.z, 1)
 	wt := onePort(grid(2.0e9, 3.0e9, 401), wristtag.z, 2)
 	viaCable := onePort(harmonic, func(f float64) complex128 {
 		return cableABCD(f).InputImpedance(fieldnode.z(f))
@@ -176,11 +187,12 @@ func Generate() []File {
 		copy(fixture.Matrix(k), s[:])
 	}
 
-	return []File{
+	return append([]File{
 		{"fieldnode-antenna.s1p", []string{invented, "Fieldnode trace antenna at its feed pad; bands 863-870 and 902-928 MHz."}, fn},
 		{"wristtag-antenna.s1p", []string{invented, "Wristtag chip antenna on the bare board; band 2400-2483.5 MHz."}, wt},
 		{"fieldnode-via-cable.s1p", []string{invented, "Fieldnode antenna seen through 250 mm of PE coax and its connector."}, viaCable},
 		{"cable-open-end.s1p", []string{invented, "The same 250 mm cable with its far end open, for fitting a port extension."}, open},
 		{"cable-fixture.s2p", []string{invented, "The 250 mm cable and connector as a 2-port (port 1 at the analyser), noise-free."}, fixture},
-	}
+		{"fieldnode-first-build.s1p", []string{invented, "Fieldnode first prototype board with its matching network fitted, measured at the radio's end of the network (network in fieldnode-network.json)."}, firstBuild()},
+	}, append(conditions(invented), ProductionLot()...)...)
 }

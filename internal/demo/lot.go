@@ -44,11 +44,7 @@ const (
 // board returns a matched Fieldnode board whose parts are drawn from rnd.
 func board(rnd *rand.Rand) func(float64) complex128 {
 	spread := func(v, rel float64) float64 { return v * (1 + rel*rnd.NormFloat64()) }
-	a := fieldnode
-	a.lH = spread(a.lH, 0.005)
-	a.cF = spread(a.cF, 0.005)
-	a.cPadF = spread(a.cPadF, 0.05)
-	a.rLossOhm = spread(a.rLossOhm, 0.10)
+	a := antennaBoard(rnd)
 	ls := spread(lotSeriesLH, 0.010)
 	cs := spread(lotShuntCF, 0.015)
 	return func(fHz float64) complex128 {

@@ -208,7 +208,7 @@ func fixtureAt(x *[4]complex128, fx Fixture, fHz, z0 float64) error {
 func polarInterp(a, b complex128, t float64) complex128 {
 	ma, mb := cmplx.Abs(a), cmplx.Abs(b)
 	if ma == 0 || mb == 0 {
-		return a + complex(t, 0)*(b-a)
+		return rfmath.Lerp(a, b, t)
 	}
 	pa := cmplx.Phase(a)
 	d := cmplx.Phase(b) - pa

@@ -2,8 +2,10 @@
 // single-stub tuner that matches a load at one frequency, a search over
 // standard part values for the ladder that holds the best return loss across
 // one or more bands, the yield of a design under part tolerances, the
-// Bode–Fano and Chu limits that no network can beat, and the voltages and
-// currents the parts must carry.
+// Bode–Fano and Chu limits that no network can beat, the voltages and
+// currents the parts must carry, and the source and load networks of a
+// transistor stage ([SearchStage], with the stage's figures from package
+// amp).
 //
 // # Conventions
 //

@@ -35,3 +35,18 @@ const (
 	badLength = "match: destination length mismatch"
 	badKind   = "match: unknown part kind"
 )
+
+// Errors of the board, the fit of a board as built and the next swap.
+var (
+	// ErrLayout reports a layout that does not fit its network: a trace in
+	// a gap the network does not have, or a size or figure out of range.
+	ErrLayout = errors.New("match: bad board layout")
+
+	// ErrBuilt reports a sweep of the board as built that cannot be fitted:
+	// too few points in common with the load sweep, or a network with
+	// nothing to fit.
+	ErrBuilt = errors.New("match: cannot fit the board as built")
+
+	// ErrNetworkFile reports a network file that cannot be read.
+	ErrNetworkFile = errors.New("match: bad network file")
+)

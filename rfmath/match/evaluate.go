@@ -81,6 +81,7 @@ type points struct {
 	gamma    []complex128
 	minRLdB  []float64
 	minPower []float64
+	member   []int // the member of a set each point belongs to (search only)
 }
 
 // bandPoints returns the points at which the bands are judged on the load.

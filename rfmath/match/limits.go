@@ -1,6 +1,7 @@
 package match
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -99,6 +100,21 @@ type Fit struct {
 	// those points: how well the model describes the load (0.01 is close).
 	RMSGammaError float64
 }
+
+// FitTrustRMSGamma is the largest RMS error in Γ at which a fitted RLC is
+// trusted to stand for the load in [BodeFano]. Beyond it the model misses
+// the measured reflection by more than the return-loss figures it is meant
+// to bound can bear: at |Γ| = 0.32 (10 dB of return loss) an error of 0.05
+// in Γ spans 8.8 to 11.5 dB, and a model that far off has another Q than
+// the load. This is matchbench's own threshold (not a standard), chosen so
+// that a single resonance fitted across its own band passes (the RLC of
+// REFERENCE-CHECKS §9 R-1 fits to rounding) while a load with two
+// resonances near the bands, or a wide span of a cable's ripple, fails.
+const FitTrustRMSGamma = 0.05
+
+// Trusted reports whether the fit is close enough to the load for a limit
+// drawn from it to be trusted: RMSGammaError ≤ [FitTrustRMSGamma].
+func (f Fit) Trusted() bool { return f.RMSGammaError <= FitTrustRMSGamma }
 
 // FitRLC fits a series and a parallel RLC to the load between loHz and
 // hiHz and returns the one whose reflection is closer to the measured
@@ -392,13 +408,20 @@ type Chu struct {
 	// Ratio is Measured.Q/ChuQ: at least 1 for a lossless antenna in the
 	// sphere. Below 1 means loss (or a larger antenna than stated).
 	Ratio float64
+	// SlopeQ reports that Measured.Q comes from the slope of the impedance
+	// at the resonance ([rfmath.ResonanceSlopeQ]) because a half-power edge
+	// lies beyond the sweep; Measured.LoHz and HiHz are then zero.
+	SlopeQ bool
 }
 
 // ChuCompare finds the resonance of the load nearest fHz (a zero crossing
 // of the reactance, [rfmath.ReactanceZeroCrossings], measured with
 // [rfmath.ResonanceQ]) and compares its Q with [ChuQ] for a sphere of
-// radius radiusM at the resonance. It returns an error if the sweep has no
-// resonance, or its half-power edges lie outside the sweep.
+// radius radiusM at the resonance. When a half-power edge lies beyond the
+// sweep, or the resistance grows as fast as the reactance so that |X| never
+// reaches R (a low-Q antenna), the Q is taken from the slope of the
+// impedance instead and SlopeQ is set. It returns an error if the sweep has
+// no resonance, or no Q can be measured at it.
 func ChuCompare(l Load, fHz, radiusM float64) (Chu, error) {
 	if err := l.validate(); err != nil {
 		return Chu{}, err
@@ -418,11 +441,20 @@ func ChuCompare(l Load, fHz, radiusM float64) (Chu, error) {
 		}
 	}
 	r, err := rfmath.ResonanceQ(l.FreqHz, z, best)
+	slope := false
+	if errors.Is(err, rfmath.ErrNoEdge) {
+		q := rfmath.ResonanceSlopeQ(l.FreqHz, z, best)
+		if math.IsNaN(q) {
+			return Chu{}, fmt.Errorf("%w, and the resistance at the resonance is not positive, so its Q cannot be measured", err)
+		}
+		r = rfmath.Resonance{FreqHz: best.FreqHz, Series: best.Rising, ROhm: r.ROhm, Q: q}
+		slope, err = true, nil
+	}
 	if err != nil {
 		return Chu{}, err
 	}
 	ka := KA(radiusM, r.FreqHz)
-	c := Chu{KA: ka, ChuQ: ChuQ(ka), Measured: r}
+	c := Chu{KA: ka, ChuQ: ChuQ(ka), Measured: r, SlopeQ: slope}
 	c.Ratio = r.Q / c.ChuQ
 	return c, nil
 }

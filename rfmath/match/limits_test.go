@@ -219,4 +219,43 @@ func TestChu(t *testing.T) {
 	if _, err := ChuCompare(loadOf(grid(1e9, 2e9, 11), 50, func(float64) complex128 { return 30 + 5i }), 1.5e9, 0.01); err == nil {
 		t.Errorf("no resonance accepted")
 	}
+	if c.SlopeQ {
+		t.Errorf("the half-power edges lie inside the sweep, yet the slope Q was used")
+	}
+
+	// The same RLC swept only 150–170 MHz: the half-power edges (155.2258
+	// and 163.1835 MHz, R-1) lie inside, but cut it to 157–170 MHz and the
+	// lower one is beyond it; the slope Q is then ω0·L/R = 20 too.
+	cut := loadOf(grid(157e6, 170e6, 261), 50, m.Z)
+	c, err = ChuCompare(cut, 160e6, a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !c.SlopeQ || math.Abs(c.Measured.Q-20) > 0.01 || c.Measured.LoHz != 0 {
+		t.Errorf("Chu compare with an edge beyond the sweep: %+v", c)
+	}
+}
+
+// TestFitTrusted checks the threshold of a trusted RLC fit: the R-1 RLC
+// fits itself (error ≈ 0), while the same RLC in series with a parallel
+// tank (50 Ω, resonant at 165 MHz, Q 20) has two resonances in the band,
+// which no single RLC describes (the best one misses by about 0.26 in Γ).
+func TestFitTrusted(t *testing.T) {
+	t.Parallel()
+	m := RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}
+	l := loadOf(grid(150e6, 170e6, 81), 50, m.Z)
+	fit, err := FitRLC(l, 150e6, 170e6)
+	if err != nil || !fit.Trusted() || fit.RMSGammaError > 1e-9 {
+		t.Fatalf("fit of the RLC itself: %+v, %v", fit, err)
+	}
+	tank := RLC{ROhm: 50, LH: 50 / (20 * 2 * math.Pi * 165e6), Parallel: true}
+	tank.CF = 1 / (math.Pow(2*math.Pi*165e6, 2) * tank.LH)
+	two := loadOf(grid(150e6, 170e6, 81), 50, func(f float64) complex128 { return m.Z(f) + tank.Z(f) })
+	fit, err = FitRLC(two, 150e6, 170e6)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fit.Trusted() || fit.RMSGammaError <= FitTrustRMSGamma {
+		t.Errorf("two resonances fitted by one RLC with error %.3g: trusted %v", fit.RMSGammaError, fit.Trusted())
+	}
 }

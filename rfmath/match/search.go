@@ -6,20 +6,14 @@ import (
 	"math"
 	"sort"
 
-	"gonum.org/v1/gonum/optimize"
-
-	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 )
-
-// realDot returns Re(a·b*).
-func realDot(a, b complex128) float64 { return real(a)*real(b) + imag(a)*imag(b) }
 
 // Settings tune [Search] and [Exhaustive]. A nil *Settings, and every zero
 // field, means the default.
 type Settings struct {
 	// LSeries and CSeries name the E-series of the inductors and the
-	// capacitors ("E6" … "E96"); "" means "E24".
+	// capacitors ("E6" … "E192"); "" means "E24".
 	LSeries, CSeries string
 
 	// Model makes the part of each value; nil means ideal parts.
@@ -102,10 +96,18 @@ func ParseObjective(s string) (Objective, error) {
 	return 0, fmt.Errorf("match: objective %q: want power or rl", s)
 }
 
-// Design is a network found by [Search], with how it does.
+// Design is a network found by [Search], with how it does: Metrics is the
+// worst case over the binding members of the set (the load itself for
+// Search), Members each member's own metrics, and WorstMember and WorstBand
+// where its least margin falls.
 type Design struct {
 	Network Network
 	Metrics
+	Members                []Metrics
+	WorstMember, WorstBand int
+	// MeanPowerToLoad is the weighted mean power to the load over the
+	// binding members (see [SetMetrics]).
+	MeanPowerToLoad float64
 }
 
 // Result is what [Search] and [Exhaustive] return.
@@ -222,8 +224,21 @@ func (s *Settings) defaults() Settings {
 // The search stops and returns ctx.Err() when ctx is done. Other errors
 // are about the load, the bands or the settings.
 func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	return SearchSet(ctx, []Member{{Load: l}}, bands, s)
+}
+
+// SearchSet is [Search] across a set of loads: the key of a network is its
+// worst over every point of every band on every binding member (each on its
+// own measured points), so the best design meets every requirement in every
+// condition (or on every board) first and then delivers the most power to
+// the load in the worst of them. Every cut of Search bounds the worst case
+// over the points, so it holds for the worst over the members as well: with
+// the whole ranges searched the result is exact ([Result.Exact]) and equals
+// [ExhaustiveSet]. With one member it is Search. Each design carries every
+// member's metrics and where its least margin falls.
+func SearchSet(ctx context.Context, members []Member, bands []Band, s *Settings) (*Result, error) {
 	set := s.defaults()
-	e, err := newEngine(l, bands, &set)
+	e, err := newEngine(members, bands, &set)
 	if err != nil {
 		return nil, err
 	}
@@ -235,8 +250,14 @@ func Search(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, er
 // band point, and keeps the best of each shape by the same key. Settings.Window, Budget
 // and Progress are ignored. It is slow by design.
 func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result, error) {
+	return ExhaustiveSet(ctx, []Member{{Load: l}}, bands, s)
+}
+
+// ExhaustiveSet is [Exhaustive] across a set of loads, the plain search
+// [SearchSet] is checked against.
+func ExhaustiveSet(ctx context.Context, members []Member, bands []Band, s *Settings) (*Result, error) {
 	set := s.defaults()
-	e, err := newEngine(l, bands, &set)
+	e, err := newEngine(members, bands, &set)
 	if err != nil {
 		return nil, err
 	}
@@ -287,363 +308,6 @@ func Exhaustive(ctx context.Context, l Load, bands []Band, s *Settings) (*Result
 	return e.result(res, tops, best, &set)
 }
 
-// score is a whole network's worst figures over the band points so far:
-// q the worst of wt·|Γ|² and MinPowerToLoad/G_T, g the least G_T.
-type score struct {
-	q, g float64
-	n    int
-}
-
-// addPoint adds point k, where the walk from the load ended at (v, i), to
-// sc. Exhaustive and the walker's survivors share it, so their keys are
-// the same bits.
-func (e *engine) addPoint(sc *score, k int, v, i complex128) {
-	d, s := v-i, v+i
-	dn := real(d)*real(d) + imag(d)*imag(d)
-	sn := real(s)*real(s) + imag(s)*imag(s)
-	q := dn * e.wt[k] / sn
-	if pm := e.pmin[k]; pm > 0 {
-		if e.acc[k] > 0 {
-			q = math.Max(q, pm*sn/(4*e.acc[k]))
-		} else {
-			q = math.Inf(1)
-		}
-	}
-	sc.add(q, 4*e.acc[k]/sn)
-}
-
-// add adds a point's power ratio q and G_T g to sc.
-func (sc *score) add(q, g float64) {
-	if math.IsNaN(q) {
-		q = math.Inf(1)
-	}
-	if math.IsNaN(g) {
-		g = math.Inf(-1)
-	}
-	if sc.n == 0 {
-		sc.q, sc.g = q, g
-	} else {
-		sc.q, sc.g = math.Max(sc.q, q), math.Min(sc.g, g)
-	}
-	sc.n++
-}
-
-// key returns the objective's key of a whole network's score: least best.
-func (e *engine) key(sc score) float64 {
-	if e.obj == PowerToLoad && sc.q <= 1 {
-		return -sc.g
-	}
-	return sc.q
-}
-
-// feasibleMode reports whether a key threshold thr asks a network to meet
-// every requirement (and then to beat a G_T of −thr).
-func (e *engine) feasibleMode(thr float64) bool {
-	return e.obj == PowerToLoad && thr <= 1
-}
-
-// fails reports whether a whole network whose walk ends at (v, i) at
-// point k provably has a key of at least thr (see [Search]).
-func (e *engine) fails(k int, v, i complex128, thr float64) bool {
-	d, s := v-i, v+i
-	dn := real(d)*real(d) + imag(d)*imag(d)
-	sn := real(s)*real(s) + imag(s)*imag(s)
-	pm, acc4 := e.pmin[k], 4*e.acc[k]
-	if e.feasibleMode(thr) {
-		return dn*e.wt[k] > sn || (pm > 0 && pm*sn > acc4) || acc4 <= -thr*sn || !(sn > 0)
-	}
-	return dn*e.wt[k] >= thr*sn || (pm > 0 && pm*sn >= thr*acc4)
-}
-
-// gammaCap returns the bound on |Γ|² at point k that a network must stay
-// below to beat thr, and whether the bound itself is allowed (≤ rather
-// than <).
-func (e *engine) gammaCap(k int, thr float64) (c float64, allowed bool) {
-	if e.feasibleMode(thr) {
-		return math.Min(1/e.wt[k], 1+thr), true
-	}
-	return thr / e.wt[k], false
-}
-
-// powerFloor returns the least G_T at point k a network must exceed (or
-// reach) to beat thr; 0 when the power does not bound it.
-func (e *engine) powerFloor(k int, thr float64) float64 {
-	if e.feasibleMode(thr) {
-		return math.Max(e.pmin[k], -thr)
-	}
-	return e.pmin[k] / thr
-}
-
-// kinds of part value tables
-const (
-	tabL = 0
-	tabC = 1
-)
-
-func kindTab(k Kind) int {
-	if k.Component() == rfmath.ComponentL {
-		return tabL
-	}
-	return tabC
-}
-
-// engine holds the data of one search: the band points and the tables of
-// part impedances at them.
-type engine struct {
-	l      Load
-	bands  []Band
-	pts    points
-	K      int
-	v0, i0 []complex128 // at the load: 1 + Γ, 1 − Γ
-	wt     []float64    // per point: 10^(requirement/10), so wt·|Γ|² ≤ 1 meets it
-	pmin   []float64    // per point: the least share of the power at the load asked
-	acc    []float64    // per point: Re(v0·i0*) = 1 − |Γ|², the load's power in the walk's units (at least 0)
-	obj    Objective
-	ser    [2]*parts.Series
-	first  [2]int // series index of table row 0
-	count  [2]int
-	z, y   [2][]complex128 // [kind][row·K + k]: Z/Z0 and Z0/Z of the part
-	zs, ys [2]sorted       // the rows of z and y sorted by imaginary part, per point
-	lim    [2][2]float64   // value ranges asked for
-	ord    []int           // order in which points are tried
-}
-
-// ranger is a model that knows what values are sold.
-type ranger interface {
-	Range(k parts.Kind) (lo, hi float64)
-}
-
-func newEngine(l Load, bands []Band, set *Settings) (*engine, error) {
-	pts, err := bandPoints(l, bands)
-	if err != nil {
-		return nil, err
-	}
-	if set.MinParts < 1 || set.MaxParts > 4 || set.MinParts > set.MaxParts {
-		return nil, fmt.Errorf("match: parts %d to %d; want 1 ≤ min ≤ max ≤ 4", set.MinParts, set.MaxParts)
-	}
-	if set.Top < 1 {
-		return nil, fmt.Errorf("match: top %d; want at least 1", set.Top)
-	}
-	e := &engine{l: l, bands: bands, pts: pts, K: len(pts.freqHz), obj: set.Objective}
-	for j, name := range []string{set.LSeries, set.CSeries} {
-		if e.ser[j], err = parts.Lookup(name); err != nil {
-			return nil, err
-		}
-	}
-	e.v0 = make([]complex128, e.K)
-	e.i0 = make([]complex128, e.K)
-	e.wt = make([]float64, e.K)
-	e.pmin = make([]float64, e.K)
-	e.acc = make([]float64, e.K)
-	for k, g := range pts.gamma {
-		e.v0[k], e.i0[k] = 1+g, 1-g
-		e.wt[k] = math.Pow(10, pts.minRLdB[k]/10)
-		e.pmin[k] = pts.minPower[k]
-		// A point where noise makes the load look active takes no power.
-		e.acc[k] = math.Max(realDot(e.v0[k], e.i0[k]), 0)
-	}
-
-	// Value ranges.
-	z0 := l.Z0Ohm
-	fLo, fHi := pts.freqHz[0], pts.freqHz[e.K-1]
-	wLo, wHi := 2*math.Pi*fLo, 2*math.Pi*fHi
-	def := [2][2]float64{
-		{z0 / 25 / wHi, 25 * z0 / wLo},         // L: ωL within [Z0/25, 25·Z0]
-		{1 / (25 * z0 * wHi), 25 / (z0 * wLo)}, // C: 1/(ωC) likewise
-	}
-	if r, ok := set.Model.(ranger); ok {
-		for j, pk := range []parts.Kind{parts.KindL, parts.KindC} {
-			lo, hi := r.Range(pk)
-			def[j][0] = math.Max(def[j][0], lo)
-			def[j][1] = math.Min(def[j][1], hi)
-		}
-	}
-	asked := [2][2]float64{set.LRange, set.CRange}
-	for j := range 2 {
-		lim := def[j]
-		for b := range 2 {
-			if asked[j][b] > 0 {
-				lim[b] = asked[j][b]
-			}
-		}
-		if !(lim[0] > 0 && lim[1] >= lim[0]) || math.IsInf(lim[1], 0) {
-			return nil, fmt.Errorf("%w: %s %g to %g", ErrRange, []string{"inductors", "capacitors"}[j], lim[0], lim[1])
-		}
-		e.lim[j] = lim
-		first, last := e.ser[j].Span(lim[0], lim[1])
-		if last < first {
-			return nil, fmt.Errorf("%w: no %s value of %s between %g and %g", ErrRange, e.ser[j], []string{"inductance", "capacitance"}[j], lim[0], lim[1])
-		}
-		e.first[j], e.count[j] = first, last-first+1
-	}
-
-	// Tables of part impedances, by the compiled forms of rfmath.Circuit.
-	for j, pk := range []Kind{SeriesL, SeriesC} {
-		n := e.count[j]
-		e.z[j] = make([]complex128, n*e.K)
-		e.y[j] = make([]complex128, n*e.K)
-		for r := range n {
-			c := (Part{Kind: pk, Model: set.Model}).Component(e.ser[j].Value(e.first[j] + r))
-			pair := rfmath.Ladder{rfmath.Series{Part: c}, rfmath.Shunt{Part: c}}.Circuit()
-			for k, f := range pts.freqHz {
-				e.z[j][r*e.K+k], _, _ = pair.Step(0, f, z0)
-				e.y[j][r*e.K+k], _, _ = pair.Step(1, f, z0)
-			}
-		}
-	}
-	for j := range 2 {
-		e.zs[j] = sortRows(e.z[j], e.count[j], e.K)
-		e.ys[j] = sortRows(e.y[j], e.count[j], e.K)
-	}
-	e.ord = initialOrder(pts, bands)
-	return e, nil
-}
-
-// sorted holds, for each point k, the rows of a table in increasing order
-// of their imaginary part at k (perm[k·n + r]) with those parts (im), and
-// the least and greatest real part over the rows (rmin[k], rmax[k]).
-type sorted struct {
-	n          int
-	perm       []int32
-	im         []float64
-	rmin, rmax []float64
-}
-
-// sortRows returns the sorted view of the table t of n rows.
-func sortRows(t []complex128, n, K int) sorted {
-	s := sorted{n: n, perm: make([]int32, n*K), im: make([]float64, n*K), rmin: make([]float64, K), rmax: make([]float64, K)}
-	for k := range K {
-		p := s.perm[k*n : (k+1)*n]
-		if k == 0 {
-			for r := range p {
-				p[r] = int32(r)
-			}
-		} else {
-			// Neighbouring points order the rows alike: start from the
-			// last order, and insertion sort has little to do.
-			copy(p, s.perm[(k-1)*n:k*n])
-		}
-		for a := 1; a < n; a++ {
-			x := p[a]
-			xi := imag(t[int(x)*K+k])
-			b := a
-			for b > 0 && imag(t[int(p[b-1])*K+k]) > xi {
-				p[b] = p[b-1]
-				b--
-			}
-			p[b] = x
-		}
-		s.rmin[k], s.rmax[k] = math.Inf(1), math.Inf(-1)
-		for r, j := range p {
-			x := t[int(j)*K+k]
-			s.im[k*n+r] = imag(x)
-			s.rmin[k] = math.Min(s.rmin[k], real(x))
-			s.rmax[k] = math.Max(s.rmax[k], real(x))
-		}
-	}
-	return s
-}
-
-// initialOrder lists the points with each band's edges first (where a
-// match is usually worst), then the rest spread out.
-func initialOrder(p points, bands []Band) []int {
-	K := len(p.freqHz)
-	ord := make([]int, 0, K)
-	seen := make([]bool, K)
-	add := func(k int) {
-		if !seen[k] {
-			seen[k] = true
-			ord = append(ord, k)
-		}
-	}
-	for _, b := range bands {
-		for k, f := range p.freqHz {
-			if f == b.LoHz || f == b.HiHz {
-				add(k)
-			}
-		}
-	}
-	// Bit-reversal-like spread: halves, quarters, eighths …
-	for step := K; step >= 1; step /= 2 {
-		for k := step / 2; k < K; k += max(step, 1) {
-			add(k)
-		}
-		if step == 1 {
-			break
-		}
-	}
-	for k := range K {
-		add(k)
-	}
-	return ord
-}
-
-// tables returns, for each part of the shape, the table the walk reads:
-// Z/Z0 for a series part, Z0/Z for a shunt part.
-func (e *engine) tables(top []Kind) [][]complex128 {
-	t := make([][]complex128, len(top))
-	for p, k := range top {
-		if k.Shunt() {
-			t[p] = e.y[kindTab(k)]
-		} else {
-			t[p] = e.z[kindTab(k)]
-		}
-	}
-	return t
-}
-
-// sortedTables returns, for each part of the shape, the sorted view of its
-// table.
-func (e *engine) sortedTables(top []Kind) []*sorted {
-	m := make([]*sorted, len(top))
-	for p, k := range top {
-		if k.Shunt() {
-			m[p] = &e.ys[kindTab(k)]
-		} else {
-			m[p] = &e.zs[kindTab(k)]
-		}
-	}
-	return m
-}
-
-func (e *engine) counts(top []Kind) []int {
-	c := make([]int, len(top))
-	for p, k := range top {
-		c[p] = e.count[kindTab(k)]
-	}
-	return c
-}
-
-// topologies returns every ladder shape of min to max parts: series and
-// shunt alternate, starting with either at the load, each part an L or a C;
-// fewer parts first.
-func topologies(lo, hi int) [][]Kind {
-	var out [][]Kind
-	for n := lo; n <= hi; n++ {
-		for _, shuntFirst := range []bool{true, false} {
-			for m := 0; m < 1<<n; m++ {
-				top := make([]Kind, n)
-				for p := range n {
-					shunt := (p%2 == 0) == shuntFirst
-					isC := m>>(n-1-p)&1 == 1
-					switch {
-					case shunt && isC:
-						top[p] = ShuntC
-					case shunt:
-						top[p] = ShuntL
-					case isC:
-						top[p] = SeriesC
-					default:
-						top[p] = SeriesL
-					}
-				}
-				out = append(out, top)
-			}
-		}
-	}
-	return out
-}
-
 // candidate is a network as table rows per part, with its worst weighted
 // |Γ|² over the band points.
 type candidate struct {
@@ -681,23 +345,18 @@ type centre struct {
 // searched when a number of parts is over budget.
 const defaultWindow = 6
 
-// progressPerShape is the number of progress units of one shape.
-const progressPerShape = 1000
-
 // search runs both phases of Search, for shapes of fewer parts first.
 func (e *engine) search(ctx context.Context, set *Settings) (*Result, error) {
 	tops := topologies(set.MinParts, set.MaxParts)
 	res := &Result{Topologies: len(tops)}
-	walkers := make([]*walker, len(tops))
-	best := make([]candidate, len(tops))
-	for t := range best {
-		best[t].ratio = math.Inf(1)
+	s := shapeSearch{set: set, tops: tops, walkers: make([]*walker, len(tops)), best: make([]candidate, len(tops)), index: map[string]int{}}
+	for t := range s.best {
+		s.best[t].ratio = math.Inf(1)
 	}
-	index := map[string]int{}
 	var space float64
 	for t, top := range tops {
-		walkers[t] = newWalker(e, top)
-		index[fmt.Sprint(top)] = t
+		s.walkers[t] = newWalker(e, top)
+		s.index[fmt.Sprint(top)] = t
 		c := 1.0
 		for _, n := range e.counts(top) {
 			c *= float64(n)
@@ -710,105 +369,158 @@ func (e *engine) search(ctx context.Context, set *Settings) (*Result, error) {
 	prog.report()
 
 	for n := set.MinParts; n <= set.MaxParts; n++ {
-		// The mode, chosen per number of parts.
-		win := set.Window
-		if win == 0 {
-			sz := 0.0
-			for _, top := range tops {
-				if len(top) == n {
-					c := 1.0
-					for _, m := range e.counts(top) {
-						c *= float64(m)
-					}
-					sz += c
-				}
-			}
-			if sz <= set.Budget {
-				win = -1
-			} else {
-				win = defaultWindow
-			}
-		}
+		win := e.window(tops, n, set)
 		if win >= 0 {
 			res.Exact, res.Window = false, win
 		}
-		var size []int
 		centres := map[int][]centre{}
-		// Phase 1: continuous optima, and the best networks of one part
-		// fewer with a part added at either end; first incumbents.
-		for t, top := range tops {
-			if len(top) != n {
-				continue
-			}
-			if err := ctx.Err(); err != nil {
-				return nil, err
-			}
-			size = append(size, t)
-			for _, c := range e.continuous(top, set.Model) {
-				centres[t] = append(centres[t], centre{idx: c})
-			}
-			if n > 1 {
-				for _, at := range []int{0, n - 1} {
-					sub := append(append([]Kind(nil), top[:at]...), top[at+1:]...)
-					u, ok := index[fmt.Sprint(sub)]
-					if !ok || best[u].idx == nil {
-						continue
-					}
-					c := centre{idx: make([]int, n), full: make([]bool, n)}
-					copy(c.idx[:at], best[u].idx[:at])
-					copy(c.idx[at+1:], best[u].idx[at:])
-					c.full[at] = true
-					centres[t] = append(centres[t], c)
-				}
-			}
-			w := walkers[t]
-			w.thr, w.best = math.Inf(1), math.Inf(1)
-			for _, c := range centres[t] {
-				w.setBox(boxAround(c.idx, c.full, 2))
-				if err := w.run(ctx, nil); err != nil {
-					return nil, err
-				}
-			}
-			best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+		size, err := e.incumbents(ctx, &s, n, centres)
+		if err != nil {
+			return nil, err
 		}
-
-		// Phase 2: exact enumeration, the most promising shapes first.
-		sort.SliceStable(size, func(a, b int) bool { return best[size[a]].ratio < best[size[b]].ratio })
-		for _, t := range size {
-			w := walkers[t]
-			w.best = best[t].ratio
-			w.bestIdx = append(w.bestIdx[:0], best[t].idx...)
-			w.thr = math.Min(w.best, topExcluding(best, t, set.Top))
-			var boxes []box
-			if win < 0 {
-				boxes = []box{boxAround(make([]int, n), nil, -1)}
-			} else {
-				for _, c := range centres[t] {
-					boxes = append(boxes, boxAround(c.idx, c.full, win))
-				}
-			}
-			units := 0
-			for _, b := range boxes {
-				w.setBox(b)
-				units += w.units()
-			}
-			prog.startShape(units)
-			for _, b := range boxes {
-				w.setBox(b)
-				if err := w.run(ctx, prog); err != nil {
-					return nil, err
-				}
-			}
-			prog.endShape()
-			if w.best < best[t].ratio {
-				best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
-			}
-			res.Checked += w.checked
+		checked, err := e.enumerate(ctx, &s, n, win, size, centres, prog)
+		if err != nil {
+			return nil, err
 		}
+		res.Checked += checked
 	}
 	prog.done = prog.total
 	prog.report()
-	return e.result(res, tops, best, set)
+	return e.result(res, tops, s.best, set)
+}
+
+// shapeSearch is the state of one [engine.search] across its shapes: the
+// settings, the shapes and a walker of each, the best candidate of each so
+// far and each shape's index by its name. It lives on the search's stack:
+// the engine, the result and the progress are held apart and passed where
+// they are needed, so that what they share with the heap does not move it
+// there.
+type shapeSearch struct {
+	set     *Settings
+	tops    [][]Kind
+	walkers []*walker
+	best    []candidate
+	index   map[string]int
+}
+
+// window returns the mode of the shapes of n parts: set.Window when given,
+// else the whole ranges (−1) when their combinations fit set.Budget and
+// windows of defaultWindow steps when they do not.
+func (e *engine) window(tops [][]Kind, n int, set *Settings) int {
+	if set.Window != 0 {
+		return set.Window
+	}
+	sz := 0.0
+	for _, top := range tops {
+		if len(top) == n {
+			c := 1.0
+			for _, m := range e.counts(top) {
+				c *= float64(m)
+			}
+			sz += c
+		}
+	}
+	if sz <= set.Budget {
+		return -1
+	}
+	return defaultWindow
+}
+
+// incumbents runs phase 1 of Search on the shapes of n parts: it returns
+// those shapes, puts the centres of each in centres ([engine.centres]),
+// and sets each shape's best candidate to the best within ±2 steps of its
+// centres.
+func (e *engine) incumbents(ctx context.Context, s *shapeSearch, n int, centres map[int][]centre) ([]int, error) {
+	var size []int
+	for t, top := range s.tops {
+		if len(top) != n {
+			continue
+		}
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		size = append(size, t)
+		centres[t] = e.centres(s, top)
+		w := s.walkers[t]
+		w.thr, w.best = math.Inf(1), math.Inf(1)
+		for _, c := range centres[t] {
+			w.setBox(boxAround(c.idx, c.full, 2))
+			if err := w.run(ctx, nil); err != nil {
+				return nil, err
+			}
+		}
+		s.best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+	}
+	return size, nil
+}
+
+// centres returns the points of shape top to search around: its rounded
+// continuous optima, and the best networks of one part fewer with a part
+// added at either end (that part over its whole range).
+func (e *engine) centres(s *shapeSearch, top []Kind) []centre {
+	n := len(top)
+	var out []centre
+	for _, c := range e.continuous(top, s.set.Model) {
+		out = append(out, centre{idx: c})
+	}
+	if n > 1 {
+		for _, at := range []int{0, n - 1} {
+			sub := append(append([]Kind(nil), top[:at]...), top[at+1:]...)
+			u, ok := s.index[fmt.Sprint(sub)]
+			if !ok || s.best[u].idx == nil {
+				continue
+			}
+			c := centre{idx: make([]int, n), full: make([]bool, n)}
+			copy(c.idx[:at], s.best[u].idx[:at])
+			copy(c.idx[at+1:], s.best[u].idx[at:])
+			c.full[at] = true
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// enumerate runs phase 2 of Search on the shapes size of n parts, the
+// most promising first: each shape's whole ranges (win < 0) or the
+// windows of win steps around its centres, against its incumbent and the
+// other shapes' best, reporting to prog. It returns the count of networks
+// checked.
+func (e *engine) enumerate(ctx context.Context, s *shapeSearch, n, win int, size []int, centres map[int][]centre, prog *progress) (int64, error) {
+	var checked int64
+	best := s.best
+	sort.SliceStable(size, func(a, b int) bool { return best[size[a]].ratio < best[size[b]].ratio })
+	for _, t := range size {
+		w := s.walkers[t]
+		w.best = best[t].ratio
+		w.bestIdx = append(w.bestIdx[:0], best[t].idx...)
+		w.thr = math.Min(w.best, topExcluding(best, t, s.set.Top))
+		var boxes []box
+		if win < 0 {
+			boxes = []box{boxAround(make([]int, n), nil, -1)}
+		} else {
+			for _, c := range centres[t] {
+				boxes = append(boxes, boxAround(c.idx, c.full, win))
+			}
+		}
+		units := 0
+		for _, b := range boxes {
+			w.setBox(b)
+			units += w.units()
+		}
+		prog.startShape(units)
+		for _, b := range boxes {
+			w.setBox(b)
+			if err := w.run(ctx, prog); err != nil {
+				return 0, err
+			}
+		}
+		prog.endShape()
+		if w.best < best[t].ratio {
+			best[t] = candidate{ratio: w.best, idx: append([]int(nil), w.bestIdx...)}
+		}
+		checked += w.checked
+	}
+	return checked, nil
 }
 
 // topExcluding returns the top-th smallest ratio among the shapes other
@@ -851,11 +563,12 @@ func (e *engine) result(res *Result, tops [][]Kind, best []candidate, set *Setti
 	res.Objective = set.Objective
 	for _, t := range order {
 		n := e.network(tops[t], best[t].idx, set.Model)
-		m, err := Evaluate(e.l, e.bands, n)
+		c, err := n.Circuit()
 		if err != nil {
 			return nil, err
 		}
-		res.Designs = append(res.Designs, Design{Network: n, Metrics: m})
+		m := e.sj.metrics(c)
+		res.Designs = append(res.Designs, Design{Network: n, Metrics: m.Metrics, Members: m.Members, WorstMember: m.WorstMember, WorstBand: m.WorstBand, MeanPowerToLoad: m.MeanPowerToLoad})
 	}
 	return res, nil
 }
@@ -869,196 +582,4 @@ func (e *engine) network(top []Kind, idx []int, m parts.Model) Network {
 		n[p] = Part{Kind: k, Value: e.ser[j].Value(e.first[j] + idx[p]), Series: e.ser[j].Name(), Model: m}
 	}
 	return n
-}
-
-// progress throttles the Progress callback. Each shape is worth
-// progressPerShape units, shared out over the shape's own units of work.
-type progress struct {
-	fn                 func(done, total int)
-	done, total, shown int
-	base, units, count int
-}
-
-func (p *progress) startShape(units int) {
-	p.base, p.units, p.count = p.done, max(units, 1), 0
-}
-
-func (p *progress) endShape() {
-	p.done = p.base + progressPerShape
-	p.report()
-}
-
-func (p *progress) add(n int) {
-	p.count += n
-	p.done = p.base + progressPerShape*min(p.count, p.units)/p.units
-	if p.fn != nil && p.done-p.shown >= max(1, p.total/256) {
-		p.report()
-	}
-}
-
-func (p *progress) report() {
-	if p.fn != nil {
-		p.shown = p.done
-		p.fn(p.done, p.total)
-	}
-}
-
-// continuous returns the table rows of the rounded continuous optima of
-// shape top (phase 1 of Search), without duplicates.
-func (e *engine) continuous(top []Kind, model parts.Model) [][]int {
-	n := len(top)
-	sub := e.subsample(24)
-	lo := make([]float64, n)
-	hi := make([]float64, n)
-	for p, k := range top {
-		j := kindTab(k)
-		lo[p] = math.Log(e.ser[j].Value(e.first[j]))
-		hi[p] = math.Log(e.ser[j].Value(e.first[j] + e.count[j] - 1))
-	}
-	net := e.network(top, make([]int, n), model)
-	obj := func(x []float64) float64 {
-		pen := 0.0
-		for p := range n {
-			v := math.Min(math.Max(x[p], lo[p]), hi[p])
-			pen += (x[p] - v) * (x[p] - v)
-			net[p].Value = math.Exp(v)
-		}
-		c, err := net.Circuit()
-		if err != nil {
-			return math.Inf(1)
-		}
-		var sc score
-		for _, k := range sub {
-			g, gt := c.PowerAt(e.pts.freqHz[k], e.pts.gamma[k], e.l.Z0Ohm)
-			q := (real(g)*real(g) + imag(g)*imag(g)) * e.wt[k]
-			if pm := e.pmin[k]; pm > 0 {
-				q = math.Max(q, pm/math.Max(gt, 1e-300))
-			}
-			sc.add(q, gt)
-		}
-		key := e.key(sc)
-		if key > 1 || e.obj == ReturnLoss {
-			key = math.Log(key + 1e-300) // infeasible: log of the worst ratio, above 0
-		}
-		return key + 10*pen
-	}
-	var out [][]int
-	seen := map[string]bool{}
-	for _, x0 := range e.starts(top, lo, hi) {
-		// An error (such as the limit on evaluations) still leaves the best
-		// point found in r.
-		r, _ := optimize.Minimize(optimize.Problem{Func: obj}, x0,
-			&optimize.Settings{
-				FuncEvaluations: 80 + 60*n,
-				Converger:       &optimize.FunctionConverge{Absolute: 1e-3, Relative: 1e-3, Iterations: 20},
-			},
-			&optimize.NelderMead{SimplexSize: 0.4})
-		x := x0
-		if r != nil && r.X != nil {
-			x = r.X
-		}
-		idx := make([]int, n)
-		for p, k := range top {
-			j := kindTab(k)
-			v := math.Exp(math.Min(math.Max(x[p], lo[p]), hi[p]))
-			idx[p] = min(max(e.ser[j].Index(v)-e.first[j], 0), e.count[j]-1)
-		}
-		key := fmt.Sprint(idx)
-		if !seen[key] {
-			seen[key] = true
-			out = append(out, idx)
-		}
-	}
-	return out
-}
-
-// subsample returns up to about m band points: each band's edges and
-// points spread between them.
-func (e *engine) subsample(m int) []int {
-	if e.K <= m {
-		s := make([]int, e.K)
-		for k := range s {
-			s[k] = k
-		}
-		return s
-	}
-	per := max(2, m/len(e.bands))
-	var s []int
-	for _, b := range e.bands {
-		var in []int
-		for k, f := range e.pts.freqHz {
-			if f >= b.LoHz && f <= b.HiHz {
-				in = append(in, k)
-			}
-		}
-		if len(in) <= per {
-			s = append(s, in...)
-			continue
-		}
-		for i := range per {
-			s = append(s, in[i*(len(in)-1)/(per-1)])
-		}
-	}
-	sort.Ints(s)
-	return s
-}
-
-// starts returns the starting points (log values) of the continuous phase
-// for shape top: the middle of the ranges, and each L-network at the centre
-// of each band and of the whole span embedded where the shape has its two
-// parts in a row, the other parts at their least disturbing end of the
-// range (a series L or shunt C small, a series C or shunt L large).
-func (e *engine) starts(top []Kind, lo, hi []float64) [][]float64 {
-	n := len(top)
-	neutral := make([]float64, n)
-	mid := make([]float64, n)
-	for p, k := range top {
-		mid[p] = (lo[p] + hi[p]) / 2
-		if k == SeriesL || k == ShuntC {
-			neutral[p] = lo[p]
-		} else {
-			neutral[p] = hi[p]
-		}
-	}
-	out := [][]float64{mid}
-	centres := []float64{math.Sqrt(e.pts.freqHz[0] * e.pts.freqHz[e.K-1])}
-	if len(e.bands) > 1 {
-		for _, b := range e.bands {
-			centres = append(centres, math.Sqrt(b.LoHz*b.HiHz))
-		}
-	}
-	for _, fc := range centres {
-		zl, ok := e.l.ZAt(fc)
-		if !ok {
-			continue
-		}
-		sols, _, err := LNetworks(zl, complex(e.l.Z0Ohm, 0), fc)
-		if err != nil {
-			continue
-		}
-		for _, s := range sols {
-			m := len(s.Parts)
-			if m == 0 {
-				continue
-			}
-			for at := 0; at+m <= n; at++ {
-				fits := true
-				for i, p := range s.Parts {
-					fits = fits && top[at+i] == p.Kind
-				}
-				if !fits {
-					continue
-				}
-				x := append([]float64(nil), neutral...)
-				for i, p := range s.Parts {
-					x[at+i] = math.Min(math.Max(math.Log(p.Value), lo[at+i]), hi[at+i])
-				}
-				out = append(out, x)
-			}
-		}
-	}
-	if len(out) > 6 {
-		out = out[:6]
-	}
-	return out
 }

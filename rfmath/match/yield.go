@@ -67,8 +67,10 @@ type YieldResult struct {
 	// most margin alone.
 	MostSensitive int
 	// Traces holds Γ at every frequency of the load for the first
-	// Settings.Traces builds.
-	Traces [][]complex128
+	// Settings.Traces builds; TraceMembers the member of a set each was
+	// judged on (see [YieldSet]).
+	Traces       [][]complex128
+	TraceMembers []int
 }
 
 // Corner is a build with every part at one end of its tolerance.
@@ -105,6 +107,48 @@ type Sensitivity struct {
 // It returns ctx.Err() if ctx is done, and errors about the load, the
 // bands or the settings.
 func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
+	return YieldSet(ctx, []Member{{Load: l}}, Conditions, bands, n, s)
+}
+
+// YieldSet is [Yield] across a set of loads. For a set of Conditions a
+// build passes when it meets every requirement on every binding member.
+// For a Lot each build is judged against one binding member drawn at
+// random by weight (from a source seeded by the same seed), so the
+// yield counts both the parts' tolerances and the lot's spread; the
+// nominal, the corners and the sensitivities are judged on the worst
+// member. Traces are on the first binding member's frequencies for
+// Conditions, on the drawn member's for a Lot (TraceMembers says which).
+// With one member it is Yield.
+func YieldSet(ctx context.Context, members []Member, kind SetKind, bands []Band, n Network, s *YieldSettings) (*YieldResult, error) {
+	set, err := yieldSettings(s)
+	if err != nil {
+		return nil, err
+	}
+	tol := make([]float64, len(n))
+	if err := partTolerances(tol, n, set.Tolerances); err != nil {
+		return nil, err
+	}
+	sj, err := newSetJudge(members, bands)
+	if err != nil {
+		return nil, err
+	}
+	if _, err := n.Circuit(); err != nil {
+		return nil, err
+	}
+	res := &YieldResult{Builds: set.Builds, Nominal: buildMetrics(sj, n)}
+	b := n.Clone()
+	if err := randomBuilds(ctx, res, sj, kind, n, b, tol, set); err != nil {
+		return nil, err
+	}
+	res.WorstCorner = worstCorner(sj, n, b, tol)
+	copy(b, n)
+	res.Sensitivity, res.MostSensitive = sensitivities(sj, n, b, tol, res.Nominal.MarginDB)
+	return res, nil
+}
+
+// yieldSettings returns s with its defaults filled in, or an error for a
+// negative count of builds or traces.
+func yieldSettings(s *YieldSettings) (YieldSettings, error) {
 	var set YieldSettings
 	if s != nil {
 		set = *s
@@ -113,53 +157,58 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 		set.Builds = 1000
 	}
 	if set.Builds < 0 || set.Traces < 0 {
-		return nil, fmt.Errorf("match: %d builds, %d traces", set.Builds, set.Traces)
+		return set, fmt.Errorf("match: %d builds, %d traces", set.Builds, set.Traces)
 	}
 	if set.Seed == 0 {
 		set.Seed = 1
 	}
-	tol := make([]float64, len(n))
+	return set, nil
+}
+
+// partTolerances sets tol[i] to the ± tolerance of part i of n at its
+// value: from tols, one per part, or each part's own when tols is nil. A
+// tolerance that is not below its part's value is an error. The caller
+// makes tol (of len(n)), so that it can stay on the stack.
+func partTolerances(tol []float64, n Network, tols []parts.Tolerance) error {
 	switch {
-	case set.Tolerances == nil:
+	case tols == nil:
 		for i, p := range n {
 			tol[i] = p.Tolerance().Of(p.Value)
 			if tol[i] >= p.Value {
-				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+				return fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
 			}
 		}
-	case len(set.Tolerances) != len(n):
-		return nil, fmt.Errorf("match: %d tolerances for %d parts", len(set.Tolerances), len(n))
+	case len(tols) != len(n):
+		return fmt.Errorf("match: %d tolerances for %d parts", len(tols), len(n))
 	default:
 		for i, p := range n {
-			tol[i] = set.Tolerances[i].Of(p.Value)
+			tol[i] = tols[i].Of(p.Value)
 			if tol[i] >= p.Value {
-				return nil, fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
+				return fmt.Errorf("match: tolerance ±%g of part %d is not below its value %g", tol[i], i+1, p.Value)
 			}
 		}
 	}
-	j, err := newJudge(l, bands)
-	if err != nil {
-		return nil, err
-	}
-	if _, err := n.Circuit(); err != nil {
-		return nil, err
-	}
-	// A build's parts: every value drawn is positive, so it always builds.
-	margin := func(b Network) Metrics {
-		c, err := b.Circuit()
-		if err != nil {
-			return Metrics{MarginDB: math.Inf(-1)}
-		}
-		return j.metrics(c)
-	}
-	res := &YieldResult{Builds: set.Builds, Nominal: margin(n)}
+	return nil
+}
 
-	// Random builds.
-	src := rand.NewPCG(set.Seed, set.Seed^0x9e3779b97f4a7c15)
-	draw := make([]func() float64, len(n))
+// buildMetrics returns the figures of build b across the set (a margin of
+// −∞ when it cannot be built; every value drawn is positive, so a build
+// always builds).
+func buildMetrics(sj *setJudge, b Network) Metrics {
+	c, err := b.Circuit()
+	if err != nil {
+		return Metrics{MarginDB: math.Inf(-1)}
+	}
+	return sj.metrics(c).Metrics
+}
+
+// partDraws sets draw[i] to a draw of the value of part i of n within
+// ±tol[i] about its nominal value, spread by dist, from src. The caller
+// makes draw (of len(n)), so that it can stay on the stack.
+func partDraws(draw []func() float64, n Network, tol []float64, dist Distribution, src rand.Source) {
 	for i, p := range n {
 		v, t := p.Value, tol[i]
-		switch set.Dist {
+		switch dist {
 		case Normal:
 			d := distuv.Normal{Mu: v, Sigma: t / 3, Src: src}
 			draw[i] = func() float64 {
@@ -174,25 +223,63 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			draw[i] = d.Rand
 		}
 	}
-	b := n.Clone()
+}
+
+// randomBuilds judges set.Builds random builds of n, in the scratch
+// network b, and fills res's count of passes, yield, margins and traces:
+// for a set of Conditions each build on every binding member, for a Lot
+// on one binding member drawn by weight.
+func randomBuilds(ctx context.Context, res *YieldResult, sj *setJudge, kind SetKind, n, b Network, tol []float64, set YieldSettings) error {
+	var binding []int
+	var wsum float64
+	for i, m := range sj.members {
+		if !m.Advisory {
+			binding = append(binding, i)
+			wsum += m.Weight
+		}
+	}
+	src := rand.NewPCG(set.Seed, set.Seed^0x9e3779b97f4a7c15)
+	draw := make([]func() float64, len(n))
+	partDraws(draw, n, tol, set.Dist, src)
 	margins := make([]float64, set.Builds)
+	// The lot's draws have their own source, so that the parts' values are
+	// the same builds as for one load with the same seed.
+	pick := rand.New(rand.NewPCG(set.Seed^0x5bd1e995, set.Seed))
 	for k := range set.Builds {
 		if k%256 == 0 {
 			if err := ctx.Err(); err != nil {
-				return nil, err
+				return err
 			}
 		}
 		for i := range b {
 			b[i].Value = draw[i]()
 		}
-		m := margin(b)
+		c, err := b.Circuit()
+		if err != nil {
+			return err
+		}
+		who := binding[0]
+		var m Metrics
+		if kind == Lot {
+			x := pick.Float64() * wsum
+			for _, i := range binding {
+				who = i
+				if x -= sj.members[i].Weight; x < 0 {
+					break
+				}
+			}
+			m = sj.judges[who].metrics(c)
+		} else {
+			m = sj.metrics(c).Metrics
+		}
 		margins[k] = m.MarginDB
 		if m.Meets() {
 			res.Passed++
 		}
 		if k < set.Traces {
-			c, _ := b.Circuit()
+			l := sj.members[who].Load
 			res.Traces = append(res.Traces, c.GammaTo(nil, l.FreqHz, l.Gamma, l.Z0Ohm))
+			res.TraceMembers = append(res.TraceMembers, who)
 		}
 	}
 	if set.Builds > 0 {
@@ -202,9 +289,13 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 		res.MedianMarginDB = margins[set.Builds/2]
 		res.P5MarginDB = margins[set.Builds*5/100]
 	}
+	return nil
+}
 
-	// Corners.
-	res.WorstCorner.MarginDB = math.Inf(1)
+// worstCorner returns the worst of the 2ⁿ builds of n with every part at
+// one end of its tolerance, built in the scratch network b.
+func worstCorner(sj *setJudge, n, b Network, tol []float64) Corner {
+	worst := Corner{MarginDB: math.Inf(1)}
 	for c := 0; c < 1<<len(n); c++ {
 		signs := make([]int, len(n))
 		for i := range b {
@@ -214,36 +305,43 @@ func Yield(ctx context.Context, l Load, bands []Band, n Network, s *YieldSetting
 			}
 			b[i].Value = n[i].Value + float64(signs[i])*tol[i]
 		}
-		if m := margin(b).MarginDB; m < res.WorstCorner.MarginDB {
+		if m := buildMetrics(sj, b).MarginDB; m < worst.MarginDB {
 			vals := make([]float64, len(n))
 			for i := range b {
 				vals[i] = b[i].Value
 			}
-			res.WorstCorner = Corner{Signs: signs, Values: vals, MarginDB: m}
+			worst = Corner{Signs: signs, Values: vals, MarginDB: m}
 		}
 	}
+	return worst
+}
 
-	// One part at a time.
-	copy(b, n)
+// sensitivities returns what each part's tolerance alone does to the
+// margin (nominal the margin with every part at its nominal value), with
+// b, a copy of n, as scratch, and the index of the part whose tolerance
+// costs the most.
+func sensitivities(sj *setJudge, n, b Network, tol []float64, nominal float64) ([]Sensitivity, int) {
+	var out []Sensitivity
+	most := 0
 	sum := 0.0
 	for i := range n {
 		s := Sensitivity{Tolerance: tol[i]}
 		b[i].Value = n[i].Value - tol[i]
-		s.LowDB = margin(b).MarginDB
+		s.LowDB = buildMetrics(sj, b).MarginDB
 		b[i].Value = n[i].Value + tol[i]
-		s.HighDB = margin(b).MarginDB
+		s.HighDB = buildMetrics(sj, b).MarginDB
 		b[i].Value = n[i].Value
-		s.DropDB = math.Max(0, res.Nominal.MarginDB-math.Min(s.LowDB, s.HighDB))
+		s.DropDB = math.Max(0, nominal-math.Min(s.LowDB, s.HighDB))
 		sum += s.DropDB
-		res.Sensitivity = append(res.Sensitivity, s)
-		if s.DropDB > res.Sensitivity[res.MostSensitive].DropDB {
-			res.MostSensitive = i
+		out = append(out, s)
+		if s.DropDB > out[most].DropDB {
+			most = i
 		}
 	}
-	for i := range res.Sensitivity {
+	for i := range out {
 		if sum > 0 {
-			res.Sensitivity[i].Importance = res.Sensitivity[i].DropDB / sum
+			out[i].Importance = out[i].DropDB / sum
 		}
 	}
-	return res, nil
+	return out, most
 }

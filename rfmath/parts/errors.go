@@ -6,8 +6,8 @@ import "errors"
 // with the name; test for them with [errors.Is].
 var (
 	// ErrUnknownSeries reports a preferred-number series other than E6,
-	// E12, E24, E48 and E96.
-	ErrUnknownSeries = errors.New("parts: unknown E-series (want E6, E12, E24, E48 or E96)")
+	// E12, E24, E48, E96 and E192.
+	ErrUnknownSeries = errors.New("parts: unknown E-series (want E6, E12, E24, E48, E96 or E192)")
 
 	// ErrUnknownFamily reports a part family (case size) that has no
 	// table of typical values.

@@ -12,7 +12,7 @@ import (
 // decade) is the j-th value of the list times 10^e, so index 0 is 1.0 and
 // index N is 10.
 //
-// The values are held as integers of two (E6–E24) or three (E48, E96)
+// The values are held as integers of two (E6–E24) or three (E48–E192)
 // significant figures and formed by one correctly rounded multiplication or
 // division by a power of ten, so Value(n) is the float64 nearest to the
 // printed value: E24's 4.7 in nanohenries is exactly the literal 4.7e-9.
@@ -33,7 +33,11 @@ type Series struct {
 //
 // E6 is every other E12 value and E48 every other E96 value; that is how
 // the standard builds them (common practice; the lists are from memory and
-// the tests check them against that rule).
+// the tests check them against that rule). E192 holds every E96 value and
+// one more between each two; it equals 10^(i/192) rounded to three figures
+// except at i = 185, where the standard lists 9.20 and the formula gives
+// 9.19 (REFERENCE-CHECKS §14; the exception and the first values checked
+// against two public listings).
 var (
 	E6  = &Series{"E6", 2, []int{10, 15, 22, 33, 47, 68}}
 	E12 = &Series{"E12", 2, []int{10, 12, 15, 18, 22, 27, 33, 39, 47, 56, 68, 82}}
@@ -57,10 +61,28 @@ var (
 		562, 576, 590, 604, 619, 634, 649, 665, 681, 698, 715, 732,
 		750, 768, 787, 806, 825, 845, 866, 887, 909, 931, 953, 976,
 	}}
+	E192 = &Series{"E192", 3, []int{
+		100, 101, 102, 104, 105, 106, 107, 109, 110, 111, 113, 114,
+		115, 117, 118, 120, 121, 123, 124, 126, 127, 129, 130, 132,
+		133, 135, 137, 138, 140, 142, 143, 145, 147, 149, 150, 152,
+		154, 156, 158, 160, 162, 164, 165, 167, 169, 172, 174, 176,
+		178, 180, 182, 184, 187, 189, 191, 193, 196, 198, 200, 203,
+		205, 208, 210, 213, 215, 218, 221, 223, 226, 229, 232, 234,
+		237, 240, 243, 246, 249, 252, 255, 258, 261, 264, 267, 271,
+		274, 277, 280, 284, 287, 291, 294, 298, 301, 305, 309, 312,
+		316, 320, 324, 328, 332, 336, 340, 344, 348, 352, 357, 361,
+		365, 370, 374, 379, 383, 388, 392, 397, 402, 407, 412, 417,
+		422, 427, 432, 437, 442, 448, 453, 459, 464, 470, 475, 481,
+		487, 493, 499, 505, 511, 517, 523, 530, 536, 542, 549, 556,
+		562, 569, 576, 583, 590, 597, 604, 612, 619, 626, 634, 642,
+		649, 657, 665, 673, 681, 690, 698, 706, 715, 723, 732, 741,
+		750, 759, 768, 777, 787, 796, 806, 816, 825, 835, 845, 856,
+		866, 876, 887, 898, 909, 920, 931, 942, 953, 965, 976, 988,
+	}}
 )
 
 // AllSeries lists the series this package knows, coarsest first.
-var AllSeries = []*Series{E6, E12, E24, E48, E96}
+var AllSeries = []*Series{E6, E12, E24, E48, E96, E192}
 
 // Lookup returns the series named name ("E24", case-insensitive, spaces
 // ignored). An unknown name returns an error wrapping [ErrUnknownSeries].

@@ -258,8 +258,8 @@ func TestLookup(t *testing.T) {
 			t.Errorf("Lookup(%q) = %v, %v", name, s, err)
 		}
 	}
-	if _, err := Lookup("E192"); !errors.Is(err, ErrUnknownSeries) {
-		t.Errorf("Lookup(E192) error = %v", err)
+	if _, err := Lookup("E384"); !errors.Is(err, ErrUnknownSeries) {
+		t.Errorf("Lookup(E384) error = %v", err)
 	}
 }
 
@@ -286,5 +286,56 @@ func TestSeriesPanics(t *testing.T) {
 			}()
 			tc.f()
 		})
+	}
+}
+
+// TestE192 checks the E192 decade of IEC 60063 (REFERENCE-CHECKS §14): 192
+// values; every other one is the E96 value; each equals 10^(i/192) rounded
+// to three figures except i = 185, listed as 9.20 where the formula gives
+// 9.19 (V: a public guide's E192 table and a question-and-answer thread on
+// that very discrepancy); the first sixteen values as that table prints
+// them; and nearest values by ratio (C).
+func TestE192(t *testing.T) {
+	t.Parallel()
+	m := E192.Mantissas()
+	if len(m) != 192 || E192.PerDecade() != 192 {
+		t.Fatalf("E192 has %d values per decade", len(m))
+	}
+	e96 := E96.Mantissas()
+	for i, v := range e96 {
+		if m[2*i] != v {
+			t.Errorf("E192[%d] = %v, E96[%d] = %v", 2*i, m[2*i], i, v)
+		}
+	}
+	for i, v := range m {
+		r := math.Round(100*math.Pow(10, float64(i)/192)) / 100
+		switch {
+		case i == 185:
+			if v != 9.20 || r != 9.19 {
+				t.Errorf("E192[185] = %v (formula %v), want the listed 9.20 (formula 9.19)", v, r)
+			}
+		case math.Abs(r-v) > 1e-12:
+			t.Errorf("E192[%d] = %v, formula %v", i, v, r)
+		}
+	}
+	if want := parseList(t, "1.00 1.01 1.02 1.04 1.05 1.06 1.07 1.09 1.10 1.11 1.13 1.14 1.15 1.17 1.18 1.20"); !equalFloats(m[:16], want) {
+		t.Errorf("E192 starts %v, want %v", m[:16], want)
+	}
+	for _, tc := range []struct {
+		name    string
+		v, want float64
+	}{
+		{"between E96 1.00 and 1.02", 1.012, 1.01},
+		{"the listed exception", 9.2, 9.20},
+		{"just below the exception", 9.17, 9.20}, // √(9.09·9.20) = 9.145 < 9.17
+		{"70.71 Ω", 70.71, 70.6},                 // E96 gives 71.5 (§14); E192 adds 70.6, and √(70.6·71.5) = 71.05
+		{"decade wrap", 9.95, 10},                // √(9.88·10) = 9.940
+	} {
+		if got := E192.Nearest(tc.v); math.Abs(got-tc.want) > 1e-12*tc.want {
+			t.Errorf("%s: Nearest(%v) = %v, want %v", tc.name, tc.v, got, tc.want)
+		}
+	}
+	if s, err := Lookup("e192"); err != nil || s != E192 {
+		t.Errorf("Lookup(e192) = %v, %v", s, err)
 	}
 }

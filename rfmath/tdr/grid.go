@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"matchbench/rfmath"
 )
 
 // gridTol is the tolerance, as a fraction of the step, within which a
@@ -119,7 +121,7 @@ func interp(freqHz []float64, gamma []complex128, f float64) complex128 {
 		return gamma[len(gamma)-1]
 	}
 	t := (f - freqHz[k-1]) / (freqHz[k] - freqHz[k-1])
-	return gamma[k-1] + complex(t, 0)*(gamma[k]-gamma[k-1])
+	return rfmath.Lerp(gamma[k-1], gamma[k], t)
 }
 
 // extrapolateDC returns the value at DC of the even parabola a + b·f²

@@ -44,8 +44,9 @@ import (
 // reflection, coefficient and rho. For each parameter, real/imaginary
 // columns are used if present, then dB/angle, then magnitude/angle. A
 // header with other names is an error that lists the names found and the
-// names expected. Under ';' a number may use a decimal comma. Frequencies
-// must increase strictly.
+// names expected. Numbers are decimal, as in a Touchstone file (no
+// hexadecimal, Inf or NaN); under ';' a number may use a decimal comma.
+// Frequencies must increase strictly.
 func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	lim = lim.withDefaults()
 	buf, err := readAll(r, name, lim.MaxBytes)
@@ -98,7 +99,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		}
 	}
 	if best == 0 {
-		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", header))
+		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", found(header)))
 	}
 
 	cr := csv.NewReader(bytes.NewReader(text))
@@ -147,7 +148,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			x, ok := csvNumber(rec[idx], sep)
 			if !ok {
 				line, col := cr.FieldPos(idx)
-				return 0, perr(line, col, syntaxf("expected a number in column %q, found %q", cols.header[idx], rec[idx]))
+				return 0, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.header[idx]), found(rec[idx])))
 			}
 			return x, nil
 		}
@@ -161,7 +162,7 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", fv))
 		}
 		if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
-			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", rec[cols.freq]))
+			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
 		}
 		if len(s.FreqHz) >= lim.MaxPoints {
 			return nil, perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", lim.MaxPoints))
@@ -210,13 +211,16 @@ func csvZ0(text string) ([]float64, error) {
 			continue
 		}
 		var out []float64
-		for _, w := range f[i+1:] {
-			v, err := strconv.ParseFloat(strings.TrimSuffix(w, "ohm"), 64)
+		for j, w := range f[i+1:] {
+			v, err := parseNumber([]byte(strings.TrimSuffix(w, "ohm")))
 			if err != nil {
+				if j == 0 && f[i] == "z0" { // "r" may start a word of any comment
+					return nil, syntaxf("Z0 must be followed by the reference resistance in ohms as a decimal number, found %q", found(w))
+				}
 				break
 			}
 			if !(v > 0) || math.IsInf(v, 0) {
-				return nil, syntaxf("reference resistance %s must be a positive number of ohms", w)
+				return nil, syntaxf("reference resistance %s must be a positive number of ohms", found(w))
 			}
 			out = append(out, v)
 		}
@@ -227,12 +231,16 @@ func csvZ0(text string) ([]float64, error) {
 	return nil, nil
 }
 
+// csvNumber reads a number of a CSV field by the rules of the Touchstone
+// reader (digits, sign, point and exponent; no hexadecimal, Inf, NaN or
+// underscores, which strconv.ParseFloat would take), with a decimal comma
+// under sep ';'.
 func csvNumber(s string, sep rune) (float64, bool) {
 	s = strings.TrimSpace(s)
 	if sep == ';' && strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
-	v, err := strconv.ParseFloat(s, 64)
+	v, err := parseNumber([]byte(s))
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, false
 	}
@@ -285,7 +293,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		for _, w := range words {
 			if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
 				if w[0] != 's' || w[1] > '2' || w[2] > '2' {
-					return nil, unsupportedf("CSV import reads 1- and 2-port S-parameters; column %q names %s", name, strings.ToUpper(w))
+					return nil, unsupportedf("CSV import reads 1- and 2-port S-parameters; column %q names %s", found(name), found(strings.ToUpper(w)))
 				}
 				param = w[1:]
 				continue
@@ -341,7 +349,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		}
 		if role == "freq" {
 			if haveF {
-				return nil, syntaxf("two columns are frequency columns (%q and %q)", rec[c.freq], name)
+				return nil, syntaxf("two columns are frequency columns (%q and %q)", found(rec[c.freq]), found(name))
 			}
 			c.freq, haveF = i, true
 			if unit != "" {
@@ -357,7 +365,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		}
 		k := key{param, role}
 		if j, dup := idx[k]; dup {
-			return nil, syntaxf("two columns are S%s %s columns (%q and %q)", param, role, rec[j], name)
+			return nil, syntaxf("two columns are S%s %s columns (%q and %q)", param, role, found(rec[j]), found(name))
 		}
 		idx[k] = i
 		if role == "ang" && rad {
@@ -385,7 +393,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		}
 		if !(pick("re", "im", "ri") || pick("db", "ang", "db") || pick("mag", "ang", "ma")) {
 			if complete && ports == 2 {
-				return nil, syntaxf("a 2-port CSV needs S11, S21, S12 and S22; S%s has no complete pair of columns (found columns %q); expected %s", p, rec, csvExpected)
+				return nil, syntaxf("a 2-port CSV needs S11, S21, S12 and S22; S%s has no complete pair of columns (found columns %q); expected %s", p, foundList(rec), csvExpected)
 			}
 			complete = false
 			break
@@ -402,7 +410,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		if allNumbers {
 			return nil, syntaxf("expected a header row naming the columns, found numbers; a header needs %s", csvExpected)
 		}
-		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", rec, csvExpected)
+		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", foundList(rec), csvExpected)
 	}
 	c.ports = ports
 	return c, nil

@@ -78,7 +78,15 @@ func TestReadCSVErrors(t *testing.T) {
 		{file: "csv_decreasing.csv", kind: ErrSyntax, line: 5, col: 1, msg: []string{"does not increase"}},
 		{text: "freq,re,im\n1,0.5,x\n", kind: ErrSyntax, line: 2, col: 7, msg: []string{`column "im"`, `"x"`}},
 		{text: "freq,re,im\n1,0.5\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{"wrong number of fields"}},
-		{text: "freq,re,im\n1,nan,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a number"}},
+		{text: "freq,re,im\n1,nan,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a decimal number"}},
+		// Numbers are decimal, as the Touchstone reader reads them (TS
+		// reader: `expected a number, found "0x10"`): strconv would take
+		// these.
+		{text: "freq,re,im\n1,0x1p-2,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"expected a decimal number", `"0x1p-2"`}},
+		{text: "freq,re,im\n0x10,0.5,0\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{`column "freq"`, `"0x10"`}},
+		{text: "freq,re,im\n1,Inf,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{`"Inf"`}},
+		{text: "freq;re;im\n1;0x1,5p0;0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{"decimal"}},
+		{text: "# Z0 = 0x4B\nfreq,re,im\n1,0,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"Z0 must be followed", `"0x4b"`}},
 		{text: "freq,re,re\n1,0.5,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"two columns"}},
 		{text: "freq\n1\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"one column"}},
 		{text: "# only a comment\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"no header row"}},
@@ -86,6 +94,13 @@ func TestReadCSVErrors(t *testing.T) {
 		{text: "# Z0 = -5\nfreq,re,im\n1,0,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"positive"}},
 		{text: "freq,z re,z im\n1,50,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"cannot understand"}},
 		{text: "freq,re,im\n1,0,0\n2,0,0\n3,0,0\n", kind: ErrLimit, line: 3, col: 1, msg: []string{"MaxPoints limit of 1 "}},
+		// Decimal numbers only, as the Touchstone reader takes them (digits,
+		// sign, point, exponent: what analysers export, common practice).
+		// Go's strconv.ParseFloat alone takes hexadecimal floats (0x1p-2 is
+		// 0.25 by the Go spec's floating-point literals) and underscores.
+		{text: "freq,re,im\n0x1p4,0.5,0\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{"expected a decimal number", `"0x1p4"`}},
+		{text: "freq;re;im\n1;0,5;0x0p0\n", kind: ErrSyntax, line: 2, col: 7, msg: []string{`"0x0p0"`}},
+		{text: "freq,re,im\n1,1_0,0\n", kind: ErrSyntax, line: 2, col: 3, msg: []string{`"1_0"`}},
 	}
 	for _, tc := range tests {
 		name := tc.file
@@ -268,5 +283,42 @@ func TestReadCSV2Port(t *testing.T) {
 		if d := db.Data[i] - w; math.Hypot(real(d), imag(d)) > 1e-5 {
 			t.Errorf("S[%d] = %v, want %v", i, db.Data[i], w)
 		}
+	}
+}
+
+// An error quotes little of what it found: a header of 2 MB, a field of
+// 2 MB and a Touchstone keyword of 2 MB each give a message of a few
+// hundred bytes that still says where and what.
+func TestErrorsQuoteLittle(t *testing.T) {
+	t.Parallel()
+	huge := strings.Repeat("x", 2<<20)
+	cases := []struct {
+		name, text string
+		csv        bool
+		where      string
+	}{
+		{"one-column header", huge + "\n1\n", true, "big.csv:1:1:"},
+		{"many columns", strings.Repeat("a,", 1<<20) + "b\n1,2\n", true, "big.csv:1:1:"},
+		{"a field", "freq,re,im\n1," + huge + ",0\n", true, "big.csv:2:3:"},
+		{"a keyword", "[Version] 2.0\n[" + huge + "]\n", false, "big.s1p:2:"},
+		{"a version", "[Version] " + huge + "\n", false, "big.s1p:1:"},
+		{"a number", "# GHz S RI R 50\n1 " + strings.Repeat("9", 2<<20) + "e999 0\n", false, "big.s1p:2:"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			var err error
+			if tc.csv {
+				_, err = ReadCSV(strings.NewReader(tc.text), "big.csv", Limits{MaxBytes: 8 << 20})
+			} else {
+				_, err = Read(strings.NewReader(tc.text), "big.s1p", Limits{MaxBytes: 8 << 20})
+			}
+			if err == nil {
+				t.Fatal("no error")
+			}
+			if msg := err.Error(); len(msg) > 600 || !strings.HasPrefix(msg, tc.where) || !strings.Contains(msg, "…") {
+				t.Errorf("message of %d bytes, starting %.80q; want at most 600 bytes from %q, with the input cut (…)", len(msg), msg, tc.where)
+			}
+		})
 	}
 }

@@ -38,7 +38,9 @@
 // # Writing
 //
 // [Write] writes version 1.1 layout by default (at most four pairs per line,
-// each matrix row of a 3+ port on a new line) or version 2.1 on request.
+// each matrix row of a 3+ port on a new line) or version 2.1 on request, and
+// when the ports' reference resistances differ, which a version 1 option
+// line (one R for every port) cannot hold.
 // Reading what was written gives back the same numbers to the written
 // precision.
 //

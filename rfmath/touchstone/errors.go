@@ -3,6 +3,7 @@ package touchstone
 import (
 	"errors"
 	"fmt"
+	"unicode/utf8"
 )
 
 // Sentinel errors. Every error that [Read], [ReadFile] and [ReadCSV] return
@@ -69,4 +70,41 @@ func unsupportedf(format string, args ...any) error {
 
 func limitf(format string, args ...any) error {
 	return &kindError{ErrLimit, fmt.Sprintf(format, args...)}
+}
+
+// Bounds on the input an error message quotes: a message names what it
+// found, not all of it (a 2 MB header line quoted whole made a 6 MB error).
+const (
+	maxQuotedBytes = 60 // of one piece of text
+	maxQuotedItems = 8  // of a list of them
+)
+
+// found is text from the input quoted in an error message. It formats (with
+// %s, %q or %v) cut to maxQuotedBytes on a character boundary, with "…".
+type found string
+
+func (f found) String() string {
+	s := string(f)
+	if len(s) <= maxQuotedBytes {
+		return s
+	}
+	cut := maxQuotedBytes
+	for cut > 0 && !utf8.RuneStart(s[cut]) {
+		cut--
+	}
+	return s[:cut] + "…"
+}
+
+// foundList is a list of input texts for an error message: at most
+// maxQuotedItems of them, each cut as found is.
+func foundList(v []string) []found {
+	out := make([]found, 0, min(len(v), maxQuotedItems+1))
+	for i, s := range v {
+		if i == maxQuotedItems {
+			out = append(out, found(fmt.Sprintf("… %d more", len(v)-i)))
+			break
+		}
+		out = append(out, found(s))
+	}
+	return out
 }

@@ -70,7 +70,7 @@ func FuzzRead(f *testing.F) {
 		if err := file.Sweep.Validate(); err != nil {
 			t.Fatal(err)
 		}
-		version := 1
+		version := 0 // version 1, or 2 for per-port references (which version 1 cannot write)
 		if file.Version != "1.1" {
 			version = 2
 		}

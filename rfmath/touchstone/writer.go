@@ -16,8 +16,11 @@ import (
 // S-parameters, RI format, a frequency unit chosen from the sweep and 12
 // significant digits.
 type WriteOptions struct {
-	// Version is 1 (the default: version 1.1 syntax, no keywords) or 2
-	// ([Version] 2.1 with the keywords it requires).
+	// Version is 1 (version 1.1 syntax, no keywords) or 2 ([Version] 2.1
+	// with the keywords it requires). Zero chooses 1, or 2 when the ports'
+	// reference resistances differ: a version 1 option line holds one R
+	// for every port, so such a sweep cannot be written as version 1, and
+	// an explicit Version 1 returns an error wrapping [ErrUnsupported].
 	Version int
 	// Param is the parameter type to write: 'S' (the default), 'Y' or 'Z'.
 	// Y and Z are converted from the sweep's S-parameters at its reference
@@ -52,8 +55,9 @@ const zeroDB = -400
 // row of a larger network on new lines of at most four pairs. Version 2
 // output uses the same layout after [Network Data], with [Two-Port Data
 // Order] 12_21 (row order) for 2-ports and [Reference] when the ports'
-// references differ. Bad options or an invalid sweep return an error before
-// anything is written; errors of w are returned as they come.
+// references differ (which version 1 cannot hold: see
+// [WriteOptions.Version]). Bad options or an invalid sweep return an error
+// before anything is written; errors of w are returned as they come.
 func Write(w io.Writer, s *rfmath.Sweep, opt WriteOptions) error {
 	if err := s.Validate(); err != nil {
 		return fmt.Errorf("touchstone: cannot write the sweep: %w", err)
@@ -68,10 +72,6 @@ func Write(w io.Writer, s *rfmath.Sweep, opt WriteOptions) error {
 		bw.WriteString("!" + c + "\n")
 	}
 	n := s.Ports
-	sameRef := true
-	for _, z := range s.Z0 {
-		sameRef = sameRef && z == s.Z0[0]
-	}
 	if o.version == 2 {
 		bw.WriteString("[Version] 2.1\n")
 	}
@@ -80,16 +80,7 @@ func Write(w io.Writer, s *rfmath.Sweep, opt WriteOptions) error {
 	b = append(b, ' ', o.param, ' ')
 	b = append(b, o.format...)
 	b = append(b, " R "...)
-	if sameRef || o.version == 2 {
-		b = strconv.AppendFloat(b, s.Z0[0], 'g', -1, 64)
-	} else {
-		for i, z := range s.Z0 { // the per-port "version 1.1" form
-			if i > 0 {
-				b = append(b, ' ')
-			}
-			b = strconv.AppendFloat(b, z, 'g', -1, 64)
-		}
-	}
+	b = strconv.AppendFloat(b, s.Z0[0], 'g', -1, 64)
 	b = append(b, '\n')
 	bw.Write(b)
 	if o.version == 2 {
@@ -101,7 +92,7 @@ func Write(w io.Writer, s *rfmath.Sweep, opt WriteOptions) error {
 		if len(opt.Noise) > 0 {
 			fmt.Fprintf(bw, "[Number of Noise Frequencies] %d\n", len(opt.Noise))
 		}
-		if !sameRef {
+		if !o.sameRef {
 			b = append(b[:0], "[Reference]"...)
 			for _, z := range s.Z0 {
 				b = append(b, ' ')
@@ -169,6 +160,7 @@ func Write(w io.Writer, s *rfmath.Sweep, opt WriteOptions) error {
 }
 
 type writeOpts struct {
+	sameRef bool // every port has the same reference
 	version int
 	param   byte
 	format  string
@@ -177,12 +169,21 @@ type writeOpts struct {
 }
 
 func checkOptions(s *rfmath.Sweep, opt WriteOptions) (*writeOpts, error) {
-	o := &writeOpts{version: opt.Version, param: opt.Param, format: strings.ToUpper(opt.Format), digits: opt.Digits}
+	o := &writeOpts{sameRef: true, version: opt.Version, param: opt.Param, format: strings.ToUpper(opt.Format), digits: opt.Digits}
+	for _, z := range s.Z0 {
+		o.sameRef = o.sameRef && z == s.Z0[0]
+	}
 	if o.version == 0 {
 		o.version = 1
+		if !o.sameRef {
+			o.version = 2
+		}
 	}
 	if o.version != 1 && o.version != 2 {
 		return nil, fmt.Errorf("touchstone: WriteOptions.Version %d: want 1 or 2", opt.Version)
+	}
+	if o.version == 1 && !o.sameRef {
+		return nil, fmt.Errorf("%w: version 1 has one reference resistance on its option line for every port, but the ports' references differ (%s ohm); write version 2, whose [Reference] gives one per port, or renormalise to one reference", ErrUnsupported, joinG(s.Z0))
 	}
 	switch o.param {
 	case 0:
@@ -225,13 +226,6 @@ func checkOptions(s *rfmath.Sweep, opt WriteOptions) (*writeOpts, error) {
 			}
 		}
 	}
-	if o.param != 'S' && o.version == 1 {
-		for _, z := range s.Z0 {
-			if z != s.Z0[0] {
-				return nil, fmt.Errorf("%w: version 1 %c-parameters are normalised to one R, but the ports' references differ; write S or version 2", ErrUnsupported, o.param)
-			}
-		}
-	}
 	// The frequencies must stay strictly increasing as written.
 	prev := math.Inf(-1)
 	for _, f := range s.FreqHz {
@@ -264,6 +258,18 @@ func checkOptions(s *rfmath.Sweep, opt WriteOptions) (*writeOpts, error) {
 		}
 	}
 	return o, nil
+}
+
+// joinG writes the values separated by ", ", each in the shortest form.
+func joinG(v []float64) string {
+	var b []byte
+	for i, x := range v {
+		if i > 0 {
+			b = append(b, ", "...)
+		}
+		b = strconv.AppendFloat(b, x, 'g', -1, 64)
+	}
+	return string(b)
 }
 
 // matrix fills m with point k in the parameter to write.

@@ -74,7 +74,15 @@ func TestWriteRoundTrip(t *testing.T) {
 						t.Parallel()
 						var buf bytes.Buffer
 						opt := WriteOptions{Version: version, Format: format, Digits: digits, Comments: []string{" round trip", ""}}
-						if err := Write(&buf, s, opt); err != nil {
+						err := Write(&buf, s, opt)
+						if version == 1 && refs[n][0] != refs[n][len(refs[n])-1] {
+							// One R for every port in version 1 (TS-4).
+							if !errors.Is(err, ErrUnsupported) {
+								t.Fatalf("version 1 with per-port references: err %v, want ErrUnsupported", err)
+							}
+							return
+						}
+						if err != nil {
 							t.Fatal(err)
 						}
 						fname := fmt.Sprintf("rt.s%dp", n)
@@ -193,8 +201,10 @@ func TestWriteLayout(t *testing.T) {
 			"! hi\n# GHz S RI R 50\n1 11 0.5 21 0.5 12 0.5 22 0.5\n"},
 		{"2-port v2 per-port refs", mk(2, 50, 75), WriteOptions{Version: 2, FreqUnit: "mhz"},
 			"[Version] 2.1\n# MHz S RI R 50\n[Number of Ports] 2\n[Two-Port Data Order] 12_21\n[Number of Frequencies] 1\n[Reference] 50 75\n[Network Data]\n1000 11 0.5 12 0.5 21 0.5 22 0.5\n[End]\n"},
-		{"2-port v1 per-port refs", mk(2, 50, 75), WriteOptions{},
-			"# GHz S RI R 50 75\n1 11 0.5 21 0.5 12 0.5 22 0.5\n"},
+		// Version 1 has one R for every port (TS-4), so a sweep whose
+		// ports' references differ is written as version 2 by default.
+		{"2-port per-port refs by default", mk(2, 50, 75), WriteOptions{},
+			"[Version] 2.1\n# GHz S RI R 50\n[Number of Ports] 2\n[Two-Port Data Order] 12_21\n[Number of Frequencies] 1\n[Reference] 50 75\n[Network Data]\n1 11 0.5 12 0.5 21 0.5 22 0.5\n[End]\n"},
 		{"3-port v1", mk(3, 50, 50, 50), WriteOptions{Format: "ma", Digits: 3},
 			"# GHz S MA R 50\n1 11 2.6 12 2.39 13 2.2\n  21 1.36 22 1.3 23 1.25\n  31 0.924 32 0.895 33 0.868\n"},
 		{"5-port v1", mk(5, 50, 50, 50, 50, 50), WriteOptions{FreqUnit: "Hz"},
@@ -268,7 +278,8 @@ func TestWriteErrors(t *testing.T) {
 		{"digits", s, WriteOptions{Digits: 18}, "Digits"},
 		{"comment", s, WriteOptions{Comments: []string{"a\nb"}}, "comment 1"},
 		{"frequencies merge", s, WriteOptions{FreqUnit: "GHz"}, "become equal"},
-		{"v1 Z with unequal refs", s2, WriteOptions{Param: 'Z', FreqUnit: "Hz"}, "references differ"},
+		{"v1 Z with unequal refs", s2, WriteOptions{Version: 1, Param: 'Z', FreqUnit: "Hz"}, "references differ"},
+		{"v1 S with unequal refs", s2, WriteOptions{Version: 1}, "references differ (50, 75 ohm); write version 2"},
 		{"open has no Z", open, WriteOptions{Param: 'Z'}, "no Z-parameters"},
 		{"noise on 1-port", open, WriteOptions{Noise: []NoisePoint{{1, 1, 0, 0, 1}}}, "2-port"},
 		{"invalid sweep", &rfmath.Sweep{Ports: 1, Z0: []float64{50}}, WriteOptions{}, "cannot write"},
@@ -286,8 +297,10 @@ func TestWriteErrors(t *testing.T) {
 			}
 		})
 	}
-	if err := Write(&bytes.Buffer{}, s2, WriteOptions{Param: 'Z', FreqUnit: "Hz"}); !errors.Is(err, ErrUnsupported) {
-		t.Errorf("v1 Z with unequal refs: %v is not ErrUnsupported", err)
+	for _, p := range []byte{'S', 'Z'} {
+		if err := Write(&bytes.Buffer{}, s2, WriteOptions{Version: 1, Param: p, FreqUnit: "Hz"}); !errors.Is(err, ErrUnsupported) {
+			t.Errorf("v1 %c with unequal refs: %v is not ErrUnsupported", p, err)
+		}
 	}
 }
 

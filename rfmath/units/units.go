@@ -161,10 +161,14 @@ var unitNames = map[string]string{
 // is given it must match. A prefix letter that is also the unit (F for farad,
 // m for metre) is read as the unit when it stands last: "1F" is one farad,
 // "1fF" one femtofarad, "3m" three metres when unit is "m" but three milli-
-// units otherwise.
+// units otherwise. Lengths (unit "m") also take centimetres: "0.8cm".
 func ParseValue(s, unit string) (float64, error) {
 	want := "a number with an optional SI prefix"
-	if unit != "" {
+	switch unit {
+	case "":
+	case "m":
+		want = "a length in metres such as 8mm, 0.8cm or 0.008"
+	default:
 		want = fmt.Sprintf("a value in %s such as 3.9n%s", unit, unit)
 	}
 	in := s
@@ -188,6 +192,9 @@ func ParseValue(s, unit string) (float64, error) {
 		if rest != "" {
 			r, size := utf8.DecodeRuneInString(rest)
 			p, ok := prefixes[string(r)]
+			if unit == "m" && rest == "c" {
+				p, ok = 1e-2, true // centimetres, for lengths only
+			}
 			if !ok || size != len(rest) {
 				return 0, &Error{in, want, fmt.Errorf("%w: unknown prefix or unit %q", ErrSyntax, rest)}
 			}
@@ -230,7 +237,14 @@ var formatPrefixes = []struct {
 
 // Format writes v with an SI prefix and the unit, keeping digits significant
 // digits and dropping trailing zeros: Format(3.9e-9, "H", 3) = "3.9 nH".
-// Zero is "0 H"; NaN and ±Inf are written as Go writes them.
+// Special cases are written as an engineer writes them:
+//
+//	Format(±0, "H", 3) = "0 H"
+//	Format(±Inf, "Ω", 3) = "∞ Ω", "−∞ Ω"
+//	Format(NaN, "Ω", 3) = "n/a"
+//
+// A value more than a thousand times below the smallest prefix (f) or above
+// the largest (T) is written with an exponent: "4.9e-26 s".
 func Format(v float64, unit string, digits int) string {
 	if digits < 1 {
 		digits = 4
@@ -239,12 +253,22 @@ func Format(v float64, unit string, digits int) string {
 	if unit != "" {
 		sep = " "
 	}
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return strconv.FormatFloat(v, 'g', -1, 64) + sep + unit
+	switch {
+	case v == 0:
+		return "0" + sep + unit
+	case math.IsNaN(v):
+		return "n/a"
+	case math.IsInf(v, 1):
+		return "∞" + sep + unit
+	case math.IsInf(v, -1):
+		return "−∞" + sep + unit
 	}
 	// Round first so that 999.96 with 4 digits becomes 1 k, not 1000.
 	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'e', digits-1, 64), 64)
 	e := int(math.Floor(math.Log10(math.Abs(r))))
+	if e < -18 || e > 14 {
+		return strconv.FormatFloat(r, 'g', digits, 64) + sep + unit
+	}
 	exp := 3 * int(math.Floor(float64(e)/3))
 	if exp > 12 {
 		exp = 12
@@ -284,7 +308,16 @@ func FormatPercent(share float64, decimals int) string {
 	case math.IsInf(share, -1):
 		return "−∞ %"
 	}
-	return strconv.FormatFloat(100*share, 'f', decimals, 64) + " %"
+	return noNegativeZero(strconv.FormatFloat(100*share, 'f', decimals, 64)) + " %"
+}
+
+// noNegativeZero drops the sign of a number that rounds to zero: a figure
+// of "-0.00" means nothing to a reader.
+func noNegativeZero(s string) string {
+	if strings.HasPrefix(s, "-") && strings.Trim(s[1:], "0.") == "" {
+		return s[1:]
+	}
+	return s
 }
 
 // FormatDB writes a figure in decibels with two decimals and its unit:
@@ -301,7 +334,7 @@ func FormatDB(v float64) string {
 	case math.IsInf(v, -1):
 		return "−∞ dB"
 	}
-	return strconv.FormatFloat(v, 'f', 2, 64) + " dB"
+	return noNegativeZero(strconv.FormatFloat(v, 'f', 2, 64)) + " dB"
 }
 
 // FormatShare writes a share of the available power as a percentage with

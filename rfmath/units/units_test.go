@@ -92,6 +92,10 @@ func TestParseValue(t *testing.T) {
 		{"-3.5", "", -3.5},
 		{"1e-12", "F", 1e-12},
 		{"100ps", "s", 100e-12},
+		{"8mm", "m", 8e-3},
+		{"8 mm", "m", 8e-3},
+		{"0.8cm", "m", 8e-3},
+		{"8e-3", "m", 8e-3},
 	}
 	for _, tc := range tests {
 		t.Run(tc.in+"/"+tc.unit, func(t *testing.T) {
@@ -111,6 +115,7 @@ func TestParseValueErrors(t *testing.T) {
 	t.Parallel()
 	tests := []struct{ in, unit string }{
 		{"", "H"}, {"nH", "H"}, {"3.9 nF", "H"}, {"3.9x", "H"}, {"3.9 nnH", "H"}, {"1e999", ""},
+		{"3cF", "F"}, {"8 in", "m"}, // centi only for lengths; no inches
 	}
 	for _, tc := range tests {
 		if _, err := ParseValue(tc.in, tc.unit); !errors.Is(err, ErrSyntax) {
@@ -138,6 +143,13 @@ func TestFormat(t *testing.T) {
 		{50, "Ω", 4, "50 Ω"},
 		{0.5, "", 3, "500 m"},
 		{12.5, "", 3, "12.5"},
+		// Written as an engineer writes them, not as Go does.
+		{math.Copysign(0, -1), "Ω", 3, "0 Ω"},
+		{math.Inf(1), "Ω", 3, "∞ Ω"},
+		{math.Inf(-1), "dB", 3, "−∞ dB"},
+		{math.NaN(), "Ω", 3, "n/a"},
+		{4.9e-26, "s", 2, "4.9e-26 s"},
+		{4.9e-17, "s", 2, "0.049 fs"},
 	}
 	for _, tc := range tests {
 		if got := Format(tc.v, tc.unit, tc.digits); got != tc.want {
