@@ -99,14 +99,20 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 	if ne == nil || ne.err != nil || ne.n.YieldBuilds <= 0 || len(ne.n.Parts) == 0 {
 		return nil, ""
 	}
+	sc.yieldRes, sc.yieldMsg = sc.runYield(ne.n.YieldBuilds)
+	return sc.yieldRes, sc.yieldMsg
+}
+
+// runYield runs a Monte Carlo of builds builds of the active network.
+func (sc *scene) runYield(builds int) (*match.YieldResult, string) {
+	ne := sc.net
 	l, bands := ne.matchLoad(sc.st)
 	if len(bands) == 0 {
-		sc.yieldMsg = "Yield needs a band with a requirement (return loss or power to the load)."
-		return nil, sc.yieldMsg
+		return nil, "Yield needs a band with a requirement (return loss or power to the load)."
 	}
 	ctx, cancel := context.WithTimeout(sc.jobContext(), 20*time.Second)
 	defer cancel()
-	ys := &match.YieldSettings{Builds: ne.n.YieldBuilds, Seed: ne.n.YieldSeed, Traces: cloudTraces, Tolerances: ne.board.Tolerances()}
+	ys := &match.YieldSettings{Builds: builds, Seed: ne.n.YieldSeed, Traces: cloudTraces, Tolerances: ne.board.Tolerances()}
 	var res *match.YieldResult
 	var err error
 	if ne.set != nil {
@@ -115,23 +121,28 @@ func (sc *scene) yield() (*match.YieldResult, string) {
 		res, err = match.Yield(ctx, l, bands, ne.board.Network, ys)
 	}
 	if err != nil {
-		sc.yieldMsg = "Yield: " + plainDetail(err.Error())
-		return nil, sc.yieldMsg
+		return nil, "Yield: " + plainDetail(err.Error())
 	}
-	sc.yieldRes = res
 	return res, ""
 }
 
 // yieldView summarises the Monte Carlo for the panel.
 func (sc *scene) yieldView() web.YieldView {
 	ne := sc.net
-	v := web.YieldView{}
 	if ne == nil || ne.err != nil {
-		return v
+		return web.YieldView{}
 	}
-	v.On = ne.n.YieldBuilds > 0
 	res, msg := sc.yield()
-	v.Note = msg
+	v := sc.yieldViewOf(res, msg)
+	v.On = ne.n.YieldBuilds > 0
+	return v
+}
+
+// yieldViewOf words a Monte Carlo's result as the panel and the report
+// show it.
+func (sc *scene) yieldViewOf(res *match.YieldResult, msg string) web.YieldView {
+	ne := sc.net
+	v := web.YieldView{Note: msg}
 	if res == nil {
 		return v
 	}

@@ -1,45 +1,75 @@
 package server
 
 import (
-	"bufio"
+	"bytes"
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
-	"io"
 	"math"
+	"math/cmplx"
 	"net/http"
+	"path"
 	"strconv"
 	"strings"
-	"time"
 
-	"matchbench/chartsvg"
+	"github.com/go-chi/chi/v5"
+
 	"matchbench/rfmath"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
+	"matchbench/rfmath/spice"
 	"matchbench/rfmath/touchstone"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
 	"matchbench/web"
 )
 
+// Every export is made whole in memory before anything is sent: an export
+// that cannot be made answers with an error status and a message that says
+// why, never 200 with an empty or cut file.
+
+// send answers with a finished file as an attachment.
+func send(w http.ResponseWriter, name, ctype string, body []byte) {
+	attachment(w, name, ctype)
+	w.Header().Set("Content-Length", strconv.Itoa(len(body)))
+	w.WriteHeader(http.StatusOK)
+	w.Write(body)
+}
+
+// exportFailed answers an export that could not be made: 422 with what
+// could not be made and why (the cause is the network's or the sweep's,
+// not the server's).
+func (s *Server) exportFailed(w http.ResponseWriter, what string, err error) {
+	s.log.Info("export refused", "export", what, "err", err)
+	http.Error(w, "The "+what+" cannot be made: "+err.Error(), http.StatusUnprocessableEntity)
+}
+
 // activeNet loads the request's session and its active network, answering
-// 404 when it has none.
+// 404 when it has none and 422 when it cannot be evaluated.
 func (s *Server) activeNet(w http.ResponseWriter, r *http.Request) (*scene, *netEval, bool) {
 	sc, ok := s.requestScene(w, r)
 	if !ok {
 		return nil, nil, false
 	}
-	if sc.net == nil || sc.net.err != nil {
+	if sc.net == nil {
 		http.Error(w, "This session has no matching network to export.", http.StatusNotFound)
+		return nil, nil, false
+	}
+	if sc.net.err != nil {
+		http.Error(w, "The matching network cannot be evaluated: "+sc.net.err.Error(), http.StatusUnprocessableEntity)
 		return nil, nil, false
 	}
 	return sc, sc.net, true
 }
 
-// netComments describe a network in an exported file's header.
+// netComments describe a network in an exported file's header: the
+// session, the load and its reference plane, the references, the parts.
 func netComments(sc *scene, ne *netEval) []string {
 	c := []string{
 		fmt.Sprintf(" matchbench session %q, network %q", sc.st.Name, ne.n.Name),
 		fmt.Sprintf(" load: sweep %q, S%d%d; design frequency %s", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port, fmtF(ne.n.DesignHz)),
+		" " + loadPlaneText(sc, ne.n.SweepID),
+		fmt.Sprintf(" source and load references: %s (the load sweep's reference)", units.Format(ne.z0, "Ω", 6)),
 		" parts from the load toward the source:",
 	}
 	for i := range ne.n.Parts {
@@ -49,6 +79,19 @@ func netComments(sc *scene, ne *netEval) []string {
 		c = append(c, " on the board: "+ne.lay.Describe(ne.built)+" (included in the figures)")
 	}
 	return touchstone.CommentLines(c)
+}
+
+// loadPlaneText says at which reference plane a sweep is: as measured, or
+// with its reference-plane steps.
+func loadPlaneText(sc *scene, sweepID string) string {
+	i := sc.st.SweepIndex(sweepID)
+	if i < 0 || sc.st.Sweeps[i].RefPlane == nil {
+		return "reference plane: as measured"
+	}
+	if e := sc.errs[sweepID]; e != "" {
+		return "reference plane: " + e
+	}
+	return "reference plane corrected: " + strings.Join(planeSteps(sc.st, sc.st.Sweeps[i].RefPlane), "; ")
 }
 
 func sweepName(st *sessions.State, id string) string {
@@ -71,32 +114,49 @@ func partLine(ne *netEval, i int) string {
 	return s
 }
 
-func (s *Server) exportMatched(w http.ResponseWriter, r *http.Request) {
-	sc, ne, ok := s.activeNet(w, r)
-	if !ok {
-		return
+// finiteSweep reports the first point of s that is not finite.
+func finiteSweep(s *rfmath.Sweep) error {
+	for k := range s.Len() {
+		for _, v := range s.Matrix(k) {
+			if cmplx.IsNaN(v) || cmplx.IsInf(v) {
+				return fmt.Errorf("the response at %s is not a finite number; check the parts' figures", fmtF(s.FreqHz[k]))
+			}
+		}
 	}
+	return nil
+}
+
+// touchstoneFile writes s as Touchstone with comments, refusing a sweep
+// that is not finite.
+func touchstoneFile(s *rfmath.Sweep, opt touchstone.WriteOptions) ([]byte, error) {
+	if err := finiteSweep(s); err != nil {
+		return nil, err
+	}
+	var b bytes.Buffer
+	if err := touchstone.Write(&b, s, opt); err != nil {
+		return nil, err
+	}
+	return b.Bytes(), nil
+}
+
+// matchedFile is the matched response as Touchstone: the load's
+// reflection seen through the network as built.
+func (sc *scene) matchedFile() ([]byte, error) {
+	ne := sc.net
 	out := rfmath.NewSweep(ne.sweep.Len(), 1, ne.z0)
 	copy(out.FreqHz, ne.sweep.FreqHz)
 	copy(out.Data, ne.result())
-	attachment(w, safeName(ne.n.Name)+"-matched.s1p", "text/plain; charset=utf-8")
-	bw := bufio.NewWriter(w)
 	comments := append([]string{" input reflection of the load seen through the network (standard values where set)"}, netComments(sc, ne)...)
-	if err := touchstone.Write(bw, out, touchstone.WriteOptions{Comments: comments}); err != nil {
-		s.log.Error("export matched", "err", err)
-	}
-	bw.Flush()
+	return touchstoneFile(out, touchstone.WriteOptions{Comments: comments})
 }
 
-func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
-	sc, ne, ok := s.activeNet(w, r)
-	if !ok {
-		return
-	}
+// network2File is the network as built as a 2-port Touchstone file,
+// port 1 toward the source.
+func (sc *scene) network2File() ([]byte, error) {
+	ne := sc.net
 	l, err := ne.board.Network.Ladder()
 	if err != nil {
-		http.Error(w, "The network cannot be built: "+err.Error(), http.StatusUnprocessableEntity)
-		return
+		return nil, err
 	}
 	out := rfmath.NewSweep(ne.sweep.Len(), 2, ne.z0)
 	copy(out.FreqHz, ne.sweep.FreqHz)
@@ -104,124 +164,64 @@ func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
 		sm := rfmath.ABCDToS(l.ABCD(f), ne.z0, ne.z0)
 		copy(out.Matrix(k), sm[:])
 	}
-	attachment(w, safeName(ne.n.Name)+"-network.s2p", "text/plain; charset=utf-8")
-	bw := bufio.NewWriter(w)
 	comments := append([]string{" the matching network alone: port 1 faces the source (radio), port 2 the load"}, netComments(sc, ne)...)
-	if err := touchstone.Write(bw, out, touchstone.WriteOptions{Comments: comments}); err != nil {
-		s.log.Error("export network", "err", err)
-	}
-	bw.Flush()
+	return touchstoneFile(out, touchstone.WriteOptions{Comments: comments})
 }
 
-// spiceValue writes v with a SPICE scale suffix (f p n u m k meg g t);
-// SPICE reads "m" as milli and "meg" as mega.
-func spiceValue(v float64) string {
-	type sfx struct {
-		exp float64
-		s   string
+func (s *Server) exportMatched(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
 	}
-	for _, x := range []sfx{{12, "t"}, {9, "g"}, {6, "meg"}, {3, "k"}, {0, ""}, {-3, "m"}, {-6, "u"}, {-9, "n"}, {-12, "p"}, {-15, "f"}} {
-		if math.Abs(v) >= math.Pow(10, x.exp)*0.9999999 {
-			return strconv.FormatFloat(v/math.Pow(10, x.exp), 'g', 6, 64) + x.s
-		}
+	b, err := sc.matchedFile()
+	if err != nil {
+		s.exportFailed(w, "matched response", err)
+		return
 	}
-	return strconv.FormatFloat(v, 'g', 6, 64)
+	send(w, safeName(ne.n.Name)+"-matched.s1p", "text/plain; charset=utf-8", b)
 }
 
-// writeNetlist writes the network as a SPICE subcircuit with nodes SRC
-// (toward the radio), LOAD (toward the antenna) and 0. Part models appear
-// as their parasitic elements; an inductor's loss resistance, which grows
-// with frequency in the model, is written at the design frequency.
-func writeNetlist(w io.Writer, sc *scene, ne *netEval) error {
-	bw := bufio.NewWriter(w)
-	name := strings.ToUpper(safeName(ne.n.Name))
-	for _, c := range netComments(sc, ne) {
-		fmt.Fprintf(bw, "*%s\n", c)
+func (s *Server) exportNetwork2(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
 	}
-	fmt.Fprintf(bw, "* nodes: SRC faces the source (radio), LOAD the load (antenna), 0 ground\n")
-	fmt.Fprintf(bw, ".SUBCKT MATCH_%s SRC LOAD 0\n", name)
-	els := ne.board.Network
-	node := func(k int) string { // node between element k-1 and element k, from the load
-		switch {
-		case k == 0:
-			return "LOAD"
-		case k == len(els):
-			return "SRC"
-		}
-		return "N" + strconv.Itoa(k)
+	b, err := sc.network2File()
+	if err != nil {
+		s.exportFailed(w, "network's 2-port", err)
+		return
 	}
-	fd := ne.n.DesignHz
-	for k, p := range els {
-		ref := netlistRef(ne, k)
-		a, b := node(k), node(k+1)
-		if p.Kind.Shunt() {
-			// A shunt part hangs from this part's node; the line runs on.
-			fmt.Fprintf(bw, "R%s_THRU %s %s 0\n", ref, a, b)
-			b = "0"
-		}
-		v := p.Value
-		switch c := p.Component(v).(type) {
-		case parts.Inductor:
-			mid := ref + "_R"
-			fmt.Fprintf(bw, "L%s %s %s %s\n", ref, a, mid, spiceValue(c.LH))
-			fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", mid, b, spiceValue(math.Max(c.SeriesROhm(fd), 1e-6)))
-			if cp := c.ParallelCF(); cp > 0 {
-				fmt.Fprintf(bw, "C%s %s %s %s\n", ref+"_P", a, b, spiceValue(cp))
-			}
-		case parts.IdealInductor:
-			fmt.Fprintf(bw, "L%s %s %s %s\n", ref, a, b, spiceValue(c.LH))
-		case parts.Capacitor:
-			m1, m2 := ref+"_ESR", ref+"_ESL"
-			esr := c.ESR()
-			fmt.Fprintf(bw, "C%s %s %s %s\n", ref, a, m1, spiceValue(c.CF))
-			if c.SRFHz > 0 {
-				ls := 1 / (math.Pow(2*math.Pi*c.SRFHz, 2) * c.CF)
-				fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", m1, m2, spiceValue(math.Max(esr, 1e-6)))
-				fmt.Fprintf(bw, "L%s %s %s %s\n", ref+"_S", m2, b, spiceValue(ls))
-			} else {
-				fmt.Fprintf(bw, "R%s %s %s %s\n", ref+"_LOSS", m1, b, spiceValue(math.Max(esr, 1e-6)))
-			}
-		case parts.IdealCapacitor:
-			fmt.Fprintf(bw, "C%s %s %s %s\n", ref, a, b, spiceValue(c.CF))
-		case parts.Resistor:
-			if c.ESLH > 0 {
-				fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, ref+"_L", spiceValue(c.ROhm))
-				fmt.Fprintf(bw, "L%s %s %s %s\n", ref+"_S", ref+"_L", b, spiceValue(c.ESLH))
-			} else {
-				fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, b, spiceValue(c.ROhm))
-			}
-		case parts.IdealResistor:
-			fmt.Fprintf(bw, "R%s %s %s %s\n", ref, a, b, spiceValue(c.ROhm))
-		case nil:
-			e, err := p.Element(v)
-			if err != nil {
-				return err
-			}
-			switch el := e.(type) {
-			case rfmath.Line:
-				fmt.Fprintf(bw, "T%s %s 0 %s 0 Z0=%s TD=%s\n", ref, a, b, spiceValue(el.Z0Ohm), spiceValue(el.DelayS()))
-				if el.LossDBPerM > 0 {
-					fmt.Fprintf(bw, "* T%s: the line's loss (%.3g dB/m at %s) is not in this lossless model\n", ref, el.LossDBPerM, fmtF(el.LossRefHz))
-				}
-			case rfmath.ShuntStub:
-				end := ref + "_END"
-				fmt.Fprintf(bw, "T%s %s 0 %s 0 Z0=%s TD=%s\n", ref, a, end, spiceValue(el.Line.Z0Ohm), spiceValue(el.Line.DelayS()))
-				if el.Open {
-					fmt.Fprintf(bw, "R%s %s 0 1e12\n", ref+"_OPEN", end)
-				} else {
-					fmt.Fprintf(bw, "R%s %s 0 1e-6\n", ref+"_SHORT", end)
-				}
-			case rfmath.Transformer:
-				// An ideal n:1 transformer from a tightly coupled pair; the
-				// load side (secondary, n turns relative) sees n² impedance.
-				fmt.Fprintf(bw, "L%s_P %s 0 1\n", ref, b)
-				fmt.Fprintf(bw, "L%s_S %s 0 %s\n", ref, a, spiceValue(1/(el.Ratio*el.Ratio)))
-				fmt.Fprintf(bw, "K%s L%s_P L%s_S 0.999999\n", ref, ref, ref)
-			}
-		}
+	send(w, safeName(ne.n.Name)+"-network.s2p", "text/plain; charset=utf-8", b)
+}
+
+// netlist writes the active network as a SPICE subcircuit (rfmath/spice),
+// with its board's pads and traces where it has a board, its lossy parts'
+// equivalents fitted across the load sweep and best in the session's
+// bands.
+func (sc *scene) netlist() ([]byte, []spice.PartSummary, error) {
+	ne := sc.net
+	bands, _ := ne.netBands(sc.st, false)
+	fs := ne.sweep.FreqHz
+	lo := fs[0]
+	for k := 0; !(lo > 0) && k < len(fs); k++ { // a point at DC holds no fit
+		lo = fs[k]
 	}
-	fmt.Fprintf(bw, ".ENDS MATCH_%s\n", name)
-	return bw.Flush()
+	spec := spice.FitSpec{Span: spice.Range{LoHz: lo, HiHz: fs[len(fs)-1]}, Z0Ohm: ne.z0}
+	for _, b := range bands {
+		spec.Bands = append(spec.Bands, spice.Range{LoHz: b.LoHz, HiHz: b.HiHz})
+	}
+	if len(spec.Bands) == 0 {
+		spec.Bands = []spice.Range{{LoHz: ne.n.DesignHz, HiHz: ne.n.DesignHz}}
+	}
+	// The network as its figures judge it: on a board, with the board's
+	// pads and traces between the parts.
+	des := make([]string, len(ne.board.Network))
+	for j := range des {
+		des[j] = netlistRef(ne, j)
+	}
+	var b bytes.Buffer
+	sums, err := spice.Write(&b, ne.board.Network, spice.Options{Name: "MATCH_" + safeName(ne.n.Name), Designators: des, Fit: spec, Comments: netComments(sc, ne)})
+	return b.Bytes(), sums, err
 }
 
 // netlistRef names element k of the board's network in a netlist: the
@@ -243,13 +243,26 @@ func (s *Server) exportNetlist(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	attachment(w, safeName(ne.n.Name)+".cir", "text/plain; charset=utf-8")
-	if err := writeNetlist(w, sc, ne); err != nil {
-		s.log.Error("export netlist", "err", err)
+	b, _, err := sc.netlist()
+	if err != nil {
+		s.exportFailed(w, "SPICE netlist", err)
+		return
 	}
+	send(w, safeName(ne.n.Name)+".cir", "text/plain; charset=utf-8", b)
 }
 
-// exportNetworkFile writes the active network with its board as a network
+// safeCell neutralises a spreadsheet formula: a cell of user text that
+// begins with =, +, -, @, a tab or a carriage return gets a leading
+// apostrophe, so that a spreadsheet shows it as text instead of running
+// it (common practice, as the OWASP note on CSV injection describes).
+func safeCell(s string) string {
+	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
+		return "'" + s
+	}
+	return s
+}
+
+// exportNetworkFile sends the active network with its board as a network
 // file (rfmath/match's NET.json, the format `matchbench tune --network`
 // reads and `matchbench match --json` writes).
 func (s *Server) exportNetworkFile(w http.ResponseWriter, r *http.Request) {
@@ -259,35 +272,152 @@ func (s *Server) exportNetworkFile(w http.ResponseWriter, r *http.Request) {
 	}
 	b, err := match.MarshalNetwork(ne.design, ne.lay)
 	if err != nil {
-		s.log.Error("export network file", "err", err)
-		http.Error(w, "The network cannot be written.", http.StatusInternalServerError)
+		s.exportFailed(w, "network file", err)
 		return
 	}
-	attachment(w, safeName(ne.n.Name)+".json", "application/json")
-	w.Write(b)
+	send(w, safeName(ne.n.Name)+".json", "application/json", b)
 }
 
-// partsRows are the parts list: designator, kind, value, series,
-// tolerance, size, rating.
-func partsRows(ne *netEval) [][]string {
-	rows := [][]string{{"designator", "kind", "value", "value_si", "typed_value_si", "series", "tolerance", "size", "rating"}}
-	for i, p := range ne.n.Parts {
-		d := ne.built[i]
-		v := d.Value
-		u := p.Kind.Unit()
-		tol, size, rating := "", "", ""
-		if p.Kind.Component() != "" {
-			t := d.Tolerance()
-			tol = fmt.Sprintf("±%s (±%.3g %%, at least ±%s; typical, from memory)", units.Format(t.Of(v), u, 3), 100*t.Rel, units.Format(t.Abs, u, 3))
-			if fam, ok := d.Model.(*parts.Family); ok {
-				size = fam.Name
+// csvBytes writes rows as CSV, neutralising every cell of text (cells
+// flagged in num hold numbers the program wrote and are left as they are).
+func csvBytes(rows [][]string, num func(col int) bool) ([]byte, error) {
+	var b bytes.Buffer
+	cw := csv.NewWriter(&b)
+	for _, row := range rows {
+		out := make([]string, len(row))
+		for i, c := range row {
+			if num != nil && num(i) {
+				out[i] = c
+			} else {
+				out[i] = safeCell(c)
 			}
-			rating = ratingText(d.Rating(v))
 		}
-		rows = append(rows, []string{designator(ne.n.Parts, i), kindLabels[p.Kind], units.Format(v, u, 4),
-			strconv.FormatFloat(v, 'g', 6, 64), strconv.FormatFloat(p.Value, 'g', 6, 64), p.ESeries, tol, size, rating})
+		cw.Write(out)
 	}
-	return rows
+	cw.Flush()
+	return b.Bytes(), cw.Error()
+}
+
+func (s *Server) exportParts(w http.ResponseWriter, r *http.Request) {
+	_, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	rows := [][]string{bomHeader}
+	for _, l := range bom(ne) {
+		rows = append(rows, l.row())
+	}
+	b, err := csvBytes(rows, nil)
+	if err != nil {
+		s.exportFailed(w, "parts list", err)
+		return
+	}
+	send(w, safeName(ne.n.Name)+"-parts.csv", "text/csv; charset=utf-8", b)
+}
+
+// partsJSON is the parts list as JSON.
+type partsJSON struct {
+	Session string `json:"session"`
+	Network string `json:"network"`
+	Note    string `json:"note"`
+	// Board is the board the network is built on, in words (its pads and
+	// traces are not parts to buy; the figures include them); "" for none.
+	Board string    `json:"board,omitempty"`
+	Lines []bomLine `json:"lines"`
+}
+
+func (s *Server) exportPartsJSON(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	pj := partsJSON{Session: sc.st.Name, Network: ne.n.Name, Lines: bom(ne),
+		Note: "values as built (standard values where a series is set); typical model figures are from memory, not a vendor's data"}
+	if !ne.lay.IsZero() {
+		pj.Board = ne.lay.Describe(ne.built)
+	}
+	b, err := json.MarshalIndent(pj, "", "  ")
+	if err != nil {
+		s.exportFailed(w, "parts list", err)
+		return
+	}
+	send(w, safeName(ne.n.Name)+"-parts.json", "application/json", append(b, '\n'))
+}
+
+func (s *Server) exportSchematic(w http.ResponseWriter, r *http.Request) {
+	sc, ne, ok := s.activeNet(w, r)
+	if !ok {
+		return
+	}
+	svg, err := sc.schematicSVG("")
+	if err != nil {
+		s.exportFailed(w, "schematic", err)
+		return
+	}
+	send(w, safeName(ne.n.Name)+"-schematic.svg", "image/svg+xml", []byte(svg))
+}
+
+// exportCorrected sends a sweep at its corrected reference plane (the
+// fixture removed, the port extension and the change of reference applied)
+// as Touchstone 1.1 (.sNp), 2.1 (.ts) or CSV. A sweep without a plane is
+// sent as it was read.
+func (s *Server) exportCorrected(w http.ResponseWriter, r *http.Request) {
+	sc, ok := s.requestScene(w, r)
+	if !ok {
+		return
+	}
+	id, ext := chi.URLParam(r, "sweep"), strings.ToLower(chi.URLParam(r, "ext"))
+	i := sc.st.SweepIndex(id)
+	sw := sc.all[id]
+	if i < 0 || sw == nil {
+		http.Error(w, "No such sweep in this session.", http.StatusNotFound)
+		return
+	}
+	ref := sc.st.Sweeps[i]
+	if e := sc.errs[id]; e != "" {
+		s.exportFailed(w, "corrected sweep", fmt.Errorf("%s", e))
+		return
+	}
+	name := safeName(ref.Name) + "-corrected"
+	comments := touchstone.CommentLines([]string{
+		fmt.Sprintf(" matchbench session %q, sweep %q (file %s)", sc.st.Name, ref.Name, ref.FileName),
+		" " + loadPlaneText(sc, id),
+	})
+	var b []byte
+	var err error
+	switch {
+	case ext == "csv":
+		if err = finiteSweep(sw); err == nil {
+			var buf bytes.Buffer
+			err = touchstone.WriteCSV(&buf, sw)
+			b = buf.Bytes()
+		}
+		name += ".csv"
+	case ext == "ts":
+		b, err = touchstoneFile(sw, touchstone.WriteOptions{Version: 2, Comments: comments})
+		name += ".ts"
+	default:
+		n, ok := touchstone.PortsFromName("x." + ext)
+		if !ok {
+			http.Error(w, "Ask for .s"+strconv.Itoa(sw.Ports)+"p, .ts or .csv.", http.StatusNotFound)
+			return
+		}
+		if n != sw.Ports {
+			http.Error(w, fmt.Sprintf("This sweep has %d port(s): ask for .s%dp (or .ts, .csv).", sw.Ports, sw.Ports), http.StatusNotFound)
+			return
+		}
+		b, err = touchstoneFile(sw, touchstone.WriteOptions{Comments: comments})
+		name += "." + ext
+	}
+	if err != nil {
+		s.exportFailed(w, "corrected sweep", err)
+		return
+	}
+	ctype := "text/plain; charset=utf-8"
+	if path.Ext(name) == ".csv" {
+		ctype = "text/csv; charset=utf-8"
+	}
+	send(w, name, ctype, b)
 }
 
 func ratingText(rt parts.Rating) string {
@@ -302,16 +432,6 @@ func ratingText(rt parts.Rating) string {
 		s = append(s, fmt.Sprintf("%.3g W", rt.MaxPowerW))
 	}
 	return strings.Join(s, ", ")
-}
-
-func (s *Server) exportParts(w http.ResponseWriter, r *http.Request) {
-	_, ne, ok := s.activeNet(w, r)
-	if !ok {
-		return
-	}
-	attachment(w, safeName(ne.n.Name)+"-parts.csv", "text/csv; charset=utf-8")
-	cw := csv.NewWriter(w)
-	cw.WriteAll(partsRows(ne))
 }
 
 // powerRows gives each part's worst peak voltage, RMS current and
@@ -348,34 +468,5 @@ func (sc *scene) powerRows() ([]web.PowerRow, string) {
 	return rows, note
 }
 
-func (s *Server) report(w http.ResponseWriter, r *http.Request) {
-	sc, ne, ok := s.activeNet(w, r)
-	if !ok {
-		return
-	}
-	load := chartsvg.Trace{ID: "load", Name: sweepName(sc.st, ne.n.SweepID), Color: "#1f5fa8", FreqHz: ne.sweep.FreqHz, Gamma: ne.gLoad}
-	ch := sc.chart
-	ch.SizePx = 420
-	var before, after, plotB strings.Builder
-	ch.Render(&before, []chartsvg.Trace{load}, nil, nil)
-	path, handles := ne.path(-1, 0, 1)
-	ch.IDPrefix = "after-"
-	ch.Render(&after, append([]chartsvg.Trace{load}, sc.netTraces()...), handles, path)
-	for _, p := range sc.plots() {
-		if p.id == "refl" {
-			p.render(&plotB, nil)
-		}
-	}
-	rows := partsRows(ne)
-	nv := sc.networkView()
-	v := web.ReportView{
-		Title: ne.n.Name + " report · matchbench", Session: sc.st.Name, Network: ne.n.Name,
-		Load: fmt.Sprintf("%s S%d%d", sweepName(sc.st, ne.n.SweepID), ne.port, ne.port), Design: fmtF(ne.n.DesignHz),
-		Generated: time.Now().Format("2006-01-02 15:04"), ChartBefore: before.String(), ChartAfter: after.String(), Plot: plotB.String(),
-		Metrics: nv.Metrics, PartsHeader: rows[0], Parts: rows[1:], Power: nv.Power, PowerW: nv.PowerW, Set: nv.Set,
-	}
-	if !ne.lay.IsZero() {
-		v.Board = ne.lay.Describe(ne.built)
-	}
-	s.render(w, r, http.StatusOK, web.ReportPage(v))
-}
+// finite reports whether v is a finite number.
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

@@ -56,6 +56,12 @@ func TestForgedHostRefused(t *testing.T) {
 		{"new session", "POST", "/sessions", "name=x"},
 		{"re-issue", "POST", "/s/" + f.sess.EditToken + "/reissue", "confirm=1"},
 		{"raw file", "GET", "/s/" + f.sess.EditToken + "/sweeps/" + f.sweep + "/file", ""},
+		{"corrected sweep", "GET", "/s/" + f.sess.EditToken + "/sweeps/" + f.sweep + "/corrected.csv", ""},
+		{"session archive", "GET", "/s/" + f.sess.EditToken + "/export/session.zip", ""},
+		{"import an archive", "POST", "/sessions/import", "archive=x"},
+		{"report", "GET", "/s/" + f.sess.EditToken + "/report", ""},
+		{"parts list", "GET", "/s/" + f.sess.EditToken + "/export/parts.json", ""},
+		{"schematic", "GET", "/s/" + f.sess.EditToken + "/export/schematic.svg", ""},
 		{"static", "GET", "/static/app.js", ""},
 	}
 	for _, tc := range cases {

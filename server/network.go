@@ -137,16 +137,16 @@ func (ne *netEval) elem(i int) int {
 func (ne *netEval) elementName(j int) string { return ne.board.Name(ne.design, j) }
 
 // designOf adapts the stored network's parts to the design type that the
-// search, the yield, the panel and the exports all judge: the one adapter
-// from stored parts to rfmath.
+// search, the yield, the panel and the exports all judge, each by the one
+// adapter from a stored part to rfmath ([sessions.Part.Design]).
 func designOf(n *sessions.Network) (match.Network, error) {
 	out := make(match.Network, len(n.Parts))
 	for i, p := range n.Parts {
-		m, err := parts.LookupModel(p.Model)
+		d, err := p.Design()
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", designator(n.Parts, i), err)
 		}
-		out[i] = match.Part{Kind: p.Kind, Value: p.Value, Series: p.ESeries, Model: m, Params: p.Params}
+		out[i] = d
 	}
 	return out, nil
 }
@@ -427,6 +427,9 @@ func (sc *scene) networkView() web.NetworkView {
 		v.Sets = append(v.Sets, web.Option{Value: s.ID, Label: s.Name, Selected: s.ID == n.SetID})
 	}
 	v.HasBuy = ne.buy != nil
+	if svg, err := sc.schematicSVG("net-"); err == nil {
+		v.Schematic = svg
+	}
 	v.Power, v.PowerNote = sc.powerRows()
 	v.Search = sc.searchView()
 	v.Limits = sc.limits()

@@ -194,21 +194,28 @@ func TestNetworkExports(t *testing.T) {
 		}
 		elems[fs[0]] = [3]string{fs[1], fs[2], fs[3]}
 	}
-	if !strings.Contains(net, ".SUBCKT MATCH_LSEC SRC LOAD 0") || !strings.Contains(net, ".ENDS") {
+	if !strings.Contains(net, ".SUBCKT MATCH_LSEC SRC LOAD\n") || !strings.Contains(net, ".ENDS MATCH_LSEC") {
 		t.Errorf("netlist lacks its subcircuit lines:\n%s", net)
 	}
-	if e := elems["CC1"]; e[0] != "LOAD" || e[1] != "0" || spiceNum(t, e[2]) != 13.783e-12 {
+	// The shunt C hangs from LOAD to ground; the series L, the last series
+	// part, runs from LOAD to SRC (no through elements).
+	if e := elems["C_C1"]; e[0] != "LOAD" || e[1] != "0" || spiceNum(t, e[2]) != 13.783e-12 {
 		t.Errorf("C1 = %v, want LOAD 0 13.783p", e)
 	}
-	if e := elems["LL1"]; e[0] != "N1" || e[1] != "SRC" || math.Abs(spiceNum(t, e[2])-137.83e-9) > 1e-15 {
-		t.Errorf("L1 = %v, want N1 SRC 137.83n", e)
+	if e := elems["L_L1"]; e[0] != "LOAD" || e[1] != "SRC" || math.Abs(spiceNum(t, e[2])-137.83e-9) > 1e-15 {
+		t.Errorf("L1 = %v, want LOAD SRC 137.83n", e)
+	}
+	if len(elems) != 2 {
+		t.Errorf("%d elements, want 2: %v", len(elems), elems)
 	}
 	rows, err := csv.NewReader(strings.NewReader(fetch(t, base+"/export/parts.csv"))).ReadAll()
-	if err != nil || len(rows) != 3 || rows[1][0] != "C1" || rows[2][0] != "L1" || rows[2][1] != "series L" {
+	if err != nil || len(rows) != 3 || rows[0][0] != "Designators" || rows[1][0] != "C1" || rows[1][2] != "capacitor" || rows[1][3] != "13.8pF" ||
+		rows[2][0] != "L1" || rows[2][2] != "inductor" || rows[2][3] != "138nH" || rows[1][5] != "C0G (NP0)" {
 		t.Errorf("parts.csv %v, %v", rows, err)
 	}
 	page := fetch(t, base+"/report")
-	for _, want := range []string{"Lsec: matching network report", `data-testid="report-parts"`, "Cautions", "137.8 nH"} {
+	for _, want := range []string{"Matching network design review", "<h1>Lsec</h1>", `data-testid="report-parts"`, "Cautions", "138nH",
+		"The load as measured.", `data-testid="report-schematic"`, "no fixture was removed"} {
 		if !strings.Contains(page, want) {
 			t.Errorf("report lacks %q", want)
 		}

@@ -1,15 +1,17 @@
 package server
 
 import (
+	"bytes"
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"mime"
 	"net/http"
 	"path"
+	"strconv"
 	"strings"
 	"unicode"
 	"unicode/utf8"
@@ -69,7 +71,12 @@ func (s *Server) render(w http.ResponseWriter, r *http.Request, status int, c te
 }
 
 func (s *Server) start(w http.ResponseWriter, r *http.Request) {
-	v := web.StartView{Local: isLoopback(r)}
+	s.render(w, r, http.StatusOK, web.StartPage(s.startView(r, "")))
+}
+
+// startView builds the start page, with msg as its error when not empty.
+func (s *Server) startView(r *http.Request, msg string) web.StartView {
+	v := web.StartView{Local: isLoopback(r), Error: msg}
 	if s.cfg.LAN {
 		v.LAN = s.cfg.ShareHosts
 	}
@@ -92,7 +99,7 @@ func (s *Server) start(w http.ResponseWriter, r *http.Request) {
 			})
 		}
 	}
-	s.render(w, r, http.StatusOK, web.StartPage(v))
+	return v
 }
 
 // openLocal sends the bench computer's own user to a session by its id
@@ -296,10 +303,12 @@ func (s *Server) exportChart(w http.ResponseWriter, r *http.Request) {
 	if !ok {
 		return
 	}
-	attachment(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml")
-	if err := sc.renderChartView(w, viewFromQuery(r.URL.Query())); err != nil {
-		s.log.Error("export chart", "err", err)
+	var b bytes.Buffer
+	if err := sc.renderChartView(&b, viewFromQuery(r.URL.Query())); err != nil {
+		s.exportFailed(w, "chart", err)
+		return
 	}
+	send(w, safeName(sc.st.Name)+"-chart.svg", "image/svg+xml", b.Bytes())
 }
 
 func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
@@ -310,34 +319,42 @@ func (s *Server) exportPlot(w http.ResponseWriter, r *http.Request) {
 	id := chi.URLParam(r, "plot")
 	for _, p := range sc.plotsFor(viewFromQuery(r.URL.Query())) {
 		if p.id == id {
-			attachment(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml")
-			if err := p.render(w, sc.plotMarkers()); err != nil {
-				s.log.Error("export plot", "err", err)
+			var b bytes.Buffer
+			if err := p.render(&b, sc.plotMarkers()); err != nil {
+				s.exportFailed(w, "plot", err)
+				return
 			}
+			send(w, safeName(sc.st.Name)+"-"+id+".svg", "image/svg+xml", b.Bytes())
 			return
 		}
 	}
 	http.Error(w, "no such plot", http.StatusNotFound)
 }
 
+// exportMarkers sends the markers' readouts as CSV. Labels and sweep
+// names are the user's text: a cell that a spreadsheet would run as a
+// formula is neutralised (safeCell); the numbers are written as they are.
 func (s *Server) exportMarkers(w http.ResponseWriter, r *http.Request) {
 	sc, ok := s.requestScene(w, r)
 	if !ok {
 		return
 	}
-	attachment(w, safeName(sc.st.Name)+"-markers.csv", "text/csv; charset=utf-8")
-	cw := csv.NewWriter(w)
-	cw.Write([]string{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
-		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"})
+	rows := [][]string{{"marker", "label", "sweep", "param", "freq_hz", "r_ohm", "x_ohm", "gamma_mag", "gamma_deg",
+		"return_loss_db", "vswr", "mismatch_loss_db", "q", "equiv_kind", "equiv_value"}}
 	for _, m := range sc.readouts() {
 		ro := m.ro
-		cw.Write([]string{
+		rows = append(rows, []string{
 			fmt.Sprint(m.num), m.label, m.sweepName, fmt.Sprintf("S%d%d", m.port, m.port),
 			g(ro.FreqHz), g(real(ro.Z)), g(imag(ro.Z)), g(ro.GammaMag), g(ro.GammaDeg),
 			g(ro.ReturnLossDB), g(ro.VSWR), g(ro.MismatchLossDB), g(ro.Q), ro.Equiv.Kind, g(ro.Equiv.Value),
 		})
 	}
-	cw.Flush()
+	b, err := csvBytes(rows, func(col int) bool { return col >= 4 && col != 13 })
+	if err != nil {
+		s.exportFailed(w, "markers list", err)
+		return
+	}
+	send(w, safeName(sc.st.Name)+"-markers.csv", "text/csv; charset=utf-8", b)
 }
 
 // requestScene builds the scene of the request's session, answering the
@@ -352,7 +369,16 @@ func (s *Server) requestScene(w http.ResponseWriter, r *http.Request) (*scene, b
 	return s.scene(a.SessionID, st), true
 }
 
-func g(v float64) string { return fmt.Sprintf("%.10g", v) }
+// g writes a number for a CSV cell: decimal (digits, point, exponent) to
+// ten figures, as a spreadsheet reads it; a figure that is not finite (the
+// VSWR or Q of a point on the rim) is an empty cell, never "+Inf" or "NaN",
+// which a spreadsheet would take for text or a formula.
+func g(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', 10, 64)
+}
 
 func (s *Server) rawFile(w http.ResponseWriter, r *http.Request) {
 	a := accessFrom(r.Context())

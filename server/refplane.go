@@ -331,29 +331,36 @@ func (sc *scene) computeTDR() (*plot, string) {
 	return &plot{id: "tdr", title: "Time domain", p: rp, series: series, bands: bands}, note
 }
 
-// planeSummary says what a sweep's reference plane does, "" for none.
-func (sc *scene) planeSummary(ref sessions.SweepRef) string {
-	rp := ref.RefPlane
-	if rp == nil {
-		return ""
-	}
-	var parts []string
+// planeSteps says what a sweep's reference plane does, step by step, in
+// the order they are applied: the panel, the report and the exported
+// files' headers use these words.
+func planeSteps(st *sessions.State, rp *sessions.RefPlane) []string {
+	var steps []string
 	if rp.FixtureSweepID != "" {
-		parts = append(parts, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(sc.st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
+		steps = append(steps, fmt.Sprintf("fixture %s removed (its port %d at the analyser)", sweepName(st, rp.FixtureSweepID), rp.FixturePortFacingAnalyser))
 	}
 	if rp.DelayS != 0 {
-		parts = append(parts, "delay "+units.Format(rp.DelayS, "s", 4))
+		steps = append(steps, "port extension of "+units.Format(rp.DelayS, "s", 4)+" (one way)")
 	}
 	if rp.LossDB != 0 {
-		parts = append(parts, fmt.Sprintf("loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
+		steps = append(steps, fmt.Sprintf("port extension loss %.3g dB at %s (∝ √f)", rp.LossDB, fmtF(rp.LossRefHz)))
 	}
 	if rp.FlatLossDB != 0 {
-		parts = append(parts, fmt.Sprintf("flat loss %.3g dB", rp.FlatLossDB))
+		steps = append(steps, fmt.Sprintf("port extension flat loss %.3g dB", rp.FlatLossDB))
 	}
 	if rp.RenormOhm > 0 {
-		parts = append(parts, "shown in "+units.Format(rp.RenormOhm, "Ω", 4))
+		steps = append(steps, "renormalised and shown in "+units.Format(rp.RenormOhm, "Ω", 4))
 	}
-	return strings.Join(parts, "; ")
+	return steps
+}
+
+// planeSummary says what a sweep's reference plane does in one line (the
+// steps of planeSteps), "" for none.
+func (sc *scene) planeSummary(ref sessions.SweepRef) string {
+	if ref.RefPlane == nil {
+		return ""
+	}
+	return strings.Join(planeSteps(sc.st, ref.RefPlane), "; ")
 }
 
 // refPlaneView builds the reference-plane and time-domain panels.
@@ -363,6 +370,12 @@ func (sc *scene) refPlaneView() web.RefPlaneView {
 		o := web.RefPlaneRow{ID: ref.ID, Name: ref.Name, Ports: ref.Ports}
 		if rp := ref.RefPlane; rp != nil {
 			o.Summary = sc.planeSummary(ref)
+			base := "sweeps/" + ref.ID + "/corrected."
+			o.Exports = []web.Option{
+				{Value: base + "s" + strconv.Itoa(ref.Ports) + "p", Label: "Touchstone 1.1 (.s" + strconv.Itoa(ref.Ports) + "p)"},
+				{Value: base + "ts", Label: "Touchstone 2.1 (.ts)"},
+				{Value: base + "csv", Label: "CSV"},
+			}
 			o.Delay = units.Format(rp.DelayS, "s", 5)
 			o.Loss = strconv.FormatFloat(rp.LossDB, 'g', 5, 64)
 			o.LossRef = fmtF(rp.LossRefHz)

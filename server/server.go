@@ -6,6 +6,7 @@ package server
 
 import (
 	"context"
+	"io"
 	"io/fs"
 	"log/slog"
 	"net"
@@ -35,6 +36,8 @@ type Store interface {
 	Since(ctx context.Context, sessionID string, v int64) (sessions.Catchup, error)
 	Sweep(sessionID, sweepID string) (*rfmath.Sweep, error)
 	Raw(ctx context.Context, sessionID, sweepID string) ([]byte, string, error)
+	ExportArchive(ctx context.Context, id string, w io.Writer) error
+	ImportArchive(ctx context.Context, r io.ReaderAt, size, maxFileBytes int64, parse sessions.ParseFunc) (*sessions.Session, error)
 	Tokens(ctx context.Context, id string) (edit, view string, err error)
 	ReissueTokens(ctx context.Context, id string) (*sessions.Session, error)
 }
@@ -174,6 +177,7 @@ func (s *Server) routes() http.Handler {
 	r.Handle("/static/*", http.StripPrefix("/static/", staticFiles()))
 	r.Get("/", s.start)
 	r.Post("/sessions", s.createSession)
+	r.Post("/sessions/import", s.importArchive)
 	r.Get("/open/{id}", s.openLocal)
 	r.Route("/s/{token}", func(r chi.Router) {
 		r.Use(s.withSession)
@@ -181,6 +185,9 @@ func (s *Server) routes() http.Handler {
 		r.Post("/upload", s.upload)
 		r.Post("/reissue", s.reissue)
 		r.Get("/sweeps/{sweep}/file", s.rawFile)
+		// The archive is read from the store, not drawn: like the raw
+		// files it runs outside the drawing slot.
+		r.Get("/export/session.zip", s.exportArchive)
 		// What draws the session runs in its drawing slot (see sessionShare).
 		r.Group(func(r chi.Router) {
 			r.Use(s.drawn)
@@ -192,7 +199,10 @@ func (s *Server) routes() http.Handler {
 			r.Get("/export/network.s2p", s.exportNetwork2)
 			r.Get("/export/network.cir", s.exportNetlist)
 			r.Get("/export/parts.csv", s.exportParts)
+			r.Get("/export/parts.json", s.exportPartsJSON)
+			r.Get("/export/schematic.svg", s.exportSchematic)
 			r.Get("/export/network.json", s.exportNetworkFile)
+			r.Get("/sweeps/{sweep}/corrected.{ext}", s.exportCorrected)
 			r.Get("/report", s.report)
 		})
 	})

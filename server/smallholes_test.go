@@ -66,6 +66,49 @@ func TestSlowUploadCut(t *testing.T) {
 	}
 }
 
+// An archive import that trickles in is cut off as an upload is, and the
+// start page says why. (The loopback address sends it: imports are for the
+// bench computer.)
+func TestSlowImportCut(t *testing.T) {
+	t.Parallel()
+	f := newFixtureOpts(t, 11, sessions.Options{}, func(c *Config) {
+		c.BodyGrace, c.BodyMinRate = 300*time.Millisecond, 64<<10
+	})
+	c, err := net.Dial("tcp", f.ts.Listener.Addr().String())
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer c.Close()
+	fmt.Fprintf(c, "POST /sessions/import HTTP/1.1\r\nHost: %s\r\nContent-Type: multipart/form-data; boundary=x\r\nContent-Length: 100000\r\n\r\n"+
+		"--x\r\nContent-Disposition: form-data; name=\"archive\"; filename=\"slow.zip\"\r\n\r\nPK", f.ts.Listener.Addr())
+	stop := make(chan struct{})
+	defer close(stop)
+	go func() { // one byte every 50 ms: 20 B/s
+		for {
+			select {
+			case <-stop:
+				return
+			case <-time.After(50 * time.Millisecond):
+				if _, err := c.Write([]byte("1")); err != nil {
+					return
+				}
+			}
+		}
+	}()
+	c.SetReadDeadline(time.Now().Add(5 * time.Second))
+	res, err := http.ReadResponse(bufio.NewReader(c), nil)
+	if err != nil {
+		t.Fatalf("no answer to the trickling import within 5 s: %v", err)
+	}
+	body, _ := io.ReadAll(res.Body)
+	if res.StatusCode != http.StatusRequestTimeout || !strings.Contains(string(body), "too slowly") {
+		t.Errorf("answer %d %.300s; want 408 saying the upload was too slow", res.StatusCode, body)
+	}
+	if list, err := f.store.List(context.Background()); err != nil || len(list) != 1 {
+		t.Errorf("sessions after the cut import: %d, %v; want the fixture's only", len(list), err)
+	}
+}
+
 // An error reply names what was wrong and where, and quotes little of the
 // input: a CSV whose header is 2 MB gets an answer of a few hundred bytes,
 // and so does a websocket message of an unknown type of 60 kB.

@@ -92,17 +92,25 @@ func TestNetworkBoard(t *testing.T) {
 			elems[fs[0]] = fs[1:]
 		}
 	}
-	// From the load: PAD0, C1, L1, PAD1, TR2, each between its nodes.
-	if e := elems["CPAD0"]; len(e) < 3 || e[0] != "LOAD" || e[1] != "0" || math.Abs(spiceNum(t, e[2])-0.3e-12) > 1e-18 {
-		t.Errorf("CPAD0 %v, want LOAD 0 300f", e)
+	// From the load: PAD0, C1, L1, PAD1, TR2, each between its nodes (the
+	// grammar of rfmath/spice: shunt elements on the node they hang from,
+	// a node opened by each series element, no zero-ohm through elements).
+	if e := elems["C_PAD0"]; len(e) < 3 || e[0] != "LOAD" || e[1] != "0" || math.Abs(spiceNum(t, e[2])-0.3e-12) > 1e-18 {
+		t.Errorf("C_PAD0 %v, want LOAD 0 300f", e)
 	}
-	if e := elems["LL1"]; len(e) < 2 || e[0] != "N2" || e[1] != "N3" {
-		t.Errorf("LL1 %v, want N2 N3", e)
+	if e := elems["C_C1"]; len(e) < 2 || e[0] != "LOAD" || e[1] != "0" {
+		t.Errorf("C_C1 %v, want LOAD 0", e)
 	}
-	if e := elems["TTR2"]; len(e) < 5 || e[0] != "N4" || e[2] != "SRC" || !strings.HasPrefix(e[4], "Z0=50") {
-		t.Errorf("TTR2 %v, want N4 0 SRC 0 Z0=50", e)
+	if e := elems["L_L1"]; len(e) < 2 || e[0] != "LOAD" || e[1] != "N3" {
+		t.Errorf("L_L1 %v, want LOAD N3", e)
 	}
-	if !strings.Contains(net, "on the board: 0603 pads") {
+	if e := elems["C_PAD1"]; len(e) < 3 || e[0] != "N3" || e[1] != "0" || math.Abs(spiceNum(t, e[2])-0.15e-12) > 1e-18 {
+		t.Errorf("C_PAD1 %v, want N3 0 150f", e)
+	}
+	if e := elems["T_TR2"]; len(e) < 5 || e[0] != "N3" || e[2] != "SRC" || !strings.HasPrefix(e[4], "Z0=50") {
+		t.Errorf("T_TR2 %v, want N3 0 SRC 0 Z0=50", e)
+	}
+	if !strings.Contains(net, "on the board: 0603 pads") || !strings.Contains(net, "eps_eff 1") {
 		t.Errorf("netlist header does not describe the board:\n%s", net)
 	}
 	rows, err := csv.NewReader(strings.NewReader(fetch(t, base+"/export/parts.csv"))).ReadAll()

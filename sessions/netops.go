@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"matchbench/rfmath"
+	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
 )
 
@@ -112,6 +113,9 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 			if err := checkPart(op, &p); err != nil {
 				return err
 			}
+			if err := checkPartOn(op, p, ref, design); err != nil {
+				return err
+			}
 			p.ID, err = uniqueID(func(id string) bool { return slices.ContainsFunc(n.Parts, func(q Part) bool { return q.ID == id }) })
 			if err != nil {
 				return err
@@ -202,6 +206,13 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		case ch.ChuRadiusM > 0:
 			n.ChuRadiusM = ch.ChuRadiusM
 		}
+		if ch.SweepID != "" || ch.DesignHz != 0 {
+			for _, p := range n.Parts { // the parts on the new frequencies
+				if err := checkPartOn(op, p, ref, n.DesignHz); err != nil {
+					return err
+				}
+			}
+		}
 		if ch.PowerW != nil {
 			if !finite(*ch.PowerW) || *ch.PowerW < 0 || *ch.PowerW > 1e4 {
 				return invalid(op, "powerW", "%g W is not within 0–10 kW", *ch.PowerW)
@@ -254,6 +265,11 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		if err := checkPart(op, &p); err != nil {
 			return err
 		}
+		if ref, err := sweepRef(n.SweepID); err == nil {
+			if err := checkPartOn(op, p, ref, n.DesignHz); err != nil {
+				return err
+			}
+		}
 		if p.ID, err = uniqueID(func(id string) bool { return slices.ContainsFunc(n.Parts, func(q Part) bool { return q.ID == id }) }); err != nil {
 			return err
 		}
@@ -300,6 +316,11 @@ func computeNetwork(cur, next *State, ch *Change, r *result, lim Limits) error {
 		if err := checkPart(op, &p); err != nil {
 			return err
 		}
+		if ref, err := sweepRef(n.SweepID); err == nil {
+			if err := checkPartOn(op, p, ref, n.DesignHz); err != nil {
+				return err
+			}
+		}
 		n.Parts[j] = p
 		r.ev.PartID = p.ID
 
@@ -343,20 +364,47 @@ func defaultDesignHz(st *State, ref SweepRef) float64 {
 	return (ref.FminHz + ref.FmaxHz) / 2
 }
 
-// partParams are the parameters a part may carry, each with its check.
-var partParams = map[string]func(v float64) bool{
-	"q":          func(v float64) bool { return v >= 0 && v < 1e6 },
-	"qRefHz":     func(v float64) bool { return v > 0 },
-	"srfHz":      func(v float64) bool { return v >= 0 },
-	"esrOhm":     func(v float64) bool { return v >= 0 && v < 1e6 },
-	"z0Ohm":      func(v float64) bool { return v > 0 && v < 1e6 },
-	"vf":         func(v float64) bool { return v > 0 && v <= 1 },
-	"lossDBPerM": func(v float64) bool { return v >= 0 && v < 1e4 },
-	"lossRefHz":  func(v float64) bool { return v > 0 },
-	"tolRel":     func(v float64) bool { return v >= 0 && v < 1 },
-	"tolAbs":     func(v float64) bool { return v >= 0 },
-	"maxV":       func(v float64) bool { return v > 0 },
-	"maxA":       func(v float64) bool { return v > 0 },
+// partParam is the range of one parameter a part may carry: lo ≤ v ≤ hi,
+// or v = 0 where zero is allowed (it means "none": lossless, no
+// self-resonance). The ranges hold every part a bench holds, with room to
+// spare, and keep the arithmetic finite: a Q of 1e-300 at 1e300 Hz would
+// make a loss resistance of +Inf and every export of the network NaN.
+type partParam struct {
+	lo, hi float64
+	zero   bool
+	what   string
+}
+
+var partParams = map[string]partParam{
+	"q":          {0.01, 1e6, true, "a Q of 0.01 to 10⁶ (0: lossless)"},
+	"qRefHz":     {1e3, 1e12, false, "1 kHz to 1 THz"},
+	"srfHz":      {1e3, 1e13, true, "1 kHz to 10 THz (0: none)"},
+	"esrOhm":     {0, 1e6, true, "0 to 1 MΩ"},
+	"z0Ohm":      {0.1, 1e5, false, "0.1 Ω to 100 kΩ"},
+	"vf":         {0.01, 1, false, "0.01 to 1"},
+	"lossDBPerM": {0, 1e4, true, "0 to 10⁴ dB/m"},
+	"lossRefHz":  {1e3, 1e12, false, "1 kHz to 1 THz"},
+	"tolRel":     {0, 0.99, true, "0 to 99 %"},
+	"tolAbs":     {0, math.MaxFloat64, true, "0 or more, below the part's value"},
+	"maxV":       {1e-3, 1e6, false, "1 mV to 1 MV"},
+	"maxA":       {1e-6, 1e4, false, "1 µA to 10 kA"},
+}
+
+// partValues are the values a part of each kind may take (SI units), with
+// the range in words.
+func partValues(k rfmath.PartKind) (lo, hi float64, what string) {
+	switch k.Component() {
+	case rfmath.ComponentL:
+		return 1e-15, 1, "1 fH to 1 H"
+	case rfmath.ComponentC:
+		return 1e-18, 1, "1 aF to 1 F"
+	case rfmath.ComponentR:
+		return 1e-6, 1e12, "1 µΩ to 1 TΩ"
+	}
+	if k == PartTransformer {
+		return 1e-3, 1e3, "a turns ratio of 0.001 to 1000"
+	}
+	return 1e-6, 1e3, "a length of 1 µm to 1 km"
 }
 
 // checkPart validates a part in place (normalising its model and series
@@ -372,8 +420,8 @@ func checkPart(op string, p *Part) error {
 	if !finite(p.Value) || p.Value <= 0 {
 		return invalid(op, "value", "%g: a part's value must be a positive number", p.Value)
 	}
-	if p.Value > 1e9 {
-		return invalid(op, "value", "%g is too large for a part", p.Value)
+	if lo, hi, what := partValues(p.Kind); p.Value < lo || p.Value > hi {
+		return invalid(op, "value", "%g is outside the values a %s may take (%s)", p.Value, p.Kind, what)
 	}
 	m := strings.TrimSpace(p.Model)
 	if m == "ideal" {
@@ -399,13 +447,16 @@ func checkPart(op string, p *Part) error {
 	}
 	p.ESeries = es
 	for k, v := range p.Params {
-		ok := partParams[k]
-		if ok == nil {
+		r, ok := partParams[k]
+		if !ok {
 			return invalid(op, "params."+k, "unknown part parameter")
 		}
-		if !finite(v) || !ok(v) {
-			return invalid(op, "params."+k, "%g is out of range", v)
+		if !finite(v) || !(v >= r.lo && v <= r.hi || r.zero && v == 0) {
+			return invalid(op, "params."+k, "%g is out of range: want %s", v, r.what)
 		}
+	}
+	if a, ok := p.Params["tolAbs"]; ok && a >= p.Value {
+		return invalid(op, "params.tolAbs", "a tolerance of ±%g is not below the value %g", a, p.Value)
 	}
 	if len(p.Params) == 0 {
 		p.Params = nil
@@ -414,3 +465,46 @@ func checkPart(op string, p *Part) error {
 }
 
 func isLumped(kind rfmath.PartKind) bool { return kind.Component() != "" }
+
+// Design returns the part as rfmath/match builds and judges it: its model
+// looked up by name ([parts.LookupModel]). This is the one adapter from a
+// stored part to the design type the search, the panel and the exports
+// use.
+func (p Part) Design() (match.Part, error) {
+	m, err := parts.LookupModel(p.Model)
+	if err != nil {
+		return match.Part{}, err
+	}
+	return match.Part{Kind: p.Kind, Value: p.Value, Series: p.ESeries, Model: m, Params: p.Params}, nil
+}
+
+// checkPartOn checks that part p, as it is built (at its standard value,
+// with its model and figures), has a finite two-port matrix at the ends of
+// the sweep ref its network sits on and at the design frequency, so that
+// no figure or export of the network can be NaN or infinite. The error
+// names the field.
+func checkPartOn(op string, p Part, ref SweepRef, designHz float64) error {
+	d, err := p.Design()
+	if err != nil {
+		return invalid(op, "model", "%v", err)
+	}
+	e, err := d.Element(d.BuyValue())
+	if err != nil {
+		return invalid(op, "value", "%v", err)
+	}
+	for _, f := range []float64{ref.FminHz, ref.FmaxHz, designHz} {
+		if !(f > 0) {
+			continue
+		}
+		for _, v := range e.ABCD(f) {
+			if !finite(real(v)) || !finite(imag(v)) {
+				field := "value"
+				if len(p.Params) > 0 {
+					field = "params"
+				}
+				return invalid(op, field, "the %s as built (value %g with its figures) has no finite response at %g Hz", p.Kind, d.BuyValue(), f)
+			}
+		}
+	}
+	return nil
+}

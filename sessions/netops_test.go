@@ -2,7 +2,9 @@ package sessions
 
 import (
 	"context"
+	"errors"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -124,6 +126,49 @@ func TestNetworkValidation(t *testing.T) {
 	if _, v := state(t, st, s.ID); v != v0+2 {
 		t.Errorf("refused changes moved the version: %d → %d", v0, v)
 	}
+}
+
+// TestPartFiguresStayFinite: values and figures that would make a part's
+// response infinite or NaN (and so every export of its network) are refused
+// when they are set, naming the field; the network is left as it was.
+func TestPartFiguresStayFinite(t *testing.T) {
+	t.Parallel()
+	st := openStore(t, Options{})
+	s := create(t, st, "finite")
+	ctx := context.Background()
+	addSweep(t, st, s.ID, testSweep(11, 1, 1e9, 2e9), "load")
+	apply(t, st, s.ID, Change{Op: OpNetworkAdd})
+	l := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(10e-9), Model: sptr("0402")})
+	tl := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartLine, Value: fptr(0.05)})
+	_, v0 := state(t, st, s.ID)
+	for _, c := range []struct {
+		name  string
+		ch    Change
+		field string
+	}{
+		{"a Q of 1e-300 at 1e300 Hz (R = +Inf)", Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"q": 1e-300, "qRefHz": 1e300}}, "params."},
+		{"a Q of 1e-300", Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"q": 1e-300}}, "params.q"},
+		{"a self-resonance of 1e-300 Hz (Cp = +Inf)", Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"srfHz": 1e-300}}, "params.srfHz"},
+		{"a capacitor of 1e-300 F", Change{Op: OpPartAdd, Kind: PartShuntC, Value: fptr(1e-300)}, "value"},
+		{"an inductor of 1e9 H", Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(1e9)}, "value"},
+		{"a line of 1e-300 Ω", Change{Op: OpPartSet, PartID: tl.PartID, Params: map[string]float64{"z0Ohm": 1e-300}}, "params.z0Ohm"},
+		{"a loss growing from 1e-300 Hz", Change{Op: OpPartSet, PartID: tl.PartID, Params: map[string]float64{"lossDBPerM": 1, "lossRefHz": 1e-300}}, "params.lossRefHz"},
+		{"a loss of 1e7 Np over the line (cosh = +Inf)", Change{Op: OpPartSet, PartID: tl.PartID, Value: fptr(1000), Params: map[string]float64{"lossDBPerM": 9999, "lossRefHz": 1e3}}, "params"},
+		{"a tolerance wider than the value", Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"tolAbs": 20e-9}}, "params.tolAbs"},
+		{"a rating of 1e300 V", Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"maxV": 1e300}}, "params.maxV"},
+	} {
+		_, err := st.Apply(ctx, s.ID, c.ch)
+		var oe *OpError
+		if !errors.Is(err, ErrInvalid) || !errors.As(err, &oe) || !strings.HasPrefix(oe.Field, c.field) {
+			t.Errorf("%s: error %v, want ErrInvalid naming %s…", c.name, err, c.field)
+		}
+	}
+	if _, v := state(t, st, s.ID); v != v0 {
+		t.Errorf("refused changes moved the version %d → %d", v0, v)
+	}
+	// Figures in the ranges are taken.
+	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: l.PartID, Params: map[string]float64{"q": 0.5, "qRefHz": 1e9, "srfHz": 5e9, "tolAbs": 0.1e-9}})
+	apply(t, st, s.ID, Change{Op: OpPartSet, PartID: tl.PartID, Params: map[string]float64{"lossDBPerM": 2, "lossRefHz": 1e9, "z0Ohm": 75}})
 }
 
 // Load sets: saved, validated with the field named, followed by the

@@ -65,7 +65,7 @@ func StartPage(v StartView) templ.Component {
 				}
 			}
 			if v.Local {
-				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 4, "<section class=\"card\"><h2>New bench session</h2><form method=\"post\" action=\"/sessions\" class=\"row\"><label>Name <input type=\"text\" name=\"name\" maxlength=\"200\" placeholder=\"e.g. board rev B antenna\"></label> <button type=\"submit\" data-testid=\"new-session\">Start session</button></form></section><section class=\"card\"><h2>Sessions on this bench</h2>")
+				templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 4, "<section class=\"card\"><h2>New bench session</h2><form method=\"post\" action=\"/sessions\" class=\"row\"><label>Name <input type=\"text\" name=\"name\" maxlength=\"200\" placeholder=\"e.g. board rev B antenna\"></label> <button type=\"submit\" data-testid=\"new-session\">Start session</button></form><form method=\"post\" action=\"/sessions/import\" enctype=\"multipart/form-data\" class=\"row\" data-testid=\"import-form\"><label>Or open a session archive <input type=\"file\" name=\"archive\" accept=\".zip\"></label> <button type=\"submit\" data-testid=\"import-session\">Import as a new session</button></form></section><section class=\"card\"><h2>Sessions on this bench</h2>")
 				if templ_7745c5c3_Err != nil {
 					return templ_7745c5c3_Err
 				}
@@ -87,7 +87,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var4 string
 						templ_7745c5c3_Var4, templ_7745c5c3_Err = templruntime.NewAttributeExpression(templ.SafeURL(s.EditHref)).ResolveURL(ctx)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 35, Col: 50}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 39, Col: 50}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var4)
 						if templ_7745c5c3_Err != nil {
@@ -100,7 +100,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var5 string
 						templ_7745c5c3_Var5, templ_7745c5c3_Err = templ.JoinStringErrs(s.Name)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 35, Col: 61}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 39, Col: 61}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var5))
 						if templ_7745c5c3_Err != nil {
@@ -113,7 +113,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var6 string
 						templ_7745c5c3_Var6, templ_7745c5c3_Err = templ.JoinStringErrs(strconv.Itoa(s.Sweeps))
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 36, Col: 51}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 40, Col: 51}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var6))
 						if templ_7745c5c3_Err != nil {
@@ -126,7 +126,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var7 string
 						templ_7745c5c3_Var7, templ_7745c5c3_Err = templ.JoinStringErrs(strconv.FormatInt(s.Version, 10))
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 37, Col: 61}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 41, Col: 61}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var7))
 						if templ_7745c5c3_Err != nil {
@@ -139,7 +139,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var8 string
 						templ_7745c5c3_Var8, templ_7745c5c3_Err = templ.JoinStringErrs(s.Created)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 38, Col: 26}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 42, Col: 26}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var8))
 						if templ_7745c5c3_Err != nil {
@@ -152,7 +152,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var9 string
 						templ_7745c5c3_Var9, templ_7745c5c3_Err = templruntime.NewAttributeExpression(templ.SafeURL(s.ViewHref)).ResolveURL(ctx)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 39, Col: 50}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 43, Col: 50}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var9)
 						if templ_7745c5c3_Err != nil {
@@ -185,7 +185,7 @@ func StartPage(v StartView) templ.Component {
 						var templ_7745c5c3_Var10 string
 						templ_7745c5c3_Var10, templ_7745c5c3_Err = templ.JoinStringErrs(a)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 52, Col: 22}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `web/start.templ`, Line: 56, Col: 22}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var10))
 						if templ_7745c5c3_Err != nil {

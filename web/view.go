@@ -241,6 +241,9 @@ type NetworkView struct {
 	Search     SearchView
 	Limits     LimitsView
 	Yield      YieldView
+	// Schematic is the network drawn from the source to the load (trusted
+	// SVG from chartsvg).
+	Schematic string
 	// Set is the load set the network is judged across (Name "" for none),
 	// and Sets every set of the session as a choice.
 	Set  NetSetView
@@ -329,17 +332,36 @@ type PowerRow struct {
 	Over                                      bool
 }
 
-// ReportView is the printable report of a matching network.
+// ReportView is the design-review report of a matching network: what was
+// measured and how its reference plane was moved, the schematic, how the
+// network does in each band, its yield over the parts' tolerances, the
+// stress on its parts at power, the parts list and the cautions.
 type ReportView struct {
-	Title, Session, Network, Load, Design, Generated string
-	ChartBefore, ChartAfter, Plot                    string // trusted SVG from chartsvg
-	Metrics                                          []NetMetricRow
-	PartsHeader                                      []string
-	Parts                                            [][]string
-	Power                                            []PowerRow
-	PowerW                                           string
-	Set                                              NetSetView // the network on each member of its load set, if any
-	Board                                            string     // the board the figures include, in words; "" for none
+	Title, Session, Network, Load, Design, Generated, Z0 string
+	// Plane lists the reference-plane steps taken on the load sweep, in
+	// order; empty when the load is as measured. PlaneError says why a
+	// plane could not be applied.
+	Plane      []string
+	PlaneError string
+	// Captions of the load's chart before and after the network: they say
+	// at which reference plane the load is.
+	CaptionBefore, CaptionAfter   string
+	Schematic                     string // trusted SVG from chartsvg
+	ChartBefore, ChartAfter, Plot string // trusted SVG from chartsvg
+	PowerPlot                     string // trusted SVG from chartsvg
+	Metrics                       []NetMetricRow
+	HasBuy                        bool
+	Yield                         YieldView
+	Power                         []PowerRow
+	PowerW, PowerNote             string
+	PartsHeader                   []string
+	Parts                         [][]string
+	Netlist                       string     // how closely the SPICE netlist follows the part models
+	Set                           NetSetView // the network on each member of its load set, if any
+	Board                         string     // the board the figures include, in words; "" for none
+	// StageNote says what a network of the transistor stage matches; ""
+	// for any other network.
+	StageNote string
 }
 
 // RefPlaneView is the reference-plane panel and the time-domain settings.
@@ -353,6 +375,9 @@ type RefPlaneRow struct {
 	ID, Name, Summary, Error                    string
 	Ports                                       int
 	Delay, Loss, LossRef, Flat, Fixture, Renorm string
+	// Exports are the sweep at its corrected plane: Value is the path
+	// under the session's address, Label the format.
+	Exports []Option
 }
 
 // TDRView holds the time-domain view's settings as the panel shows them.

@@ -8,19 +8,23 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
 	"matchbench/rfmath"
 )
 
-// ReadCSV reads a 1-port reflection sweep (S11) from comma-, semicolon- or
-// tab-separated text. Only 1-port data are read; a column that names another
-// parameter (S21, …) is refused with [ErrUnsupported].
+// ReadCSV reads a 1-port reflection sweep (S11) or a 2-port sweep (S11,
+// S21, S12, S22) from comma-, semicolon- or tab-separated text. Columns that
+// name no parameter are S11's; a column that names S21, S12 or S22 makes
+// the file a 2-port, and then all four parameters must be there. Other
+// parameters (S31, Y11, Z21, …) are refused with [ErrUnsupported].
 //
 // Lines whose first non-blank character is '#' or '!' are comments. A
 // comment of the form "Z0 = 75" or "R 75" (also "# Hz S RI R 75") sets the
-// reference resistance, which is otherwise 50 Ω.
+// reference resistance, which is otherwise 50 Ω; a 2-port may give one per
+// port ("Z0 = 50 75", as [WriteCSV] writes it).
 //
 // The first other line is the header; it is required. The separator is the
 // one of ',', ';' and tab that occurs most often in it. Columns are matched by
@@ -35,12 +39,14 @@ import (
 //	magnitude   mag, magnitude, abs or lin (linear), or a name between bars
 //	            ("|S11|"), with an angle column
 //
-// Words that may also appear are s11, s, gamma, refl, reflection,
-// coefficient and rho. Real/imaginary columns are used if present, then
-// dB/angle, then magnitude/angle. A header with other names is an error
-// that lists the names found and the names expected. Numbers are decimal,
-// as in a Touchstone file (no hexadecimal, Inf or NaN); under ';' a number
-// may use a decimal comma. Frequencies must increase strictly.
+// A column's parameter is a word s11, s21, s12 or s22 ("s21_re", "S21 dB",
+// "re(S12)", "|S22|"). Words that may also appear are s, gamma, refl,
+// reflection, coefficient and rho. For each parameter, real/imaginary
+// columns are used if present, then dB/angle, then magnitude/angle. A
+// header with other names is an error that lists the names found and the
+// names expected. Numbers are decimal, as in a Touchstone file (no
+// hexadecimal, Inf or NaN); under ';' a number may use a decimal comma.
+// Frequencies must increase strictly.
 func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	lim = lim.withDefaults()
 	buf, err := readAll(r, name, lim.MaxBytes)
@@ -55,7 +61,8 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	// Empty the comment lines (keeping the line count, so that the CSV
 	// reader's positions stay right), read the Z0 option, find the header.
 	text := make([]byte, 0, len(buf))
-	z0, z0Line := 50.0, 0
+	var z0 []float64
+	z0Line := 0
 	var header []byte
 	headerLine := 0
 	for ln, rest := 1, buf; len(rest) > 0; ln++ {
@@ -67,9 +74,9 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		}
 		t := bytes.TrimLeft(line, " \t")
 		if len(t) > 0 && (t[0] == '#' || t[0] == '!') {
-			if v, ok, err := csvZ0(string(t[1:])); err != nil {
+			if v, err := csvZ0(string(t[1:])); err != nil {
 				return nil, perr(ln, 1, err)
-			} else if ok && z0Line == 0 {
+			} else if v != nil && z0Line == 0 {
 				z0, z0Line = v, ln
 			}
 			if line[len(line)-1] == '\n' {
@@ -114,8 +121,21 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	if err != nil {
 		return nil, perr(headerLine, 1, err)
 	}
+	ref := make([]float64, cols.ports)
+	for i := range ref {
+		switch {
+		case len(z0) == 0:
+			ref[i] = 50
+		case len(z0) == 1:
+			ref[i] = z0[0]
+		case len(z0) == cols.ports:
+			ref[i] = z0[i]
+		default:
+			return nil, perr(z0Line, 1, syntaxf("%d reference resistances for a %d-port sweep", len(z0), cols.ports))
+		}
+	}
 
-	s := &rfmath.Sweep{Ports: 1, Z0: []float64{z0}}
+	s := &rfmath.Sweep{Ports: cols.ports, Z0: ref}
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -124,19 +144,22 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		if err != nil {
 			return nil, csvErr(err)
 		}
-		var v [3]float64
-		for k, idx := range [3]int{cols.freq, cols.a, cols.b} {
+		num := func(idx int) (float64, error) {
 			x, ok := csvNumber(rec[idx], sep)
 			if !ok {
 				line, col := cr.FieldPos(idx)
-				return nil, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.names[k]), found(rec[idx])))
+				return 0, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.header[idx]), found(rec[idx])))
 			}
-			v[k] = x
+			return x, nil
+		}
+		fv, err := num(cols.freq)
+		if err != nil {
+			return nil, err
 		}
 		line, col := cr.FieldPos(cols.freq)
-		f := v[0] * cols.mul
+		f := fv * cols.mul
 		if !(f >= 0) || math.IsInf(f, 0) {
-			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", v[0]))
+			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", fv))
 		}
 		if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
 			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
@@ -144,21 +167,31 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		if len(s.FreqHz) >= lim.MaxPoints {
 			return nil, perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", lim.MaxPoints))
 		}
-		var g complex128
-		switch cols.kind {
-		case "ri":
-			g = complex(v[1], v[2])
-		case "db":
-			g = polar(math.Pow(10, v[1]/20), v[2]*cols.angMul)
-		default:
-			g = polar(v[1], v[2]*cols.angMul)
-		}
-		if !finite(g) {
-			line, col := cr.FieldPos(cols.a)
-			return nil, perr(line, col, syntaxf("the values %g, %g are not a finite reflection coefficient", v[1], v[2]))
+		for _, p := range cols.params {
+			a, err := num(p.a)
+			if err != nil {
+				return nil, err
+			}
+			b, err := num(p.b)
+			if err != nil {
+				return nil, err
+			}
+			var g complex128
+			switch p.kind {
+			case "ri":
+				g = complex(a, b)
+			case "db":
+				g = polar(math.Pow(10, a/20), b*p.angMul)
+			default:
+				g = polar(a, b*p.angMul)
+			}
+			if !finite(g) {
+				line, col := cr.FieldPos(p.a)
+				return nil, perr(line, col, syntaxf("the values %g, %g are not a finite S%s", a, b, p.name))
+			}
+			s.Data = append(s.Data, g)
 		}
 		s.FreqHz = append(s.FreqHz, f)
-		s.Data = append(s.Data, g)
 	}
 	if len(s.FreqHz) == 0 {
 		return nil, perr(headerLine, 1, syntaxf("no data rows after the header"))
@@ -169,26 +202,33 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	return s, nil
 }
 
-// csvZ0 reads a "Z0 = 75" or "R 75" option from the text of a comment.
-func csvZ0(text string) (float64, bool, error) {
+// csvZ0 reads a "Z0 = 75" or "R 75" option from the text of a comment,
+// with one number per port after it where there are several ("Z0 = 50 75").
+func csvZ0(text string) ([]float64, error) {
 	f := strings.Fields(strings.NewReplacer("=", " ", ":", " ").Replace(strings.ToLower(text)))
 	for i := 0; i+1 < len(f); i++ {
 		if f[i] != "z0" && f[i] != "r" {
 			continue
 		}
-		v, err := parseNumber([]byte(strings.TrimSuffix(f[i+1], "ohm")))
-		if err != nil {
-			if f[i] == "z0" { // "r" may start a word of any comment
-				return 0, false, syntaxf("Z0 must be followed by the reference resistance in ohms as a decimal number, found %q", f[i+1])
+		var out []float64
+		for j, w := range f[i+1:] {
+			v, err := parseNumber([]byte(strings.TrimSuffix(w, "ohm")))
+			if err != nil {
+				if j == 0 && f[i] == "z0" { // "r" may start a word of any comment
+					return nil, syntaxf("Z0 must be followed by the reference resistance in ohms as a decimal number, found %q", found(w))
+				}
+				break
 			}
-			continue
+			if !(v > 0) || math.IsInf(v, 0) {
+				return nil, syntaxf("reference resistance %s must be a positive number of ohms", found(w))
+			}
+			out = append(out, v)
 		}
-		if !(v > 0) || math.IsInf(v, 0) {
-			return 0, false, syntaxf("reference resistance %s must be a positive number of ohms", found(f[i+1]))
+		if out != nil {
+			return out, nil
 		}
-		return v, true, nil
 	}
-	return 0, false, nil
+	return nil, nil
 }
 
 // csvNumber reads a number of a CSV field by the rules of the Touchstone
@@ -208,11 +248,19 @@ func csvNumber(s string, sep rune) (float64, bool) {
 }
 
 type csvCols struct {
-	freq, a, b int // column indices
-	names      [3]string
-	kind       string  // "ri", "db" or "ma"
-	mul        float64 // frequency unit
-	angMul     float64 // angle column to degrees
+	freq   int
+	ports  int
+	params []csvParam // in row order: S11 (1-port); S11, S12, S21, S22 (2-port)
+	mul    float64    // frequency unit
+	header []string
+}
+
+// csvParam is the pair of columns of one S-parameter.
+type csvParam struct {
+	name   string // "11", "21", …
+	a, b   int    // column indices: re and im, dB and angle, or magnitude and angle
+	kind   string // "ri", "db" or "ma"
+	angMul float64
 }
 
 var csvWords = map[string]string{
@@ -224,28 +272,38 @@ var csvWords = map[string]string{
 	"deg": "ang", "degree": "ang", "degrees": "ang", "ang": "ang", "angle": "ang", "phase": "ang", "arg": "ang",
 	"rad": "rad", "radian": "rad", "radians": "rad",
 	"mag": "mag", "magnitude": "mag", "abs": "mag", "lin": "mag", "linear": "mag",
-	"s11": "", "s": "", "11": "", "gamma": "", "refl": "", "reflection": "", "coefficient": "", "coeff": "", "rho": "",
+	"s": "", "gamma": "", "refl": "", "reflection": "", "coefficient": "", "coeff": "", "rho": "",
 }
 
-const csvExpected = `a frequency column (freq, frequency or f, optionally with a unit: "freq (Hz)", "f [GHz]") and either re and im columns ("re", "real", "S11 re", "re(S11)"), or dB and angle columns ("S11 dB", "mag dB", "phase deg", "ang"), or linear magnitude and angle columns ("mag", "ang")`
+const csvExpected = `a frequency column (freq, frequency or f, optionally with a unit: "freq (Hz)", "f [GHz]") and, for S11 and for a 2-port also S21, S12 and S22, either re and im columns ("re", "real", "S11 re", "re(S11)", "s21_im"), or dB and angle columns ("S11 dB", "mag dB", "S21 phase deg", "ang"), or linear magnitude and angle columns ("mag", "|S22|", "ang")`
 
 // csvColumns matches the header's column names.
 func csvColumns(rec []string) (*csvCols, error) {
-	c := &csvCols{mul: 1, angMul: 1}
-	idx := map[string]int{}
-	unknown := false
+	c := &csvCols{mul: 1, header: slices.Clone(rec)}
+	type key struct{ param, role string }
+	idx := map[key]int{}
+	rads := map[string]bool{}
+	unknown, haveF, ports := false, false, 1
 	for i, name := range rec {
 		words := strings.FieldsFunc(strings.ToLower(name), func(r rune) bool {
 			return !(r >= 'a' && r <= 'z' || r >= '0' && r <= '9')
 		})
 		has := map[string]bool{}
-		unit := ""
+		unit, param := "", ""
 		for _, w := range words {
+			if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
+				if w[0] != 's' || w[1] > '2' || w[2] > '2' {
+					return nil, unsupportedf("CSV import reads 1- and 2-port S-parameters; column %q names %s", found(name), found(strings.ToUpper(w)))
+				}
+				param = w[1:]
+				continue
+			}
+			if w == "11" || w == "21" || w == "12" || w == "22" { // "S 21"
+				param = w
+				continue
+			}
 			kind, ok := csvWords[w]
 			if !ok {
-				if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
-					return nil, unsupportedf("CSV import reads 1-port data (S11) only; column %q names %s", found(name), found(strings.ToUpper(w)))
-				}
 				kind = "?"
 			}
 			if kind == "unit" {
@@ -262,7 +320,7 @@ func csvColumns(rec []string) (*csvCols, error) {
 		switch {
 		case has["?"]:
 		case has["freq"]:
-			if !has["re"] && !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
+			if param == "" && !has["re"] && !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
 				role = "freq"
 			}
 		case unit != "":
@@ -289,28 +347,60 @@ func csvColumns(rec []string) (*csvCols, error) {
 			unknown = true
 			continue
 		}
-		if _, dup := idx[role]; dup {
-			return nil, syntaxf("two columns are %s columns (%q and %q)", role, found(rec[idx[role]]), found(name))
+		if role == "freq" {
+			if haveF {
+				return nil, syntaxf("two columns are frequency columns (%q and %q)", found(rec[c.freq]), found(name))
+			}
+			c.freq, haveF = i, true
+			if unit != "" {
+				c.mul = units[unit].mul
+			}
+			continue
 		}
-		idx[role] = i
-		if role == "freq" && unit != "" {
-			c.mul = units[unit].mul
+		if param == "" {
+			param = "11"
 		}
+		if param != "11" {
+			ports = 2
+		}
+		k := key{param, role}
+		if j, dup := idx[k]; dup {
+			return nil, syntaxf("two columns are S%s %s columns (%q and %q)", param, role, found(rec[j]), found(name))
+		}
+		idx[k] = i
 		if role == "ang" && rad {
-			c.angMul = 180 / math.Pi
+			rads[param] = true
 		}
 	}
-	f, haveF := idx["freq"]
-	pick := func(a, b, kind string) bool {
-		ia, okA := idx[a]
-		ib, okB := idx[b]
-		if okA && okB {
-			c.a, c.b, c.kind = ia, ib, kind
-			return true
-		}
-		return false
+	names := []string{"11"}
+	if ports == 2 {
+		names = []string{"11", "12", "21", "22"}
 	}
-	if unknown || !haveF || !(pick("re", "im", "ri") || pick("db", "ang", "db") || pick("mag", "ang", "ma")) {
+	complete := !unknown && haveF
+	for _, p := range names {
+		cp := csvParam{name: p, angMul: 1}
+		if rads[p] {
+			cp.angMul = 180 / math.Pi
+		}
+		pick := func(a, b, kind string) bool {
+			ia, okA := idx[key{p, a}]
+			ib, okB := idx[key{p, b}]
+			if okA && okB {
+				cp.a, cp.b, cp.kind = ia, ib, kind
+				return true
+			}
+			return false
+		}
+		if !(pick("re", "im", "ri") || pick("db", "ang", "db") || pick("mag", "ang", "ma")) {
+			if complete && ports == 2 {
+				return nil, syntaxf("a 2-port CSV needs S11, S21, S12 and S22; S%s has no complete pair of columns (found columns %q); expected %s", p, foundList(rec), csvExpected)
+			}
+			complete = false
+			break
+		}
+		c.params = append(c.params, cp)
+	}
+	if !complete {
 		allNumbers := true
 		for _, v := range rec {
 			if _, ok := csvNumber(v, ';'); !ok {
@@ -322,16 +412,16 @@ func csvColumns(rec []string) (*csvCols, error) {
 		}
 		return nil, syntaxf("cannot understand the header: found columns %q; expected %s", foundList(rec), csvExpected)
 	}
-	c.freq = f
-	c.names = [3]string{rec[f], rec[c.a], rec[c.b]}
+	c.ports = ports
 	return c, nil
 }
 
-// WriteCSV writes s as comma-separated text: a "# Z0 = …" comment, the
-// header "freq_hz" then "sIJ_re,sIJ_im" for every S-parameter in row order
-// (indices joined by '_' above 9 ports), and one row per frequency, with
-// every number in the shortest form that reads back exactly. [ReadCSV] reads
-// back 1-port output.
+// WriteCSV writes s as comma-separated text: a "# Z0 = …" comment with
+// each port's reference, the header "freq_hz" then "sIJ_re,sIJ_im" for
+// every S-parameter in row order (s11, s12, s21, s22 for a 2-port; indices
+// joined by '_' above 9 ports), and one row per frequency, with every
+// number in the shortest form that reads back exactly. [ReadCSV] reads back
+// 1- and 2-port output.
 func WriteCSV(w io.Writer, s *rfmath.Sweep) error {
 	if err := s.Validate(); err != nil {
 		return fmt.Errorf("touchstone: cannot write the sweep: %w", err)

@@ -71,7 +71,10 @@ func TestReadCSVErrors(t *testing.T) {
 		{file: "csv_bad_header.csv", kind: ErrSyntax, line: 3, col: 1,
 			msg: []string{`found columns ["time" "voltage" "current"]`, "expected a frequency column", `"re(S11)"`}},
 		{file: "csv_no_header.csv", kind: ErrSyntax, line: 3, col: 1, msg: []string{"found numbers"}},
-		{file: "csv_2port.csv", kind: ErrUnsupported, line: 3, col: 1, msg: []string{"1-port data (S11) only", "S21"}},
+		{file: "csv_2port.csv", kind: ErrSyntax, line: 4, col: 1, msg: []string{"2-port CSV needs S11, S21, S12 and S22", "S12 has no complete pair"}},
+		{text: "freq,s11 re,s11 im,s31 re,s31 im\n1,0,0,0,0\n", kind: ErrUnsupported, line: 1, col: 1, msg: []string{"1- and 2-port S-parameters", "S31"}},
+		{text: "freq,z11 re,z11 im\n1,0,0\n", kind: ErrUnsupported, line: 1, col: 1, msg: []string{"Z11"}},
+		{text: "# Z0 = 50 50 50\nfreq,re,im\n1,0,0\n", kind: ErrSyntax, line: 1, col: 1, msg: []string{"3 reference resistances for a 1-port"}},
 		{file: "csv_decreasing.csv", kind: ErrSyntax, line: 5, col: 1, msg: []string{"does not increase"}},
 		{text: "freq,re,im\n1,0.5,x\n", kind: ErrSyntax, line: 2, col: 7, msg: []string{`column "im"`, `"x"`}},
 		{text: "freq,re,im\n1,0.5\n", kind: ErrSyntax, line: 2, col: 1, msg: []string{"wrong number of fields"}},
@@ -207,9 +210,79 @@ func TestWriteCSVMultiPort(t *testing.T) {
 	if buf.String() != want {
 		t.Errorf("got\n%s\nwant\n%s", buf.String(), want)
 	}
-	// A multi-port CSV is refused on reading, by name.
-	if _, err := ReadCSV(&buf, "m.csv", Limits{}); !errors.Is(err, ErrUnsupported) {
-		t.Errorf("reading a 2-port CSV: %v", err)
+	// A 2-port reads back as it was written, references included.
+	s.Z0[1] = 75
+	buf.Reset()
+	if err := WriteCSV(&buf, s); err != nil {
+		t.Fatal(err)
+	}
+	got, err := ReadCSV(&buf, "m.csv", Limits{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Ports != 2 || got.Z0[0] != 50 || got.Z0[1] != 75 || got.FreqHz[0] != 1e9 || !equalData(got.Data, s.Data) {
+		t.Errorf("read back %+v, want %+v", got, s)
+	}
+	// More than two ports are refused on reading, by name.
+	s3 := rfmath.NewSweep(1, 3, 50)
+	s3.FreqHz[0] = 1e9
+	buf.Reset()
+	if err := WriteCSV(&buf, s3); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := ReadCSV(&buf, "m3.csv", Limits{}); !errors.Is(err, ErrUnsupported) || !strings.Contains(err.Error(), "S13") {
+		t.Errorf("reading a 3-port CSV: %v", err)
+	}
+}
+
+func equalData(a, b []complex128) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// TestReadCSV2Port reads 2-port CSV fixtures and checks them against the
+// same values read from a Touchstone file (ts10_2port.s2p, N21 before N12
+// in version 1 order) and against values worked by hand.
+func TestReadCSV2Port(t *testing.T) {
+	t.Parallel()
+	fh, err := os.Open(filepath.Join(fixtureDir, "ts10_2port.s2p"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer fh.Close()
+	ts, err := Read(fh, "ts10_2port.s2p", Limits{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	csv, err := readCSVFixture(t, "csv_2port_ri.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if csv.Ports != 2 || csv.FreqHz[0] != ts.Sweep.FreqHz[0] || !equalData(csv.Data, ts.Sweep.Data) || csv.Z0[0] != 50 || csv.Z0[1] != 50 {
+		t.Errorf("CSV %v %v %v, Touchstone %v %v", csv.FreqHz, csv.Z0, csv.Data, ts.Sweep.FreqHz, ts.Sweep.Data)
+	}
+	// dB and degrees, decimal comma under ';', one reference per port:
+	// −20 dB ∠90° = 0.1j; 0 dB ∠0° = 1; −6.0206 dB ∠180° = −0.5 (20·log10 2 =
+	// 6.0206); −40 dB ∠−90° = −0.01j.
+	db, err := readCSVFixture(t, "csv_2port_db.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []complex128{0.1i, -0.5, 1, -0.01i} // row order S11, S12, S21, S22
+	if db.FreqHz[0] != 100e6 || db.Z0[0] != 50 || db.Z0[1] != 75 {
+		t.Errorf("frequency %v, references %v", db.FreqHz, db.Z0)
+	}
+	for i, w := range want {
+		if d := db.Data[i] - w; math.Hypot(real(d), imag(d)) > 1e-5 {
+			t.Errorf("S[%d] = %v, want %v", i, db.Data[i], w)
+		}
 	}
 }
 

@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -134,12 +135,12 @@ func FuzzReadCSV(f *testing.F) {
 		if err != nil {
 			t.Fatalf("reading the rewrite: %v\n%s", err, buf.String())
 		}
-		if again.Len() != s.Len() || again.Z0[0] != s.Z0[0] {
-			t.Fatalf("shape or Z0 changed")
+		if again.Len() != s.Len() || again.Ports != s.Ports || !slices.Equal(again.Z0, s.Z0) {
+			t.Fatalf("shape or Z0 changed: %d×%d %v → %d×%d %v", s.Len(), s.Ports, s.Z0, again.Len(), again.Ports, again.Z0)
 		}
 		for k := range s.FreqHz {
-			if again.FreqHz[k] != s.FreqHz[k] || again.Data[k] != s.Data[k] {
-				t.Fatalf("point %d: %v %v → %v %v", k, s.FreqHz[k], s.Data[k], again.FreqHz[k], again.Data[k])
+			if again.FreqHz[k] != s.FreqHz[k] || !slices.Equal(again.Matrix(k), s.Matrix(k)) {
+				t.Fatalf("point %d: %v %v → %v %v", k, s.FreqHz[k], s.Matrix(k), again.FreqHz[k], again.Matrix(k))
 			}
 		}
 	})

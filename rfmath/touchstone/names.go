@@ -53,6 +53,18 @@ func CommentLines(lines []string) []string {
 				b.WriteString("ohm")
 			case r == 'µ' || r == 'μ':
 				b.WriteString("u")
+			case r == '–' || r == '−' || r == '·':
+				b.WriteByte('-')
+			case r == '≥':
+				b.WriteString(">=")
+			case r == '≤':
+				b.WriteString("<=")
+			case r == '√':
+				b.WriteString("sqrt ")
+			case r == '∝':
+				b.WriteString("as")
+			case r == 'ε':
+				b.WriteString("eps_")
 			case r == '\n' || r == '\r' || r == '\t':
 				b.WriteByte(' ')
 			case r >= 0x20 && r <= 0x7e:

@@ -53,8 +53,8 @@ func TestReadNamed(t *testing.T) {
 // Touchstone specification 2.0 § 3).
 func TestCommentLines(t *testing.T) {
 	t.Parallel()
-	in := []string{"Z0 50 Ω, L 12 µH and 3 μH", "line\nbreak\ttab", "é ok ~", ""}
-	want := []string{"Z0 50 ohm, L 12 uH and 3 uH", "line break tab", "? ok ~", ""}
+	in := []string{"Z0 50 Ω, L 12 µH and 3 μH", "line\nbreak\ttab", "é ok ~", "", "RL ≥ 10 dB, 863–870 MHz, εr 4.4, Q · f"}
+	want := []string{"Z0 50 ohm, L 12 uH and 3 uH", "line break tab", "? ok ~", "", "RL >= 10 dB, 863-870 MHz, eps_r 4.4, Q - f"}
 	got := CommentLines(in)
 	if !slices.Equal(got, want) {
 		t.Errorf("CommentLines(%q) = %q, want %q", in, got, want)
