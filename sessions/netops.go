@@ -100,7 +100,9 @@ func (o *netOp) sweepRef(id string) (SweepRef, error) {
 	return o.cur.Sweeps[i], nil
 }
 
-// networkAdd adds a network on a sweep of the load (the first when none is named), with its design frequency, load set, parts and board, and makes it the active one.
+// networkAdd adds a network on a sweep of the load (the first when none is
+// named), with its design frequency, load set, parts and board, and makes it
+// the active one.
 func (o *netOp) networkAdd() error {
 	cur, next, ch, r, lim, op := o.cur, o.next, o.ch, o.r, o.lim, o.op
 	if len(cur.Networks) >= lim.Networks {
@@ -176,7 +178,9 @@ func (o *netOp) networkAdd() error {
 	return nil
 }
 
-// networkSet changes a network's name, load, port, load set, design frequency, yield builds, Chu radius or power; the parts are checked again on new frequencies.
+// networkSet changes a network's name, load, port, load set, design
+// frequency, yield builds, Chu radius or power; the parts are checked again
+// on new frequencies.
 func (o *netOp) networkSet() error {
 	cur, next, ch, lim, op := o.cur, o.next, o.ch, o.lim, o.op
 	i, err := o.netOf(ch.NetworkID)
@@ -347,7 +351,8 @@ func (o *netOp) partAdd() error {
 	return nil
 }
 
-// partSet changes a part's value, model, E-series or parameters (NaN clears a parameter).
+// partSet changes a part's value, model, E-series or parameters (NaN clears a
+// parameter).
 func (o *netOp) partSet() error {
 	ch, r, op := o.ch, o.r, o.op
 	n, j, err := o.partIn(ch.NetworkID, ch.PartID)
