@@ -35,6 +35,12 @@ func (r *fieldReader) Fail(field, label string, err error) {
 	}
 }
 
+// errAt returns the error of field (labelled label) without keeping it,
+// for a reader that returns at its first error.
+func (r *fieldReader) errAt(field, label string, err error) error {
+	return &FieldError{r.form, field, label, err}
+}
+
 // Text returns the field's text with surrounding space removed.
 func (r *fieldReader) Text(field string) string { return strings.TrimSpace(r.f[field]) }
 

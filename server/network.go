@@ -468,192 +468,232 @@ func (sc *scene) defaultLoad() int {
 // partChange turns a network form into a change; fields as typed.
 func (sc *scene) partChange(form string, f map[string]string) (sessions.Change, error) {
 	ne := sc.net
-	fe := func(field, label string, err error) error { return &FieldError{form, field, label, err} }
+	r := newFieldReader(form, f)
 	switch form {
 	case "network.add":
 		return sessions.Change{Op: sessions.OpNetworkAdd, SweepID: f["sweepId"]}, nil
 	case "network.set":
-		ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: f["networkId"], Name: strings.TrimSpace(f["name"]), SweepID: f["sweepId"], SetID: f["setId"]}
-		if s := strings.TrimSpace(f["design"]); s != "" {
-			v, err := units.ParseFrequency(s)
-			if err != nil {
-				return ch, fe("design", "Design frequency", err)
-			}
-			ch.DesignHz = v
-		}
-		if s, ok := f["yield"]; ok {
-			switch n, err := strconv.Atoi(strings.TrimSpace(s)); {
-			case strings.TrimSpace(s) == "" || s == "0" || s == "off":
-				ch.YieldBuilds = -1
-			case err != nil || n < 1:
-				return ch, fe("yield", "Builds", fmt.Errorf("%q is not a number of builds", s))
-			default:
-				ch.YieldBuilds = n
-			}
-		}
-		if s, ok := f["radius"]; ok {
-			if strings.TrimSpace(s) == "" {
-				ch.ChuRadiusM = -1
-			} else {
-				r, err := units.ParseValue(s, "m")
-				if err != nil {
-					return ch, fe("radius", "Sphere radius", err)
-				}
-				ch.ChuRadiusM = r
-			}
-		}
-		if s := strings.TrimSpace(f["power"]); s != "" {
-			v, err := units.ParseValue(s, "W")
-			if err != nil {
-				return ch, fe("power", "Input power", err)
-			}
-			ch.PowerW = &v
-		}
-		return ch, nil
+		return networkSetForm(r)
+	}
+	if ne == nil {
+		return sessions.Change{}, fmt.Errorf("start a matching network first")
+	}
+	switch form {
 	case "part.add":
-		if ne == nil {
-			return sessions.Change{}, fmt.Errorf("start a matching network first")
-		}
-		kind := rfmath.PartKind(f["kind"])
-		if _, ok := kindLabels[kind]; !ok {
-			return sessions.Change{}, fe("kind", "Part", fmt.Errorf("unknown part kind %q", kind))
-		}
-		v := match.DefaultValue(kind, ne.n.DesignHz, ne.z0)
-		return sessions.Change{Op: sessions.OpPartAdd, NetworkID: ne.n.ID, Kind: kind, Value: &v}, nil
+		return partAddForm(r, ne)
 	case "part.params":
-		if ne == nil {
-			return sessions.Change{}, fmt.Errorf("start a matching network first")
-		}
-		ch := sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: f["partId"], Params: map[string]float64{}}
-		for _, fd := range []struct{ field, param, label, unit string }{
-			{"q", "q", "Q", ""}, {"esr", "esrOhm", "ESR", "Ω"}, {"maxV", "maxV", "Rated voltage", "V"}, {"maxA", "maxA", "Rated current", "A"},
-		} {
-			t, ok := f[fd.field]
-			if !ok {
-				continue
-			}
-			if strings.TrimSpace(t) == "" {
-				ch.Params[fd.param] = math.NaN() // clears it: the model's figure again
-				continue
-			}
-			v, err := units.ParseValue(t, fd.unit)
-			if err != nil {
-				return ch, fe(fd.field, fd.label, err)
-			}
-			ch.Params[fd.param] = v
-		}
-		for _, fd := range []struct{ field, param, label string }{{"qRef", "qRefHz", "Q frequency"}, {"srf", "srfHz", "Self-resonance"}} {
-			t, ok := f[fd.field]
-			if !ok {
-				continue
-			}
-			if strings.TrimSpace(t) == "" {
-				ch.Params[fd.param] = math.NaN()
-				continue
-			}
-			v, err := units.ParseFrequency(t)
-			if err != nil {
-				return ch, fe(fd.field, fd.label, err)
-			}
-			ch.Params[fd.param] = v
-		}
-		// A line's or stub's figures.
-		if t, ok := f["z0"]; ok {
-			v, err := units.ParseValue(t, "Ω")
-			if err != nil || !(v > 0) {
-				return ch, fe("z0", "Line impedance", fmt.Errorf("%q is not an impedance in ohms", t))
-			}
-			ch.Params["z0Ohm"] = v
-		}
-		if t, ok := f["vfValue"]; ok && strings.TrimSpace(t) != "" {
-			x, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
-			switch {
-			case f["vfKind"] == "eeff" && (err != nil || !(x >= 1) || math.IsInf(x, 0)):
-				return ch, fe("vfValue", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", t))
-			case f["vfKind"] == "eeff":
-				ch.Params["vf"] = 1 / math.Sqrt(x)
-			case err != nil || !(x > 0 && x <= 1):
-				return ch, fe("vfValue", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", t))
-			default:
-				ch.Params["vf"] = x
-			}
-		}
-		if t, ok := f["loss"]; ok {
-			s := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(t), "dB/m"))
-			if s == "" || s == "0" {
-				ch.Params["lossDBPerM"] = math.NaN()
-			} else {
-				x, err := strconv.ParseFloat(s, 64)
-				if err != nil || !(x >= 0) || x >= 1e4 {
-					return ch, fe("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", t))
-				}
-				ch.Params["lossDBPerM"] = x
-			}
-		}
-		if t, ok := f["lossRef"]; ok && strings.TrimSpace(t) != "" {
-			x, err := units.ParseFrequency(t)
-			if err != nil || !(x > 0) {
-				return ch, fe("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", t))
-			}
-			ch.Params["lossRefHz"] = x
-		}
-		if t, ok := f["tol"]; ok {
-			if strings.TrimSpace(t) == "" {
-				ch.Params["tolRel"] = math.NaN()
-			} else {
-				v, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(t, "%")), 64)
-				if err != nil || !(v >= 0 && v < 100) {
-					return ch, fe("tol", "Tolerance", fmt.Errorf("%q is not a percentage from 0 to 100", t))
-				}
-				ch.Params["tolRel"] = v / 100
-			}
-		}
-		return ch, nil
+		return partParamsForm(r, ne)
 	case "part.set":
-		if ne == nil {
-			return sessions.Change{}, fmt.Errorf("start a matching network first")
-		}
-		ch := sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: f["partId"], Gesture: f["gesture"]}
-		var part *sessions.Part
-		for i := range ne.n.Parts {
-			if ne.n.Parts[i].ID == ch.PartID {
-				part = &ne.n.Parts[i]
-			}
-		}
-		if part == nil {
-			return ch, fe("partId", "Part", fmt.Errorf("no part %q in the active network", ch.PartID))
-		}
-		if s, ok := f["value"]; ok {
-			name := designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID))
-			v, inWL, err := wavelengthValue(s, match.Part{Kind: part.Kind, Params: part.Params}, ne.n.DesignHz)
-			if inWL && part.Kind.Unit() != "m" {
-				return ch, fe("value", name, fmt.Errorf("only a line or a stub has a length in wavelengths"))
-			}
-			if !inWL {
-				v, err = units.ParseValue(s, part.Kind.Unit())
-			}
-			if err != nil {
-				return ch, fe("value", name, err)
-			}
-			ch.Value = &v
-		}
-		if s, ok := f["log"]; ok {
-			x, err := strconv.ParseFloat(s, 64)
-			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return ch, fe("log", "Slider", fmt.Errorf("%q is not a number", s))
-			}
-			v := math.Pow(10, x)
-			ch.Value = &v
-		}
-		if s, ok := f["model"]; ok {
-			ch.Model = &s
-		}
-		if s, ok := f["series"]; ok {
-			ch.ESeries = &s
-		}
-		return ch, nil
+		return partSetForm(r, ne)
 	}
 	return sessions.Change{}, fmt.Errorf("unknown form %q", form)
+}
+
+// networkSetForm reads the network form: name, load, load set, design
+// frequency, yield builds ("off" for none), Chu sphere radius and power.
+func networkSetForm(r *fieldReader) (sessions.Change, error) {
+	ch := sessions.Change{Op: sessions.OpNetworkSet, NetworkID: r.f["networkId"], Name: strings.TrimSpace(r.f["name"]), SweepID: r.f["sweepId"], SetID: r.f["setId"]}
+	if s := strings.TrimSpace(r.f["design"]); s != "" {
+		v, err := units.ParseFrequency(s)
+		if err != nil {
+			return ch, r.errAt("design", "Design frequency", err)
+		}
+		ch.DesignHz = v
+	}
+	if s, ok := r.f["yield"]; ok {
+		switch n, err := strconv.Atoi(strings.TrimSpace(s)); {
+		case strings.TrimSpace(s) == "" || s == "0" || s == "off":
+			ch.YieldBuilds = -1
+		case err != nil || n < 1:
+			return ch, r.errAt("yield", "Builds", fmt.Errorf("%q is not a number of builds", s))
+		default:
+			ch.YieldBuilds = n
+		}
+	}
+	if s, ok := r.f["radius"]; ok {
+		if strings.TrimSpace(s) == "" {
+			ch.ChuRadiusM = -1
+		} else {
+			m, err := units.ParseValue(s, "m")
+			if err != nil {
+				return ch, r.errAt("radius", "Sphere radius", err)
+			}
+			ch.ChuRadiusM = m
+		}
+	}
+	if s := strings.TrimSpace(r.f["power"]); s != "" {
+		v, err := units.ParseValue(s, "W")
+		if err != nil {
+			return ch, r.errAt("power", "Input power", err)
+		}
+		ch.PowerW = &v
+	}
+	return ch, nil
+}
+
+// partAddForm adds a part of the kind chosen at its default value for the
+// design frequency.
+func partAddForm(r *fieldReader, ne *netEval) (sessions.Change, error) {
+	kind := rfmath.PartKind(r.f["kind"])
+	if _, ok := kindLabels[kind]; !ok {
+		return sessions.Change{}, r.errAt("kind", "Part", fmt.Errorf("unknown part kind %q", kind))
+	}
+	v := match.DefaultValue(kind, ne.n.DesignHz, ne.z0)
+	return sessions.Change{Op: sessions.OpPartAdd, NetworkID: ne.n.ID, Kind: kind, Value: &v}, nil
+}
+
+// partParamsForm reads a part's own figures: Q and its frequency, ESR,
+// ratings, self-resonance and tolerance, and a line's or stub's impedance,
+// velocity factor (or effective permittivity) and loss. An empty field
+// clears its figure (the model's again).
+func partParamsForm(r *fieldReader, ne *netEval) (sessions.Change, error) {
+	ch := sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: r.f["partId"], Params: map[string]float64{}}
+	for _, fd := range []struct{ field, param, label, unit string }{
+		{"q", "q", "Q", ""}, {"esr", "esrOhm", "ESR", "Ω"}, {"maxV", "maxV", "Rated voltage", "V"}, {"maxA", "maxA", "Rated current", "A"},
+	} {
+		t, ok := r.f[fd.field]
+		if !ok {
+			continue
+		}
+		if strings.TrimSpace(t) == "" {
+			ch.Params[fd.param] = math.NaN() // clears it: the model's figure again
+			continue
+		}
+		v, err := units.ParseValue(t, fd.unit)
+		if err != nil {
+			return ch, r.errAt(fd.field, fd.label, err)
+		}
+		ch.Params[fd.param] = v
+	}
+	for _, fd := range []struct{ field, param, label string }{{"qRef", "qRefHz", "Q frequency"}, {"srf", "srfHz", "Self-resonance"}} {
+		t, ok := r.f[fd.field]
+		if !ok {
+			continue
+		}
+		if strings.TrimSpace(t) == "" {
+			ch.Params[fd.param] = math.NaN()
+			continue
+		}
+		v, err := units.ParseFrequency(t)
+		if err != nil {
+			return ch, r.errAt(fd.field, fd.label, err)
+		}
+		ch.Params[fd.param] = v
+	}
+	if err := lineParams(r, ch.Params); err != nil {
+		return ch, err
+	}
+	if err := tolParam(r, ch.Params); err != nil {
+		return ch, err
+	}
+	return ch, nil
+}
+
+// lineParams reads a line's or stub's impedance, velocity factor (or
+// effective permittivity), loss in dB/m and the loss's frequency into
+// params.
+func lineParams(r *fieldReader, params map[string]float64) error {
+	if t, ok := r.f["z0"]; ok {
+		v, err := units.ParseValue(t, "Ω")
+		if err != nil || !(v > 0) {
+			return r.errAt("z0", "Line impedance", fmt.Errorf("%q is not an impedance in ohms", t))
+		}
+		params["z0Ohm"] = v
+	}
+	if t, ok := r.f["vfValue"]; ok && strings.TrimSpace(t) != "" {
+		x, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+		switch {
+		case r.f["vfKind"] == "eeff" && (err != nil || !(x >= 1) || math.IsInf(x, 0)):
+			return r.errAt("vfValue", "Effective permittivity", fmt.Errorf("%q is not an effective permittivity (at least 1)", t))
+		case r.f["vfKind"] == "eeff":
+			params["vf"] = 1 / math.Sqrt(x)
+		case err != nil || !(x > 0 && x <= 1):
+			return r.errAt("vfValue", "Velocity factor", fmt.Errorf("%q is not a velocity factor (above 0, at most 1)", t))
+		default:
+			params["vf"] = x
+		}
+	}
+	if t, ok := r.f["loss"]; ok {
+		s := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(t), "dB/m"))
+		if s == "" || s == "0" {
+			params["lossDBPerM"] = math.NaN()
+		} else {
+			x, err := strconv.ParseFloat(s, 64)
+			if err != nil || !(x >= 0) || x >= 1e4 {
+				return r.errAt("loss", "Line loss", fmt.Errorf("%q is not a loss in dB per metre", t))
+			}
+			params["lossDBPerM"] = x
+		}
+	}
+	if t, ok := r.f["lossRef"]; ok && strings.TrimSpace(t) != "" {
+		x, err := units.ParseFrequency(t)
+		if err != nil || !(x > 0) {
+			return r.errAt("lossRef", "Loss frequency", fmt.Errorf("%q is not a frequency", t))
+		}
+		params["lossRefHz"] = x
+	}
+	return nil
+}
+
+// tolParam reads a part's tolerance in % into params (as a fraction).
+func tolParam(r *fieldReader, params map[string]float64) error {
+	if t, ok := r.f["tol"]; ok {
+		if strings.TrimSpace(t) == "" {
+			params["tolRel"] = math.NaN()
+		} else {
+			v, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(t, "%")), 64)
+			if err != nil || !(v >= 0 && v < 100) {
+				return r.errAt("tol", "Tolerance", fmt.Errorf("%q is not a percentage from 0 to 100", t))
+			}
+			params["tolRel"] = v / 100
+		}
+	}
+	return nil
+}
+
+// partSetForm reads a part's value as typed (in its unit, or a line's
+// length in wavelengths), from the slider (log10 of the value), or its
+// model and E-series.
+func partSetForm(r *fieldReader, ne *netEval) (sessions.Change, error) {
+	ch := sessions.Change{Op: sessions.OpPartSet, NetworkID: ne.n.ID, PartID: r.f["partId"], Gesture: r.f["gesture"]}
+	var part *sessions.Part
+	for i := range ne.n.Parts {
+		if ne.n.Parts[i].ID == ch.PartID {
+			part = &ne.n.Parts[i]
+		}
+	}
+	if part == nil {
+		return ch, r.errAt("partId", "Part", fmt.Errorf("no part %q in the active network", ch.PartID))
+	}
+	if s, ok := r.f["value"]; ok {
+		name := designator(ne.n.Parts, indexOf(ne.n.Parts, part.ID))
+		v, inWL, err := wavelengthValue(s, match.Part{Kind: part.Kind, Params: part.Params}, ne.n.DesignHz)
+		if inWL && part.Kind.Unit() != "m" {
+			return ch, r.errAt("value", name, fmt.Errorf("only a line or a stub has a length in wavelengths"))
+		}
+		if !inWL {
+			v, err = units.ParseValue(s, part.Kind.Unit())
+		}
+		if err != nil {
+			return ch, r.errAt("value", name, err)
+		}
+		ch.Value = &v
+	}
+	if s, ok := r.f["log"]; ok {
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+			return ch, r.errAt("log", "Slider", fmt.Errorf("%q is not a number", s))
+		}
+		v := math.Pow(10, x)
+		ch.Value = &v
+	}
+	if s, ok := r.f["model"]; ok {
+		ch.Model = &s
+	}
+	if s, ok := r.f["series"]; ok {
+		ch.ESeries = &s
+	}
+	return ch, nil
 }
 
 func indexOf(ps []sessions.Part, id string) int {
