@@ -1,7 +1,0 @@
-//go:build !race
-
-package main
-
-// crashRace reports that the tests run with the race detector, so the
-// server binary they start is built with it too.
-const crashRace = false
