@@ -107,21 +107,15 @@ type loadedSweep struct {
 	Comments []string
 }
 
-// loadSweep reads a Touchstone or CSV file, chosen by its ending.
+// loadSweep reads a Touchstone or CSV file, chosen by its ending
+// (touchstone.ReadNamed, as the server reads uploads).
 func loadSweep(path string) (*loadedSweep, error) {
-	if strings.EqualFold(filepath.Ext(path), ".csv") {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, err
-		}
-		defer f.Close()
-		s, err := touchstone.ReadCSV(f, path, touchstone.DefaultLimits)
-		if err != nil {
-			return nil, err
-		}
-		return &loadedSweep{Path: path, Sweep: s}, nil
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
 	}
-	tf, err := touchstone.ReadFile(path, touchstone.DefaultLimits)
+	defer f.Close()
+	tf, err := touchstone.ReadNamed(f, path, touchstone.DefaultLimits)
 	if err != nil {
 		return nil, err
 	}
@@ -144,7 +138,8 @@ func defaultDataDir() string {
 // (.ts) or Touchstone 1 (.sNp, N the port count; version 2 when the ports'
 // references differ), through a temporary file renamed into place, so a
 // failed write leaves no half file. opt.Version zero means by the ending;
-// comments that are not printable ASCII are dropped from Touchstone headers.
+// comments are made printable ASCII for Touchstone headers
+// (touchstone.CommentLines).
 func writeSweepFile(path string, s *rfmath.Sweep, opt touchstone.WriteOptions) error {
 	ext := strings.ToLower(filepath.Ext(path))
 	switch {
@@ -172,13 +167,7 @@ func writeSweepFile(path string, s *rfmath.Sweep, opt touchstone.WriteOptions) e
 				path, strings.Trim(strings.Join(strings.Fields(fmt.Sprint(s.Z0)), ", "), "[]"))
 		}
 	}
-	var ascii []string
-	for _, c := range opt.Comments {
-		if !strings.ContainsFunc(c, func(r rune) bool { return r < 0x20 || r > 0x7e }) {
-			ascii = append(ascii, c)
-		}
-	}
-	opt.Comments = ascii
+	opt.Comments = touchstone.CommentLines(opt.Comments)
 	tmp := path + ".tmp"
 	fh, err := os.Create(tmp)
 	if err != nil {
