@@ -434,15 +434,9 @@ func fmtZ(z complex128, fmt byte, prec int) string {
 
 func fmtDB(v float64) string { return units.FormatDB(v) }
 
-func fmtNum(v float64, prec int) string {
-	switch {
-	case math.IsInf(v, 1):
-		return "∞"
-	case math.IsNaN(v):
-		return "—"
-	}
-	return strconv.FormatFloat(v, 'f', prec, 64)
-}
+// fmtNum writes a unitless figure with prec decimals (units.FormatFixed,
+// as the command line writes it).
+func fmtNum(v float64, prec int) string { return units.FormatFixed(v, prec) }
 
 func (sc *scene) readoutRows() []web.ReadoutRow {
 	var rows []web.ReadoutRow

@@ -2,6 +2,7 @@ package cli
 
 import (
 	"fmt"
+	"matchbench/rfmath/units"
 	"math"
 	"strconv"
 	"strings"
@@ -41,13 +42,9 @@ func unMinusZero(s string) string {
 	return s
 }
 
-// fmtNum writes v with digits decimals.
-func fmtNum(v float64, digits int) string {
-	if s, ok := special(v); ok {
-		return s
-	}
-	return unMinusZero(strconv.FormatFloat(v, 'f', digits, 64))
-}
+// fmtNum writes v with digits decimals (units.FormatFixed, as the page
+// writes it).
+func fmtNum(v float64, digits int) string { return units.FormatFixed(v, digits) }
 
 // fmtDB writes a figure in dB to two decimals.
 func fmtDB(v float64) string { return fmtNum(v, 2) }

@@ -311,6 +311,22 @@ func FormatPercent(share float64, decimals int) string {
 	return noNegativeZero(strconv.FormatFloat(100*share, 'f', decimals, 64)) + " %"
 }
 
+// FormatFixed writes v with decimals decimal places and no unit: "1.43";
+// +Inf is "∞", −Inf "−∞", NaN "n/a", and a value that rounds to zero has no
+// minus sign. The page, the report and the command line write their
+// unitless figures (VSWR, Q, zoom) with it.
+func FormatFixed(v float64, decimals int) string {
+	switch {
+	case math.IsNaN(v):
+		return "n/a"
+	case math.IsInf(v, 1):
+		return "∞"
+	case math.IsInf(v, -1):
+		return "−∞"
+	}
+	return noNegativeZero(strconv.FormatFloat(v, 'f', decimals, 64))
+}
+
 // noNegativeZero drops the sign of a number that rounds to zero: a figure
 // of "-0.00" means nothing to a reader.
 func noNegativeZero(s string) string {

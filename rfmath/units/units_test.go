@@ -193,3 +193,23 @@ func FuzzParseValue(f *testing.F) {
 		}
 	})
 }
+
+// TestFormatFixed checks the unitless figures: Go's 'f' format (strconv,
+// round half to even on the binary value) with the engineer's spellings of
+// the special values (common practice: ∞ for a perfect match's VSWR, n/a for
+// no value, never "-0.00").
+func TestFormatFixed(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		v    float64
+		dec  int
+		want string
+	}{
+		{1.4349, 3, "1.435"}, {2, 2, "2.00"}, {-0.001, 2, "0.00"}, {math.Copysign(0, -1), 1, "0.0"},
+		{-3.25, 1, "-3.2"}, {math.Inf(1), 2, "∞"}, {math.Inf(-1), 2, "−∞"}, {math.NaN(), 2, "n/a"},
+	} {
+		if got := FormatFixed(tc.v, tc.dec); got != tc.want {
+			t.Errorf("FormatFixed(%g, %d) = %q, want %q", tc.v, tc.dec, got, tc.want)
+		}
+	}
+}
