@@ -139,3 +139,27 @@ func TestResonanceSlopeQ(t *testing.T) {
 		t.Errorf("FractionalBandwidth(0, 1) = %v, want NaN", fb)
 	}
 }
+
+// TestBandCentreHz checks the design centre on the half-power edges of
+// REFERENCE-CHECKS R-1 (series RLC, L = 100 nH, C = 10 pF, R = 5 Ω): the
+// edges f0·(√(1 + 1/(4Q²)) ∓ 1/(2Q)) have the product f0² exactly (closed
+// form), so their geometric centre is the resonance 159.1549431 MHz, while
+// the arithmetic centre lies above it.
+func TestBandCentreHz(t *testing.T) {
+	t.Parallel()
+	f0 := 1 / (2 * math.Pi * math.Sqrt(100e-9*10e-12))
+	q := 2 * math.Pi * f0 * 100e-9 / 5
+	k := math.Sqrt(1 + 1/(4*q*q))
+	lo, hi := f0*(k-1/(2*q)), f0*(k+1/(2*q))
+	if got := BandCentreHz(lo, hi); math.Abs(got-f0) > 1e-9*f0 || math.Abs(f0-159.1549431e6) > 1 {
+		t.Errorf("BandCentreHz(%g, %g) = %.6f Hz, want the resonance %.6f Hz", lo, hi, got, f0)
+	}
+	if a := (lo + hi) / 2; !(a > f0) {
+		t.Errorf("arithmetic centre %g not above f0 %g", a, f0)
+	}
+	for _, e := range [][2]float64{{0, 1e9}, {2e9, 1e9}, {-1, 1}, {1e9, math.Inf(1)}, {math.NaN(), 1e9}} {
+		if got := BandCentreHz(e[0], e[1]); !math.IsNaN(got) {
+			t.Errorf("BandCentreHz(%g, %g) = %g, want NaN", e[0], e[1], got)
+		}
+	}
+}

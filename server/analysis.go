@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"matchbench/chartsvg"
+	"matchbench/rfmath"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
@@ -68,7 +69,7 @@ func (sc *scene) limitsView() web.LimitsView {
 			for _, b := range bands {
 				lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
 			}
-			fHz = math.Sqrt(lo * hi)
+			fHz = rfmath.BandCentreHz(lo, hi)
 		}
 		c, err := match.ChuCompare(l, fHz, r)
 		if err != nil {

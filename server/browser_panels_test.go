@@ -123,11 +123,12 @@ func TestBrowserLinesAndStubs(t *testing.T) {
 		t.Errorf("worst power to the load %q with 2 dB/m lines, %q lossless: the loss is not counted", lossy, lossless)
 	}
 	// Set the first line's impedance to 60 Ω in its row; type 0.25λ as
-	// the stub's length: 0.25 × 1.978630 m = 494.66 mm.
+	// the stub's length at the design frequency, the band's geometric
+	// centre √(95 · 105) MHz = 99.875 MHz: 0.25 × 0.66 c / f = 495.28 mm.
 	p.submit(`[data-testid="line-form"]`, map[string]string{"z0": "60"})
 	p.wait(`document.querySelector('[data-testid="line-summary"]').textContent.includes("60 Ω")`)
 	p.set(`[data-testid="part-row"][data-index="1"] [data-testid="part-value"]`, "0.25λ")
-	p.wait(`document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').value === "494.7 mm"`)
+	p.wait(`document.querySelector('[data-testid="part-row"][data-index="1"] [data-testid="part-value"]').value === "495.3 mm"`)
 	shot(t, p.ctx, shotDir(t)+"/lines.png")
 }
 

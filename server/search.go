@@ -479,12 +479,12 @@ func (sc *scene) searchChange(form string, f map[string]string) (sessions.Change
 	return sessions.Change{}, fmt.Errorf("unknown form %q", form)
 }
 
-// designHz is the centre of the first band with a requirement inside the
+// designHz is the centre (rfmath.BandCentreHz) of the first band inside the
 // sweep, or 0 (the store picks its default).
 func designHz(sc *scene, sweepID string) float64 {
 	sw := sc.all[sweepID]
 	for _, b := range sc.st.Bands {
-		c := (b.LoHz + b.HiHz) / 2
+		c := rfmath.BandCentreHz(b.LoHz, b.HiHz)
 		if sw != nil && c >= sw.FreqHz[0] && c <= sw.FreqHz[sw.Len()-1] {
 			return c
 		}

@@ -427,11 +427,11 @@ func (o *netOp) partMove() error {
 	return nil
 }
 
-// defaultDesignHz is the centre of the first band inside the sweep, else
-// the sweep's centre.
+// defaultDesignHz is the centre of the first band inside the sweep
+// (rfmath.BandCentreHz, the geometric centre), else the sweep's centre.
 func defaultDesignHz(st *State, ref SweepRef) float64 {
 	for _, b := range st.Bands {
-		c := (b.LoHz + b.HiHz) / 2
+		c := rfmath.BandCentreHz(b.LoHz, b.HiHz)
 		if c >= ref.FminHz && c <= ref.FmaxHz {
 			return c
 		}

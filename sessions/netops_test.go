@@ -22,8 +22,8 @@ func TestNetworkOps(t *testing.T) {
 	ev := apply(t, st, s.ID, Change{Op: OpNetworkAdd})
 	cur, _ := state(t, st, s.ID)
 	n := cur.Active()
-	if n == nil || n.SweepID != sw || n.Port != 1 || n.DesignHz != 1e9 || ev.NetworkID != n.ID {
-		t.Fatalf("network.add: %+v, event %+v; want on the sweep, design at the band centre 1 GHz", n, ev)
+	if n == nil || n.SweepID != sw || n.Port != 1 || n.DesignHz != math.Sqrt(0.9e9*1.1e9) || ev.NetworkID != n.ID {
+		t.Fatalf("network.add: %+v, event %+v; want on the sweep, design at the band's geometric centre √(0.9 · 1.1) GHz", n, ev)
 	}
 	l := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartShuntC, Value: fptr(1e-12), Model: sptr("0402")})
 	c := apply(t, st, s.ID, Change{Op: OpPartAdd, Kind: PartSeriesL, Value: fptr(10e-9), ESeries: sptr("e24"), Index: iptr(0)})

@@ -27,8 +27,8 @@ func TestAmpView(t *testing.T) {
 	steps := []float64{2, 1, 2}
 	ev := apply(t, st, sid, Change{Op: OpAmpSet, SweepID: dev, AmpChange: AmpChange{GainStepsDB: &steps}})
 	a := ev.State.Amp
-	if a == nil || a.SweepID != dev || a.FreqHz != 1e9 || len(a.GainStepsDB) != 2 || a.GainStepsDB[0] != 1 || a.GainStepsDB[1] != 2 {
-		t.Fatalf("amp view %+v: want the band centre 1 GHz and steps [1 2]", a)
+	if a == nil || a.SweepID != dev || a.FreqHz != math.Sqrt(0.9e9*1.1e9) || len(a.GainStepsDB) != 2 || a.GainStepsDB[0] != 1 || a.GainStepsDB[1] != 2 {
+		t.Fatalf("amp view %+v: want the band's geometric centre √(0.9 · 1.1) GHz and steps [1 2]", a)
 	}
 	for _, bad := range []Change{
 		{Op: OpAmpSet, FreqHz: 3e9},

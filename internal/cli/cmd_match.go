@@ -13,6 +13,7 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/limits"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
@@ -292,7 +293,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		for _, b := range bands {
 			lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
 		}
-		c, err := match.ChuCompare(load, math.Sqrt(lo*hi), radius.v)
+		c, err := match.ChuCompare(load, rfmath.BandCentreHz(lo, hi), radius.v)
 		chu, chuErr = &c, err
 	}
 

@@ -8,6 +8,7 @@ import (
 
 	"gonum.org/v1/gonum/optimize"
 
+	"matchbench/rfmath"
 	"matchbench/rfmath/parts"
 )
 
@@ -147,7 +148,7 @@ func (e *engine) starts(top []Kind, lo, hi []float64) [][]float64 {
 	first := e.sj.members[e.pts.member[0]].Load
 	if len(e.bands) > 1 {
 		for _, b := range e.bands {
-			centres = append(centres, math.Sqrt(b.LoHz*b.HiHz))
+			centres = append(centres, rfmath.BandCentreHz(b.LoHz, b.HiHz))
 		}
 	}
 	for _, fc := range centres {

@@ -185,7 +185,7 @@ func (spec *FitSpec) normalise() error {
 		return fmt.Errorf("%w: %g–%g Hz in %g Ω", ErrBand, lo, hi, spec.Z0Ohm)
 	}
 	if hi < 1.2*lo { // a single frequency, or nearly: fit ±10 % about it
-		c := math.Sqrt(lo * hi)
+		c := rfmath.BandCentreHz(lo, hi)
 		spec.Span = Range{math.Min(lo, c/1.1), math.Max(hi, c*1.1)}
 	}
 	var bands []Range
