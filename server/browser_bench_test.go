@@ -237,7 +237,11 @@ func markerGamma(f *fixture) complex128 {
 //
 //	drag:      a pointer drag of a marker on a session of 4 sweeps of 10,001
 //	           points; per pointer event, the time to the frame that shows the
-//	           new frequency in the editor (p50-ms, p99-ms, samples)
+//	           new frequency in the editor (p50-ms, p99-ms, samples). The
+//	           DevTools Protocol dispatches scripted input phase-locked to
+//	           the frames, so a move reaches the page early in a frame and
+//	           its answer paints on the next one: about one frame is the
+//	           floor of this figure, whatever the server's speed
 //	viewer:    the same drag watched from the view link in a second tab;
 //	           per pointer event, the time to the viewer's frame
 //	open:      a session of 20 sweeps of 10,001 points, a network and a Monte
