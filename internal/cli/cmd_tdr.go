@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"path/filepath"
-	"sort"
 	"strings"
 	"text/tabwriter"
 
@@ -166,21 +165,9 @@ func tdrReportOf(path string, r *tdr.Response, vf, z0, minPeak float64) *tdrRepo
 			rep.ImpedanceOhm[i] = jsonNum(v)
 		}
 	}
-	// Peaks: local maxima of |h| at or after t = −resolution, at least
-	// minPeak; the 20 largest, listed in time order.
+	// The 20 largest reflections, in time order (tdr.Response.Peaks).
 	h := r.Impulse
-	var idx []int
-	for i := 1; i < len(h)-1; i++ {
-		a := math.Abs(h[i])
-		if a >= minPeak && a >= math.Abs(h[i-1]) && a > math.Abs(h[i+1]) && r.TimeS[i] >= -r.ResolutionS() && r.TimeS[i] < r.RangeS()/2 {
-			idx = append(idx, i)
-		}
-	}
-	sort.Slice(idx, func(a, b int) bool { return math.Abs(h[idx[a]]) > math.Abs(h[idx[b]]) })
-	if len(idx) > 20 {
-		idx = idx[:20]
-	}
-	sort.Ints(idx)
+	idx := r.Peaks(minPeak, 20)
 	for _, i := range idx {
 		p := peakJSON{TimeS: r.TimeS[i], DistanceM: rep.DistanceM[i], Impulse: h[i]}
 		if z != nil {
