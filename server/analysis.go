@@ -7,7 +7,6 @@ import (
 	"time"
 
 	"matchbench/chartsvg"
-	"matchbench/rfmath"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
 	"matchbench/sessions"
@@ -33,6 +32,7 @@ func (sc *scene) limitsView() web.LimitsView {
 		return v
 	}
 	l, bands := ne.matchLoad(sc.st)
+	var chuFit *match.Fit // the Bode–Fano model, for the Chu comparison's fallback
 	if len(bands) > 0 {
 		members := []match.Member{{Load: l}}
 		if ne.set != nil {
@@ -42,6 +42,7 @@ func (sc *scene) limitsView() web.LimitsView {
 		if err != nil {
 			v.BodeFano = "Bode–Fano: " + plainDetail(err.Error())
 		} else {
+			chuFit = &fit
 			kind := "series"
 			if fit.Parallel {
 				kind = "parallel"
@@ -61,26 +62,22 @@ func (sc *scene) limitsView() web.LimitsView {
 	}
 	if r := ne.n.ChuRadiusM; r > 0 {
 		// The resonance nearest the middle of the bands, as the command
-		// line's match --radius finds it; without bands, the design
-		// frequency.
-		fHz := ne.n.DesignHz
-		if len(bands) > 0 {
-			lo, hi := bands[0].LoHz, bands[0].HiHz
-			for _, b := range bands {
-				lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
-			}
-			fHz = rfmath.BandCentreHz(lo, hi)
-		}
-		c, err := match.ChuCompare(l, fHz, r)
+		// line's match --radius finds it (match.ChuForBands); without
+		// bands, the design frequency.
+		c, err := match.ChuForBands(l, bands, ne.n.DesignHz, r, chuFit)
 		if err != nil {
 			v.Chu = "Chu limit: no comparison, because " + plainDetail(err.Error()) + "."
 		} else {
-			how := ""
-			if c.SlopeQ {
+			how, shows := "", "the sweep shows"
+			switch {
+			case c.SlopeQ:
 				how = ", from the slope of its impedance (a half-power edge lies beyond the sweep)"
+			case c.FromFit:
+				shows = "the RLC fitted near the bands shows"
+				how = " (the sweep's own Q cannot be measured: " + plainDetail(c.Why.Error()) + ")"
 			}
-			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance at %s, so Q ≥ %.1f; the sweep shows Q = %.1f%s: %.2f × the limit%s.",
-				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, c.Measured.Q, how, c.Ratio,
+			v.Chu = fmt.Sprintf("Chu limit for a sphere of radius %s: ka = %.3f at the resonance at %s, so Q ≥ %.1f; %s Q = %.1f%s: %.2f × the limit%s.",
+				units.Format(r, "m", 3), c.KA, fmtF(c.Measured.FreqHz), c.ChuQ, shows, c.Measured.Q, how, c.Ratio,
 				map[bool]string{true: "; below 1 means loss, or a radiator larger than the sphere such as the ground plane", false: ""}[c.Ratio < 1])
 		}
 		v.Radius = units.Format(r, "m", 3)

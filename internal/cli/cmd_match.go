@@ -13,7 +13,6 @@ import (
 	"text/tabwriter"
 	"time"
 
-	"matchbench/rfmath"
 	"matchbench/rfmath/limits"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/parts"
@@ -289,11 +288,11 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	var chu *match.Chu
 	var chuErr error
 	if radius.v > 0 {
-		lo, hi := bands[0].LoHz, bands[0].HiHz
-		for _, b := range bands {
-			lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
+		var f *match.Fit
+		if limErr == nil {
+			f = &fit
 		}
-		c, err := match.ChuCompare(load, rfmath.BandCentreHz(lo, hi), radius.v)
+		c, err := match.ChuForBands(load, bands, 0, radius.v, f)
 		chu, chuErr = &c, err
 	}
 
@@ -333,16 +332,14 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	if chu != nil {
 		fmt.Fprintln(stdout)
-		if chuErr != nil {
+		switch {
+		case chuErr != nil:
 			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chuErr)
-			if limErr == nil && fit.ResonanceHz() > 0 {
-				f0 := fit.ResonanceHz()
-				ka := match.KA(radius.v, f0)
-				ratio := fit.Q() / match.ChuQ(ka)
-				fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
-					fit.RLC, units.FormatFrequency(f0, 6), fmtSig(fit.Q(), 3), units.Format(radius.v, "m", 3), fmtNum(ka, 3), fmtSig(match.ChuQ(ka), 3), fmtNum(ratio, 2), belowChu(ratio))
-			}
-		} else {
+		case chu.FromFit:
+			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chu.Why)
+			fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
+				fit.RLC, units.FormatFrequency(chu.Measured.FreqHz, 6), fmtSig(chu.Measured.Q, 3), units.Format(radius.v, "m", 3), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3), fmtNum(chu.Ratio, 2), belowChu(chu.Ratio))
+		default:
 			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %s, so Q ≥ %s.\n",
 				units.Format(radius.v, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3))
 			how := ""

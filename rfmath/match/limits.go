@@ -412,6 +412,39 @@ type Chu struct {
 	// at the resonance ([rfmath.ResonanceSlopeQ]) because a half-power edge
 	// lies beyond the sweep; Measured.LoHz and HiHz are then zero.
 	SlopeQ bool
+	// FromFit reports that the sweep's own Q could not be measured (Why
+	// says why) and that Measured is the resonance and Q of the Bode–Fano
+	// model fitted to the load near the bands instead ([ChuForBands]).
+	FromFit bool
+	Why     error
+}
+
+// ChuForBands compares the load's Q with the Chu limit for a sphere of
+// radius radiusM, as the page and the command line show it: at the
+// resonance nearest the centre ([rfmath.BandCentreHz]) of the span from the
+// lowest band edge to the highest, or nearest fHz when there are no bands
+// ([ChuCompare]). When the sweep's own Q cannot be measured there and fit
+// (the load's Bode–Fano model, nil when there is none) resonates, the
+// comparison is made on the fitted RLC instead: FromFit is set and Why
+// holds the reason the sweep could not answer. Otherwise the error is
+// ChuCompare's.
+func ChuForBands(l Load, bands []Band, fHz, radiusM float64, fit *Fit) (Chu, error) {
+	if len(bands) > 0 {
+		lo, hi := bands[0].LoHz, bands[0].HiHz
+		for _, b := range bands {
+			lo, hi = math.Min(lo, b.LoHz), math.Max(hi, b.HiHz)
+		}
+		fHz = rfmath.BandCentreHz(lo, hi)
+	}
+	c, err := ChuCompare(l, fHz, radiusM)
+	if err == nil || fit == nil || !(fit.ResonanceHz() > 0) {
+		return c, err
+	}
+	f0 := fit.ResonanceHz()
+	ka := KA(radiusM, f0)
+	c = Chu{KA: ka, ChuQ: ChuQ(ka), Measured: rfmath.Resonance{FreqHz: f0, Series: !fit.Parallel, Q: fit.Q()}, FromFit: true, Why: err}
+	c.Ratio = c.Measured.Q / c.ChuQ
+	return c, nil
 }
 
 // ChuCompare finds the resonance of the load nearest fHz (a zero crossing

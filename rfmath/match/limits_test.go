@@ -259,3 +259,48 @@ func TestFitTrusted(t *testing.T) {
 		t.Errorf("two resonances fitted by one RLC with error %.3g: trusted %v", fit.RMSGammaError, fit.Trusted())
 	}
 }
+
+// TestChuForBands checks the comparison the page and the command line show:
+// at the resonance nearest the geometric centre of the bands' span (two
+// resonances, REFERENCE-CHECKS §9 R-1 at 159.15 MHz with Q 20 and a second
+// series RLC at 225 MHz; bands 150–152 and 165–170 MHz have their span's
+// centre √(150·170) = 159.69 MHz), and, on a sweep with no resonance, the
+// fallback to the fitted RLC (Q = ω0·L/R = 20 for R-1, closed form; ka 0.5
+// so Q_Chu = 10, McLean 1996): FromFit, the sweep's reason kept in Why.
+func TestChuForBands(t *testing.T) {
+	t.Parallel()
+	m := RLC{ROhm: 5, LH: 100e-9, CF: 10e-12}
+	m2 := RLC{ROhm: 5, LH: 100e-9, CF: 1 / (math.Pow(2*math.Pi*225e6, 2) * 100e-9)}
+	f0 := m.ResonanceHz()
+	a := 0.5 * rfmath.SpeedOfLight / (2 * math.Pi * f0)
+	// Two series resonators in parallel: each dominates near its own
+	// resonance.
+	two := loadOf(grid(100e6, 300e6, 4001), 50, func(f float64) complex128 {
+		z1, z2 := m.Z(f), m2.Z(f)
+		return z1 * z2 / (z1 + z2)
+	})
+	bands := []Band{{LoHz: 150e6, HiHz: 152e6}, {LoHz: 165e6, HiHz: 170e6}}
+	c, err := ChuForBands(two, bands, 240e6, a, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := ChuCompare(two, math.Sqrt(150e6*170e6), a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c != want || c.FromFit || math.Abs(c.Measured.FreqHz-f0) > 0.5e6 {
+		t.Errorf("ChuForBands %+v, want ChuCompare at the span's centre %+v (near %g Hz)", c, want, f0)
+	}
+	// No bands: nearest fHz (the second resonance).
+	if c, err := ChuForBands(two, nil, 240e6, a, nil); err != nil || math.Abs(c.Measured.FreqHz-225e6) > 2e6 {
+		t.Errorf("ChuForBands without bands near 240 MHz: %+v, %v", c, err)
+	}
+	flat := loadOf(grid(150e6, 170e6, 81), 50, func(float64) complex128 { return 30 + 5i })
+	if _, err := ChuForBands(flat, bands, 0, a, nil); err == nil {
+		t.Error("no resonance and no fit: accepted")
+	}
+	c, err = ChuForBands(flat, bands, 0, a, &Fit{RLC: m})
+	if err != nil || !c.FromFit || c.Why == nil || math.Abs(c.Measured.Q-20) > 1e-9 || math.Abs(c.KA-0.5) > 1e-9 || math.Abs(c.Ratio-2) > 1e-6 {
+		t.Errorf("fallback to the fit: %+v, %v; want Q 20, ka 0.5, ratio 2", c, err)
+	}
+}
