@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -86,28 +87,18 @@ func (s *Server) corrected(sid string, ref sessions.SweepRef, raw *rfmath.Sweep)
 }
 
 func (s *Server) applyPlane(sid string, rp *sessions.RefPlane, raw *rfmath.Sweep) (*rfmath.Sweep, error) {
-	sw := raw
+	plane := deembed.Plane{RenormOhm: max(rp.RenormOhm, 0)}
 	if rp.FixtureSweepID != "" {
 		fx, err := s.store.Sweep(sid, rp.FixtureSweepID)
 		if err != nil {
 			return nil, fmt.Errorf("the fixture sweep: %w", err)
 		}
-		fix := make([]deembed.Fixture, sw.Ports)
-		fix[0] = deembed.Fixture{S: fx, AnalyserPort: rp.FixturePortFacingAnalyser}
-		if sw, err = deembed.Remove(sw, fix); err != nil {
-			return nil, err
-		}
+		plane.Fixtures = make([]deembed.Fixture, raw.Ports)
+		plane.Fixtures[0] = deembed.Fixture{S: fx, AnalyserPort: rp.FixturePortFacingAnalyser}
 	}
-	if rp.DelayS != 0 || rp.LossDB != 0 || rp.FlatLossDB != 0 {
-		sw = deembed.ExtendAll(sw, deembed.Extension{DelayS: rp.DelayS, LossDB: rp.LossDB, LossRefHz: rp.LossRefHz, FlatLossDB: rp.FlatLossDB})
-	}
-	if rp.RenormOhm > 0 {
-		var err error
-		if sw, err = deembed.RenormalizeAll(sw, rp.RenormOhm); err != nil {
-			return nil, err
-		}
-	}
-	return sw, nil
+	ext := deembed.Extension{DelayS: rp.DelayS, LossDB: rp.LossDB, LossRefHz: rp.LossRefHz, FlatLossDB: rp.FlatLossDB}
+	plane.Extensions = slices.Repeat([]deembed.Extension{ext}, raw.Ports)
+	return plane.Apply(raw)
 }
 
 // refPlaneChange turns the reference-plane and time-domain forms into

@@ -103,6 +103,7 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 		return usagef("--fixture2 needs a 2-port sweep; %s has %d port(s)", in, s.Ports)
 	}
 	var steps deembedSteps
+	var plane deembed.Plane // the steps, taken in their order by plane.Apply
 
 	// 1. Fixtures.
 	if *fix1 != "" || *fix2 != "" {
@@ -121,9 +122,7 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 			fix[i] = deembed.Fixture{S: fl.Sweep, AnalyserPort: f.at}
 			steps.add("removed fixture %s from port %d (its port %d at the analyser)", filepath.Base(f.path), i+1, f.at)
 		}
-		if s, err = deembed.Remove(s, fix); err != nil {
-			return err
-		}
+		plane.Fixtures = fix
 	}
 
 	// 2. Port extension, given or fitted.
@@ -152,7 +151,7 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 				exts[i] = ext
 			}
 		}
-		s = deembed.Extend(s, exts)
+		plane.Extensions = exts
 		where := "every port"
 		if *port != 0 {
 			where = fmt.Sprintf("port %d", *port)
@@ -162,10 +161,11 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 
 	// 3. Reference.
 	if *z0 > 0 {
-		if s, err = deembed.RenormalizeAll(s, *z0); err != nil {
-			return err
-		}
+		plane.RenormOhm = *z0
 		steps.add("renormalised to %s ohm", strconv.FormatFloat(*z0, 'g', -1, 64))
+	}
+	if s, err = plane.Apply(s); err != nil {
+		return err
 	}
 
 	comments := []string{" de-embedded by matchbench from " + filepath.Base(in)}
