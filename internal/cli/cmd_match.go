@@ -151,16 +151,9 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if math.IsNaN(*rl) || math.IsInf(*rl, 0) {
 		return usagef("--rl %g: not a number of dB", *rl)
 	}
-	if len(bandArgs) == 0 {
-		return usagef("--band is required, e.g. --band 2.40G:2.4835G")
-	}
-	bands := make([]match.Band, len(bandArgs))
-	for i, s := range bandArgs {
-		b, err := parseBand(s, math.Abs(*rl))
-		if err != nil {
-			return usagef("--band %s: %v", s, err)
-		}
-		bands[i] = b
+	bands, err := matchBands(bandArgs, *rl, *minPower)
+	if err != nil {
+		return err
 	}
 	lSer, cSer, err := parseSeries(*series)
 	if err != nil {
@@ -179,33 +172,9 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return usagef("--objective %s: want power or rl", *objective)
 	}
-	if *minPower != "" {
-		share, err := limits.ParseShare(*minPower)
-		if err != nil {
-			return usagef("--min-power %s: %v", *minPower, err)
-		}
-		for i := range bands {
-			bands[i].MinPowerToLoad = share
-		}
-	}
-	var model parts.Model
-	modelName := "ideal"
-	switch {
-	case *qFlag != "":
-		if *ideal {
-			return usagef("--q and --ideal: choose one part model")
-		}
-		cq, err := parts.ParseConstantQ(*qFlag)
-		if err != nil {
-			return usagef("--q %s: %v", *qFlag, err)
-		}
-		model, modelName = cq, cq.String()
-	case !*ideal:
-		fam, err := parts.LookupFamily(*size)
-		if err != nil {
-			return usagef("--size %s: %v", *size, err)
-		}
-		model, modelName = fam, "typical "+fam.Name
+	model, modelName, err := matchModel(*qFlag, *ideal, *size)
+	if err != nil {
+		return err
 	}
 
 	members, err := loadMembers(pos, advisory, weights, bands)
@@ -213,7 +182,6 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	load := members[0].Load
-	isSet := len(members) > 1
 	kind := match.Conditions
 	if *lot {
 		kind = match.Lot
@@ -228,62 +196,10 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	took := time.Since(t0)
 	lim, fit, limErr := match.BodeFanoOfSet(members, bands)
 
-	designs := make([]matchDesignJSON, len(res.Designs))
-	for i, d := range res.Designs {
-		j := matchDesignJSON{
-			Parts:            partsJSON(d.Network),
-			WorstRLdB:        jsonNum(d.WorstRLdB),
-			WorstPowerToLoad: jsonNum(d.WorstPowerToLoad),
-			MarginDB:         jsonNum(d.MarginDB),
-			Meets:            d.Meets(),
-			OverDissipating:  d.OverDissipating(),
-			WorseThanNone:    d.WorseThanNone(),
-			Model:            modelName,
-		}
-		for _, b := range d.Bands {
-			j.Bands = append(j.Bands, bandJSONOf(b))
-		}
-		if isSet {
-			for mi, mm := range d.Members {
-				mj := memberJSON{File: members[mi].Name, Advisory: members[mi].Advisory, Weight: members[mi].Weight,
-					WorstRLdB: jsonNum(mm.WorstRLdB), WorstPowerToLoad: jsonNum(mm.WorstPowerToLoad), MarginDB: jsonNum(mm.MarginDB), Meets: mm.Meets()}
-				if mj.Weight == 0 {
-					mj.Weight = 1
-				}
-				for _, b := range mm.Bands {
-					mj.Bands = append(mj.Bands, bandJSONOf(b))
-				}
-				j.Members = append(j.Members, mj)
-			}
-			if d.WorstMember >= 0 {
-				wb := d.WorstBand
-				mp := jsonNum(d.MeanPowerToLoad)
-				j.WorstMember, j.WorstBand, j.MeanPower = members[d.WorstMember].Name, &wb, &mp
-			}
-		}
-		if *builds > 0 {
-			y, err := match.YieldSet(ctx, members, kind, bands, d.Network, &match.YieldSettings{Builds: *builds})
-			if err != nil {
-				return err
-			}
-			j.Yield = &y.Yield
-		}
-		if limErr == nil {
-			j.Limit = &limitJSON{fit.String(), fit.RMSGammaError, jsonNum(lim.BestRLdB), jsonNum(lim.MaxMarginDB)}
-		}
-		if i == 0 {
-			j.Search = &searchInfoJSON{res.Objective.String(), res.Exact, res.Window, res.Combinations, took.Seconds()}
-			if power.v > 0 {
-				rep, err := match.Stress(load, bands, d.Network, match.StressSettings{PowerW: power.v})
-				if err != nil {
-					return err
-				}
-				for _, r := range rep {
-					j.Stress = append(j.Stress, stressJSON{string(r.Part.Kind), r.Part.Value, r.WorstV.VPeak, r.WorstI.IRMS, r.WorstP.DissipationW, r.Warnings})
-				}
-			}
-		}
-		designs[i] = j
+	designs, err := matchDesignJSONs(ctx, matchRun{members: members, kind: kind, bands: bands, res: res, took: took,
+		lim: lim, fit: fit, limErr: limErr, modelName: modelName, builds: *builds, powerW: power.v})
+	if err != nil {
+		return err
 	}
 	var chu *match.Chu
 	var chuErr error
@@ -310,6 +226,20 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	}
 	printMatch(stdout, members, bands, res, designs, modelName, lSer, cSer, took)
 	fmt.Fprintln(stdout)
+	printMatchLimits(stdout, best, lim, fit, limErr)
+	if chu != nil {
+		printChu(stdout, *chu, chuErr, fit, radius.v)
+	}
+	if power.v > 0 {
+		printStress(stdout, designs[0], power.v)
+	}
+	return nil
+}
+
+// printMatchLimits prints the Bode–Fano limit of the load near the bands
+// (or why no model fits) and the result: the best design's margin and worst
+// power to the load, or how far it misses.
+func printMatchLimits(stdout io.Writer, best match.Design, lim match.Limit, fit match.Fit, limErr error) {
 	if limErr != nil {
 		fmt.Fprintf(stdout, "Bode–Fano: no RC, RL or RLC model fits the load near the bands (%v).\n", limErr)
 	} else {
@@ -330,29 +260,167 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	} else {
 		fmt.Fprintln(stdout, unmetNote(best, lim, limErr))
 	}
-	if chu != nil {
-		fmt.Fprintln(stdout)
-		switch {
-		case chuErr != nil:
-			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chuErr)
-		case chu.FromFit:
-			fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chu.Why)
-			fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
-				fit.RLC, units.FormatFrequency(chu.Measured.FreqHz, 6), fmtSig(chu.Measured.Q, 3), units.Format(radius.v, "m", 3), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3), fmtNum(chu.Ratio, 2), belowChu(chu.Ratio))
-		default:
-			fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %s, so Q ≥ %s.\n",
-				units.Format(radius.v, "m", 3), units.FormatFrequency(chu.Measured.FreqHz, 6), fmtNum(chu.KA, 3), fmtSig(chu.ChuQ, 3))
-			how := ""
-			if chu.SlopeQ {
-				how = ", from the impedance's slope as a half-power edge lies beyond the sweep"
-			}
-			fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %s%s (%s × the limit%s).\n", fmtSig(chu.Measured.Q, 3), how, fmtNum(chu.Ratio, 2), belowChu(chu.Ratio))
+}
+
+// printChu prints the Chu comparison: the sweep's Q against the limit of a
+// sphere of radius radiusM, or the fitted RLC's when the sweep's own Q
+// cannot be measured, or why there is none.
+func printChu(stdout io.Writer, c match.Chu, chuErr error, fit match.Fit, radiusM float64) {
+	fmt.Fprintln(stdout)
+	switch {
+	case chuErr != nil:
+		fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", chuErr)
+	case c.FromFit:
+		fmt.Fprintf(stdout, "Chu limit: cannot measure the sweep's Q (%v).\n", c.Why)
+		fmt.Fprintf(stdout, "  The fitted %s resonates at %s with Q = %s; a sphere of radius %s there has ka = %s, so Q ≥ %s (Chu; McLean 1996): %s × the limit%s.\n",
+			fit.RLC, units.FormatFrequency(c.Measured.FreqHz, 6), fmtSig(c.Measured.Q, 3), units.Format(radiusM, "m", 3), fmtNum(c.KA, 3), fmtSig(c.ChuQ, 3), fmtNum(c.Ratio, 2), belowChu(c.Ratio))
+	default:
+		fmt.Fprintf(stdout, "Chu limit (McLean 1996): a sphere of radius %s at %s has ka = %s, so Q ≥ %s.\n",
+			units.Format(radiusM, "m", 3), units.FormatFrequency(c.Measured.FreqHz, 6), fmtNum(c.KA, 3), fmtSig(c.ChuQ, 3))
+		how := ""
+		if c.SlopeQ {
+			how = ", from the impedance's slope as a half-power edge lies beyond the sweep"
+		}
+		fmt.Fprintf(stdout, "  The sweep's resonance there has Q = %s%s (%s × the limit%s).\n", fmtSig(c.Measured.Q, 3), how, fmtNum(c.Ratio, 2), belowChu(c.Ratio))
+	}
+}
+
+// matchModel is the part model the flags ask for: constant Q (--q), the
+// typical parts of a case size (--size), or ideal parts (--ideal), with
+// its name for the output.
+func matchModel(qFlag string, ideal bool, size string) (parts.Model, string, error) {
+	var model parts.Model
+	modelName := "ideal"
+	switch {
+	case qFlag != "":
+		if ideal {
+			return nil, "", usagef("--q and --ideal: choose one part model")
+		}
+		cq, err := parts.ParseConstantQ(qFlag)
+		if err != nil {
+			return nil, "", usagef("--q %s: %v", qFlag, err)
+		}
+		model, modelName = cq, cq.String()
+	case !ideal:
+		fam, err := parts.LookupFamily(size)
+		if err != nil {
+			return nil, "", usagef("--size %s: %v", size, err)
+		}
+		model, modelName = fam, "typical "+fam.Name
+	}
+	return model, modelName, nil
+}
+
+// setDesignJSON adds design d's figures on each member of the set to j,
+// and which member and band are worst.
+func setDesignJSON(j *matchDesignJSON, d match.Design, members []match.Member) {
+	for mi, mm := range d.Members {
+		mj := memberJSON{File: members[mi].Name, Advisory: members[mi].Advisory, Weight: members[mi].Weight,
+			WorstRLdB: jsonNum(mm.WorstRLdB), WorstPowerToLoad: jsonNum(mm.WorstPowerToLoad), MarginDB: jsonNum(mm.MarginDB), Meets: mm.Meets()}
+		if mj.Weight == 0 {
+			mj.Weight = 1
+		}
+		for _, b := range mm.Bands {
+			mj.Bands = append(mj.Bands, bandJSONOf(b))
+		}
+		j.Members = append(j.Members, mj)
+	}
+	if d.WorstMember >= 0 {
+		wb := d.WorstBand
+		mp := jsonNum(d.MeanPowerToLoad)
+		j.WorstMember, j.WorstBand, j.MeanPower = members[d.WorstMember].Name, &wb, &mp
+	}
+}
+
+// matchBands reads the --band flags (each LO:HI, or LO:HI:RL with its own
+// return loss, else rl) and gives every band the --min-power requirement.
+func matchBands(bandArgs []string, rl float64, minPower string) ([]match.Band, error) {
+	if len(bandArgs) == 0 {
+		return nil, usagef("--band is required, e.g. --band 2.40G:2.4835G")
+	}
+	bands := make([]match.Band, len(bandArgs))
+	for i, s := range bandArgs {
+		b, err := parseBand(s, math.Abs(rl))
+		if err != nil {
+			return nil, usagef("--band %s: %v", s, err)
+		}
+		bands[i] = b
+	}
+	if minPower != "" {
+		share, err := limits.ParseShare(minPower)
+		if err != nil {
+			return nil, usagef("--min-power %s: %v", minPower, err)
+		}
+		for i := range bands {
+			bands[i].MinPowerToLoad = share
 		}
 	}
-	if power.v > 0 {
-		printStress(stdout, designs[0], power.v)
+	return bands, nil
+}
+
+// matchRun is what one search found, for the designs' JSON.
+type matchRun struct {
+	members   []match.Member
+	kind      match.SetKind
+	bands     []match.Band
+	res       *match.Result
+	took      time.Duration
+	lim       match.Limit
+	fit       match.Fit
+	limErr    error
+	modelName string
+	builds    int
+	powerW    float64
+}
+
+// matchDesignJSONs is the designs as --json prints them (and the text
+// reads them): parts, figures per band and per member, the yield of
+// r.builds builds, the Bode–Fano limit, and for the best the search and
+// the parts' stress at r.powerW.
+func matchDesignJSONs(ctx context.Context, r matchRun) ([]matchDesignJSON, error) {
+	designs := make([]matchDesignJSON, len(r.res.Designs))
+	for i, d := range r.res.Designs {
+		j := matchDesignJSON{
+			Parts:            partsJSON(d.Network),
+			WorstRLdB:        jsonNum(d.WorstRLdB),
+			WorstPowerToLoad: jsonNum(d.WorstPowerToLoad),
+			MarginDB:         jsonNum(d.MarginDB),
+			Meets:            d.Meets(),
+			OverDissipating:  d.OverDissipating(),
+			WorseThanNone:    d.WorseThanNone(),
+			Model:            r.modelName,
+		}
+		for _, b := range d.Bands {
+			j.Bands = append(j.Bands, bandJSONOf(b))
+		}
+		if len(r.members) > 1 {
+			setDesignJSON(&j, d, r.members)
+		}
+		if r.builds > 0 {
+			y, err := match.YieldSet(ctx, r.members, r.kind, r.bands, d.Network, &match.YieldSettings{Builds: r.builds})
+			if err != nil {
+				return nil, err
+			}
+			j.Yield = &y.Yield
+		}
+		if r.limErr == nil {
+			j.Limit = &limitJSON{r.fit.String(), r.fit.RMSGammaError, jsonNum(r.lim.BestRLdB), jsonNum(r.lim.MaxMarginDB)}
+		}
+		if i == 0 {
+			j.Search = &searchInfoJSON{r.res.Objective.String(), r.res.Exact, r.res.Window, r.res.Combinations, r.took.Seconds()}
+			if r.powerW > 0 {
+				rep, err := match.Stress(r.members[0].Load, r.bands, d.Network, match.StressSettings{PowerW: r.powerW})
+				if err != nil {
+					return nil, err
+				}
+				for _, r := range rep {
+					j.Stress = append(j.Stress, stressJSON{string(r.Part.Kind), r.Part.Value, r.WorstV.VPeak, r.WorstI.IRMS, r.WorstP.DissipationW, r.Warnings})
+				}
+			}
+		}
+		designs[i] = j
 	}
-	return nil
+	return designs, nil
 }
 
 // belowChu explains a Q below the Chu limit.
