@@ -149,44 +149,13 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 	if err := st.open(); err != nil {
 		return nil, err
 	}
-	zr, err := zip.NewReader(r, size)
-	if err != nil {
-		return nil, fmt.Errorf("%w: not a zip file (%v)", ErrArchive, err)
-	}
-	files := map[string]*zip.File{}
-	for _, f := range zr.File {
-		files[f.Name] = f
-	}
-	mf := files[archiveManifest]
-	if mf == nil {
-		return nil, fmt.Errorf("%w: the zip file has no %s, so it is not a matchbench session archive", ErrArchive, archiveManifest)
-	}
-	js, err := readZipFile(mf, maxManifestBytes)
+	files, m, err := readArchiveManifest(r, size)
 	if err != nil {
 		return nil, err
-	}
-	var m ArchiveManifest
-	dec := json.NewDecoder(bytes.NewReader(js))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&m); err != nil {
-		return nil, fmt.Errorf("%w: %s: %v", ErrArchive, archiveManifest, err)
-	}
-	switch {
-	case m.Format != ArchiveFormat:
-		return nil, fmt.Errorf("%w: %s says format %q, not %q", ErrArchive, archiveManifest, m.Format, ArchiveFormat)
-	case m.Version > ArchiveVersion:
-		return nil, fmt.Errorf("%w: archive version %d was written by a newer matchbench (this one reads version %d)", ErrArchive, m.Version, ArchiveVersion)
-	case m.Version < 1:
-		return nil, fmt.Errorf("%w: archive version %d", ErrArchive, m.Version)
 	}
 	if len(m.State.Sweeps) > st.lim.SweepsPerSession {
 		return nil, fmt.Errorf("%w: %d sweeps; a session holds at most %d", ErrInvalid, len(m.State.Sweeps), st.lim.SweepsPerSession)
 	}
-	byID := map[string]ArchiveFile{}
-	for _, f := range m.Files {
-		byID[f.SweepID] = f
-	}
-
 	// Replay the state through the change rules, on a fresh state, so
 	// that what is imported is what the store would accept one change at a
 	// time.
@@ -197,213 +166,347 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 	if name == "" {
 		name = "Imported session"
 	}
-	cur := &State{Name: name, Sweeps: []SweepRef{}, Markers: []Marker{}, Bands: []Band{}, Chart: DefaultChart}
-	var rows []*newSweep
-	step := func(what string, ch Change) (result, error) {
-		r, err := st.compute("", cur, &ch)
-		if err != nil {
-			return r, fmt.Errorf("%w: %s: %v", ErrInvalid, what, err)
-		}
-		cur = r.next
-		return r, nil
+	im := &importer{st: st, m: m, files: files, maxFileBytes: maxFileBytes, parse: parse,
+		cur:     &State{Name: name, Sweeps: []SweepRef{}, Markers: []Marker{}, Bands: []Band{}, Chart: DefaultChart},
+		byID:    map[string]ArchiveFile{},
+		sweepID: map[string]string{}, bandID: map[string]string{}, setID: map[string]string{}, netID: map[string]string{}}
+	for _, f := range m.Files {
+		im.byID[f.SweepID] = f
 	}
-	sweepID := map[string]string{}
-	mapSweep := func(what, id string) (string, error) {
-		if id == "" {
-			return "", nil
-		}
-		n, ok := sweepID[id]
-		if !ok {
-			return "", fmt.Errorf("%w: %s names sweep %q, which the archive does not hold", ErrArchive, what, id)
-		}
-		return n, nil
-	}
-	for i, ref := range m.State.Sweeps {
-		what := fmt.Sprintf("sweep %d (%q)", i+1, ref.Name)
-		af, ok := byID[ref.ID]
-		if !ok {
-			return nil, fmt.Errorf("%w: %s has no file in %s", ErrArchive, what, archiveManifest)
-		}
-		zf := files[af.Path]
-		if zf == nil {
-			return nil, fmt.Errorf("%w: %s: the file %s is missing from the archive", ErrArchive, what, af.Path)
-		}
-		raw, err := readZipFile(zf, maxFileBytes)
-		if err != nil {
+	for _, part := range []func() error{im.sweeps, im.planes, im.markers, im.bands, im.chart, im.timeDomain,
+		im.loadSets, im.networks, im.search, im.tuning, im.amp, im.stage, im.active} {
+		if err := part(); err != nil {
 			return nil, err
+		}
+	}
+	return st.insertImported(ctx, im.cur, im.rows)
+}
+
+// readArchiveManifest opens the zip and reads and checks its manifest: a
+// matchbench session archive of a version this build reads.
+func readArchiveManifest(r io.ReaderAt, size int64) (map[string]*zip.File, *ArchiveManifest, error) {
+	zr, err := zip.NewReader(r, size)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%w: not a zip file (%v)", ErrArchive, err)
+	}
+	files := map[string]*zip.File{}
+	for _, f := range zr.File {
+		files[f.Name] = f
+	}
+	mf := files[archiveManifest]
+	if mf == nil {
+		return nil, nil, fmt.Errorf("%w: the zip file has no %s, so it is not a matchbench session archive", ErrArchive, archiveManifest)
+	}
+	js, err := readZipFile(mf, maxManifestBytes)
+	if err != nil {
+		return nil, nil, err
+	}
+	var m ArchiveManifest
+	dec := json.NewDecoder(bytes.NewReader(js))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&m); err != nil {
+		return nil, nil, fmt.Errorf("%w: %s: %v", ErrArchive, archiveManifest, err)
+	}
+	switch {
+	case m.Format != ArchiveFormat:
+		return nil, nil, fmt.Errorf("%w: %s says format %q, not %q", ErrArchive, archiveManifest, m.Format, ArchiveFormat)
+	case m.Version > ArchiveVersion:
+		return nil, nil, fmt.Errorf("%w: archive version %d was written by a newer matchbench (this one reads version %d)", ErrArchive, m.Version, ArchiveVersion)
+	case m.Version < 1:
+		return nil, nil, fmt.Errorf("%w: archive version %d", ErrArchive, m.Version)
+	}
+	return files, &m, nil
+}
+
+// importer replays an archive's state through the change rules: cur is
+// the state built so far, rows the sweeps to store with it, and the maps
+// take the archive's ids of sweeps, bands, load sets and networks to the
+// new session's.
+type importer struct {
+	st           *Store
+	m            *ArchiveManifest
+	files        map[string]*zip.File
+	byID         map[string]ArchiveFile
+	maxFileBytes int64
+	parse        ParseFunc
+	cur          *State
+	rows         []*newSweep
+	sweepID      map[string]string
+	bandID       map[string]string
+	setID        map[string]string
+	netID        map[string]string
+}
+
+// step applies one change to the state being built, by the store's rules;
+// its error names what of the archive it was.
+func (im *importer) step(what string, ch Change) (result, error) {
+	r, err := im.st.compute("", im.cur, &ch)
+	if err != nil {
+		return r, fmt.Errorf("%w: %s: %v", ErrInvalid, what, err)
+	}
+	im.cur = r.next
+	return r, nil
+}
+
+// mapSweep maps a sweep id of the archive to the new session's ("" stays
+// "").
+func (im *importer) mapSweep(what, id string) (string, error) {
+	if id == "" {
+		return "", nil
+	}
+	n, ok := im.sweepID[id]
+	if !ok {
+		return "", fmt.Errorf("%w: %s names sweep %q, which the archive does not hold", ErrArchive, what, id)
+	}
+	return n, nil
+}
+
+// mapSet maps a load set id of the archive to the new session's.
+func (im *importer) mapSet(what, id string) (string, error) {
+	if id == "" {
+		return "", nil
+	}
+	n, ok := im.setID[id]
+	if !ok {
+		return "", fmt.Errorf("%w: %s names load set %q, which the archive does not hold", ErrArchive, what, id)
+	}
+	return n, nil
+}
+
+// mapNet maps a network id; one the archive does not hold (a round's
+// network since removed) maps to "", as the store keeps such ids.
+func (im *importer) mapNet(id string) string { return im.netID[id] }
+
+// sweeps adds each sweep from its file, checked against its SHA-256 and read
+// again as an upload is, hidden where it was hidden.
+func (im *importer) sweeps() error {
+	for i, ref := range im.m.State.Sweeps {
+		what := fmt.Sprintf("sweep %d (%q)", i+1, ref.Name)
+		af, ok := im.byID[ref.ID]
+		if !ok {
+			return fmt.Errorf("%w: %s has no file in %s", ErrArchive, what, archiveManifest)
+		}
+		zf := im.files[af.Path]
+		if zf == nil {
+			return fmt.Errorf("%w: %s: the file %s is missing from the archive", ErrArchive, what, af.Path)
+		}
+		raw, err := readZipFile(zf, im.maxFileBytes)
+		if err != nil {
+			return err
 		}
 		if sum := sha256.Sum256(raw); hex.EncodeToString(sum[:]) != strings.ToLower(af.SHA256) {
-			return nil, fmt.Errorf("%w: %s: %s is damaged (its SHA-256 differs from the manifest's)", ErrArchive, what, af.Path)
+			return fmt.Errorf("%w: %s: %s is damaged (its SHA-256 differs from the manifest's)", ErrArchive, what, af.Path)
 		}
-		sw, err := parse(af.FileName, raw)
+		sw, err := im.parse(af.FileName, raw)
 		if err != nil {
-			return nil, fmt.Errorf("%w: %s: %v", ErrArchive, what, err)
+			return fmt.Errorf("%w: %s: %v", ErrArchive, what, err)
 		}
-		r, err := step(what, Change{Op: OpSweepAdd, Name: ref.Name, FileName: af.FileName, Color: ref.Color, Raw: raw, Sweep: sw})
+		r, err := im.step(what, Change{Op: OpSweepAdd, Name: ref.Name, FileName: af.FileName, Color: ref.Color, Raw: raw, Sweep: sw})
 		if err != nil {
-			return nil, err
+			return err
 		}
-		rows = append(rows, r.newSweep)
-		sweepID[ref.ID] = r.ev.SweepID
+		im.rows = append(im.rows, r.newSweep)
+		im.sweepID[ref.ID] = r.ev.SweepID
 		if !ref.Visible {
-			if _, err := step(what, Change{Op: OpSweepVisible, SweepID: r.ev.SweepID, Visible: false}); err != nil {
-				return nil, err
+			if _, err := im.step(what, Change{Op: OpSweepVisible, SweepID: r.ev.SweepID, Visible: false}); err != nil {
+				return err
 			}
 		}
 	}
-	for i, ref := range m.State.Sweeps {
+	return nil
+}
+
+// planes sets each sweep's reference plane, its fixture sweep mapped.
+func (im *importer) planes() error {
+	var err error
+	for i, ref := range im.m.State.Sweeps {
 		if ref.RefPlane == nil {
 			continue
 		}
 		rp := *ref.RefPlane
 		what := fmt.Sprintf("the reference plane of sweep %d (%q)", i+1, ref.Name)
-		if rp.FixtureSweepID, err = mapSweep(what, rp.FixtureSweepID); err != nil {
-			return nil, err
+		if rp.FixtureSweepID, err = im.mapSweep(what, rp.FixtureSweepID); err != nil {
+			return err
 		}
-		if _, err := step(what, Change{Op: OpSweepRefPlane, SweepID: sweepID[ref.ID], RefPlane: &rp}); err != nil {
-			return nil, err
+		if _, err := im.step(what, Change{Op: OpSweepRefPlane, SweepID: im.sweepID[ref.ID], RefPlane: &rp}); err != nil {
+			return err
 		}
 	}
-	for i, mk := range m.State.Markers {
+	return nil
+}
+
+// markers adds the markers.
+func (im *importer) markers() error {
+	for i, mk := range im.m.State.Markers {
 		what := fmt.Sprintf("marker %d", i+1)
-		sid, err := mapSweep(what, mk.SweepID)
+		sid, err := im.mapSweep(what, mk.SweepID)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if sid == "" {
-			return nil, fmt.Errorf("%w: %s names no sweep", ErrArchive, what)
+			return fmt.Errorf("%w: %s names no sweep", ErrArchive, what)
 		}
-		if _, err := step(what, Change{Op: OpMarkerAdd, SweepID: sid, Port: mk.Port, FreqHz: mk.FreqHz, Label: mk.Label}); err != nil {
-			return nil, err
+		if _, err := im.step(what, Change{Op: OpMarkerAdd, SweepID: sid, Port: mk.Port, FreqHz: mk.FreqHz, Label: mk.Label}); err != nil {
+			return err
 		}
 	}
-	bandID := map[string]string{}
-	for i, b := range m.State.Bands {
-		r, err := step(fmt.Sprintf("band %d (%q)", i+1, b.Name), Change{Op: OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz,
+	return nil
+}
+
+// bands adds the bands.
+func (im *importer) bands() error {
+	for i, b := range im.m.State.Bands {
+		r, err := im.step(fmt.Sprintf("band %d (%q)", i+1, b.Name), Change{Op: OpBandSet, Name: b.Name, LoHz: b.LoHz, HiHz: b.HiHz,
 			MinReturnLossDB: b.MinReturnLossDB, MinPowerToLoad: b.MinPowerToLoad})
 		if err != nil {
-			return nil, err
+			return err
 		}
-		bandID[b.ID] = r.ev.BandID
+		im.bandID[b.ID] = r.ev.BandID
 	}
-	c := m.State.Chart
+	return nil
+}
+
+// chart sets the chart's settings.
+func (im *importer) chart() error {
+	c := im.m.State.Chart
 	qarcs := c.QArcs
-	if _, err := step("the chart", Change{Op: OpChartSet, Chart: &ChartPatch{
+	if _, err := im.step("the chart", Change{Op: OpChartSet, Chart: &ChartPatch{
 		ImpedanceGrid: &c.ImpedanceGrid, AdmittanceGrid: &c.AdmittanceGrid, Zoom: &c.Zoom, VSWRCircle: &c.VSWRCircle,
 		ReturnLossCircleDB: &c.ReturnLossCircleDB, QArcs: &qarcs, ShowAngleScale: &c.ShowAngleScale, ShowWavelengthScale: &c.ShowWavelengthScale,
 	}}); err != nil {
-		return nil, err
+		return err
 	}
-	if td := m.State.TimeDomain; td != (TimeDomain{}) {
-		if td.SweepID, err = mapSweep("the time-domain view", td.SweepID); err != nil {
-			return nil, err
+	return nil
+}
+
+// timeDomain sets the time-domain view.
+func (im *importer) timeDomain() error {
+	var err error
+	if td := im.m.State.TimeDomain; td != (TimeDomain{}) {
+		if td.SweepID, err = im.mapSweep("the time-domain view", td.SweepID); err != nil {
+			return err
 		}
-		if _, err := step("the time-domain view", Change{Op: OpTDRSet, TimeDomain: &td}); err != nil {
-			return nil, err
+		if _, err := im.step("the time-domain view", Change{Op: OpTDRSet, TimeDomain: &td}); err != nil {
+			return err
 		}
 	}
+	return nil
+}
+
+// loadSets saves the load sets, before the networks judged across them.
+func (im *importer) loadSets() error {
+	var err error
 	// Load sets before the networks judged across them.
-	setID := map[string]string{}
-	for i, ls := range m.State.LoadSets {
+	for i, ls := range im.m.State.LoadSets {
 		what := fmt.Sprintf("load set %d (%q)", i+1, ls.Name)
 		ms := make([]SetMember, len(ls.Members))
 		for k, mb := range ls.Members {
-			mb.SweepID, err = mapSweep(what, mb.SweepID)
+			mb.SweepID, err = im.mapSweep(what, mb.SweepID)
 			if err != nil {
-				return nil, err
+				return err
 			}
 			ms[k] = mb
 		}
-		r, err := step(what, Change{Op: OpSetSave, Name: ls.Name, SetKind: ls.Kind, Members: ms})
+		r, err := im.step(what, Change{Op: OpSetSave, Name: ls.Name, SetKind: ls.Kind, Members: ms})
 		if err != nil {
-			return nil, err
+			return err
 		}
-		setID[ls.ID] = r.ev.SetID
+		im.setID[ls.ID] = r.ev.SetID
 	}
-	mapSet := func(what, id string) (string, error) {
-		if id == "" {
-			return "", nil
-		}
-		n, ok := setID[id]
-		if !ok {
-			return "", fmt.Errorf("%w: %s names load set %q, which the archive does not hold", ErrArchive, what, id)
-		}
-		return n, nil
-	}
-	netID := map[string]string{}
-	for i, n := range m.State.Networks {
+	return nil
+}
+
+// networks adds the networks with their parts, boards and sets, then their
+// power, yield and Chu settings; the Monte Carlo seed, which has no change of
+// its own, is copied.
+func (im *importer) networks() error {
+	for i, n := range im.m.State.Networks {
 		what := fmt.Sprintf("network %d (%q)", i+1, n.Name)
-		sid, err := mapSweep(what, n.SweepID)
+		sid, err := im.mapSweep(what, n.SweepID)
 		if err != nil {
-			return nil, err
+			return err
 		}
-		set, err := mapSet(what, n.SetID)
+		set, err := im.mapSet(what, n.SetID)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		ps := make([]Part, len(n.Parts))
 		copy(ps, n.Parts)
-		r, err := step(what, Change{Op: OpNetworkAdd, Name: n.Name, SweepID: sid, Port: n.Port, DesignHz: n.DesignHz, Parts: ps,
+		r, err := im.step(what, Change{Op: OpNetworkAdd, Name: n.Name, SweepID: sid, Port: n.Port, DesignHz: n.DesignHz, Parts: ps,
 			SetID: set, Layout: n.Layout.clone()})
 		if err != nil {
-			return nil, err
+			return err
 		}
-		netID[n.ID] = r.ev.NetworkID
+		im.netID[n.ID] = r.ev.NetworkID
 		power := n.PowerW
 		ch := Change{Op: OpNetworkSet, NetworkID: r.ev.NetworkID, PowerW: &power, YieldBuilds: n.YieldBuilds, ChuRadiusM: n.ChuRadiusM}
-		if _, err := step(what, ch); err != nil {
-			return nil, err
+		if _, err := im.step(what, ch); err != nil {
+			return err
 		}
 		// The Monte Carlo's seed has no change of its own: any number is a
 		// seed.
-		cur.Networks[cur.NetworkIndex(r.ev.NetworkID)].YieldSeed = n.YieldSeed
+		im.cur.Networks[im.cur.NetworkIndex(r.ev.NetworkID)].YieldSeed = n.YieldSeed
 	}
-	// mapNet maps a network id; one the archive does not hold (a round's
-	// network since removed) maps to "", as the store keeps such ids.
-	mapNet := func(id string) string { return netID[id] }
-	if s := m.State.Search; s != nil {
+	return nil
+}
+
+// search stores the search result.
+func (im *importer) search() error {
+	var err error
+	if s := im.m.State.Search; s != nil {
 		res := *s
-		if res.SweepID, err = mapSweep("the search", res.SweepID); err != nil {
-			return nil, err
+		if res.SweepID, err = im.mapSweep("the search", res.SweepID); err != nil {
+			return err
 		}
-		if res.SetID, err = mapSet("the search", res.SetID); err != nil {
-			return nil, err
+		if res.SetID, err = im.mapSet("the search", res.SetID); err != nil {
+			return err
 		}
 		res.Layout = res.Layout.clone()
-		if _, err := step("the search", Change{Op: OpSearchStore, Search: &res}); err != nil {
-			return nil, err
+		if _, err := im.step("the search", Change{Op: OpSearchStore, Search: &res}); err != nil {
+			return err
 		}
 	}
-	for i, t := range m.State.Tuning {
+	return nil
+}
+
+// tuning stores the tuning rounds with the suggestion chosen.
+func (im *importer) tuning() error {
+	var err error
+	for i, t := range im.m.State.Tuning {
 		what := fmt.Sprintf("tuning round %d", i+1)
 		t.Layout = t.Layout.clone()
-		if t.LoadSweepID, err = mapSweep(what, t.LoadSweepID); err != nil {
-			return nil, err
+		if t.LoadSweepID, err = im.mapSweep(what, t.LoadSweepID); err != nil {
+			return err
 		}
-		if t.BuiltSweepID, err = mapSweep(what, t.BuiltSweepID); err != nil {
-			return nil, err
+		if t.BuiltSweepID, err = im.mapSweep(what, t.BuiltSweepID); err != nil {
+			return err
 		}
-		t.NetworkID = mapNet(t.NetworkID)
-		if _, err := step(what, Change{Op: OpTuneStore, Tune: &t}); err != nil {
-			return nil, err
+		t.NetworkID = im.mapNet(t.NetworkID)
+		if _, err := im.step(what, Change{Op: OpTuneStore, Tune: &t}); err != nil {
+			return err
 		}
 		// Which suggestion was made a network has no change of its own
 		// (tune.use makes a new network; the archive holds it already).
 		if t.Chosen < -1 || t.Chosen >= len(t.Suggestions) {
-			return nil, fmt.Errorf("%w: %s: tune.chosen %d is not a suggestion", ErrInvalid, what, t.Chosen)
+			return fmt.Errorf("%w: %s: tune.chosen %d is not a suggestion", ErrInvalid, what, t.Chosen)
 		}
-		last := &cur.Tuning[len(cur.Tuning)-1]
-		last.Chosen, last.ChosenNetworkID = t.Chosen, mapNet(t.ChosenNetworkID)
+		last := &im.cur.Tuning[len(im.cur.Tuning)-1]
+		last.Chosen, last.ChosenNetworkID = t.Chosen, im.mapNet(t.ChosenNetworkID)
 	}
-	if a := m.State.Amp; a != nil {
-		sid, err := mapSweep("the amplifier view", a.SweepID)
+	return nil
+}
+
+// amp sets the amplifier view and its terminations.
+func (im *importer) amp() error {
+	if a := im.m.State.Amp; a != nil {
+		sid, err := im.mapSweep("the amplifier view", a.SweepID)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		gs, ns := slices.Clone(a.GainStepsDB), slices.Clone(a.NFStepsDB)
-		if _, err := step("the amplifier view", Change{Op: OpAmpSet, SweepID: sid, FreqHz: a.FreqHz,
+		if _, err := im.step("the amplifier view", Change{Op: OpAmpSet, SweepID: sid, FreqHz: a.FreqHz,
 			AmpChange: AmpChange{GainStepsDB: &gs, NFStepsDB: &ns}}); err != nil {
-			return nil, err
+			return err
 		}
 		for _, tp := range []struct {
 			plane string
@@ -413,22 +516,27 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 				continue
 			}
 			g := *tp.g
-			if _, err := step("the amplifier view", Change{Op: OpAmpPoint, Gamma: &g, AmpChange: AmpChange{Plane: tp.plane}}); err != nil {
-				return nil, err
+			if _, err := im.step("the amplifier view", Change{Op: OpAmpPoint, Gamma: &g, AmpChange: AmpChange{Plane: tp.plane}}); err != nil {
+				return err
 			}
 		}
 	}
-	if sg := m.State.Stage; sg != nil {
+	return nil
+}
+
+// stage sets the transistor stage with its requirements, networks and search.
+func (im *importer) stage() error {
+	if sg := im.m.State.Stage; sg != nil {
 		what := "the transistor stage"
-		sid, err := mapSweep(what, sg.SweepID)
+		sid, err := im.mapSweep(what, sg.SweepID)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		reqs := make([]StageReq, 0, len(sg.Reqs))
 		for _, q := range sg.Reqs {
-			b, ok := bandID[q.BandID]
+			b, ok := im.bandID[q.BandID]
 			if !ok {
-				return nil, fmt.Errorf("%w: %s names band %q, which the archive does not hold", ErrArchive, what, q.BandID)
+				return fmt.Errorf("%w: %s names band %q, which the archive does not hold", ErrArchive, what, q.BandID)
 			}
 			q.BandID = b
 			reqs = append(reqs, q)
@@ -441,46 +549,52 @@ func (st *Store) ImportArchive(ctx context.Context, r io.ReaderAt, size int64, m
 			if side.id == "" {
 				continue
 			}
-			n, ok := netID[side.id]
+			n, ok := im.netID[side.id]
 			if !ok {
-				return nil, fmt.Errorf("%w: %s names network %q, which the archive does not hold", ErrArchive, what, side.id)
+				return fmt.Errorf("%w: %s names network %q, which the archive does not hold", ErrArchive, what, side.id)
 			}
 			*side.dst = n
 		}
-		nets := len(cur.Networks)
-		if _, err := step(what, Change{Op: OpStageSet, SweepID: sid, AmpChange: ac}); err != nil {
-			return nil, err
+		nets := len(im.cur.Networks)
+		if _, err := im.step(what, Change{Op: OpStageSet, SweepID: sid, AmpChange: ac}); err != nil {
+			return err
 		}
 		// A side without a network (its network was removed) stays without
 		// one: stage.set gave it a new empty network, which the archive
 		// does not hold.
-		if len(cur.Networks) > nets {
-			cur.Networks = cur.Networks[:nets]
-			st := *cur.Stage
+		if len(im.cur.Networks) > nets {
+			im.cur.Networks = im.cur.Networks[:nets]
+			st := *im.cur.Stage
 			st.SourceNetworkID, st.LoadNetworkID = ac.SourceNetworkID, ac.LoadNetworkID
-			cur.Stage = &st
+			im.cur.Stage = &st
 		}
 		if sg.Search != nil {
 			res := *sg.Search
-			if _, err := step(what, Change{Op: OpStageStore, AmpChange: AmpChange{StageSearch: &res}}); err != nil {
-				return nil, err
+			if _, err := im.step(what, Change{Op: OpStageStore, AmpChange: AmpChange{StageSearch: &res}}); err != nil {
+				return err
 			}
 		}
 	}
+	return nil
+}
+
+// active selects the active network, last: a stage and a tuning round choose
+// one of their own as they are made.
+func (im *importer) active() error {
 	// The active network last: a stage and a tuning round choose one of
 	// their own as they are made.
-	if a := m.State.ActiveNetwork; a != "" {
-		id, ok := netID[a]
+	if a := im.m.State.ActiveNetwork; a != "" {
+		id, ok := im.netID[a]
 		if !ok {
-			return nil, fmt.Errorf("%w: the active network %q is not among the archive's networks", ErrArchive, a)
+			return fmt.Errorf("%w: the active network %q is not among the archive's networks", ErrArchive, a)
 		}
-		if _, err := step("the active network", Change{Op: OpNetworkSelect, NetworkID: id}); err != nil {
-			return nil, err
+		if _, err := im.step("the active network", Change{Op: OpNetworkSelect, NetworkID: id}); err != nil {
+			return err
 		}
 	} else {
-		cur.ActiveNetwork = "" // as in the archive: none active
+		im.cur.ActiveNetwork = "" // as in the archive: none active
 	}
-	return st.insertImported(ctx, cur, rows)
+	return nil
 }
 
 // insertImported stores a new session with state s and its sweeps in one
