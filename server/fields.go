@@ -57,6 +57,21 @@ func (r *fieldReader) Freq(field, label string) float64 {
 	return v
 }
 
+// Value reads a value in unit with an SI prefix ("1.26n", "50 Ω"); an
+// empty field is 0.
+func (r *fieldReader) Value(field, label, unit string) float64 {
+	t := strings.TrimSpace(r.f[field])
+	if r.err != nil || t == "" {
+		return 0
+	}
+	v, err := units.ParseValue(t, unit)
+	if err != nil {
+		r.Fail(field, label, err)
+		return 0
+	}
+	return v
+}
+
 // Num reads a finite number; an empty field is an error.
 func (r *fieldReader) Num(field, label string) float64 { return r.num(field, label, false) }
 

@@ -104,127 +104,120 @@ func (s *Server) applyPlane(sid string, rp *sessions.RefPlane, raw *rfmath.Sweep
 // refPlaneChange turns the reference-plane and time-domain forms into
 // changes. Times and frequencies take SI prefixes ("1.26n", "1G").
 func (sc *scene) refPlaneChange(s *Server, form string, f map[string]string) (sessions.Change, error) {
-	fe := func(field, label string, err error) error { return &FieldError{form, field, label, err} }
-	val := func(field, label, unit string) (float64, error) {
-		t := strings.TrimSpace(f[field])
-		if t == "" {
-			return 0, nil
-		}
-		v, err := units.ParseValue(t, unit)
-		if err != nil {
-			return 0, fe(field, label, err)
-		}
-		return v, nil
-	}
+	r := newFieldReader(form, f)
+	var ch sessions.Change
+	var err error
 	switch form {
 	case "refplane.set":
-		rp := sessions.RefPlane{FixtureSweepID: f["fixture"]}
-		var err error
-		if rp.DelayS, err = val("delay", "Delay", "s"); err != nil {
-			return sessions.Change{}, err
-		}
-		if l := strings.TrimSpace(f["length"]); l != "" && rp.DelayS == 0 {
-			lm, err := val("length", "Length", "m")
-			if err != nil {
-				return sessions.Change{}, err
-			}
-			vf, err := val("vf", "Velocity factor", "")
-			if err != nil {
-				return sessions.Change{}, err
-			}
-			if vf == 0 {
-				vf = 1
-			}
-			rp.DelayS = deembed.FromLength(lm, vf).DelayS
-		}
-		if rp.LossDB, err = val("loss", "Loss", "dB"); err != nil {
-			return sessions.Change{}, err
-		}
-		if t := strings.TrimSpace(f["lossRef"]); t != "" {
-			if rp.LossRefHz, err = units.ParseFrequency(t); err != nil {
-				return sessions.Change{}, fe("lossRef", "Loss frequency", err)
-			}
-		}
-		if rp.FlatLossDB, err = val("flat", "Flat loss", "dB"); err != nil {
-			return sessions.Change{}, err
-		}
-		if rp.RenormOhm, err = val("renorm", "Reference impedance", "Ω"); err != nil {
-			return sessions.Change{}, err
-		}
-		if p := f["fixturePort"]; p != "" {
-			rp.FixturePortFacingAnalyser, _ = strconv.Atoi(p)
-		}
-		return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: f["sweepId"], RefPlane: &rp}, nil
-
+		ch = refPlaneSetForm(r)
 	case "refplane.fit":
-		// Fit an extension to a sweep of the open (or shorted) end of the
-		// cable or fixture, and set it as the target sweep's extension.
-		from := sc.all[f["fromId"]]
-		if from == nil {
-			return sessions.Change{}, fe("fromId", "Fit from", fmt.Errorf("choose the sweep of the open or shorted end"))
-		}
-		i := sc.st.SweepIndex(f["fromId"])
-		if i >= 0 && sc.st.Sweeps[i].RefPlane != nil {
-			raw, err := s.store.Sweep(sc.sid, f["fromId"])
-			if err == nil {
-				from = raw // fit the raw measurement
-			}
-		}
-		std := deembed.Open
-		if f["standard"] == "short" {
-			std = deembed.Short
-		}
-		fit, err := deembed.FitExtension(from, std, nil)
-		if err != nil {
-			return sessions.Change{}, fe("fromId", "Fit", err)
-		}
-		e := fit.Extension
-		rp := sessions.RefPlane{DelayS: e.DelayS, LossDB: e.LossDB, LossRefHz: e.LossRefHz, FlatLossDB: e.FlatLossDB}
-		if j := sc.st.SweepIndex(f["sweepId"]); j >= 0 && sc.st.Sweeps[j].RefPlane != nil {
-			old := sc.st.Sweeps[j].RefPlane
-			rp.FixtureSweepID, rp.FixturePortFacingAnalyser, rp.RenormOhm = old.FixtureSweepID, old.FixturePortFacingAnalyser, old.RenormOhm
-		}
-		return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: f["sweepId"], RefPlane: &rp}, nil
-
+		ch, err = sc.refPlaneFitForm(s, r)
 	case "tdr.set":
-		td := sessions.TimeDomain{SweepID: f["sweepId"], Mode: f["mode"], Window: f["window"]}
-		var err error
-		if td.Beta, err = val("beta", "Kaiser β", ""); err != nil {
-			return sessions.Change{}, err
-		}
-		if td.VF, err = val("vf", "Velocity factor", ""); err != nil {
-			return sessions.Change{}, err
-		}
-		if td.GateCentreS, err = val("gateCentre", "Gate centre", "s"); err != nil {
-			return sessions.Change{}, err
-		}
-		if td.GateSpanS, err = val("gateSpan", "Gate span", "s"); err != nil {
-			return sessions.Change{}, err
-		}
-		return sessions.Change{Op: sessions.OpTDRSet, TimeDomain: &td}, nil
-
+		ch = tdrSetForm(r)
 	case "tdr.gate":
-		// The gated sweep becomes a sweep of its own.
-		td := sc.st.TimeDomain
-		sw := sc.all[td.SweepID]
-		if sw == nil || td.GateSpanS <= 0 {
-			return sessions.Change{}, fmt.Errorf("set a gate (centre and span) on a sweep first")
-		}
-		w, _ := tdr.ParseWindow(windowSpec(td))
-		g, err := tdr.GateSweep(sw, tdr.Gate{CentreS: td.GateCentreS, SpanS: td.GateSpanS, Shape: w}, &tdr.Settings{Window: w})
-		if err != nil {
-			return sessions.Change{}, err
-		}
-		var b bytes.Buffer
-		name := sweepName(sc.st, td.SweepID) + " gated"
-		if err := touchstone.Write(&b, g, touchstone.WriteOptions{Comments: touchstone.CommentLines([]string{
-			fmt.Sprintf(" %s gated in time: centre %s, span %s (round trip), %s window", sweepName(sc.st, td.SweepID),
-				units.Format(td.GateCentreS, "s", 4), units.Format(td.GateSpanS, "s", 4), td.Window)})}); err != nil {
-			return sessions.Change{}, err
-		}
-		return sessions.Change{Op: sessions.OpSweepAdd, Name: name, FileName: safeName(name) + ".s1p", Raw: b.Bytes(), Sweep: g}, nil
+		ch, err = sc.tdrGateForm()
+	default:
+		return sessions.Change{}, fmt.Errorf("unknown form %q", form)
 	}
-	return sessions.Change{}, fmt.Errorf("unknown form %q", form)
+	if err == nil {
+		err = r.Err()
+	}
+	if err != nil {
+		return sessions.Change{}, err
+	}
+	return ch, nil
+}
+
+// refPlaneSetForm reads the reference-plane form: the fixture and its port,
+// the port extension as a delay (or a length and velocity factor) with its
+// loss, and the reference to renormalise to.
+func refPlaneSetForm(r *fieldReader) sessions.Change {
+	rp := sessions.RefPlane{FixtureSweepID: r.f["fixture"]}
+	rp.DelayS = r.Value("delay", "Delay", "s")
+	if r.Text("length") != "" && rp.DelayS == 0 {
+		lm := r.Value("length", "Length", "m")
+		vf := r.Value("vf", "Velocity factor", "")
+		if vf == 0 {
+			vf = 1
+		}
+		rp.DelayS = deembed.FromLength(lm, vf).DelayS
+	}
+	rp.LossDB = r.Value("loss", "Loss", "dB")
+	if t := r.Text("lossRef"); t != "" {
+		rp.LossRefHz = r.Freq("lossRef", "Loss frequency")
+	}
+	rp.FlatLossDB = r.Value("flat", "Flat loss", "dB")
+	rp.RenormOhm = r.Value("renorm", "Reference impedance", "Ω")
+	if p := r.f["fixturePort"]; p != "" {
+		rp.FixturePortFacingAnalyser, _ = strconv.Atoi(p)
+	}
+	return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: r.f["sweepId"], RefPlane: &rp}
+}
+
+// refPlaneFitForm fits an extension to a sweep of the open (or shorted) end
+// of the cable or fixture, and sets it as the target sweep's extension,
+// keeping its fixture and reference.
+func (sc *scene) refPlaneFitForm(s *Server, r *fieldReader) (sessions.Change, error) {
+	f := r.f
+	from := sc.all[f["fromId"]]
+	if from == nil {
+		return sessions.Change{}, r.errAt("fromId", "Fit from", fmt.Errorf("choose the sweep of the open or shorted end"))
+	}
+	i := sc.st.SweepIndex(f["fromId"])
+	if i >= 0 && sc.st.Sweeps[i].RefPlane != nil {
+		raw, err := s.store.Sweep(sc.sid, f["fromId"])
+		if err == nil {
+			from = raw // fit the raw measurement
+		}
+	}
+	std := deembed.Open
+	if f["standard"] == "short" {
+		std = deembed.Short
+	}
+	fit, err := deembed.FitExtension(from, std, nil)
+	if err != nil {
+		return sessions.Change{}, r.errAt("fromId", "Fit", err)
+	}
+	e := fit.Extension
+	rp := sessions.RefPlane{DelayS: e.DelayS, LossDB: e.LossDB, LossRefHz: e.LossRefHz, FlatLossDB: e.FlatLossDB}
+	if j := sc.st.SweepIndex(f["sweepId"]); j >= 0 && sc.st.Sweeps[j].RefPlane != nil {
+		old := sc.st.Sweeps[j].RefPlane
+		rp.FixtureSweepID, rp.FixturePortFacingAnalyser, rp.RenormOhm = old.FixtureSweepID, old.FixturePortFacingAnalyser, old.RenormOhm
+	}
+	return sessions.Change{Op: sessions.OpSweepRefPlane, SweepID: f["sweepId"], RefPlane: &rp}, nil
+}
+
+// tdrSetForm reads the time-domain form: sweep, mode, window and its
+// Kaiser β, velocity factor and gate.
+func tdrSetForm(r *fieldReader) sessions.Change {
+	td := sessions.TimeDomain{SweepID: r.f["sweepId"], Mode: r.f["mode"], Window: r.f["window"]}
+	td.Beta = r.Value("beta", "Kaiser β", "")
+	td.VF = r.Value("vf", "Velocity factor", "")
+	td.GateCentreS = r.Value("gateCentre", "Gate centre", "s")
+	td.GateSpanS = r.Value("gateSpan", "Gate span", "s")
+	return sessions.Change{Op: sessions.OpTDRSet, TimeDomain: &td}
+}
+
+// tdrGateForm makes the gated sweep a sweep of its own.
+func (sc *scene) tdrGateForm() (sessions.Change, error) {
+	td := sc.st.TimeDomain
+	sw := sc.all[td.SweepID]
+	if sw == nil || td.GateSpanS <= 0 {
+		return sessions.Change{}, fmt.Errorf("set a gate (centre and span) on a sweep first")
+	}
+	w, _ := tdr.ParseWindow(windowSpec(td))
+	g, err := tdr.GateSweep(sw, tdr.Gate{CentreS: td.GateCentreS, SpanS: td.GateSpanS, Shape: w}, &tdr.Settings{Window: w})
+	if err != nil {
+		return sessions.Change{}, err
+	}
+	var b bytes.Buffer
+	name := sweepName(sc.st, td.SweepID) + " gated"
+	if err := touchstone.Write(&b, g, touchstone.WriteOptions{Comments: touchstone.CommentLines([]string{
+		fmt.Sprintf(" %s gated in time: centre %s, span %s (round trip), %s window", sweepName(sc.st, td.SweepID),
+			units.Format(td.GateCentreS, "s", 4), units.Format(td.GateSpanS, "s", 4), td.Window)})}); err != nil {
+		return sessions.Change{}, err
+	}
+	return sessions.Change{Op: sessions.OpSweepAdd, Name: name, FileName: safeName(name) + ".s1p", Raw: b.Bytes(), Sweep: g}, nil
 }
 
 func windowSpec(td sessions.TimeDomain) string {
