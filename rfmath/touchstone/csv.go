@@ -57,14 +57,82 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 	perr := func(line, col int, err error) error {
 		return &ParseError{File: name, Line: line, Column: col, Err: err}
 	}
+	pre, err := csvPrepare(buf, perr)
+	if err != nil {
+		return nil, err
+	}
+	sep, best := ',', 0
+	for _, c := range []rune{',', ';', '\t'} {
+		if n := bytes.Count(pre.header, []byte(string(c))); n > best {
+			sep, best = c, n
+		}
+	}
+	if best == 0 {
+		return nil, perr(pre.headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", found(pre.header)))
+	}
 
-	// Empty the comment lines (keeping the line count, so that the CSV
-	// reader's positions stay right), read the Z0 option, find the header.
-	text := make([]byte, 0, len(buf))
-	var z0 []float64
-	z0Line := 0
-	var header []byte
-	headerLine := 0
+	cr := csv.NewReader(bytes.NewReader(pre.text))
+	cr.Comma = sep
+	cr.TrimLeadingSpace = true
+	cr.ReuseRecord = true
+	rd := &csvRows{cr: cr, sep: sep, lim: lim, perr: perr, headerLine: pre.headerLine}
+	rec, err := cr.Read()
+	if err != nil {
+		return nil, rd.csvErr(err)
+	}
+	if rd.cols, err = csvColumns(rec); err != nil {
+		return nil, perr(pre.headerLine, 1, err)
+	}
+	ref := make([]float64, rd.cols.ports)
+	for i := range ref {
+		switch {
+		case len(pre.z0) == 0:
+			ref[i] = 50
+		case len(pre.z0) == 1:
+			ref[i] = pre.z0[0]
+		case len(pre.z0) == rd.cols.ports:
+			ref[i] = pre.z0[i]
+		default:
+			return nil, perr(pre.z0Line, 1, syntaxf("%d reference resistances for a %d-port sweep", len(pre.z0), rd.cols.ports))
+		}
+	}
+	s := &rfmath.Sweep{Ports: rd.cols.ports, Z0: ref}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, rd.csvErr(err)
+		}
+		if err := rd.row(s, rec); err != nil {
+			return nil, err
+		}
+	}
+	if len(s.FreqHz) == 0 {
+		return nil, perr(pre.headerLine, 1, syntaxf("no data rows after the header"))
+	}
+	if err := s.Validate(); err != nil {
+		return nil, perr(pre.headerLine, 1, syntaxf("%v", err))
+	}
+	return s, nil
+}
+
+// csvText is a CSV file made ready for the CSV reader: its comment lines
+// emptied (the line count kept, so the reader's positions stay right), the
+// Z0 option of the first comment that has one, and the header row.
+type csvText struct {
+	text       []byte
+	z0         []float64
+	z0Line     int
+	header     []byte
+	headerLine int
+}
+
+// csvPrepare empties the comment lines of buf, reads the Z0 option and
+// finds the header.
+func csvPrepare(buf []byte, perr func(line, col int, err error) error) (*csvText, error) {
+	c := &csvText{text: make([]byte, 0, len(buf))}
 	for ln, rest := 1, buf; len(rest) > 0; ln++ {
 		line := rest
 		if j := bytes.IndexByte(rest, '\n'); j >= 0 {
@@ -76,130 +144,100 @@ func ReadCSV(r io.Reader, name string, lim Limits) (*rfmath.Sweep, error) {
 		if len(t) > 0 && (t[0] == '#' || t[0] == '!') {
 			if v, err := csvZ0(string(t[1:])); err != nil {
 				return nil, perr(ln, 1, err)
-			} else if v != nil && z0Line == 0 {
-				z0, z0Line = v, ln
+			} else if v != nil && c.z0Line == 0 {
+				c.z0, c.z0Line = v, ln
 			}
 			if line[len(line)-1] == '\n' {
-				text = append(text, '\n')
+				c.text = append(c.text, '\n')
 			}
 			continue
 		}
-		if header == nil && len(bytes.TrimSpace(t)) > 0 {
-			header, headerLine = bytes.TrimRight(line, "\r\n"), ln
+		if c.header == nil && len(bytes.TrimSpace(t)) > 0 {
+			c.header, c.headerLine = bytes.TrimRight(line, "\r\n"), ln
 		}
-		text = append(text, line...)
+		c.text = append(c.text, line...)
 	}
-	if header == nil {
+	if c.header == nil {
 		return nil, perr(1, 1, syntaxf("no header row: expected a line naming the columns, such as freq,re,im"))
 	}
-	sep, best := ',', 0
-	for _, c := range []rune{',', ';', '\t'} {
-		if n := bytes.Count(header, []byte(string(c))); n > best {
-			sep, best = c, n
-		}
-	}
-	if best == 0 {
-		return nil, perr(headerLine, 1, syntaxf("the header %q has one column; expected a frequency column and value columns separated by ',', ';' or tab", found(header)))
-	}
+	return c, nil
+}
 
-	cr := csv.NewReader(bytes.NewReader(text))
-	cr.Comma = sep
-	cr.TrimLeadingSpace = true
-	cr.ReuseRecord = true
-	csvErr := func(err error) error {
-		var ce *csv.ParseError
-		if errors.As(err, &ce) {
-			return perr(ce.Line, ce.Column, syntaxf("%v", ce.Err))
+// csvRows reads the data rows of a CSV sweep with the columns of its
+// header.
+type csvRows struct {
+	cr         *csv.Reader
+	cols       *csvCols
+	sep        rune
+	lim        Limits
+	perr       func(line, col int, err error) error
+	headerLine int
+}
+
+// csvErr is the CSV reader's error at its position.
+func (rd *csvRows) csvErr(err error) error {
+	var ce *csv.ParseError
+	if errors.As(err, &ce) {
+		return rd.perr(ce.Line, ce.Column, syntaxf("%v", ce.Err))
+	}
+	return rd.perr(rd.headerLine, 1, syntaxf("%v", err))
+}
+
+// num reads the number in field idx of rec.
+func (rd *csvRows) num(rec []string, idx int) (float64, error) {
+	x, ok := csvNumber(rec[idx], rd.sep)
+	if !ok {
+		line, col := rd.cr.FieldPos(idx)
+		return 0, rd.perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(rd.cols.header[idx]), found(rec[idx])))
+	}
+	return x, nil
+}
+
+// row appends one data row to s: its frequency, which must increase, and
+// each parameter in its column format.
+func (rd *csvRows) row(s *rfmath.Sweep, rec []string) error {
+	cols := rd.cols
+	fv, err := rd.num(rec, cols.freq)
+	if err != nil {
+		return err
+	}
+	line, col := rd.cr.FieldPos(cols.freq)
+	f := fv * cols.mul
+	if !(f >= 0) || math.IsInf(f, 0) {
+		return rd.perr(line, col, syntaxf("frequency %g must be finite and not negative", fv))
+	}
+	if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
+		return rd.perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
+	}
+	if len(s.FreqHz) >= rd.lim.MaxPoints {
+		return rd.perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", rd.lim.MaxPoints))
+	}
+	for _, p := range cols.params {
+		a, err := rd.num(rec, p.a)
+		if err != nil {
+			return err
 		}
-		return perr(headerLine, 1, syntaxf("%v", err))
-	}
-	rec, err := cr.Read()
-	if err != nil {
-		return nil, csvErr(err)
-	}
-	cols, err := csvColumns(rec)
-	if err != nil {
-		return nil, perr(headerLine, 1, err)
-	}
-	ref := make([]float64, cols.ports)
-	for i := range ref {
-		switch {
-		case len(z0) == 0:
-			ref[i] = 50
-		case len(z0) == 1:
-			ref[i] = z0[0]
-		case len(z0) == cols.ports:
-			ref[i] = z0[i]
+		b, err := rd.num(rec, p.b)
+		if err != nil {
+			return err
+		}
+		var g complex128
+		switch p.kind {
+		case "ri":
+			g = complex(a, b)
+		case "db":
+			g = polar(math.Pow(10, a/20), b*p.angMul)
 		default:
-			return nil, perr(z0Line, 1, syntaxf("%d reference resistances for a %d-port sweep", len(z0), cols.ports))
+			g = polar(a, b*p.angMul)
 		}
+		if !finite(g) {
+			line, col := rd.cr.FieldPos(p.a)
+			return rd.perr(line, col, syntaxf("the values %g, %g are not a finite S%s", a, b, p.name))
+		}
+		s.Data = append(s.Data, g)
 	}
-
-	s := &rfmath.Sweep{Ports: cols.ports, Z0: ref}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, csvErr(err)
-		}
-		num := func(idx int) (float64, error) {
-			x, ok := csvNumber(rec[idx], sep)
-			if !ok {
-				line, col := cr.FieldPos(idx)
-				return 0, perr(line, col, syntaxf("expected a decimal number in column %q, found %q", found(cols.header[idx]), found(rec[idx])))
-			}
-			return x, nil
-		}
-		fv, err := num(cols.freq)
-		if err != nil {
-			return nil, err
-		}
-		line, col := cr.FieldPos(cols.freq)
-		f := fv * cols.mul
-		if !(f >= 0) || math.IsInf(f, 0) {
-			return nil, perr(line, col, syntaxf("frequency %g must be finite and not negative", fv))
-		}
-		if n := len(s.FreqHz); n > 0 && f <= s.FreqHz[n-1] {
-			return nil, perr(line, col, syntaxf("frequency %s does not increase; frequencies must increase strictly", found(rec[cols.freq])))
-		}
-		if len(s.FreqHz) >= lim.MaxPoints {
-			return nil, perr(line, col, limitf("more than the MaxPoints limit of %d frequency points", lim.MaxPoints))
-		}
-		for _, p := range cols.params {
-			a, err := num(p.a)
-			if err != nil {
-				return nil, err
-			}
-			b, err := num(p.b)
-			if err != nil {
-				return nil, err
-			}
-			var g complex128
-			switch p.kind {
-			case "ri":
-				g = complex(a, b)
-			case "db":
-				g = polar(math.Pow(10, a/20), b*p.angMul)
-			default:
-				g = polar(a, b*p.angMul)
-			}
-			if !finite(g) {
-				line, col := cr.FieldPos(p.a)
-				return nil, perr(line, col, syntaxf("the values %g, %g are not a finite S%s", a, b, p.name))
-			}
-			s.Data = append(s.Data, g)
-		}
-		s.FreqHz = append(s.FreqHz, f)
-	}
-	if len(s.FreqHz) == 0 {
-		return nil, perr(headerLine, 1, syntaxf("no data rows after the header"))
-	}
-	if err := s.Validate(); err != nil {
-		return nil, perr(headerLine, 1, syntaxf("%v", err))
-	}
-	return s, nil
+	s.FreqHz = append(s.FreqHz, f)
+	return nil
 }
 
 // csvZ0 reads a "Z0 = 75" or "R 75" option from the text of a comment,
@@ -277,6 +315,70 @@ var csvWords = map[string]string{
 
 const csvExpected = `a frequency column (freq, frequency or f, optionally with a unit: "freq (Hz)", "f [GHz]") and, for S11 and for a 2-port also S21, S12 and S22, either re and im columns ("re", "real", "S11 re", "re(S11)", "s21_im"), or dB and angle columns ("S11 dB", "mag dB", "S21 phase deg", "ang"), or linear magnitude and angle columns ("mag", "|S22|", "ang")`
 
+// csvColumnRole reads one column's name: the S-parameter it names (param,
+// "11" … "22", or "" when it names none), its role ("freq", "re", "im",
+// "db", "ang", "mag", or "" when it is not understood), a frequency unit
+// and whether its angles are in radians.
+func csvColumnRole(name string) (param, role, unit string, rad bool, err error) {
+	words := strings.FieldsFunc(strings.ToLower(name), func(r rune) bool {
+		return !(r >= 'a' && r <= 'z' || r >= '0' && r <= '9')
+	})
+	has := map[string]bool{}
+	for _, w := range words {
+		if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
+			if w[0] != 's' || w[1] > '2' || w[2] > '2' {
+				return "", "", "", false, unsupportedf("CSV import reads 1- and 2-port S-parameters; column %q names %s", found(name), found(strings.ToUpper(w)))
+			}
+			param = w[1:]
+			continue
+		}
+		if w == "11" || w == "21" || w == "12" || w == "22" { // "S 21"
+			param = w
+			continue
+		}
+		kind, ok := csvWords[w]
+		if !ok {
+			kind = "?"
+		}
+		if kind == "unit" {
+			unit = w
+		}
+		has[kind] = true
+	}
+	if strings.Count(name, "|") == 2 { // "|S11|"
+		has["mag"] = true
+	}
+	rad = has["rad"]
+	has["ang"] = has["ang"] || rad
+	switch {
+	case has["?"]:
+	case has["freq"]:
+		if param == "" && !has["re"] && !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
+			role = "freq"
+		}
+	case unit != "":
+	case has["re"]:
+		if !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
+			role = "re"
+		}
+	case has["im"]:
+		if !has["db"] && !has["ang"] && !has["mag"] {
+			role = "im"
+		}
+	case has["db"]: // "S11 dB", "mag dB"
+		if !has["ang"] {
+			role = "db"
+		}
+	case has["ang"]:
+		if !has["mag"] {
+			role = "ang"
+		}
+	case has["mag"]:
+		role = "mag"
+	}
+	return param, role, unit, rad, nil
+}
+
 // csvColumns matches the header's column names.
 func csvColumns(rec []string) (*csvCols, error) {
 	c := &csvCols{mul: 1, header: slices.Clone(rec)}
@@ -285,63 +387,9 @@ func csvColumns(rec []string) (*csvCols, error) {
 	rads := map[string]bool{}
 	unknown, haveF, ports := false, false, 1
 	for i, name := range rec {
-		words := strings.FieldsFunc(strings.ToLower(name), func(r rune) bool {
-			return !(r >= 'a' && r <= 'z' || r >= '0' && r <= '9')
-		})
-		has := map[string]bool{}
-		unit, param := "", ""
-		for _, w := range words {
-			if len(w) == 3 && strings.ContainsRune("syzhg", rune(w[0])) && w[1] >= '1' && w[1] <= '9' && w[2] >= '1' && w[2] <= '9' {
-				if w[0] != 's' || w[1] > '2' || w[2] > '2' {
-					return nil, unsupportedf("CSV import reads 1- and 2-port S-parameters; column %q names %s", found(name), found(strings.ToUpper(w)))
-				}
-				param = w[1:]
-				continue
-			}
-			if w == "11" || w == "21" || w == "12" || w == "22" { // "S 21"
-				param = w
-				continue
-			}
-			kind, ok := csvWords[w]
-			if !ok {
-				kind = "?"
-			}
-			if kind == "unit" {
-				unit = w
-			}
-			has[kind] = true
-		}
-		if strings.Count(name, "|") == 2 { // "|S11|"
-			has["mag"] = true
-		}
-		rad := has["rad"]
-		has["ang"] = has["ang"] || rad
-		role := ""
-		switch {
-		case has["?"]:
-		case has["freq"]:
-			if param == "" && !has["re"] && !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
-				role = "freq"
-			}
-		case unit != "":
-		case has["re"]:
-			if !has["im"] && !has["db"] && !has["ang"] && !has["mag"] {
-				role = "re"
-			}
-		case has["im"]:
-			if !has["db"] && !has["ang"] && !has["mag"] {
-				role = "im"
-			}
-		case has["db"]: // "S11 dB", "mag dB"
-			if !has["ang"] {
-				role = "db"
-			}
-		case has["ang"]:
-			if !has["mag"] {
-				role = "ang"
-			}
-		case has["mag"]:
-			role = "mag"
+		param, role, unit, rad, err := csvColumnRole(name)
+		if err != nil {
+			return nil, err
 		}
 		if role == "" {
 			unknown = true
