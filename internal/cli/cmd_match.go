@@ -151,7 +151,10 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if math.IsNaN(*rl) || math.IsInf(*rl, 0) {
 		return usagef("--rl %g: not a number of dB", *rl)
 	}
-	bands, err := matchBands(bandArgs, *rl, *minPower)
+	if len(bandArgs) == 0 {
+		return usagef("--band is required, e.g. --band 2.40G:2.4835G")
+	}
+	bands, err := parseBands(bandArgs, *rl, *minPower)
 	if err != nil {
 		return err
 	}
@@ -332,12 +335,10 @@ func setDesignJSON(j *matchDesignJSON, d match.Design, members []match.Member) {
 	}
 }
 
-// matchBands reads the --band flags (each LO:HI, or LO:HI:RL with its own
-// return loss, else rl) and gives every band the --min-power requirement.
-func matchBands(bandArgs []string, rl float64, minPower string) ([]match.Band, error) {
-	if len(bandArgs) == 0 {
-		return nil, usagef("--band is required, e.g. --band 2.40G:2.4835G")
-	}
+// parseBands reads the --band flags (each LO:HI, or LO:HI:RL with its own
+// return loss, else rl) and gives every band the --min-power requirement;
+// match and tune read their bands with it.
+func parseBands(bandArgs []string, rl float64, minPower string) ([]match.Band, error) {
 	bands := make([]match.Band, len(bandArgs))
 	for i, s := range bandArgs {
 		b, err := parseBand(s, math.Abs(rl))

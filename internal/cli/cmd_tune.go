@@ -10,7 +10,6 @@ import (
 	"strings"
 	"text/tabwriter"
 
-	"matchbench/rfmath/limits"
 	"matchbench/rfmath/match"
 	"matchbench/rfmath/units"
 )
@@ -126,22 +125,9 @@ func runTune(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	if math.IsNaN(*rl) || math.IsInf(*rl, 0) {
 		return usagef("--rl %g: not a number of dB", *rl)
 	}
-	bands := make([]match.Band, len(bandArgs))
-	for i, s := range bandArgs {
-		b, err := parseBand(s, math.Abs(*rl))
-		if err != nil {
-			return usagef("--band %s: %v", s, err)
-		}
-		bands[i] = b
-	}
-	if *minPower != "" {
-		share, err := limits.ParseShare(*minPower)
-		if err != nil {
-			return usagef("--min-power %s: %v", *minPower, err)
-		}
-		for i := range bands {
-			bands[i].MinPowerToLoad = share
-		}
+	bands, err := parseBands(bandArgs, *rl, *minPower)
+	if err != nil {
+		return err
 	}
 	obj, err := match.ParseObjective(*objective)
 	if err != nil {
@@ -166,47 +152,9 @@ func runTune(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return usagef("--carry %s: want none or offset", *carry)
 	}
 
-	raw, err := os.ReadFile(*netPath)
+	n, lay, err := tuneDesign(*netPath, *design, *footprint, *pad, traceArgs)
 	if err != nil {
 		return err
-	}
-	nets, lays, err := match.UnmarshalNetworks(raw)
-	if err != nil {
-		return fmt.Errorf("%s: %w", *netPath, err)
-	}
-	if *design < 1 || *design > len(nets) {
-		return usagef("--design %d: %s holds %d network(s)", *design, *netPath, len(nets))
-	}
-	n, lay := nets[*design-1].Built(), lays[*design-1]
-	if *footprint != "" {
-		fp, err := match.LookupFootprint(*footprint)
-		if err != nil {
-			return usagef("--footprint %s: %v", *footprint, err)
-		}
-		lay.Footprint = fp
-	}
-	if *pad != "" {
-		c, err := units.ParseValue(*pad, "F")
-		if err != nil || c < 0 || c > 100e-12 {
-			return usagef("--pad %s: want a capacitance from 0 to 100 pF, such as 0.1p", *pad)
-		}
-		lay.Footprint.PadCF = c
-		if lay.Footprint.Name == "" {
-			lay.Footprint.Name = "custom"
-		}
-	}
-	if len(traceArgs) > 0 {
-		lay.Traces = nil
-		for _, s := range traceArgs {
-			t, err := match.ParseTrace(s)
-			if err != nil {
-				return usagef("--trace %s: %v", s, err)
-			}
-			lay.Traces = append(lay.Traces, t)
-		}
-	}
-	if err := lay.Validate(len(n)); err != nil {
-		return usagef("%v", err)
 	}
 
 	ls, err := loadSweep(*loadPath)
@@ -248,6 +196,55 @@ func runTune(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	printTune(stdout, load, built, ls.Path, bs.Path, n, lay, fit, sw, out, *steps)
 	return nil
+}
+
+// tuneDesign reads network design (1 for the first) of the network file
+// netPath, as built, with its layout changed by the --footprint, --pad and
+// --trace flags.
+func tuneDesign(netPath string, design int, footprint, pad string, traceArgs []string) (match.Network, match.Layout, error) {
+	raw, err := os.ReadFile(netPath)
+	if err != nil {
+		return nil, match.Layout{}, err
+	}
+	nets, lays, err := match.UnmarshalNetworks(raw)
+	if err != nil {
+		return nil, match.Layout{}, fmt.Errorf("%s: %w", netPath, err)
+	}
+	if design < 1 || design > len(nets) {
+		return nil, match.Layout{}, usagef("--design %d: %s holds %d network(s)", design, netPath, len(nets))
+	}
+	n, lay := nets[design-1].Built(), lays[design-1]
+	if footprint != "" {
+		fp, err := match.LookupFootprint(footprint)
+		if err != nil {
+			return nil, match.Layout{}, usagef("--footprint %s: %v", footprint, err)
+		}
+		lay.Footprint = fp
+	}
+	if pad != "" {
+		c, err := units.ParseValue(pad, "F")
+		if err != nil || c < 0 || c > 100e-12 {
+			return nil, match.Layout{}, usagef("--pad %s: want a capacitance from 0 to 100 pF, such as 0.1p", pad)
+		}
+		lay.Footprint.PadCF = c
+		if lay.Footprint.Name == "" {
+			lay.Footprint.Name = "custom"
+		}
+	}
+	if len(traceArgs) > 0 {
+		lay.Traces = nil
+		for _, s := range traceArgs {
+			t, err := match.ParseTrace(s)
+			if err != nil {
+				return nil, match.Layout{}, usagef("--trace %s: %v", s, err)
+			}
+			lay.Traces = append(lay.Traces, t)
+		}
+	}
+	if err := lay.Validate(len(n)); err != nil {
+		return nil, match.Layout{}, usagef("%v", err)
+	}
+	return n, lay, nil
 }
 
 // orNone returns a count of builds as match.SwapSettings takes it: −1
