@@ -38,6 +38,53 @@ type deembedSteps []string
 
 func (d *deembedSteps) add(format string, a ...any) { *d = append(*d, fmt.Sprintf(format, a...)) }
 
+// deembedFixtures reads the fixture files of ports 1 and 2 (each with the
+// port that faces the analyser), noting each in steps.
+func deembedFixtures(ports int, fix1 string, fix1Port int, fix2 string, fix2Port int, steps *deembedSteps) ([]deembed.Fixture, error) {
+	if fix1 == "" && fix2 == "" {
+		return nil, nil
+	}
+	fix := make([]deembed.Fixture, ports)
+	for i, f := range []struct {
+		path string
+		at   int
+	}{{fix1, fix1Port}, {fix2, fix2Port}} {
+		if f.path == "" {
+			continue
+		}
+		fl, err := loadSweep(f.path)
+		if err != nil {
+			return nil, err
+		}
+		fix[i] = deembed.Fixture{S: fl.Sweep, AnalyserPort: f.at}
+		steps.add("removed fixture %s from port %d (its port %d at the analyser)", filepath.Base(f.path), i+1, f.at)
+	}
+	return fix, nil
+}
+
+// fitDeembedExtension fits the port extension to the sweep of the open (or
+// shorted) end, noting the fit in steps.
+func fitDeembedExtension(autoOpen, autoShort string, steps *deembedSteps) (deembed.Extension, error) {
+	path, std := autoOpen, deembed.Open
+	if autoShort != "" {
+		path, std = autoShort, deembed.Short
+	}
+	ol, err := loadSweep(path)
+	if err != nil {
+		return deembed.Extension{}, err
+	}
+	fit, err := deembed.FitExtension(ol.Sweep, std, nil)
+	if err != nil {
+		return deembed.Extension{}, fmt.Errorf("%s: %w", path, err)
+	}
+	ext := fit.Extension
+	steps.add("fitted on the %s end %s: delay %s (+/- %s), loss %s dB at %s (sqrt f) %s dB flat; residual %s deg, %s dB rms; offset %s deg",
+		std, filepath.Base(path), units.Format(ext.DelayS, "s", 6), delaySE(fit.DelaySE), fmtNum(ext.LossDB, 4), units.FormatFrequency(ext.LossRefHz, 4),
+		asciiPlusMinus(ext.FlatLossDB, 4), fmtNum(fit.PhaseRMSDeg, 2), fmtNum(fit.MagRMSDB, 3), fmtNum(fit.OffsetDeg, 2))
+
+	return ext, nil
+}
+
 func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("deembed", deembedUsage, stderr)
 	fix1 := fs.String("fixture", "", "2-port `file` of the fixture at port 1 to remove")
@@ -106,43 +153,15 @@ func runDeembed(_ context.Context, args []string, stdout, stderr io.Writer) erro
 	var plane deembed.Plane // the steps, taken in their order by plane.Apply
 
 	// 1. Fixtures.
-	if *fix1 != "" || *fix2 != "" {
-		fix := make([]deembed.Fixture, s.Ports)
-		for i, f := range []struct {
-			path string
-			at   int
-		}{{*fix1, *fix1Port}, {*fix2, *fix2Port}} {
-			if f.path == "" {
-				continue
-			}
-			fl, err := loadSweep(f.path)
-			if err != nil {
-				return err
-			}
-			fix[i] = deembed.Fixture{S: fl.Sweep, AnalyserPort: f.at}
-			steps.add("removed fixture %s from port %d (its port %d at the analyser)", filepath.Base(f.path), i+1, f.at)
-		}
-		plane.Fixtures = fix
+	if plane.Fixtures, err = deembedFixtures(s.Ports, *fix1, *fix1Port, *fix2, *fix2Port, &steps); err != nil {
+		return err
 	}
 
 	// 2. Port extension, given or fitted.
 	if *autoOpen != "" || *autoShort != "" {
-		path, std := *autoOpen, deembed.Open
-		if *autoShort != "" {
-			path, std = *autoShort, deembed.Short
-		}
-		ol, err := loadSweep(path)
-		if err != nil {
+		if ext, err = fitDeembedExtension(*autoOpen, *autoShort, &steps); err != nil {
 			return err
 		}
-		fit, err := deembed.FitExtension(ol.Sweep, std, nil)
-		if err != nil {
-			return fmt.Errorf("%s: %w", path, err)
-		}
-		ext = fit.Extension
-		steps.add("fitted on the %s end %s: delay %s (+/- %s), loss %s dB at %s (sqrt f) %s dB flat; residual %s deg, %s dB rms; offset %s deg",
-			std, filepath.Base(path), units.Format(ext.DelayS, "s", 6), delaySE(fit.DelaySE), fmtNum(ext.LossDB, 4), units.FormatFrequency(ext.LossRefHz, 4),
-			asciiPlusMinus(ext.FlatLossDB, 4), fmtNum(fit.PhaseRMSDeg, 2), fmtNum(fit.MagRMSDB, 3), fmtNum(fit.OffsetDeg, 2))
 	}
 	if ext.DelayS != 0 || ext.LossDB != 0 || ext.FlatLossDB != 0 {
 		exts := make([]deembed.Extension, s.Ports)
