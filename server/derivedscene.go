@@ -137,7 +137,7 @@ func (s *Server) fillDerived(sc *scene) {
 func (sc *scene) yieldJob() derivedJob {
 	sid, st, ne := sc.sid, sc.st, sc.net
 	return func(ctx context.Context) (any, int64) {
-		w := &scene{sid: sid, st: st, net: ne, jobCtx: ctx}
+		w := &scene{sid: sid, st: st, net: ne, netFigures: netFigures{jobCtx: ctx}}
 		res, msg := w.yield()
 		var n int64 = 256
 		if res != nil {
@@ -154,7 +154,7 @@ func (sc *scene) yieldJob() derivedJob {
 func (sc *scene) limitsJob() derivedJob {
 	sid, st, ne := sc.sid, sc.st, sc.net
 	return func(ctx context.Context) (any, int64) {
-		w := &scene{sid: sid, st: st, net: ne, jobCtx: ctx}
+		w := &scene{sid: sid, st: st, net: ne, netFigures: netFigures{jobCtx: ctx}}
 		return w.limitsView(), 1024
 	}
 }

@@ -38,6 +38,44 @@ type trace struct {
 	gamma []complex128
 }
 
+// viewCaches are the caches a scene fills as it is drawn, kept while only
+// markers change (room.sceneFor copies them with the scene): plots by
+// view, plot series by quantity, traces renormalised for a chart's
+// reference. Each is bounded (maxViewsKept, maxSeriesKept, maxDispRefs).
+type viewCaches struct {
+	plotsC     map[string][]plot
+	seriesC    map[string][]chartsvg.Series
+	seriesNote map[string]string
+	disp       map[string][]complex128
+}
+
+// netFigures are the active network's figures, computed once per scene:
+// the band figures (metrics), the Monte Carlo (yield) and, filled by
+// fillDerived (derivedscene.go) from the derived-results cache, whether
+// the yield is still computing and the limits.
+type netFigures struct {
+	metricsDone bool // metricsRes, metricsIdx and metricsErr hold the network's band figures
+	metricsRes  match.Metrics
+	metricsIdx  []int
+	metricsErr  error
+	setRes      *match.SetMetrics // the figures on each member, when the network is judged across a set
+
+	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
+	yieldRes  *match.YieldResult
+	yieldMsg  string
+
+	yieldPending bool            // the Monte Carlo is computing
+	limitsV      *web.LimitsView // the limits, or "computing…"
+	jobCtx       context.Context // a derived job's context (jobContext)
+}
+
+// tdrView is the time-domain view of a scene, computed once.
+type tdrView struct {
+	tdrDone bool // tdrP and tdrNote hold the time-domain view
+	tdrP    *plot
+	tdrNote string
+}
+
 // scene is what one state of a session draws: its visible traces and the
 // derived data the chart, the plots and the panels need.
 type scene struct {
@@ -50,35 +88,13 @@ type scene struct {
 	fmax   float64
 	net    *netEval // the active matching network, or nil
 
-	// Caches filled as the scene is drawn, kept while only markers change
-	// (room.sceneFor copies them with the scene): plots by view, plot
-	// series by quantity, traces renormalised for a chart's reference.
-	plotsC     map[string][]plot
-	seriesC    map[string][]chartsvg.Series
-	seriesNote map[string]string
-	disp       map[string][]complex128
+	viewCaches // drawings by page view, kept while only markers change
 
 	raw  map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
 	errs map[string]string        // sweeps whose plane could not be applied
 
-	metricsDone bool // metricsRes, metricsIdx and metricsErr hold the network's band figures
-	metricsRes  match.Metrics
-	metricsIdx  []int
-	metricsErr  error
-	setRes      *match.SetMetrics // the figures on each member, when the network is judged across a set
-
-	yieldDone bool // yieldRes and yieldMsg hold the network's Monte Carlo
-	yieldRes  *match.YieldResult
-	yieldMsg  string
-
-	// Filled by fillDerived (derivedscene.go) from the derived-results cache.
-	yieldPending bool            // the Monte Carlo is computing
-	limitsV      *web.LimitsView // the limits, or "computing…"
-	jobCtx       context.Context // a derived job's context (jobContext)
-
-	tdrDone bool // tdrP and tdrNote hold the time-domain view
-	tdrP    *plot
-	tdrNote string
+	netFigures // the active network's band figures, yield and limits
+	tdrView    // the time-domain view
 	prev    *scene // the scene before, while a room renders an event
 
 	amp   *ampEval   // the amplifier view, or nil (amp.go)
