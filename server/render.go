@@ -93,9 +93,9 @@ type scene struct {
 	raw  map[string]*rfmath.Sweep // sweeps as measured, where a plane corrects them
 	errs map[string]string        // sweeps whose plane could not be applied
 
-	netFigures // the active network's band figures, yield and limits
-	tdrView    // the time-domain view
-	prev    *scene // the scene before, while a room renders an event
+	netFigures        // the active network's band figures, yield and limits
+	tdrView           // the time-domain view
+	prev       *scene // the scene before, while a room renders an event
 
 	amp   *ampEval   // the amplifier view, or nil (amp.go)
 	stage *stageEval // the transistor stage, or nil (amp.go)
