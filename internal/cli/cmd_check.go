@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"encoding/json"
 	"flag"
 	"fmt"
 	"io"
@@ -170,9 +169,7 @@ func runCheck(_ context.Context, args []string, stdout, stderr io.Writer) error 
 	}
 	rep := checkFiles(files, bands, *port, through)
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(rep); err != nil {
+		if err := writeJSON(stdout, rep); err != nil {
 			return err
 		}
 	} else {

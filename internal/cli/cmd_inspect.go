@@ -129,9 +129,7 @@ func runInspect(_ context.Context, args []string, stdout, stderr io.Writer) erro
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return writeJSON(stdout, rep)
 	}
 	printInspect(stdout, rep)
 	return nil

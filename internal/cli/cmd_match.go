@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -217,9 +216,7 @@ func runMatch(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 
 	best := res.Designs[0]
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(designs); err != nil {
+		if err := writeJSON(stdout, designs); err != nil {
 			return err
 		}
 		if !best.Meets() {

@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -107,9 +106,7 @@ func runSynth(_ context.Context, args []string, stdout, stderr io.Writer) error 
 		return err
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(synthJSON(s))
+		return writeJSON(stdout, synthJSON(s))
 	}
 	printSynth(stdout, s)
 	return nil

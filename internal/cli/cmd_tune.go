@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -190,9 +189,7 @@ func runTune(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	}
 	out := tuneOutput(ls.Path, bs.Path, n, lay, fit, sw)
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(out)
+		return writeJSON(stdout, out)
 	}
 	printTune(stdout, load, built, ls.Path, bs.Path, n, lay, fit, sw, out, *steps)
 	return nil

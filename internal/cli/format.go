@@ -1,7 +1,9 @@
 package cli
 
 import (
+	"encoding/json"
 	"fmt"
+	"io"
 	"matchbench/rfmath/units"
 	"math"
 	"strconv"
@@ -105,4 +107,12 @@ func plusMinus(v float64, digits int) string {
 		return "− " + fmtNum(-v, digits)
 	}
 	return "+ " + fmtNum(math.Abs(v), digits)
+}
+
+// writeJSON writes v as the commands' --json output: one JSON value,
+// indented by two spaces, and a newline.
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
 }
